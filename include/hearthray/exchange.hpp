@@ -1,0 +1,109 @@
+// Exchange: gray, diffuse, opaque surfaces exchanging heat by radiation (net-radiation /
+// radiosity method: Modest, Radiative Heat Transfer, 3rd ed., ch. 5; Siegel & Howell, Thermal
+// Radiation Heat Transfer; Incropera et al., Fundamentals of Heat and Mass Transfer, sec.
+// 13.3), with convection to a fluid and conduction through the wall to an outside temperature.
+//
+// Faces radiate (one per view-factor patch); nodes carry a temperature and a boundary
+// condition. A one-sided surface is one face on one node; a two-sided surface is a thin sheet:
+// two faces (front, back) on one node. For a face i with radiosity J_i and irradiation
+// G_i = sum_j F_ij J_j + F_is sigma T_s^4:  J_i = eps_i sigma T_i^4 + (1 - eps_i) G_i, and the
+// net radiative flux leaving it is q_i = J_i - G_i.
+// Energy balance of a node: heat input = sum over its faces of A_f q_f + convection + wall loss.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "hearthray/view_factors.hpp"
+
+namespace hearthray {
+
+enum class ConditionKind {
+  temperature,  // value: K
+  heat_flux,    // value: W/m^2 put in over the node's area (one side)
+  power,        // value: W put in
+  adiabatic     // no heat put in (a reradiating surface when it has no convection/wall loss)
+};
+
+struct Convection {
+  double h = 0;        // W/(m^2 K)
+  double fluid_K = 0;  // K
+};
+
+// Conduction through the wall to an outside temperature, as an overall coefficient
+// (U = k / thickness for a plain wall).
+struct WallLoss {
+  double U = 0;          // W/(m^2 K)
+  double outside_K = 0;  // K
+};
+
+struct NodeCondition {
+  ConditionKind kind = ConditionKind::adiabatic;
+  double value = 0;
+  std::optional<Convection> convection;
+  std::optional<WallLoss> wall_loss;
+};
+
+struct ExchangeNode {
+  std::string name;
+  NodeCondition condition;
+};
+
+struct ExchangeFace {
+  std::uint32_t node = 0;  // index into nodes
+  double emissivity = 1;   // (0, 1]
+};
+
+struct ExchangeProblem {
+  std::vector<ExchangeNode> nodes;
+  std::vector<ExchangeFace> faces;      // one per row of view_factors, same order
+  const ViewFactors* view_factors = nullptr;  // areas, F and to_surroundings per face
+  std::optional<double> surroundings_K;       // needed when any face sees the surroundings
+};
+
+struct ExchangeOptions {
+  double tolerance = 1e-10;  // Newton stops when max |energy residual| <= tolerance * scale
+  int max_iterations = 50;
+
+  bool IsValid(std::string* error) const;
+};
+
+enum class ExchangeStatus { converged, not_converged, singular };
+
+struct FaceResult {
+  double radiosity = 0;     // W/m^2
+  double irradiation = 0;   // W/m^2
+  double net_flux = 0;      // W/m^2, radiation leaving minus arriving
+  double net_power = 0;     // W
+};
+
+struct NodeResult {
+  std::string name;
+  double area = 0;              // m^2, all faces
+  double temperature_K = 0;
+  double net_radiation_W = 0;   // net radiation leaving, all faces
+  double convection_W = 0;      // to the fluid (positive out of the surface)
+  double wall_loss_W = 0;       // through the wall (positive out of the surface)
+  double heat_input_W = 0;      // = net_radiation + convection + wall_loss
+  double residual_W = 0;        // balance residual for nodes with a prescribed input
+};
+
+struct ExchangeResult {
+  ExchangeStatus status = ExchangeStatus::singular;
+  std::string message;
+  int iterations = 0;
+  double final_residual_W = 0;      // max over nodes of |balance residual|
+  double surroundings_W = 0;        // net radiation received by the surroundings
+  double balance_W = 0;             // sum of radiation out of all faces minus surroundings
+  std::vector<FaceResult> faces;
+  std::vector<NodeResult> nodes;
+
+  std::string BriefReport() const;
+};
+
+// Throws InputError for a malformed problem (bad emissivity, negative kelvin, missing
+// surroundings temperature, or a problem with no temperature level: nothing fixes it).
+ExchangeResult solve_exchange(const ExchangeProblem& problem, const ExchangeOptions& options);
+
+}  // namespace hearthray

@@ -1,0 +1,47 @@
+// Outputs of the view-factor stage: files other tools read and the terminal table.
+// The format of a file follows its extension.
+#pragma once
+
+#include <iosfwd>
+#include <string>
+#include <vector>
+
+#include "hearthray/view_factors.hpp"
+
+namespace hearthray {
+
+// What a report carries besides the matrix (echoed into JSON).
+struct FactorReportInfo {
+  std::string scene;                 // scene or mesh file
+  std::uint64_t seed = 0;
+  std::uint64_t rays_per_patch = 0;
+  double trace_seconds = 0;
+  double rays_per_second = 0;
+  int threads = 0;
+  std::string smoothing;             // method name, or "none (raw)"
+  int smoothing_iterations = 0;
+  double max_row_error = 0;
+  double max_reciprocity_error = 0;
+  std::vector<std::string> warnings;
+};
+
+// Dense CSV: header `surface,<name 1>,...,<name N>,surroundings`, one row per emitter.
+void write_factors_csv(std::ostream& out, const ViewFactors& vf);
+// Matrix Market coordinate real general, N x (N+1): the last column is the surroundings.
+// Comment lines list the names in order.
+void write_factors_mtx(std::ostream& out, const ViewFactors& vf);
+// NumPy .npy version 1.0, little-endian float64, C order, shape (N, N+1).
+void write_factors_npy(std::ostream& out, const ViewFactors& vf);
+// JSON: names, areas, F (dense, N x N+1 with surroundings last), standard errors, rays,
+// diagnostics and `info`.
+void write_factors_json(std::ostream& out, const ViewFactors& vf, const FactorReportInfo& info);
+
+// Writes by extension (.csv, .mtx, .npy, .json); throws InputError for any other extension or
+// a file that cannot be written.
+void write_factors_file(const std::string& path, const ViewFactors& vf,
+                        const FactorReportInfo& info);
+
+// A readable table for the terminal: F with standard errors, surroundings column, row sums.
+void print_factors_table(std::ostream& out, const ViewFactors& vf);
+
+}  // namespace hearthray

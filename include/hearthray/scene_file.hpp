@@ -1,0 +1,79 @@
+// The TOML scene file: which mesh, its unit, how surfaces are named, rays and seed, and per
+// surface its sides and thermal conditions. Every quantity carries its unit ("1250 C",
+// "1.5 kW", "350 W/m2"); unknown or misspelled keys are errors naming the key and the line.
+//
+//   [mesh]      file, unit (mm|cm|m|in|ft), surfaces_from (groups|materials)
+//   [rays]      per_patch, seed
+//   [surroundings] temperature
+//   [defaults]  any surface key except two_sided, used where a surface gives none
+//   [surface.NAME] two_sided, emissivity, and at most one of
+//               temperature | heat_flux | power | adiabatic = true;
+//               convection = { h = "8 W/m2K", fluid = "20 C" }
+//               wall = { U = "0.9 W/m2K", outside = "20 C" }
+//                   or { thickness = "230 mm", conductivity = "0.3 W/mK", outside = "20 C" }
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <utility>
+#include <vector>
+
+#include "hearthray/exchange.hpp"
+#include "hearthray/scene.hpp"
+
+namespace hearthray {
+
+struct SurfaceSpec {
+  bool two_sided = false;
+  std::optional<double> emissivity;
+  std::optional<ConditionKind> kind;  // with `value` in SI (K, W/m^2, W)
+  double value = 0;
+  std::optional<Convection> convection;
+  std::optional<WallLoss> wall_loss;
+  int line = 0;  // line of the table in the scene file (0 when not from a file)
+};
+
+struct SceneFile {
+  std::string path;                 // the scene file ("" when a bare mesh was given)
+  std::string mesh_path;            // resolved relative to the scene file's folder
+  MeshOptions mesh;
+  std::optional<std::uint64_t> rays_per_patch;
+  std::optional<std::uint64_t> seed;
+  std::optional<double> surroundings_K;
+  SurfaceSpec defaults;
+  std::vector<std::pair<std::string, SurfaceSpec>> surfaces;  // in file order
+
+  const SurfaceSpec* find(const std::string& name) const;
+  bool has_thermal_input() const;  // any emissivity or condition given
+};
+
+// Parses a scene file. Throws InputError (file and line named) on any problem.
+SceneFile read_scene_file(const std::string& path);
+// A scene file for a bare mesh: defaults everywhere.
+SceneFile scene_file_for_mesh(const std::string& mesh_path);
+// `path` ending in .toml is read as a scene file, anything else is taken as a mesh.
+SceneFile open_scene(const std::string& path);
+
+// Loads the mesh and applies per-surface settings (two_sided). A surface named in the scene
+// but absent from the mesh is an error listing the names that exist.
+Scene load_scene(const SceneFile& file);
+
+// Resolved thermal description of every surface (surface spec over defaults). Throws
+// InputError naming the surface when it has no emissivity or no condition.
+struct SurfaceThermal {
+  double emissivity = 1;
+  NodeCondition condition;
+};
+std::vector<SurfaceThermal> resolve_thermal(const SceneFile& file, const Scene& scene);
+
+// Quantities with units, as written in scene files. Each throws InputError naming `what` and
+// the units it accepts when the text has no unit or the wrong one.
+double parse_temperature(const std::string& text, const std::string& what);  // C, K, F -> K
+double parse_power(const std::string& text, const std::string& what);        // W, kW, MW -> W
+double parse_heat_flux(const std::string& text, const std::string& what);    // W/m2, kW/m2
+double parse_heat_transfer_coefficient(const std::string& text, const std::string& what);
+double parse_length(const std::string& text, const std::string& what);       // mm..ft -> m
+double parse_conductivity(const std::string& text, const std::string& what); // W/mK
+
+}  // namespace hearthray

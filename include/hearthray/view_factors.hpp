@@ -1,0 +1,93 @@
+// ViewFactors: Monte Carlo view factors between patches. Each patch emits its rays from
+// uniformly distributed points (stratified by area along its triangle list) in
+// cosine-weighted directions; F_ij = hits_ij / N_i with standard error sqrt(F(1-F)/N_i).
+// Tracing is a pure function of (scene, patches, emitter range, seed, rays): shards of
+// emitter ranges concatenate to the same tallies as one run.
+#pragma once
+
+#include <Eigen/SparseCore>
+#include <cstdint>
+#include <functional>
+#include <string>
+#include <vector>
+
+#include "hearthray/patches.hpp"
+#include "hearthray/scene.hpp"
+#include "hearthray/tracer.hpp"
+
+namespace hearthray {
+
+struct TraceProgress {
+  std::uint64_t rays_done = 0;
+  std::uint64_t rays_total = 0;
+  double seconds = 0;  // since tracing started
+};
+
+struct ViewFactorOptions {
+  std::uint64_t rays_per_patch = 100000;  // rays emitted by every patch
+  std::uint64_t seed = 1;                 // results depend on seed and rays only
+  int threads = 0;                        // worker threads; 0 = all cores
+  std::uint32_t emitter_begin = 0;        // emitting patches [begin, end); end 0 = all
+  std::uint32_t emitter_end = 0;
+  TracerOptions tracer;
+  // Called now and then from worker threads (serialised); must be cheap. May be empty.
+  std::function<void(const TraceProgress&)> progress;
+
+  bool IsValid(std::string* error) const;
+};
+
+// Raw ray counts, sparse per emitter: memory follows the non-zeros.
+struct Tallies {
+  std::size_t patch_count = 0;
+  std::uint32_t emitter_begin = 0;        // row r of the tallies is patch emitter_begin + r
+  std::vector<std::uint64_t> rays;        // per emitting row: rays emitted
+  std::vector<std::uint64_t> escaped;     // per emitting row: rays that hit nothing
+  std::vector<std::uint64_t> back_face;   // per emitting row: rays absorbed on a back face
+  // Row r: receiving patches hit_patch[hit_offset[r] .. hit_offset[r+1]) in ascending order,
+  // with their counts.
+  std::vector<std::uint64_t> hit_offset{0};
+  std::vector<std::uint32_t> hit_patch;
+  std::vector<std::uint64_t> hit_count;
+  // Per surface: rays from all emitters that arrived on the back of that one-sided surface.
+  std::vector<std::uint64_t> back_face_hits_on_surface;
+  std::vector<std::uint64_t> hits_on_surface;  // all arrivals (front and back) per surface
+
+  std::size_t rows() const { return rays.size(); }
+};
+
+struct TraceStats {
+  std::uint64_t rays = 0;
+  double seconds = 0;
+  double rays_per_second = 0;
+  int threads = 0;
+};
+
+// Traces the emitter range of `options`. Throws InputError for invalid options.
+Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
+                      const ViewFactorOptions& options, TraceStats* stats = nullptr);
+
+// Concatenates shards (tallies of consecutive emitter ranges) into one.
+Tallies merge_shards(const std::vector<Tallies>& shards);
+
+using SparseMatrix = Eigen::SparseMatrix<double, Eigen::RowMajor>;
+
+// The view-factor matrix with its statistics: what every output writer reads.
+struct ViewFactors {
+  std::vector<std::string> names;         // patch names
+  std::vector<double> areas;              // m^2
+  std::vector<std::uint64_t> rays;        // rays emitted per patch
+  SparseMatrix F;                         // n x n
+  std::vector<double> to_surroundings;    // per patch: fraction that escapes
+  std::vector<double> to_back_faces;      // per patch: fraction absorbed on back faces
+  bool smoothed = false;                  // reciprocity and closure enforced
+  double max_correction_sigma = 0;        // largest smoothing change, in standard errors
+
+  std::size_t size() const { return names.size(); }
+  // Standard error of a factor estimated from `rays[i]` rays: sqrt(F(1-F)/N_i).
+  double standard_error(std::size_t i, double f) const;
+};
+
+// Raw estimate F_ij = hits_ij / N_i (no correction).
+ViewFactors raw_view_factors(const PatchSet& patches, const Tallies& tallies);
+
+}  // namespace hearthray
