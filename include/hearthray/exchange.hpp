@@ -9,6 +9,10 @@
 // G_i = sum_j F_ij J_j + F_is sigma T_s^4:  J_i = eps_i sigma T_i^4 + (1 - eps_i) G_i, and the
 // net radiative flux leaving it is q_i = J_i - G_i.
 // Energy balance of a node: heat input = sum over its faces of A_f q_f + convection + wall loss.
+// The area of a node is the sum of its faces' areas (both sides of a two-sided sheet): heat
+// flux, convection and wall loss all act on that area. Radiation a face sends to back faces of
+// one-sided surfaces (ViewFactors::to_back_faces) is treated like radiation to the
+// surroundings: it is lost to a black surroundings at surroundings_K and counted there.
 #pragma once
 
 #include <optional>
@@ -21,7 +25,8 @@ namespace hearthray {
 
 enum class ConditionKind {
   temperature,  // value: K
-  heat_flux,    // value: W/m^2 put in over the node's area (one side)
+  heat_flux,    // value: W/m^2 put in, per m^2 of all faces of the node (both sides of a
+                //   two-sided sheet), so the power put in is value * sum of its faces' areas
   power,        // value: W put in
   adiabatic     // no heat put in (a reradiating surface when it has no convection/wall loss)
 };
@@ -58,13 +63,19 @@ struct ExchangeFace {
 struct ExchangeProblem {
   std::vector<ExchangeNode> nodes;
   std::vector<ExchangeFace> faces;      // one per row of view_factors, same order
-  const ViewFactors* view_factors = nullptr;  // areas, F and to_surroundings per face
+  // Areas, F, to_surroundings and to_back_faces per face (the last two may be empty: none).
+  const ViewFactors* view_factors = nullptr;
   std::optional<double> surroundings_K;       // needed when any face sees the surroundings
 };
 
 struct ExchangeOptions {
-  double tolerance = 1e-10;  // Newton stops when max |energy residual| <= tolerance * scale
+  // Newton stops when max |node balance residual| <= tolerance * scale, where scale is the
+  // largest heat flow in the problem, counting each node's black-body emission A sigma T^4.
+  double tolerance = 1e-10;
   int max_iterations = 50;
+  // Up to this many faces the radiosity matrix is factored densely (Eigen PartialPivLU);
+  // above it, BiCGSTAB with a diagonal preconditioner works on the sparse F.
+  int dense_face_limit = 1500;
 
   bool IsValid(std::string* error) const;
 };

@@ -50,7 +50,7 @@ Vec3 sample_cosine_hemisphere(double u1, double u2);
 double cosine_hemisphere_pdf(const Vec3& local_direction);
 std::array<double, 2> invert_cosine_hemisphere(const Vec3& local_direction);
 
-// sin and cos of 2*pi*u for u in [0,1), a polynomial with |error| < 1e-7: the sampler's
+// sin and cos of 2*pi*u for u in [0,1), a polynomial with |error| < 1e-10: the sampler's
 // one trigonometric call, kept cheap as rays are.
 void sincos_2pi(double u, double* s, double* c);
 

@@ -63,6 +63,8 @@ Scene load_obj(std::istream& in, const std::string& name, const MeshOptions& opt
 // Topology report used by `check` and to decide whether escaping rays are leaks.
 struct MeshTopology {
   bool closed = false;                 // every edge (vertices welded by position) has 2 faces
+  bool one_sided_closed = false;       // the same for one-sided surfaces alone: an enclosure
+                                       // that may hold two-sided sheets
   std::size_t boundary_edges = 0;      // edges with one face
   std::size_t nonmanifold_edges = 0;   // edges with more than two faces
   std::size_t duplicate_triangles = 0; // same three positions as an earlier triangle

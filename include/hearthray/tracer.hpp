@@ -20,7 +20,10 @@ struct TracerOptions {
   int build_threads = 0;
 };
 
-// A ray in float (Embree's precision). `tnear` and `tfar` bound the hit distance.
+// A ray in float (Embree's precision), in the tracer's frame: scene coordinates minus
+// Tracer::centre(), so that float resolution follows the scene's size and not its distance
+// from the file's origin (a kiln drawn in site coordinates km away traces like one at 0).
+// `tnear` and `tfar` bound the hit distance.
 struct Ray {
   float org[3];
   float dir[3];
@@ -43,6 +46,9 @@ class Tracer {
   Tracer& operator=(Tracer&&) noexcept;
   Tracer(const Tracer&) = delete;
   Tracer& operator=(const Tracer&) = delete;
+
+  // Centre of the scene's bounding box: the origin of the frame rays are given in.
+  const Vec3& centre() const;
 
   // Traces `count` rays; safe to call from many threads at once.
   void trace(const Ray* rays, RayHit* hits, std::size_t count) const;

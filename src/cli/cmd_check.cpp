@@ -1,0 +1,69 @@
+// `hearthray check`: what the mesh holds and whether it is fit for an enclosure calculation.
+#include <cstdio>
+#include <iostream>
+
+#include "commands.hpp"
+
+namespace hearthray::cli {
+
+namespace {
+
+double share(std::uint64_t part, std::uint64_t whole) {
+  return whole ? double(part) / double(whole) : 0.0;
+}
+
+}  // namespace
+
+int run_check_command(const CheckArgs& args) {
+  const SceneFile file = open_scene(args.input);
+  const Scene scene = load_scene(file);
+  const MeshTopology topology = analyse_topology(scene);
+
+  std::size_t dropped = 0;
+  for (const Surface& s : scene.surfaces) dropped += s.dropped_degenerate;
+  std::printf("mesh      %s (unit %s, surfaces from %s)\n", scene.source.c_str(),
+              to_string(file.mesh.unit).c_str(),
+              file.mesh.surfaces_from == SurfacesFrom::groups ? "groups" : "materials");
+  std::printf("bounds    x %.6g .. %.6g m, y %.6g .. %.6g m, z %.6g .. %.6g m\n",
+              scene.bounds.lo.x, scene.bounds.hi.x, scene.bounds.lo.y, scene.bounds.hi.y,
+              scene.bounds.lo.z, scene.bounds.hi.z);
+  std::printf("triangles %zu (degenerate dropped: %zu, duplicates: %zu)\n",
+              scene.triangles.size(), dropped, topology.duplicate_triangles);
+  if (topology.closed)
+    std::printf("topology  closed: every edge is shared by exactly two triangles\n");
+  else if (topology.one_sided_closed)
+    std::printf("topology  closed enclosure (its one-sided surfaces) holding two-sided sheets\n");
+  else
+    std::printf("topology  open: %zu boundary edges, %zu edges shared by more than two "
+                "triangles\n",
+                topology.boundary_edges, topology.nonmanifold_edges);
+
+  // Quick ray estimate, raw counts only.
+  const PatchSet patches = make_surface_patches(scene);
+  ViewFactorOptions options;
+  options.rays_per_patch = args.rays;
+  options.seed = args.seed;
+  options.threads = args.threads;
+  const Tracer tracer(scene, options.tracer);
+  const Tallies tallies = trace_tallies(scene, patches, tracer, options);
+  const RayDiagnostics d = diagnose_rays(scene, patches, tallies, topology);
+
+  std::printf("\n%-24s %9s %12s %9s %12s %10s\n", "surface", "triangles", "area m2", "sides",
+              "back hits", "escaped");
+  for (std::size_t s = 0; s < scene.surfaces.size(); ++s) {
+    const Surface& surface = scene.surfaces[s];
+    const SurfaceRayReport& r = d.surfaces[s];
+    std::printf("%-24.24s %9u %12.6g %9s %11.2f%% %9.2f%%\n", surface.name.c_str(),
+                surface.triangle_count, surface.area, surface.two_sided ? "two" : "one",
+                100 * share(r.back_face_hits, r.arrivals), 100 * share(r.escaped, r.emitted));
+  }
+  std::printf("\n(back hits: share of arrivals on the back of a one-sided surface; escaped: "
+              "share of the surface's own rays that hit nothing; %llu rays per side)\n",
+              static_cast<unsigned long long>(args.rays));
+  std::cout.flush();
+  print_warnings(scene, d, true);
+  if (d.warnings.empty() && scene.warnings.empty()) std::printf("no warnings\n");
+  return 0;
+}
+
+}  // namespace hearthray::cli

@@ -1,0 +1,85 @@
+#include "hearthray/diagnostics.hpp"
+
+#include <cstdio>
+
+namespace hearthray {
+
+namespace {
+
+std::string percent(double fraction) {
+  char buffer[32];
+  if (fraction >= 0.001)
+    std::snprintf(buffer, sizeof buffer, "%.1f %%", 100 * fraction);
+  else
+    std::snprintf(buffer, sizeof buffer, "%.2g %%", 100 * fraction);
+  return buffer;
+}
+
+}  // namespace
+
+RayDiagnostics diagnose_rays(const Scene& scene, const PatchSet& patches, const Tallies& tallies,
+                             const MeshTopology& topology) {
+  RayDiagnostics d;
+  d.mesh_closed = topology.closed || topology.one_sided_closed;
+  d.surfaces.resize(scene.surfaces.size());
+  for (std::size_t s = 0; s < scene.surfaces.size(); ++s) {
+    d.surfaces[s].name = scene.surfaces[s].name;
+    d.surfaces[s].arrivals = tallies.hits_on_surface[s];
+    d.surfaces[s].back_face_hits = tallies.back_face_hits_on_surface[s];
+    d.back_face_hits += tallies.back_face_hits_on_surface[s];
+  }
+  for (std::size_t r = 0; r < tallies.rows(); ++r) {
+    const Patch& p = patches.patches[tallies.emitter_begin + r];
+    d.surfaces[p.surface].emitted += tallies.rays[r];
+    d.surfaces[p.surface].escaped += tallies.escaped[r];
+    d.emitted += tallies.rays[r];
+    d.escaped += tallies.escaped[r];
+  }
+
+  for (const SurfaceRayReport& s : d.surfaces) {
+    if (s.back_face_hits == 0) continue;
+    const double share = double(s.back_face_hits) / double(s.arrivals);
+    if (share >= 0.1)
+      d.warnings.push_back("surface '" + s.name + "': " + percent(share) +
+                           " of the rays reaching it arrive on its back side: its normals "
+                           "probably point the wrong way (the front is the side from which "
+                           "the vertices run counter-clockwise). Flip its faces, or declare "
+                           "it two_sided if it is a thin sheet seen from both sides.");
+    else
+      d.warnings.push_back("surface '" + s.name + "': " + std::to_string(s.back_face_hits) +
+                           " rays (" + percent(share) +
+                           " of its arrivals) hit its back side and were absorbed there; "
+                           "declare it two_sided if both sides should take part.");
+  }
+  if (d.escaped > 0) {
+    const double share = double(d.escaped) / double(d.emitted);
+    if (d.mesh_closed) {
+      d.warnings.push_back("leak: the mesh is closed, yet " + std::to_string(d.escaped) +
+                           " rays (" + percent(share) +
+                           ") escaped through it; they are counted as radiation to the "
+                           "surroundings. Check for gaps, or for a surface whose normals point "
+                           "out of the enclosure.");
+    } else {
+      std::size_t worst = 0;
+      for (std::size_t s = 1; s < d.surfaces.size(); ++s) {
+        const auto& a = d.surfaces[s];
+        const auto& b = d.surfaces[worst];
+        if (a.emitted && double(a.escaped) / a.emitted >
+                             double(b.escaped) / std::max<std::uint64_t>(b.emitted, 1))
+          worst = s;
+      }
+      const auto& w = d.surfaces[worst];
+      d.notes.push_back("open enclosure: " + percent(share) +
+                        " of all rays leave to the surroundings (most from '" + w.name + "', " +
+                        percent(double(w.escaped) / std::max<std::uint64_t>(w.emitted, 1)) + ").");
+    }
+  }
+  for (const SurfaceRayReport& s : d.surfaces) {
+    if (s.emitted > 0 && d.mesh_closed && s.escaped * 2 > s.emitted)
+      d.warnings.push_back("surface '" + s.name + "': most of its rays leave a closed mesh: " +
+                           "its normals probably point out of the enclosure.");
+  }
+  return d;
+}
+
+}  // namespace hearthray

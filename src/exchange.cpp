@@ -1,0 +1,395 @@
+// Gray-body enclosure exchange by the net-radiation (radiosity) method: Modest, Radiative Heat
+// Transfer, 3rd ed., sec. 5.3; Incropera et al., Fundamentals of Heat and Mass Transfer, sec.
+// 13.3.
+//
+// With E = sigma T^4 per face, the radiosities solve M J = diag(eps) E + diag(1 - eps) F_s E_s,
+// M = I - diag(1 - eps) F, and the net flux is q = eps (E - G) with G = F J + F_s E_s. This
+// form stays valid at eps = 1 (no division by 1 - eps). For fixed surroundings q is affine in
+// the nodes' E, so M is factored once and the node balances become
+//   Q_rad = c + K E_U            (K: nodes x unknown nodes, exact),
+// after which Newton's method on the unknown node temperatures only needs small dense solves.
+#include "hearthray/exchange.hpp"
+
+#include <Eigen/Dense>
+#include <Eigen/IterativeLinearSolvers>
+#include <Eigen/SparseCore>
+#include <algorithm>
+#include <cmath>
+#include <numeric>
+#include <vector>
+
+#include "exchange_setup.hpp"
+#include "hearthray/error.hpp"
+#include "hearthray/units.hpp"
+
+namespace hearthray {
+
+using exchange_detail::format_number;
+using exchange_detail::Setup;
+
+namespace {
+
+constexpr double kSigma = kStefanBoltzmann;
+// Reciprocal condition number below which a matrix is treated as singular.
+constexpr double kSingularRcond = 1e-14;
+// Relative residual of the iterative radiosity solve (BiCGSTAB) on large problems.
+constexpr double kIterativeTolerance = 1e-14;
+
+double sigma_t4(double kelvin) {
+  return kSigma * std::pow(kelvin, 4);
+}
+
+// Solves M X = B for all columns of B. Returns false (with a message) on failure.
+bool solve_radiosity(const Setup& s, const ExchangeOptions& options, const Eigen::MatrixXd& B,
+                     Eigen::MatrixXd* X, ExchangeStatus* status, std::string* message) {
+  const Eigen::VectorXd reflect = Eigen::VectorXd::Ones(s.faces) - s.eps;
+  if (s.faces <= static_cast<std::size_t>(options.dense_face_limit)) {
+    Eigen::MatrixXd M = -(reflect.asDiagonal() * Eigen::MatrixXd(*s.F));
+    M.diagonal().array() += 1.0;
+    Eigen::PartialPivLU<Eigen::MatrixXd> lu(M);
+    if (!(lu.rcond() > kSingularRcond)) {
+      *status = ExchangeStatus::singular;
+      *message = "the radiosity matrix I - (1 - eps) F is singular (reciprocal condition " +
+                 format_number(lu.rcond()) +
+                 "); check the view factors (rows must sum to 1 or less, none negative)";
+      return false;
+    }
+    *X = lu.solve(B);
+  } else {
+    // M is strictly diagonally dominant by rows when F >= 0, rows sum to <= 1 and eps > 0,
+    // so a Krylov solver with a diagonal preconditioner converges quickly; a sparse LU would
+    // fill in badly, since in an enclosure most patches see most others.
+    SparseMatrix M = -(reflect.asDiagonal() * (*s.F));
+    SparseMatrix identity(s.faces, s.faces);
+    identity.setIdentity();
+    M += identity;
+    Eigen::BiCGSTAB<SparseMatrix, Eigen::DiagonalPreconditioner<double>> solver;
+    solver.setTolerance(kIterativeTolerance);
+    solver.setMaxIterations(static_cast<int>(std::min<std::size_t>(10000, 10 * s.faces)));
+    solver.compute(M);
+    *X = solver.solve(B);
+    if (solver.info() != Eigen::Success) {
+      *status = ExchangeStatus::not_converged;
+      *message = "the iterative radiosity solve (BiCGSTAB) did not converge: relative residual " +
+                 format_number(solver.error()) + " after " + std::to_string(solver.iterations()) +
+                 " iterations";
+      return false;
+    }
+  }
+  if (!X->allFinite()) {
+    *status = ExchangeStatus::singular;
+    *message = "the radiosity solve gave non-finite values; check the view factors";
+    return false;
+  }
+  return true;
+}
+
+// Everything the node balances need, assembled once for the whole solve.
+struct Reduced {
+  std::vector<int> unknown;  // node index of each unknown
+  std::vector<int> column;   // per node: its unknown column, or -1 when fixed
+  Eigen::MatrixXd X;         // radiosity J = X.col(0) + X.rightCols(u) E_U
+  Eigen::VectorXd c;         // per node: Q_rad at E_U = 0
+  Eigen::MatrixXd K;         // nodes x unknowns: d Q_rad / d E_U
+};
+
+bool reduce(const Setup& s, const ExchangeOptions& options, Reduced* r, ExchangeStatus* status,
+            std::string* message) {
+  r->column.assign(s.nodes, -1);
+  for (std::size_t k = 0; k < s.nodes; ++k) {
+    if (!s.fixed[k]) {
+      r->column[k] = static_cast<int>(r->unknown.size());
+      r->unknown.push_back(static_cast<int>(k));
+    }
+  }
+  const Eigen::Index u = static_cast<Eigen::Index>(r->unknown.size());
+  Eigen::MatrixXd B = Eigen::MatrixXd::Zero(s.faces, 1 + u);
+  for (std::size_t i = 0; i < s.faces; ++i) {
+    const std::uint32_t k = s.node_of_face[i];
+    if (s.fixed[k]) {
+      B(i, 0) = s.eps[i] * sigma_t4(s.fixed_K[k]);
+    } else {
+      B(i, 1 + r->column[k]) = s.eps[i];
+    }
+    B(i, 0) += (1 - s.eps[i]) * s.to_surroundings[i] * s.surroundings_Eb;
+  }
+  if (!solve_radiosity(s, options, B, &r->X, status, message)) return false;
+  // q = eps (E - F J - F_s E_s), split into its constant part and its part in E_U.
+  const Eigen::MatrixXd FX = (*s.F) * r->X;
+  r->c = Eigen::VectorXd::Zero(s.nodes);
+  r->K = Eigen::MatrixXd::Zero(s.nodes, u);
+  for (std::size_t i = 0; i < s.faces; ++i) {
+    const std::uint32_t k = s.node_of_face[i];
+    const double own = s.fixed[k] ? sigma_t4(s.fixed_K[k]) : 0.0;
+    const double weight = s.area[i] * s.eps[i];
+    r->c[k] += weight * (own - FX(i, 0) - s.to_surroundings[i] * s.surroundings_Eb);
+    r->K.row(k) -= weight * FX.row(i).tail(u);
+    if (!s.fixed[k]) r->K(k, r->column[k]) += weight;
+  }
+  return true;
+}
+
+// Convection and wall loss out of node k at temperature T.
+double conduction_out(const Setup& s, std::size_t k, double T) {
+  return s.hA[k] * (T - s.fluid_K[k]) + s.UA[k] * (T - s.outside_K[k]);
+}
+
+// A start for Newton's method: the balance made linear in E = sigma T^4 by writing
+// h A (T - T_f) = g (E - sigma T_f^4) with g = h A / (sigma (T_r + T_f)(T_r^2 + T_f^2)), exact
+// at T = T_r (a secant). Two passes: T_r from the known temperatures, then from the first
+// answer. With radiation only, the first pass is already the exact answer.
+// Returns false when a radiation-only node would need E <= 0 (no solution exists).
+bool starting_temperatures(const Setup& s, const Reduced& r, Eigen::VectorXd* T,
+                           std::string* message) {
+  const Eigen::Index u = static_cast<Eigen::Index>(r.unknown.size());
+  std::vector<double> levels;
+  for (std::size_t k = 0; k < s.nodes; ++k) {
+    if (s.fixed[k]) levels.push_back(s.fixed_K[k]);
+    if (s.hA[k] > 0) levels.push_back(s.fluid_K[k]);
+    if (s.UA[k] > 0) levels.push_back(s.outside_K[k]);
+  }
+  if (s.surroundings_Eb > 0 && s.to_surroundings.maxCoeff() > 0) {
+    levels.push_back(std::pow(s.surroundings_Eb / kSigma, 0.25));
+  }
+  double reference = 300.0;  // only if nothing is known (the input checks prevent that)
+  if (!levels.empty()) {
+    reference = std::accumulate(levels.begin(), levels.end(), 0.0) / double(levels.size());
+  }
+  *T = Eigen::VectorXd::Constant(u, reference);
+  bool any_conduction = false;
+  for (int k : r.unknown) any_conduction = any_conduction || s.hA[k] > 0 || s.UA[k] > 0;
+
+  for (int pass = 0; pass < (any_conduction ? 2 : 1); ++pass) {
+    Eigen::MatrixXd A(u, u);
+    for (Eigen::Index j = 0; j < u; ++j) A.row(j) = r.K.row(r.unknown[j]);
+    Eigen::VectorXd rhs(u);
+    for (Eigen::Index j = 0; j < u; ++j) {
+      const int k = r.unknown[j];
+      const double Tr = (*T)[j];
+      rhs[j] = s.input_W[k] - r.c[k];
+      auto secant = [&](double conductance, double Tx) {
+        if (conductance <= 0) return;
+        const double g = conductance / (kSigma * (Tr + Tx) * (Tr * Tr + Tx * Tx));
+        A(j, j) += g;
+        rhs[j] += g * sigma_t4(Tx);
+      };
+      secant(s.hA[k], s.fluid_K[k]);
+      secant(s.UA[k], s.outside_K[k]);
+    }
+    Eigen::PartialPivLU<Eigen::MatrixXd> lu(A);
+    if (!(lu.rcond() > kSingularRcond)) return true;  // keep the reference; Newton reports
+    const Eigen::VectorXd E = lu.solve(rhs);
+    for (Eigen::Index j = 0; j < u; ++j) {
+      if (E[j] > 0 && std::isfinite(E[j])) {
+        (*T)[j] = std::pow(E[j] / kSigma, 0.25);
+      } else if (!any_conduction) {
+        *message = "no solution with positive temperatures: surface '" +
+                   s.node_names[r.unknown[j]] + "' would need sigma T^4 = " + format_number(E[j]) +
+                   " W/m^2 to balance its heat input " + format_number(s.input_W[r.unknown[j]]) +
+                   " W (more heat is taken out than radiation can bring to it)";
+        return false;
+      }
+    }
+  }
+  return true;
+}
+
+// Node temperatures from the fixed ones and the unknowns.
+Eigen::VectorXd node_temperatures(const Setup& s, const Reduced& r, const Eigen::VectorXd& T) {
+  Eigen::VectorXd all(s.nodes);
+  for (std::size_t k = 0; k < s.nodes; ++k) all[k] = s.fixed[k] ? s.fixed_K[k] : T[r.column[k]];
+  return all;
+}
+
+struct Balance {
+  Eigen::VectorXd residual;  // per unknown: Q_rad + conduction out - input, W
+  double scale = 0;          // largest heat flow in the problem, W
+};
+
+// Residuals of the unknown nodes' balances. The scale also counts each node's black-body
+// emission A sigma T^4: round-off in Q_rad is relative to the gross flows, not the net ones.
+Balance balance(const Setup& s, const Reduced& r, const Eigen::VectorXd& T) {
+  const Eigen::VectorXd all = node_temperatures(s, r, T);
+  Eigen::VectorXd E_U(T.size());
+  for (Eigen::Index j = 0; j < T.size(); ++j) E_U[j] = sigma_t4(T[j]);
+  const Eigen::VectorXd Q = r.c + r.K * E_U;
+  Balance b;
+  b.residual.resize(T.size());
+  for (std::size_t k = 0; k < s.nodes; ++k) {
+    const double conduction = conduction_out(s, k, all[k]);
+    const double input = s.fixed[k] ? 0.0 : s.input_W[k];
+    b.scale = std::max({b.scale, s.node_area[k] * sigma_t4(all[k]), std::abs(Q[k]),
+                        std::abs(conduction), std::abs(input)});
+    if (!s.fixed[k]) b.residual[r.column[k]] = Q[k] + conduction - input;
+  }
+  return b;
+}
+
+// Newton's method on the unknown temperatures with the exact Jacobian
+//   d R_k / d T_l = K_kl 4 sigma T_l^3 + delta_kl (h A + U A)_k.
+// Steps are shortened (same direction) so that no temperature falls below half or rises above
+// twice its value: T stays positive and a poor start cannot throw the iterate far away.
+void newton(const Setup& s, const Reduced& r, const ExchangeOptions& options, Eigen::VectorXd* T,
+            ExchangeResult* result) {
+  const Eigen::Index u = T->size();
+  for (;;) {
+    const Balance b = balance(s, r, *T);
+    Eigen::Index worst = 0;
+    const double largest = u > 0 ? b.residual.cwiseAbs().maxCoeff(&worst) : 0.0;
+    const double allowed = options.tolerance * b.scale;
+    if (largest <= allowed) {
+      result->status = ExchangeStatus::converged;
+      return;
+    }
+    if (result->iterations >= options.max_iterations) {
+      const int k = r.unknown[worst];
+      result->status = ExchangeStatus::not_converged;
+      result->message = "Newton's method did not converge in " +
+                        std::to_string(result->iterations) + " iterations: largest residual " +
+                        format_number(largest) + " W on surface '" + s.node_names[k] + "' at " +
+                        format_number((*T)[worst]) + " K (tolerance " + format_number(allowed) +
+                        " W)";
+      if ((*T)[worst] < 1) {
+        result->message +=
+            "; its temperature heads to 0 K: the heat taken out of it may be "
+            "more than it can receive";
+      }
+      return;
+    }
+    Eigen::MatrixXd jacobian(u, u);
+    for (Eigen::Index j = 0; j < u; ++j) {
+      const int k = r.unknown[j];
+      for (Eigen::Index l = 0; l < u; ++l) {
+        jacobian(j, l) = r.K(k, l) * 4 * kSigma * std::pow((*T)[l], 3);
+      }
+      jacobian(j, j) += s.hA[k] + s.UA[k];
+    }
+    // Row equilibration, so that the singularity test does not depend on node sizes.
+    Eigen::VectorXd row_scale = jacobian.cwiseAbs().rowwise().maxCoeff();
+    for (Eigen::Index j = 0; j < u; ++j) row_scale[j] = row_scale[j] > 0 ? 1 / row_scale[j] : 1;
+    jacobian = row_scale.asDiagonal() * jacobian;
+    Eigen::PartialPivLU<Eigen::MatrixXd> lu(jacobian);
+    if (!(lu.rcond() > kSingularRcond)) {
+      result->status = ExchangeStatus::singular;
+      result->message = "the Jacobian of the node balances is singular (reciprocal condition " +
+                        format_number(lu.rcond()) + ") at Newton iteration " +
+                        std::to_string(result->iterations);
+      return;
+    }
+    const Eigen::VectorXd step = -lu.solve(row_scale.asDiagonal() * b.residual);
+    double alpha = 1;
+    for (Eigen::Index j = 0; j < u; ++j) {
+      if (step[j] < 0) alpha = std::min(alpha, 0.5 * (*T)[j] / -step[j]);
+      if (step[j] > 0) alpha = std::min(alpha, (*T)[j] / step[j]);
+    }
+    if (!step.allFinite()) {
+      result->status = ExchangeStatus::singular;
+      result->message =
+          "Newton's step is not finite at iteration " + std::to_string(result->iterations);
+      return;
+    }
+    *T += alpha * step;
+    ++result->iterations;
+  }
+}
+
+// Face and node results from the final temperatures: radiosity from the factored system,
+// fluxes from q = eps (E - G).
+void fill_results(const Setup& s, const Reduced& r, const Eigen::VectorXd& T,
+                  ExchangeResult* result) {
+  const Eigen::VectorXd all = node_temperatures(s, r, T);
+  const Eigen::Index u = T.size();
+  Eigen::VectorXd E_U(u);
+  for (Eigen::Index j = 0; j < u; ++j) E_U[j] = sigma_t4(T[j]);
+  const Eigen::VectorXd J = r.X.col(0) + r.X.rightCols(u) * E_U;
+  const Eigen::VectorXd G = (*s.F) * J + s.to_surroundings * s.surroundings_Eb;
+  result->faces.assign(s.faces, FaceResult{});
+  result->surroundings_W = 0;
+  double net_sum = 0;
+  for (std::size_t i = 0; i < s.faces; ++i) {
+    const std::uint32_t k = s.node_of_face[i];
+    FaceResult& f = result->faces[i];
+    f.radiosity = J[i];
+    f.irradiation = G[i];
+    f.net_flux = s.eps[i] * (sigma_t4(all[k]) - G[i]);
+    f.net_power = s.area[i] * f.net_flux;
+    net_sum += f.net_power;
+    result->surroundings_W += s.area[i] * s.to_surroundings[i] * (J[i] - s.surroundings_Eb);
+    result->nodes[k].net_radiation_W += f.net_power;
+  }
+  result->balance_W = net_sum - result->surroundings_W;
+  result->final_residual_W = 0;
+  for (std::size_t k = 0; k < s.nodes; ++k) {
+    NodeResult& n = result->nodes[k];
+    n.temperature_K = all[k];
+    n.convection_W = s.hA[k] * (all[k] - s.fluid_K[k]);
+    n.wall_loss_W = s.UA[k] * (all[k] - s.outside_K[k]);
+    n.heat_input_W = n.net_radiation_W + n.convection_W + n.wall_loss_W;
+    n.residual_W = s.fixed[k] ? 0.0 : n.heat_input_W - s.input_W[k];
+    result->final_residual_W = std::max(result->final_residual_W, std::abs(n.residual_W));
+  }
+}
+
+}  // namespace
+
+ExchangeResult solve_exchange(const ExchangeProblem& problem, const ExchangeOptions& options) {
+  std::string error;
+  if (!options.IsValid(&error)) throw InputError("exchange options: " + error);
+  const Setup s = exchange_detail::check_and_set_up(problem);
+
+  ExchangeResult result;
+  result.nodes.resize(s.nodes);
+  for (std::size_t k = 0; k < s.nodes; ++k) {
+    result.nodes[k].name = s.node_names[k];
+    result.nodes[k].area = s.node_area[k];
+    if (s.fixed[k]) result.nodes[k].temperature_K = s.fixed_K[k];
+  }
+  Reduced r;
+  if (!reduce(s, options, &r, &result.status, &result.message)) return result;
+  Eigen::VectorXd T;
+  std::string infeasible;
+  if (!starting_temperatures(s, r, &T, &infeasible)) {
+    result.status = ExchangeStatus::not_converged;
+    result.message = infeasible;
+  } else {
+    newton(s, r, options, &T, &result);
+  }
+  fill_results(s, r, T, &result);  // the last iterate, also when not converged
+  return result;
+}
+
+bool ExchangeOptions::IsValid(std::string* error) const {
+  std::string problem;
+  if (!(std::isfinite(tolerance) && tolerance > 0 && tolerance < 1)) {
+    problem = "tolerance is " + format_number(tolerance) + "; it must be above 0 and below 1";
+  } else if (max_iterations < 1) {
+    problem = "max_iterations is " + std::to_string(max_iterations) + "; it must be at least 1";
+  } else if (dense_face_limit < 0) {
+    problem = "dense_face_limit is " + std::to_string(dense_face_limit) + "; it must be >= 0";
+  }
+  if (error != nullptr) *error = problem;
+  return problem.empty();
+}
+
+std::string ExchangeResult::BriefReport() const {
+  std::string text = "exchange: ";
+  switch (status) {
+    case ExchangeStatus::converged:
+      text += "converged";
+      break;
+    case ExchangeStatus::not_converged:
+      text += "NOT CONVERGED";
+      break;
+    case ExchangeStatus::singular:
+      text += "SINGULAR";
+      break;
+  }
+  text += " after " + std::to_string(iterations) + " Newton iteration(s); largest node residual " +
+          format_number(final_residual_W) + " W; " + std::to_string(faces.size()) + " faces on " +
+          std::to_string(nodes.size()) + " surfaces; surroundings receive " +
+          format_number(surroundings_W) + " W; balance " + format_number(balance_W) + " W";
+  if (!message.empty()) text += "\n  " + message;
+  return text;
+}
+
+}  // namespace hearthray

@@ -1,0 +1,259 @@
+// Input checks of the exchange solver: every refusal names the face or node and says what to
+// change, before any solving starts.
+#include <cmath>
+#include <cstdio>
+#include <numeric>
+
+#include "exchange_setup.hpp"
+#include "hearthray/error.hpp"
+#include "hearthray/units.hpp"
+
+namespace hearthray {
+namespace exchange_detail {
+
+std::string format_number(double value) {
+  char buffer[32];
+  std::snprintf(buffer, sizeof buffer, "%.6g", value);
+  return buffer;
+}
+
+namespace {
+
+std::string quoted(const std::string& name) {
+  return "'" + name + "'";
+}
+
+std::string face_label(const ExchangeProblem& problem, std::size_t i) {
+  const ViewFactors& vf = *problem.view_factors;
+  std::string label =
+      i < vf.names.size() ? "face " + quoted(vf.names[i]) : "face " + std::to_string(i);
+  const std::uint32_t node = problem.faces[i].node;
+  if (node < problem.nodes.size()) label += " (surface " + quoted(problem.nodes[node].name) + ")";
+  return label;
+}
+
+void require_kelvin(double kelvin, const std::string& what) {
+  if (!(std::isfinite(kelvin) && kelvin > 0)) {
+    throw InputError(what + " is " + format_number(kelvin) +
+                     " K; an absolute temperature must be above 0 K (write e.g. \"20 C\" or "
+                     "\"293.15 K\")");
+  }
+}
+
+void require_size(std::size_t size, std::size_t faces, const std::string& what, bool may_be_empty) {
+  if (size == faces || (may_be_empty && size == 0)) return;
+  throw InputError("the view factors have " + std::to_string(size) + " " + what + " but the " +
+                   "problem has " + std::to_string(faces) +
+                   " faces: give one face per view-factor patch, in the same order");
+}
+
+// Union-find over nodes: nodes whose faces see each other exchange heat and share a level.
+struct Groups {
+  std::vector<std::uint32_t> parent;
+  explicit Groups(std::size_t n) : parent(n) { std::iota(parent.begin(), parent.end(), 0u); }
+  std::uint32_t find(std::uint32_t a) {
+    while (parent[a] != a) a = parent[a] = parent[parent[a]];
+    return a;
+  }
+  void join(std::uint32_t a, std::uint32_t b) { parent[find(a)] = find(b); }
+};
+
+// A temperature level comes from a fixed temperature, convection, a wall loss or a view to
+// the surroundings. A group of nodes with none of these has a heat balance that holds at any
+// level (or at none): refuse it rather than hand a singular system to the solver.
+void check_temperature_level(const ExchangeProblem& problem, const Setup& s) {
+  Groups groups(s.nodes);
+  const SparseMatrix& F = *s.F;
+  for (int i = 0; i < F.outerSize(); ++i) {
+    for (SparseMatrix::InnerIterator it(F, i); it; ++it) {
+      if (it.value() > 0) groups.join(s.node_of_face[i], s.node_of_face[it.col()]);
+    }
+  }
+  std::vector<bool> anchored(s.nodes, false);
+  for (std::size_t k = 0; k < s.nodes; ++k) {
+    if (s.fixed[k] || s.hA[k] > 0 || s.UA[k] > 0) anchored[groups.find(k)] = true;
+  }
+  for (std::size_t i = 0; i < s.faces; ++i) {
+    if (s.to_surroundings[i] > 0) anchored[groups.find(s.node_of_face[i])] = true;
+  }
+  auto advice = [](const std::string& whom) {
+    return "give " + whom +
+           " a temperature, or add convection to a fluid, a wall loss to an "
+           "outside temperature, or an opening to surroundings with a [surroundings] temperature";
+  };
+  for (std::uint32_t root = 0; root < s.nodes; ++root) {
+    if (groups.find(root) != root || anchored[root]) continue;
+    std::vector<std::string> names;
+    for (std::uint32_t k = 0; k < s.nodes; ++k) {
+      if (groups.find(k) == root) names.push_back(quoted(problem.nodes[k].name));
+    }
+    if (names.size() == s.nodes) {
+      throw InputError(
+          "nothing fixes the temperature level: no surface has a given temperature, none has "
+          "convection or a wall loss, and no face sees the surroundings, so heat inputs alone "
+          "cannot say how hot the enclosure is; " +
+          advice("at least one surface"));
+    }
+    std::string list;
+    for (std::size_t j = 0; j < names.size() && j < 5; ++j) list += (j ? ", " : "") + names[j];
+    if (names.size() > 5) list += " and " + std::to_string(names.size() - 5) + " more";
+    throw InputError("surfaces " + list +
+                     " exchange radiation only among themselves and nothing fixes their "
+                     "temperature level; " +
+                     advice("at least one of them"));
+  }
+}
+
+void check_surroundings(const ExchangeProblem& problem, const Setup& s) {
+  if (problem.surroundings_K) return;
+  const ViewFactors& vf = *problem.view_factors;
+  std::size_t worst = s.faces, count = 0;
+  for (std::size_t i = 0; i < s.faces; ++i) {
+    if (s.to_surroundings[i] > 0) {
+      ++count;
+      if (worst == s.faces || s.to_surroundings[i] > s.to_surroundings[worst]) worst = i;
+    }
+  }
+  if (count == 0) return;
+  const double escaped = vf.to_surroundings.empty() ? 0 : vf.to_surroundings[worst];
+  const double back = vf.to_back_faces.empty() ? 0 : vf.to_back_faces[worst];
+  std::string what;
+  if (escaped > 0) what = format_number(100 * escaped) + " % escapes the scene";
+  if (back > 0) {
+    what += (what.empty() ? "" : " and ") + format_number(100 * back) +
+            " % lands on back faces of one-sided surfaces (treated as surroundings; many such "
+            "hits mean flipped normals)";
+  }
+  throw InputError(std::to_string(count) +
+                   " face(s) see the surroundings but no surroundings "
+                   "temperature is given: of the radiation leaving " +
+                   face_label(problem, worst) + ", " + what +
+                   "; add a [surroundings] temperature, or close the geometry");
+}
+
+}  // namespace
+
+Setup check_and_set_up(const ExchangeProblem& problem) {
+  if (problem.view_factors == nullptr) {
+    throw InputError("the exchange problem has no view factors: compute or load them first");
+  }
+  const ViewFactors& vf = *problem.view_factors;
+  Setup s;
+  s.faces = problem.faces.size();
+  s.nodes = problem.nodes.size();
+  if (s.faces == 0) throw InputError("the exchange problem has no faces: nothing radiates");
+  s.F = &vf.F;
+  if (static_cast<std::size_t>(vf.F.rows()) != s.faces ||
+      static_cast<std::size_t>(vf.F.cols()) != s.faces) {
+    throw InputError("the view-factor matrix is " + std::to_string(vf.F.rows()) + " x " +
+                     std::to_string(vf.F.cols()) + " but the problem has " +
+                     std::to_string(s.faces) +
+                     " faces: give one face per view-factor patch, in the same order");
+  }
+  require_size(vf.areas.size(), s.faces, "areas", false);
+  require_size(vf.names.size(), s.faces, "patch names", true);
+  require_size(vf.to_surroundings.size(), s.faces, "escaped fractions", true);
+  require_size(vf.to_back_faces.size(), s.faces, "back-face fractions", true);
+
+  s.eps.resize(s.faces);
+  s.area.resize(s.faces);
+  s.to_surroundings.resize(s.faces);
+  s.node_of_face.resize(s.faces);
+  s.node_area = Eigen::VectorXd::Zero(s.nodes);
+  for (std::size_t i = 0; i < s.faces; ++i) {
+    const ExchangeFace& face = problem.faces[i];
+    if (face.node >= s.nodes) {
+      throw InputError(face_label(problem, i) + " belongs to node " + std::to_string(face.node) +
+                       " but there are only " + std::to_string(s.nodes) + " nodes");
+    }
+    if (!(face.emissivity > 0 && face.emissivity <= 1)) {
+      throw InputError(face_label(problem, i) + " has emissivity " +
+                       format_number(face.emissivity) +
+                       "; a gray surface needs an emissivity above 0 and at most 1");
+    }
+    if (!(std::isfinite(vf.areas[i]) && vf.areas[i] > 0)) {
+      throw InputError(face_label(problem, i) + " has area " + format_number(vf.areas[i]) +
+                       " m^2; every face needs a positive area");
+    }
+    const double escaped = vf.to_surroundings.empty() ? 0 : vf.to_surroundings[i];
+    const double back = vf.to_back_faces.empty() ? 0 : vf.to_back_faces[i];
+    if (!(escaped >= 0 && back >= 0 && std::isfinite(escaped + back))) {
+      throw InputError(face_label(problem, i) +
+                       " has a negative or invalid fraction to the "
+                       "surroundings or to back faces");
+    }
+    s.eps[i] = face.emissivity;
+    s.area[i] = vf.areas[i];
+    s.to_surroundings[i] = escaped + back;
+    s.node_of_face[i] = face.node;
+    s.node_area[face.node] += vf.areas[i];
+  }
+  for (int i = 0; i < vf.F.outerSize(); ++i) {
+    for (SparseMatrix::InnerIterator it(vf.F, i); it; ++it) {
+      if (!(std::isfinite(it.value()) && it.value() >= 0)) {
+        throw InputError("the view factor from " + face_label(problem, i) + " to " +
+                         face_label(problem, it.col()) + " is " + format_number(it.value()) +
+                         "; view factors must be finite and not negative");
+      }
+    }
+  }
+
+  s.hA = s.fluid_K = s.UA = s.outside_K = s.input_W = s.fixed_K = Eigen::VectorXd::Zero(s.nodes);
+  s.fixed.assign(s.nodes, false);
+  for (const ExchangeNode& node : problem.nodes) s.node_names.push_back(node.name);
+  for (std::size_t k = 0; k < s.nodes; ++k) {
+    const ExchangeNode& node = problem.nodes[k];
+    const std::string label = "surface " + quoted(node.name);
+    if (s.node_area[k] == 0) {
+      throw InputError(label + " has no face: every node needs at least one face to radiate");
+    }
+    const NodeCondition& c = node.condition;
+    if (!std::isfinite(c.value)) {
+      throw InputError(label + " has a condition value that is not a finite number");
+    }
+    switch (c.kind) {
+      case ConditionKind::temperature:
+        require_kelvin(c.value, "the temperature of " + label);
+        s.fixed[k] = true;
+        s.fixed_K[k] = c.value;
+        break;
+      case ConditionKind::heat_flux:
+        s.input_W[k] = c.value * s.node_area[k];
+        break;
+      case ConditionKind::power:
+        s.input_W[k] = c.value;
+        break;
+      case ConditionKind::adiabatic:
+        s.input_W[k] = 0;
+        break;
+    }
+    if (c.convection) {
+      if (!(std::isfinite(c.convection->h) && c.convection->h >= 0)) {
+        throw InputError(label + " has a convection coefficient h = " +
+                         format_number(c.convection->h) + " W/(m^2 K); it must be 0 or more");
+      }
+      require_kelvin(c.convection->fluid_K, "the fluid temperature of " + label);
+      s.hA[k] = c.convection->h * s.node_area[k];
+      s.fluid_K[k] = c.convection->fluid_K;
+    }
+    if (c.wall_loss) {
+      if (!(std::isfinite(c.wall_loss->U) && c.wall_loss->U >= 0)) {
+        throw InputError(label + " has a wall coefficient U = " + format_number(c.wall_loss->U) +
+                         " W/(m^2 K); it must be 0 or more");
+      }
+      require_kelvin(c.wall_loss->outside_K, "the outside temperature of " + label);
+      s.UA[k] = c.wall_loss->U * s.node_area[k];
+      s.outside_K[k] = c.wall_loss->outside_K;
+    }
+  }
+  if (problem.surroundings_K) {
+    require_kelvin(*problem.surroundings_K, "the surroundings temperature");
+    s.surroundings_Eb = kStefanBoltzmann * std::pow(*problem.surroundings_K, 4);
+  }
+  check_surroundings(problem, s);
+  check_temperature_level(problem, s);
+  return s;
+}
+
+}  // namespace exchange_detail
+}  // namespace hearthray

@@ -1,0 +1,488 @@
+// OBJ loading. tinyobjloader (rc10) reads faces, groups and materials; our own pass over the
+// text reads the vertex coordinates and checks what tinyobjloader lets through: it turns
+// "nan" into 0 without a word, reads "1e999" as inf, only warns about indices past the end
+// (and not at all about negative ones), and reads indices in polygons without a bounds check.
+// The packaged library is also built for float coordinates; reading them ourselves keeps
+// double precision.
+#include "hearthray/scene.hpp"
+
+#include <tiny_obj_loader.h>
+
+#include <algorithm>
+#include <cmath>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <numeric>
+#include <sstream>
+#include <unordered_map>
+#include <unordered_set>
+
+#include "hearthray/error.hpp"
+
+namespace hearthray {
+namespace {
+
+const char* const kUnnamed = "unnamed";
+
+std::string trim(const std::string& s) {
+  const auto first = s.find_first_not_of(" \t\r\n");
+  if (first == std::string::npos) return "";
+  const auto last = s.find_last_not_of(" \t\r\n");
+  return s.substr(first, last - first + 1);
+}
+
+std::vector<std::string> split_blanks(const std::string& s) {
+  std::vector<std::string> out;
+  std::size_t i = 0;
+  while (i < s.size()) {
+    while (i < s.size() && (s[i] == ' ' || s[i] == '\t')) ++i;
+    std::size_t j = i;
+    while (j < s.size() && s[j] != ' ' && s[j] != '\t') ++j;
+    if (j > i) out.push_back(s.substr(i, j - i));
+    i = j;
+  }
+  return out;
+}
+
+// Whole-token decimal number. strtod also accepts "nan", "inf" and overflows to inf; those are
+// caught by the finiteness check of the caller.
+bool parse_number(const std::string& token, double* out) {
+  const char* begin = token.c_str();
+  char* end = nullptr;
+  const double value = std::strtod(begin, &end);
+  if (end == begin || *end != '\0') return false;
+  *out = value;
+  return true;
+}
+
+bool parse_integer(const std::string& token, long* out) {
+  if (token.empty()) return false;
+  const char* begin = token.c_str();
+  char* end = nullptr;
+  const long value = std::strtol(begin, &end, 10);
+  if (end == begin || *end != '\0') return false;
+  *out = value;
+  return true;
+}
+
+// What our own pass over the text finds.
+struct PreScan {
+  std::vector<Vec3> vertices;  // file units, double precision
+  std::vector<std::string> material_libraries;
+  std::vector<std::string> used_materials;  // usemtl names, in order of first use
+  std::size_t faces = 0;
+};
+
+// Splits text into lines the way tinyobjloader does (\n, \r\n or a lone \r end a line).
+std::vector<std::string> split_lines(const std::string& text) {
+  std::vector<std::string> lines;
+  std::size_t start = 0;
+  for (std::size_t i = 0; i < text.size(); ++i) {
+    if (text[i] == '\n' || text[i] == '\r') {
+      lines.push_back(text.substr(start, i - start));
+      if (text[i] == '\r' && i + 1 < text.size() && text[i + 1] == '\n') ++i;
+      start = i + 1;
+    }
+  }
+  if (start < text.size()) lines.push_back(text.substr(start));
+  return lines;
+}
+
+PreScan prescan(const std::string& text, const std::string& name) {
+  PreScan scan;
+  struct ForwardRef {
+    std::size_t line;
+    long index;
+  };
+  std::vector<ForwardRef> forward;  // positive indices past the vertices read so far
+  std::unordered_set<std::string> seen_materials;
+  const std::vector<std::string> lines = split_lines(text);
+  for (std::size_t n = 0; n < lines.size(); ++n) {
+    const std::size_t line_no = n + 1;
+    const std::string& raw = lines[n];
+    const std::size_t begin = raw.find_first_not_of(" \t");
+    if (begin == std::string::npos || raw[begin] == '#') continue;
+    const std::string line = raw.substr(begin);
+    auto where = [&] { return name + ":" + std::to_string(line_no) + ": "; };
+    const bool blank_after_1 = line.size() > 1 && (line[1] == ' ' || line[1] == '\t');
+    if (line[0] == 'v' && blank_after_1) {
+      const std::vector<std::string> t = split_blanks(line.substr(2));
+      if (t.size() < 3) {
+        throw InputError(where() + "vertex line has " + std::to_string(t.size()) +
+                         " coordinate(s); a 'v' line needs three numbers: v x y z");
+      }
+      double c[3];
+      for (int k = 0; k < 3; ++k) {
+        if (!parse_number(t[k], &c[k]) || !std::isfinite(c[k])) {
+          throw InputError(where() + "vertex coordinate '" + t[k] +
+                           "' is not a finite number; write v x y z as decimal numbers");
+        }
+      }
+      scan.vertices.emplace_back(c[0], c[1], c[2]);
+    } else if (line[0] == 'f' && blank_after_1) {
+      const std::vector<std::string> t = split_blanks(line.substr(2));
+      if (t.size() < 3) {
+        throw InputError(where() + "face has " + std::to_string(t.size()) +
+                         " vertex index(es); a face needs at least 3");
+      }
+      const long count = static_cast<long>(scan.vertices.size());
+      for (const std::string& corner : t) {
+        // corner is v, v/vt, v//vn or v/vt/vn; every index given must be a non-zero integer.
+        std::vector<std::string> parts;
+        std::stringstream ss(corner);
+        for (std::string part; std::getline(ss, part, '/');) parts.push_back(part);
+        long v = 0;
+        if (parts.empty() || !parse_integer(parts[0], &v)) {
+          throw InputError(where() + "face corner '" + corner +
+                           "' does not start with a vertex index (an integer)");
+        }
+        for (std::size_t k = 0; k < parts.size(); ++k) {
+          long index = 0;
+          if (k > 0 && parts[k].empty()) continue;
+          if (!parse_integer(parts[k], &index)) {
+            throw InputError(where() + "face corner '" + corner + "' has index '" + parts[k] +
+                             "' that is not an integer");
+          }
+          if (index == 0) {
+            throw InputError(where() + "face corner '" + corner +
+                             "' has index 0; OBJ indices start at 1 (or -1 for the last)");
+          }
+        }
+        if (v < 0 && -v > count) {
+          throw InputError(where() + "face refers to vertex " + std::to_string(v) +
+                           " (counted back from here), but only " + std::to_string(count) +
+                           " vertices come before it");
+        }
+        if (v > count) forward.push_back({line_no, v});
+      }
+      ++scan.faces;
+    } else if (line.compare(0, 6, "usemtl") == 0) {
+      const std::string material = trim(line.substr(6));
+      if (seen_materials.insert(material).second) scan.used_materials.push_back(material);
+    } else if (line.compare(0, 6, "mtllib") == 0 && line.size() > 6 &&
+               (line[6] == ' ' || line[6] == '\t')) {
+      for (const std::string& lib : split_blanks(line.substr(7))) {
+        scan.material_libraries.push_back(lib);
+      }
+    }
+  }
+  const long count = static_cast<long>(scan.vertices.size());
+  for (const ForwardRef& ref : forward) {
+    if (ref.index > count) {
+      throw InputError(name + ":" + std::to_string(ref.line) + ": face refers to vertex " +
+                       std::to_string(ref.index) + ", but the file has only " +
+                       std::to_string(count) + " vertices ('v' lines)");
+    }
+  }
+  return scan;
+}
+
+std::string join(const std::vector<std::string>& items, const std::string& sep) {
+  std::string out;
+  for (std::size_t i = 0; i < items.size(); ++i) out += (i ? sep : "") + items[i];
+  return out;
+}
+
+// tinyobjloader warnings we have not already turned into errors: keep the ones that tell the
+// user something about the geometry; drop material ones in groups mode and the ones about
+// normals and texture coordinates (unused here).
+void keep_loader_warnings(const std::string& warn, const std::string& name,
+                          const MeshOptions& options, std::vector<std::string>* warnings) {
+  std::stringstream ss(warn);
+  for (std::string line; std::getline(ss, line);) {
+    line = trim(line);
+    if (line.empty() || line == ".") continue;
+    const bool about_materials =
+        line.find("aterial") != std::string::npos || line.find("mtl") != std::string::npos;
+    if (about_materials && options.surfaces_from == SurfacesFrom::groups) continue;
+    if (line.find("normal indices") != std::string::npos ||
+        line.find("texcoord indices") != std::string::npos) {
+      continue;
+    }
+    warnings->push_back(name + ": " + line);
+  }
+}
+
+Scene build_scene(const std::string& text, const std::string& name, const std::string& mtl_dir,
+                  bool from_file, const MeshOptions& options) {
+  if (!(options.degenerate_relative_area >= 0) ||
+      !std::isfinite(options.degenerate_relative_area)) {
+    throw InputError("MeshOptions::degenerate_relative_area must be a finite number >= 0");
+  }
+  PreScan scan = prescan(text, name);
+  if (scan.faces == 0) {
+    throw InputError(name +
+                     ": the mesh has no faces; an OBJ mesh needs 'v x y z' vertex lines "
+                     "and 'f i j k' face lines");
+  }
+
+  tinyobj::attrib_t attrib;
+  std::vector<tinyobj::shape_t> shapes;
+  std::vector<tinyobj::material_t> materials;
+  std::string warn, err;
+  std::istringstream in(text);
+  tinyobj::MaterialFileReader file_reader(mtl_dir);
+  tinyobj::MaterialReader* reader = from_file ? &file_reader : nullptr;
+  const bool ok = tinyobj::LoadObj(&attrib, &shapes, &materials, &warn, &err, &in, reader,
+                                   /*triangulate=*/true);
+  if (!ok) throw InputError(name + ": cannot read the mesh: " + trim(err));
+  if (attrib.vertices.size() != 3 * scan.vertices.size()) {
+    throw InputError(name + ": cannot read the mesh: vertex lines were read inconsistently (" +
+                     std::to_string(scan.vertices.size()) + " found)");
+  }
+
+  Scene scene;
+  scene.source = name;
+  keep_loader_warnings(warn, name, options, &scene.warnings);
+  if (!trim(err).empty()) scene.warnings.push_back(name + ": " + trim(err));
+
+  if (options.surfaces_from == SurfacesFrom::materials) {
+    std::unordered_set<std::string> defined;
+    for (const auto& m : materials) defined.insert(m.name);
+    std::vector<std::string> missing;
+    for (const auto& m : scan.used_materials) {
+      if (!defined.count(m)) missing.push_back("'" + m + "'");
+    }
+    if (!missing.empty()) {
+      std::string why;
+      if (!from_file) {
+        why = "a mesh read from a stream has no .mtl file";
+      } else if (scan.material_libraries.empty()) {
+        why = "the file has no 'mtllib' line naming its .mtl file";
+      } else {
+        why = "they are not defined in " + join(scan.material_libraries, ", ") +
+              " (looked for in '" + (mtl_dir.empty() ? std::string(".") : mtl_dir) +
+              "'; is the .mtl file missing?)";
+      }
+      throw InputError(name + ": surfaces are taken from materials, but material(s) " +
+                       join(missing, ", ") + " used by 'usemtl' cannot be named: " + why +
+                       ". Put the .mtl file beside the mesh, or take surfaces from groups");
+    }
+    if (scan.used_materials.empty()) {
+      scene.warnings.push_back(name +
+                               ": surfaces are taken from materials, but the file has no "
+                               "'usemtl' line: all faces are in one surface 'unnamed'");
+    }
+  }
+
+  const double scale = metres_per(options.unit);
+  scene.vertices.reserve(scan.vertices.size());
+  for (const Vec3& p : scan.vertices) scene.vertices.push_back(p * scale);
+  const auto vertex_count = static_cast<int>(scene.vertices.size());
+
+  // Triangles per surface name, surfaces in order of first appearance.
+  std::vector<std::string> names;
+  std::vector<std::vector<std::array<std::uint32_t, 3>>> per_surface;
+  std::unordered_map<std::string, std::uint32_t> index_of;
+  Box3 used_bounds;
+  for (const tinyobj::shape_t& shape : shapes) {
+    const auto& idx = shape.mesh.indices;
+    const std::size_t n_tri = idx.size() / 3;
+    for (std::size_t t = 0; t < n_tri; ++t) {
+      std::string surface;
+      if (options.surfaces_from == SurfacesFrom::groups) {
+        surface = trim(shape.name);
+      } else {
+        const int m = t < shape.mesh.material_ids.size() ? shape.mesh.material_ids[t] : -1;
+        if (m >= 0 && m < static_cast<int>(materials.size())) surface = trim(materials[m].name);
+      }
+      if (surface.empty()) surface = kUnnamed;
+      auto it = index_of.find(surface);
+      if (it == index_of.end()) {
+        it = index_of.emplace(surface, static_cast<std::uint32_t>(names.size())).first;
+        names.push_back(surface);
+        per_surface.emplace_back();
+      }
+      std::array<std::uint32_t, 3> tri{};
+      for (int k = 0; k < 3; ++k) {
+        const int v = idx[3 * t + k].vertex_index;
+        // Checked by the pre-scan already; kept so a library change cannot read out of range.
+        if (v < 0 || v >= vertex_count) {
+          throw InputError(name + ": a face refers to vertex " + std::to_string(v + 1) +
+                           ", outside the " + std::to_string(vertex_count) + " vertices");
+        }
+        tri[k] = static_cast<std::uint32_t>(v);
+        used_bounds.grow(scene.vertices[static_cast<std::size_t>(v)]);
+      }
+      per_surface[it->second].push_back(tri);
+    }
+  }
+  if (names.empty()) {
+    throw InputError(name + ": the mesh has no triangles after reading its faces");
+  }
+
+  // Scale-free threshold: the same mesh in any unit drops the same triangles.
+  const double diagonal = used_bounds.diagonal();
+  const double threshold = options.degenerate_relative_area * diagonal * diagonal;
+  for (std::uint32_t s = 0; s < names.size(); ++s) {
+    Surface surface;
+    surface.name = names[s];
+    surface.first_triangle = static_cast<std::uint32_t>(scene.triangles.size());
+    for (const auto& tri : per_surface[s]) {
+      const Vec3& a = scene.vertices[tri[0]];
+      const Vec3& b = scene.vertices[tri[1]];
+      const Vec3& c = scene.vertices[tri[2]];
+      const double area = 0.5 * norm(cross(b - a, c - a));
+      if (!std::isfinite(area)) {
+        throw InputError(name + ": surface '" + surface.name +
+                         "': a triangle's area overflows; the coordinates are too large (check "
+                         "the mesh unit)");
+      }
+      if (area <= threshold) {
+        ++surface.dropped_degenerate;
+        continue;
+      }
+      Triangle triangle;
+      triangle.v = tri;
+      triangle.surface = s;
+      scene.triangles.push_back(triangle);
+      surface.area += area;
+      for (std::uint32_t v : tri) scene.bounds.grow(scene.vertices[v]);
+    }
+    surface.triangle_count =
+        static_cast<std::uint32_t>(scene.triangles.size()) - surface.first_triangle;
+    if (surface.dropped_degenerate > 0) {
+      scene.warnings.push_back(name + ": surface '" + surface.name + "': dropped " +
+                               std::to_string(surface.dropped_degenerate) +
+                               " degenerate (zero-area) triangle(s)");
+    }
+    scene.surfaces.push_back(std::move(surface));
+  }
+  if (scene.triangles.empty()) {
+    std::size_t dropped = 0;
+    for (const Surface& surface : scene.surfaces) dropped += surface.dropped_degenerate;
+    throw InputError(name + ": the mesh has no usable triangle: all " + std::to_string(dropped) +
+                     " triangles have zero area (degenerate)");
+  }
+  for (const Surface& surface : scene.surfaces) {
+    if (surface.triangle_count == 0) {
+      throw InputError(name + ": surface '" + surface.name +
+                       "' has only degenerate (zero-area) "
+                       "triangles (" +
+                       std::to_string(surface.dropped_degenerate) +
+                       "); fix its faces or remove it");
+    }
+  }
+  return scene;
+}
+
+}  // namespace
+
+Scene load_obj(const std::string& path, const MeshOptions& options) {
+  namespace fs = std::filesystem;
+  std::error_code ec;
+  if (!fs::exists(path, ec)) throw InputError("mesh file '" + path + "' does not exist");
+  if (fs::is_directory(path, ec)) {
+    throw InputError("mesh file '" + path + "' is a folder, not an OBJ file");
+  }
+  std::ifstream file(path, std::ios::binary);
+  if (!file) throw InputError("mesh file '" + path + "' cannot be opened for reading");
+  std::ostringstream buffer;
+  buffer << file.rdbuf();
+  if (file.bad()) throw InputError("mesh file '" + path + "' could not be read");
+  std::string mtl_dir = fs::path(path).parent_path().string();
+  return build_scene(buffer.str(), path, mtl_dir, /*from_file=*/true, options);
+}
+
+Scene load_obj(std::istream& in, const std::string& name, const MeshOptions& options) {
+  std::ostringstream buffer;
+  buffer << in.rdbuf();
+  if (in.bad()) throw InputError(name + ": the mesh stream could not be read");
+  return build_scene(buffer.str(), name, "", /*from_file=*/false, options);
+}
+
+int Scene::find_surface(const std::string& name) const {
+  for (std::size_t i = 0; i < surfaces.size(); ++i) {
+    if (surfaces[i].name == name) return static_cast<int>(i);
+  }
+  return -1;
+}
+
+Vec3 Scene::normal(std::uint32_t t) const {
+  const Triangle& tri = triangles[t];
+  const Vec3& a = vertices[tri.v[0]];
+  return normalized(cross(vertices[tri.v[1]] - a, vertices[tri.v[2]] - a));
+}
+
+double Scene::triangle_area(std::uint32_t t) const {
+  const Triangle& tri = triangles[t];
+  const Vec3& a = vertices[tri.v[0]];
+  return 0.5 * norm(cross(vertices[tri.v[1]] - a, vertices[tri.v[2]] - a));
+}
+
+std::vector<std::string> Scene::surface_names() const {
+  std::vector<std::string> out;
+  out.reserve(surfaces.size());
+  for (const Surface& s : surfaces) out.push_back(s.name);
+  return out;
+}
+
+MeshTopology analyse_topology(const Scene& scene) {
+  MeshTopology topology;
+  const auto& vertices = scene.vertices;
+
+  // Weld vertices by exact position: sort once, equal neighbours share an id (O(n log n)).
+  std::vector<std::uint32_t> order(vertices.size());
+  std::iota(order.begin(), order.end(), 0u);
+  auto less = [&](std::uint32_t a, std::uint32_t b) {
+    const Vec3& p = vertices[a];
+    const Vec3& q = vertices[b];
+    if (p.x != q.x) return p.x < q.x;
+    if (p.y != q.y) return p.y < q.y;
+    return p.z < q.z;
+  };
+  std::sort(order.begin(), order.end(), less);
+  std::vector<std::uint32_t> weld(vertices.size());
+  std::uint32_t id = 0;
+  for (std::size_t i = 0; i < order.size(); ++i) {
+    if (i > 0 && !(vertices[order[i]] == vertices[order[i - 1]])) ++id;
+    weld[order[i]] = id;
+  }
+
+  std::vector<std::uint64_t> edges;
+  std::vector<std::uint64_t> one_sided_edges;  // edges of one-sided surfaces only
+  std::vector<std::array<std::uint32_t, 3>> faces;
+  edges.reserve(3 * scene.triangles.size());
+  faces.reserve(scene.triangles.size());
+  for (const Triangle& t : scene.triangles) {
+    std::array<std::uint32_t, 3> w{weld[t.v[0]], weld[t.v[1]], weld[t.v[2]]};
+    for (int k = 0; k < 3; ++k) {
+      std::uint32_t a = w[k], b = w[(k + 1) % 3];
+      if (a == b) continue;
+      if (a > b) std::swap(a, b);
+      edges.push_back((static_cast<std::uint64_t>(a) << 32) | b);
+      if (!scene.surfaces[t.surface].two_sided) one_sided_edges.push_back(edges.back());
+    }
+    std::sort(w.begin(), w.end());
+    faces.push_back(w);
+  }
+
+  std::sort(edges.begin(), edges.end());
+  for (std::size_t i = 0; i < edges.size();) {
+    std::size_t j = i;
+    while (j < edges.size() && edges[j] == edges[i]) ++j;
+    const std::size_t uses = j - i;
+    if (uses == 1) ++topology.boundary_edges;
+    if (uses > 2) ++topology.nonmanifold_edges;
+    i = j;
+  }
+  std::sort(one_sided_edges.begin(), one_sided_edges.end());
+  bool one_sided_manifold = !one_sided_edges.empty();
+  for (std::size_t i = 0; i < one_sided_edges.size() && one_sided_manifold;) {
+    std::size_t j = i;
+    while (j < one_sided_edges.size() && one_sided_edges[j] == one_sided_edges[i]) ++j;
+    one_sided_manifold = j - i == 2;
+    i = j;
+  }
+  topology.one_sided_closed = one_sided_manifold;
+  std::sort(faces.begin(), faces.end());
+  for (std::size_t i = 1; i < faces.size(); ++i) {
+    if (faces[i] == faces[i - 1]) ++topology.duplicate_triangles;
+  }
+  topology.closed =
+      !scene.triangles.empty() && topology.boundary_edges == 0 && topology.nonmanifold_edges == 0;
+  return topology;
+}
+
+}  // namespace hearthray

@@ -1,0 +1,482 @@
+// The TOML scene file (toml++ 3.3). Every key is checked: an unknown or misspelled key is an
+// error naming the key, its table and line, never a silent default (a misspelled emissivity
+// would otherwise quietly fall back to [defaults]).
+#include "hearthray/scene_file.hpp"
+
+#include <toml++/toml.h>
+
+#include <algorithm>
+#include <cmath>
+#include <filesystem>
+#include <sstream>
+
+#include "hearthray/error.hpp"
+
+namespace hearthray {
+namespace {
+
+namespace fs = std::filesystem;
+
+const std::vector<std::string> kTopKeys = {"mesh", "rays", "surroundings", "defaults", "surface"};
+const std::vector<std::string> kMeshKeys = {"file", "unit", "surfaces_from"};
+const std::vector<std::string> kRaysKeys = {"per_patch", "seed"};
+const std::vector<std::string> kSurroundingsKeys = {"temperature"};
+const std::vector<std::string> kSurfaceKeys = {"two_sided",  "emissivity", "temperature",
+                                               "heat_flux",  "power",      "adiabatic",
+                                               "convection", "wall"};
+const std::vector<std::string> kConvectionKeys = {"h", "fluid"};
+const std::vector<std::string> kWallKeys = {"U", "outside", "thickness", "conductivity"};
+
+std::string join(const std::vector<std::string>& items) {
+  std::string out;
+  for (std::size_t i = 0; i < items.size(); ++i) out += (i ? ", " : "") + items[i];
+  return out;
+}
+
+std::size_t edit_distance(const std::string& a, const std::string& b) {
+  std::vector<std::size_t> row(b.size() + 1);
+  for (std::size_t j = 0; j <= b.size(); ++j) row[j] = j;
+  for (std::size_t i = 1; i <= a.size(); ++i) {
+    std::size_t diagonal = row[0];
+    row[0] = i;
+    for (std::size_t j = 1; j <= b.size(); ++j) {
+      const std::size_t up = row[j];
+      row[j] = std::min({row[j] + 1, row[j - 1] + 1, diagonal + (a[i - 1] != b[j - 1])});
+      diagonal = up;
+    }
+  }
+  return row[b.size()];
+}
+
+std::string type_name(const toml::node& node) {
+  switch (node.type()) {
+    case toml::node_type::string:
+      return "a string";
+    case toml::node_type::integer:
+      return "an integer";
+    case toml::node_type::floating_point:
+      return "a number with a fraction";
+    case toml::node_type::boolean:
+      return "true/false";
+    case toml::node_type::table:
+      return "a table";
+    case toml::node_type::array:
+      return "an array";
+    default:
+      return "a date or time";
+  }
+}
+
+std::string number_text(const toml::node& node) {
+  std::ostringstream out;
+  if (auto i = node.as_integer()) out << i->get();
+  if (auto f = node.as_floating_point()) out << f->get();
+  return out.str();
+}
+
+// Reads one scene file, carrying its name for messages.
+class Reader {
+ public:
+  explicit Reader(std::string path) : path_(std::move(path)) {}
+
+  [[noreturn]] void fail(const toml::source_region& where, const std::string& message) const {
+    throw InputError(path_ + ":" + std::to_string(where.begin.line) + ": " + message);
+  }
+
+  // Every key of `table` must be in `allowed`.
+  void check_keys(const toml::table& table, const std::vector<std::string>& allowed,
+                  const std::string& table_name, const std::string& extra = "") const {
+    for (auto&& [key, node] : table) {
+      const std::string k(key.str());
+      if (std::find(allowed.begin(), allowed.end(), k) != allowed.end()) continue;
+      std::string hint;
+      for (const std::string& a : allowed) {
+        if (edit_distance(k, a) <= 2) hint = " (did you mean '" + a + "'?)";
+      }
+      const auto& src = key.source().begin.line > 0 ? key.source() : node.source();
+      fail(src, "unknown key '" + k + "' in " + table_name + hint + "; expected one of " +
+                    join(allowed) + extra);
+    }
+  }
+
+  const toml::table& need_table(const toml::node& node, const std::string& name) const {
+    if (const toml::table* t = node.as_table()) return *t;
+    fail(node.source(), name + " must be a table, not " + type_name(node));
+  }
+
+  std::string need_string(const toml::node& node, const std::string& key,
+                          const std::string& table_name, const std::string& example) const {
+    if (const auto* s = node.as_string()) return s->get();
+    fail(node.source(), key + " in " + table_name + " must be a string, not " + type_name(node) +
+                            ": write " + key + " = " + example);
+  }
+
+  // A quantity with its unit: a string parsed by `parse`, or an error that says what to write.
+  template <typename Parse>
+  double quantity(const toml::node& node, const std::string& key, const std::string& table_name,
+                  Parse parse, const char* unit_example) const {
+    if (node.is_number()) {
+      // Reuse the parser's own "has no unit" message: it says which units to write.
+      try {
+        parse(number_text(node), key);
+      } catch (const InputError& e) {
+        const std::string message = e.what();
+        const std::size_t write = message.find("write ");
+        fail(node.source(),
+             "in " + table_name + ", " + key + " = " + number_text(node) +
+                 " has no unit: " + (write == std::string::npos ? message : message.substr(write)));
+      }
+    }
+    if (!node.is_string()) {
+      fail(node.source(), key + " in " + table_name + " must be a string with a unit, like " + key +
+                              " = \"" + unit_example + "\", not " + type_name(node));
+    }
+    try {
+      return parse(node.as_string()->get(), key);
+    } catch (const InputError& e) {
+      fail(node.source(), "in " + table_name + ", " + e.what());
+    }
+  }
+
+  std::uint64_t whole_number(const toml::node& node, const std::string& key, bool positive,
+                             const std::string& example) const {
+    const auto* i = node.as_integer();
+    if (!i || i->get() < (positive ? 1 : 0)) {
+      fail(node.source(), key + " in [rays] must be a " +
+                              std::string(positive ? "positive" : "non-negative") +
+                              " whole number, like " + key + " = " + example + "; got " +
+                              (i ? std::to_string(i->get()) : type_name(node)));
+    }
+    return static_cast<std::uint64_t>(i->get());
+  }
+
+  Convection convection(const toml::node& node, const std::string& table_name) const {
+    const std::string name = "'convection' of " + table_name;
+    const toml::table& t = need_table(node, name);
+    check_keys(t, kConvectionKeys, name, " (convection = { h = \"8 W/m2K\", fluid = \"20 C\" })");
+    const toml::node* h = t.get("h");
+    const toml::node* fluid = t.get("fluid");
+    if (!h || !fluid) {
+      fail(node.source(), name +
+                              " needs both h and fluid: convection = { h = \"8 W/m2K\", "
+                              "fluid = \"20 C\" }");
+    }
+    Convection c;
+    c.h = quantity(*h, "h", name, parse_heat_transfer_coefficient, "8 W/m2K");
+    c.fluid_K = quantity(*fluid, "fluid", name, parse_temperature, "20 C");
+    return c;
+  }
+
+  WallLoss wall(const toml::node& node, const std::string& table_name) const {
+    const std::string name = "'wall' of " + table_name;
+    const char* forms =
+        "wall = { U = \"0.9 W/m2K\", outside = \"20 C\" } or wall = { thickness = \"230 mm\", "
+        "conductivity = \"0.3 W/mK\", outside = \"20 C\" }";
+    const toml::table& t = need_table(node, name);
+    check_keys(t, kWallKeys, name, std::string(" (") + forms + ")");
+    const toml::node* U = t.get("U");
+    const toml::node* outside = t.get("outside");
+    const toml::node* thickness = t.get("thickness");
+    const toml::node* conductivity = t.get("conductivity");
+    const bool by_u = U && !thickness && !conductivity;
+    const bool by_layer = !U && thickness && conductivity;
+    if (!outside || !(by_u || by_layer)) {
+      fail(node.source(), name + " must be " + forms);
+    }
+    WallLoss w;
+    w.outside_K = quantity(*outside, "outside", name, parse_temperature, "20 C");
+    if (by_u) {
+      w.U = quantity(*U, "U", name, parse_heat_transfer_coefficient, "0.9 W/m2K");
+    } else {
+      const double d = quantity(*thickness, "thickness", name, parse_length, "230 mm");
+      if (!(d > 0)) fail(thickness->source(), "thickness in " + name + " must be positive");
+      const double k =
+          quantity(*conductivity, "conductivity", name, parse_conductivity, "0.3 W/mK");
+      w.U = k / d;  // plain wall: U = k / thickness
+    }
+    return w;
+  }
+
+  SurfaceSpec surface(const toml::table& t, const std::string& table_name,
+                      bool allow_two_sided) const {
+    SurfaceSpec spec;
+    spec.line = static_cast<int>(t.source().begin.line);
+    check_keys(
+        t,
+        allow_two_sided ? kSurfaceKeys
+                        : std::vector<std::string>(kSurfaceKeys.begin() + 1, kSurfaceKeys.end()),
+        table_name, allow_two_sided ? "" : " (two_sided is set per surface, not in [defaults])");
+    std::string condition_key;
+    auto set_condition = [&](const toml::node& node, const std::string& key, ConditionKind kind,
+                             double value) {
+      if (!condition_key.empty()) {
+        fail(node.source(), table_name + " gives both '" + condition_key + "' and '" + key +
+                                "'; a surface takes at most one of temperature, heat_flux, "
+                                "power or adiabatic = true");
+      }
+      condition_key = key;
+      spec.kind = kind;
+      spec.value = value;
+    };
+    // Keys in a fixed order so that a two-condition message is the same for any key order.
+    for (const std::string& key : kSurfaceKeys) {
+      const toml::node* node = t.get(key);
+      if (!node) continue;
+      if (key == "two_sided") {
+        const auto* b = node->as_boolean();
+        if (!b) {
+          fail(node->source(),
+               "two_sided in " + table_name + " must be true or false, not " + type_name(*node));
+        }
+        spec.two_sided = b->get();
+      } else if (key == "emissivity") {
+        const std::optional<double> e = node->is_number() ? node->value<double>() : std::nullopt;
+        if (!e || !(*e > 0 && *e <= 1)) {
+          fail(node->source(), "emissivity in " + table_name +
+                                   " must be a number in (0, 1], like emissivity = 0.85; got " +
+                                   (e ? number_text(*node) : type_name(*node)));
+        }
+        spec.emissivity = *e;
+      } else if (key == "temperature") {
+        set_condition(*node, key, ConditionKind::temperature,
+                      quantity(*node, key, table_name, parse_temperature, "1250 C"));
+      } else if (key == "heat_flux") {
+        set_condition(*node, key, ConditionKind::heat_flux,
+                      quantity(*node, key, table_name, parse_heat_flux, "350 W/m2"));
+      } else if (key == "power") {
+        set_condition(*node, key, ConditionKind::power,
+                      quantity(*node, key, table_name, parse_power, "1200 W"));
+      } else if (key == "adiabatic") {
+        const auto* b = node->as_boolean();
+        if (!b || !b->get()) {
+          fail(node->source(), "adiabatic in " + table_name +
+                                   " can only be true (adiabatic = true); for another condition "
+                                   "give temperature, heat_flux or power instead");
+        }
+        set_condition(*node, key, ConditionKind::adiabatic, 0.0);
+      } else if (key == "convection") {
+        spec.convection = convection(*node, table_name);
+      } else if (key == "wall") {
+        spec.wall_loss = wall(*node, table_name);
+      }
+    }
+    return spec;
+  }
+
+  SceneFile read() const {
+    std::error_code ec;
+    if (!fs::exists(path_, ec)) throw InputError("scene file '" + path_ + "' does not exist");
+    if (fs::is_directory(path_, ec)) {
+      throw InputError("scene file '" + path_ + "' is a folder, not a TOML file");
+    }
+    toml::table root;
+    try {
+      root = toml::parse_file(path_);
+    } catch (const toml::parse_error& e) {
+      fail(e.source(), std::string(e.description()));
+    }
+    check_keys(root, kTopKeys, "the top level of the file");
+
+    SceneFile file;
+    file.path = path_;
+    const toml::node* mesh_node = root.get("mesh");
+    if (!mesh_node) {
+      throw InputError(path_ + ": no mesh given: add a [mesh] table with file = \"kiln.obj\"");
+    }
+    const toml::table& mesh = need_table(*mesh_node, "[mesh]");
+    check_keys(mesh, kMeshKeys, "[mesh]");
+    const toml::node* file_node = mesh.get("file");
+    if (!file_node) {
+      fail(mesh.source(),
+           "[mesh] has no file: add file = \"kiln.obj\" (relative to this file's "
+           "folder)");
+    }
+    const std::string written = need_string(*file_node, "file", "[mesh]", "\"kiln.obj\"");
+    fs::path resolved(written);
+    if (resolved.is_relative()) resolved = fs::path(path_).parent_path() / resolved;
+    file.mesh_path = resolved.lexically_normal().string();
+    if (!fs::is_regular_file(file.mesh_path, ec)) {
+      fail(file_node->source(), "mesh file '" + written + "' not found (looked for '" +
+                                    file.mesh_path +
+                                    "'; a relative path is taken from the "
+                                    "scene file's folder)");
+    }
+    if (const toml::node* unit = mesh.get("unit")) {
+      const std::string text = need_string(*unit, "unit", "[mesh]", "\"mm\"");
+      try {
+        file.mesh.unit = parse_length_unit(text);
+      } catch (const InputError& e) {
+        fail(unit->source(), std::string("[mesh] ") + e.what());
+      }
+    }
+    if (const toml::node* from = mesh.get("surfaces_from")) {
+      const std::string text = need_string(*from, "surfaces_from", "[mesh]", "\"groups\"");
+      if (text == "groups") {
+        file.mesh.surfaces_from = SurfacesFrom::groups;
+      } else if (text == "materials") {
+        file.mesh.surfaces_from = SurfacesFrom::materials;
+      } else {
+        fail(from->source(), "surfaces_from in [mesh] is '" + text +
+                                 "'; write \"groups\" (OBJ g/o names) or \"materials\" (usemtl "
+                                 "names)");
+      }
+    }
+
+    if (const toml::node* rays_node = root.get("rays")) {
+      const toml::table& rays = need_table(*rays_node, "[rays]");
+      check_keys(rays, kRaysKeys, "[rays]");
+      if (const toml::node* n = rays.get("per_patch")) {
+        file.rays_per_patch = whole_number(*n, "per_patch", true, "200_000");
+      }
+      if (const toml::node* n = rays.get("seed")) file.seed = whole_number(*n, "seed", false, "1");
+    }
+
+    if (const toml::node* sur_node = root.get("surroundings")) {
+      const toml::table& sur = need_table(*sur_node, "[surroundings]");
+      check_keys(sur, kSurroundingsKeys, "[surroundings]");
+      if (const toml::node* t = sur.get("temperature")) {
+        file.surroundings_K =
+            quantity(*t, "temperature", "[surroundings]", parse_temperature, "20 C");
+      }
+    }
+
+    if (const toml::node* def_node = root.get("defaults")) {
+      file.defaults = surface(need_table(*def_node, "[defaults]"), "[defaults]", false);
+    }
+
+    if (const toml::node* surf_node = root.get("surface")) {
+      const toml::table& all = need_table(*surf_node, "[surface]");
+      for (auto&& [key, node] : all) {
+        const std::string name(key.str());
+        const std::string table_name = "[surface." + name + "]";
+        if (!node.is_table()) {
+          fail(node.source(), "surface." + name + " must be a table [surface." + name +
+                                  "] with keys such as emissivity = 0.85, not " + type_name(node));
+        }
+        file.surfaces.emplace_back(name, surface(*node.as_table(), table_name, true));
+      }
+      // toml++ keeps keys sorted; the file order is the order of the tables' lines.
+      std::stable_sort(file.surfaces.begin(), file.surfaces.end(),
+                       [](const auto& a, const auto& b) { return a.second.line < b.second.line; });
+    }
+    return file;
+  }
+
+ private:
+  std::string path_;
+};
+
+bool ends_with_toml(const std::string& path) {
+  std::string ext = fs::path(path).extension().string();
+  std::transform(ext.begin(), ext.end(), ext.begin(),
+                 [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
+  return ext == ".toml";
+}
+
+std::string where(const SceneFile& file, int line) {
+  if (file.path.empty()) return "";
+  return file.path + (line > 0 ? ":" + std::to_string(line) : std::string()) + ": ";
+}
+
+}  // namespace
+
+const SurfaceSpec* SceneFile::find(const std::string& name) const {
+  for (const auto& [n, spec] : surfaces) {
+    if (n == name) return &spec;
+  }
+  return nullptr;
+}
+
+bool SceneFile::has_thermal_input() const {
+  auto thermal = [](const SurfaceSpec& s) {
+    return s.emissivity || s.kind || s.convection || s.wall_loss;
+  };
+  if (thermal(defaults)) return true;
+  return std::any_of(surfaces.begin(), surfaces.end(),
+                     [&](const auto& entry) { return thermal(entry.second); });
+}
+
+SceneFile read_scene_file(const std::string& path) {
+  return Reader(path).read();
+}
+
+SceneFile scene_file_for_mesh(const std::string& mesh_path) {
+  SceneFile file;
+  file.mesh_path = mesh_path;
+  return file;
+}
+
+SceneFile open_scene(const std::string& path) {
+  return ends_with_toml(path) ? read_scene_file(path) : scene_file_for_mesh(path);
+}
+
+Scene load_scene(const SceneFile& file) {
+  Scene scene = load_obj(file.mesh_path, file.mesh);
+  for (const auto& [name, spec] : file.surfaces) {
+    const int index = scene.find_surface(name);
+    if (index < 0) {
+      const char* from =
+          file.mesh.surfaces_from == SurfacesFrom::groups ? "groups/objects" : "materials";
+      throw InputError(where(file, spec.line) + "[surface." + name +
+                       "] names a surface that is "
+                       "not in the mesh '" +
+                       file.mesh_path + "'; its surfaces (from " + from + ") are: " + [&] {
+                         std::string list;
+                         for (const std::string& n : scene.surface_names()) {
+                           list += (list.empty() ? "" : ", ") + n;
+                         }
+                         return list;
+                       }());
+    }
+    scene.surfaces[static_cast<std::size_t>(index)].two_sided = spec.two_sided;
+  }
+  return scene;
+}
+
+std::vector<SurfaceThermal> resolve_thermal(const SceneFile& file, const Scene& scene) {
+  std::vector<SurfaceThermal> out;
+  out.reserve(scene.surfaces.size());
+  const SurfaceSpec none;
+  for (const Surface& surface : scene.surfaces) {
+    const SurfaceSpec* found = file.find(surface.name);
+    const SurfaceSpec& spec = found ? *found : none;
+    const SurfaceSpec& def = file.defaults;
+    const std::string at = where(file, spec.line);
+    const std::string table = "[surface." + surface.name + "]";
+    SurfaceThermal thermal;
+
+    const std::optional<double> emissivity = spec.emissivity ? spec.emissivity : def.emissivity;
+    if (!emissivity) {
+      throw InputError(at + "surface '" + surface.name +
+                       "' has no emissivity: give emissivity "
+                       "= 0.85 (say) in " +
+                       table + ", or one for every surface in [defaults]");
+    }
+    thermal.emissivity = *emissivity;
+
+    const SurfaceSpec& with_condition = spec.kind ? spec : def;
+    if (!with_condition.kind) {
+      throw InputError(at + "surface '" + surface.name +
+                       "' has no condition: give one of "
+                       "temperature, heat_flux, power or adiabatic = true in " +
+                       table + ", or one for every surface in [defaults]");
+    }
+    thermal.condition.kind = *with_condition.kind;
+    thermal.condition.value = with_condition.value;
+    thermal.condition.convection = spec.convection ? spec.convection : def.convection;
+
+    const bool two_sided = surface.two_sided || spec.two_sided;
+    if (spec.wall_loss && two_sided) {
+      throw InputError(at + "surface '" + surface.name +
+                       "' is two-sided and has a wall loss: a "
+                       "thin two-sided sheet has no outside; remove 'wall' from " +
+                       table + " or make the surface one-sided");
+    }
+    // A wall loss in [defaults] applies to the one-sided surfaces only, for the same reason.
+    if (!two_sided) thermal.condition.wall_loss = spec.wall_loss ? spec.wall_loss : def.wall_loss;
+    out.push_back(std::move(thermal));
+  }
+  return out;
+}
+
+}  // namespace hearthray

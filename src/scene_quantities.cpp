@@ -1,0 +1,177 @@
+// Quantities with units as written in scene files ("1250 C", "1.5 kW", "6 W/m2K"). A number
+// without a unit, or with a unit of another quantity, is an error naming the units accepted:
+// guessing a unit is how a 1250 C hearth becomes a 1250 K one.
+#include <cctype>
+#include <cmath>
+#include <cstdlib>
+#include <string>
+#include <vector>
+
+#include "hearthray/error.hpp"
+#include "hearthray/scene_file.hpp"
+
+namespace hearthray {
+namespace {
+
+// SI value = (number + pre_offset) * factor + post_offset.
+struct UnitDef {
+  const char* normalized;  // after normalize_unit()
+  double factor;
+  double pre_offset = 0;
+  double post_offset = 0;
+};
+
+struct QuantityDef {
+  const char* noun;          // "temperature"
+  const char* example;       // number used in messages when the text has none
+  const char* example_unit;  // unit used in the suggestion
+  const char* listed;        // units as shown to the user
+  std::vector<UnitDef> units;
+};
+
+// Spellings of one unit collapse to one form: blanks, brackets, '^', '*', the middle dot and
+// the degree sign go; superscript two becomes 2. "W/(m² K)" -> "W/m2K".
+std::string normalize_unit(const std::string& unit) {
+  std::string out;
+  for (std::size_t i = 0; i < unit.size(); ++i) {
+    const unsigned char c = static_cast<unsigned char>(unit[i]);
+    if (c == 0xC2 && i + 1 < unit.size()) {
+      const unsigned char d = static_cast<unsigned char>(unit[i + 1]);
+      if (d == 0xB2) {  // superscript two
+        out += '2';
+        ++i;
+        continue;
+      }
+      if (d == 0xB0 || d == 0xB7) {  // degree sign, middle dot
+        ++i;
+        continue;
+      }
+    }
+    if (std::isspace(c) || c == '(' || c == ')' || c == '^' || c == '*') continue;
+    out += static_cast<char>(c);
+  }
+  return out;
+}
+
+// Length of the leading decimal number in s ([+-]digits[.digits][(e|E)[+-]digits]), 0 if none.
+std::size_t number_prefix(const std::string& s) {
+  std::size_t i = 0;
+  if (i < s.size() && (s[i] == '+' || s[i] == '-')) ++i;
+  std::size_t digits = 0;
+  while (i < s.size() && std::isdigit(static_cast<unsigned char>(s[i]))) ++i, ++digits;
+  if (i < s.size() && s[i] == '.') {
+    ++i;
+    while (i < s.size() && std::isdigit(static_cast<unsigned char>(s[i]))) ++i, ++digits;
+  }
+  if (digits == 0) return 0;
+  if (i < s.size() && (s[i] == 'e' || s[i] == 'E')) {
+    std::size_t j = i + 1;
+    if (j < s.size() && (s[j] == '+' || s[j] == '-')) ++j;
+    std::size_t exp_digits = 0;
+    while (j < s.size() && std::isdigit(static_cast<unsigned char>(s[j]))) ++j, ++exp_digits;
+    if (exp_digits > 0) i = j;
+  }
+  return i;
+}
+
+std::string trim(const std::string& s) {
+  const auto first = s.find_first_not_of(" \t");
+  if (first == std::string::npos) return "";
+  return s.substr(first, s.find_last_not_of(" \t") - first + 1);
+}
+
+double parse_quantity(const std::string& raw, const std::string& what, const QuantityDef& q) {
+  const std::string text = trim(raw);
+  const std::size_t n = number_prefix(text);
+  const std::string units_hint = std::string(" (units: ") + q.listed + ")";
+  if (n == 0) {
+    throw InputError(what + " \"" + raw + "\" does not start with a number: write " + what +
+                     " = \"" + q.example + " " + q.example_unit + "\"" + units_hint);
+  }
+  const std::string number = text.substr(0, n);
+  const std::string unit = trim(text.substr(n));
+  if (unit.empty()) {
+    throw InputError(what + " \"" + raw + "\" has no unit: write " + what + " = \"" + number + " " +
+                     q.example_unit + "\"" + units_hint);
+  }
+  const double value = std::strtod(number.c_str(), nullptr);
+  if (!std::isfinite(value)) {
+    throw InputError(what + " \"" + raw + "\" is not a finite number");
+  }
+  const std::string key = normalize_unit(unit);
+  for (const UnitDef& u : q.units) {
+    if (key == u.normalized) return (value + u.pre_offset) * u.factor + u.post_offset;
+  }
+  throw InputError(what + " \"" + raw + "\": '" + unit + "' is not a unit of " + q.noun +
+                   "; write it with one of " + q.listed + ", like " + what + " = \"" + q.example +
+                   " " + q.example_unit + "\"");
+}
+
+const QuantityDef& temperature_def() {
+  static const QuantityDef def{
+      "temperature",
+      "1250",
+      "C",
+      "C, K, F",
+      {{"C", 1.0, 0.0, 273.15}, {"K", 1.0}, {"F", 5.0 / 9.0, -32.0, 273.15}}};
+  return def;
+}
+
+}  // namespace
+
+double parse_temperature(const std::string& text, const std::string& what) {
+  const double kelvin = parse_quantity(text, what, temperature_def());
+  if (kelvin < 0) {
+    throw InputError(what + " \"" + text +
+                     "\" is below absolute zero (0 K = -273.15 C = -459.67 F)");
+  }
+  return kelvin;
+}
+
+double parse_power(const std::string& text, const std::string& what) {
+  static const QuantityDef def{
+      "power", "1200", "W", "W, kW, MW", {{"W", 1.0}, {"kW", 1e3}, {"MW", 1e6}}};
+  return parse_quantity(text, what, def);
+}
+
+double parse_heat_flux(const std::string& text, const std::string& what) {
+  static const QuantityDef def{
+      "heat flux", "350", "W/m2", "W/m2, kW/m2", {{"W/m2", 1.0}, {"kW/m2", 1e3}}};
+  return parse_quantity(text, what, def);
+}
+
+double parse_heat_transfer_coefficient(const std::string& text, const std::string& what) {
+  static const QuantityDef def{"heat transfer coefficient",
+                               "6",
+                               "W/m2K",
+                               "W/m2K, also written W/(m2 K) or W/m2/K",
+                               {{"W/m2K", 1.0}, {"W/m2/K", 1.0}, {"W/Km2", 1.0}}};
+  const double h = parse_quantity(text, what, def);
+  if (h < 0) throw InputError(what + " \"" + text + "\" is negative; it must be >= 0");
+  return h;
+}
+
+double parse_length(const std::string& text, const std::string& what) {
+  static const QuantityDef def{
+      "length",
+      "230",
+      "mm",
+      "mm, cm, m, in, ft",
+      {{"mm", 1e-3}, {"cm", 1e-2}, {"m", 1.0}, {"in", 0.0254}, {"ft", 0.3048}}};
+  const double metres = parse_quantity(text, what, def);
+  if (metres < 0) throw InputError(what + " \"" + text + "\" is negative; it must be >= 0");
+  return metres;
+}
+
+double parse_conductivity(const std::string& text, const std::string& what) {
+  static const QuantityDef def{"thermal conductivity",
+                               "0.3",
+                               "W/mK",
+                               "W/mK, also written W/(m K) or W/m/K",
+                               {{"W/mK", 1.0}, {"W/m/K", 1.0}, {"W/Km", 1.0}}};
+  const double k = parse_quantity(text, what, def);
+  if (!(k > 0)) throw InputError(what + " \"" + text + "\" must be positive");
+  return k;
+}
+
+}  // namespace hearthray

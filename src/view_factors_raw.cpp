@@ -1,0 +1,116 @@
+// Raw Monte Carlo view factors F_ij = hits_ij / N_i straight from the tallies, and the
+// binomial standard error of a factor. Also the consistency checks on tallies that every
+// consumer of them relies on.
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <string>
+
+#include "hearthray/error.hpp"
+#include "hearthray/view_factors.hpp"
+
+namespace hearthray {
+namespace {
+
+std::string patch_label(const PatchSet& patches, std::size_t p) {
+  return "patch " + std::to_string(p) + " '" + patches.patches[p].name + "'";
+}
+
+// Tallies come from trace_tallies or merge_shards (or a file, later): check the structure
+// before indexing with it, so that a mismatch is a message instead of a crash.
+void check_tallies(const PatchSet& patches, const Tallies& t) {
+  const std::size_t n = patches.size();
+  const std::size_t rows = t.rows();
+  if (t.patch_count != n) {
+    throw InputError("view-factor tallies are for " + std::to_string(t.patch_count) +
+                     " patches but the scene has " + std::to_string(n) +
+                     "; trace the same scene again");
+  }
+  if (static_cast<std::size_t>(t.emitter_begin) + rows > n) {
+    throw InputError("view-factor tallies cover emitters " + std::to_string(t.emitter_begin) +
+                     " to " + std::to_string(t.emitter_begin + rows) + " but the scene has " +
+                     std::to_string(n) + " patches");
+  }
+  if (t.escaped.size() != rows || t.back_face.size() != rows || t.hit_offset.size() != rows + 1 ||
+      t.hit_patch.size() != t.hit_count.size() || t.hit_offset.front() != 0 ||
+      t.hit_offset.back() != t.hit_patch.size()) {
+    throw InputError(
+        "view-factor tallies are inconsistent: the per-row arrays (rays, escaped, back faces, "
+        "hit offsets) and the hit lists do not have matching sizes");
+  }
+  for (std::size_t r = 0; r < rows; ++r) {
+    const std::size_t p = t.emitter_begin + r;
+    if (t.rays[r] == 0) {
+      throw InputError(patch_label(patches, p) + " emitted no rays; every patch needs rays");
+    }
+    const std::uint64_t begin = t.hit_offset[r], end = t.hit_offset[r + 1];
+    if (begin > end || end > t.hit_patch.size()) {
+      throw InputError("view-factor tallies are inconsistent: hit offsets of " +
+                       patch_label(patches, p) + " are out of order");
+    }
+    std::uint64_t counted = t.escaped[r] + t.back_face[r];
+    for (std::uint64_t k = begin; k < end; ++k) {
+      if (t.hit_patch[k] >= n || (k > begin && t.hit_patch[k] <= t.hit_patch[k - 1])) {
+        throw InputError("view-factor tallies are inconsistent: the receivers of " +
+                         patch_label(patches, p) + " are out of range or not in ascending order");
+      }
+      counted += t.hit_count[k];
+    }
+    if (counted > t.rays[r]) {
+      throw InputError("view-factor tallies are inconsistent: " + patch_label(patches, p) +
+                       " has " + std::to_string(counted) + " counted rays but emitted only " +
+                       std::to_string(t.rays[r]));
+    }
+  }
+}
+
+}  // namespace
+
+double ViewFactors::standard_error(std::size_t i, double f) const {
+  const std::uint64_t n = rays.at(i);
+  if (n == 0) return std::numeric_limits<double>::infinity();
+  // Binomial proportion: each ray lands on the receiver or not.
+  const double p = std::clamp(f, 0.0, 1.0);
+  return std::sqrt(p * (1 - p) / static_cast<double>(n));
+}
+
+ViewFactors raw_view_factors(const PatchSet& patches, const Tallies& tallies) {
+  check_tallies(patches, tallies);
+  const std::size_t n = patches.size();
+  const std::size_t rows = tallies.rows();
+
+  ViewFactors vf;
+  vf.names.reserve(n);
+  vf.areas.reserve(n);
+  for (const Patch& p : patches.patches) {
+    vf.names.push_back(p.name);
+    vf.areas.push_back(p.area);
+  }
+  vf.rays = tallies.rays;
+  vf.to_surroundings.resize(rows);
+  vf.to_back_faces.resize(rows);
+
+  vf.F.resize(static_cast<Eigen::Index>(rows), static_cast<Eigen::Index>(n));
+  Eigen::VectorXi per_row(static_cast<Eigen::Index>(rows));
+  for (std::size_t r = 0; r < rows; ++r) {
+    per_row[static_cast<Eigen::Index>(r)] =
+        static_cast<int>(tallies.hit_offset[r + 1] - tallies.hit_offset[r]);
+  }
+  vf.F.reserve(per_row);
+  for (std::size_t r = 0; r < rows; ++r) {
+    const double rays = static_cast<double>(tallies.rays[r]);
+    for (std::uint64_t k = tallies.hit_offset[r]; k < tallies.hit_offset[r + 1]; ++k) {
+      if (tallies.hit_count[k] == 0) continue;  // no hit: a structural zero, not an entry
+      vf.F.insert(static_cast<Eigen::Index>(r), static_cast<Eigen::Index>(tallies.hit_patch[k])) =
+          static_cast<double>(tallies.hit_count[k]) / rays;
+    }
+    vf.to_surroundings[r] = static_cast<double>(tallies.escaped[r]) / rays;
+    vf.to_back_faces[r] = static_cast<double>(tallies.back_face[r]) / rays;
+  }
+  vf.F.makeCompressed();
+  vf.smoothed = false;
+  vf.max_correction_sigma = 0;
+  return vf;
+}
+
+}  // namespace hearthray
