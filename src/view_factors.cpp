@@ -116,11 +116,14 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
   const std::vector<TriangleFrame> frames = make_frames(scene, tracer.centre());
   // Cumulative area along each patch's triangle list, for area-stratified origins.
   std::vector<double> cumulative(patches.triangle_index.size());
+  std::vector<double> inverse_area(patches.triangle_index.size());
   for (std::uint32_t p = 0; p < n_patches; ++p) {
     double sum = 0;
     for (std::uint32_t k = patches.triangle_offset[p]; k < patches.triangle_offset[p + 1]; ++k) {
-      sum += scene.triangle_area(patches.triangle_index[k]);
+      const double area = scene.triangle_area(patches.triangle_index[k]);
+      sum += area;
       cumulative[k] = sum;
+      inverse_area[k] = 1.0 / area;
     }
   }
 
@@ -131,14 +134,22 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
       chunks.push_back({p, k, std::min(N, k + kChunkRays)});
   std::vector<ChunkResult> results(chunks.size());
 
-  // What a hit on each triangle means, packed so that one cache line serves a hit.
-  struct Receive {
-    std::uint32_t front, back, surface;
-  };
-  std::vector<Receive> receive(scene.triangles.size());
-  for (std::size_t t = 0; t < receive.size(); ++t)
-    receive[t] = {patches.front_patch_of_triangle[t], patches.back_patch_of_triangle[t],
-                  scene.triangles[t].surface};
+  // The patch a hit lands in. Where a surface side is one patch (the usual case) the
+  // surface, which the tracer reports without a memory lookup, settles it; otherwise the
+  // triangle does.
+  constexpr std::uint32_t kByTriangle = 0xfffffffeu;
+  std::vector<std::uint32_t> surface_front(scene.surfaces.size()),
+      surface_back(scene.surfaces.size());
+  for (std::uint32_t s = 0; s < scene.surfaces.size(); ++s) {
+    const Surface& surface = scene.surfaces[s];
+    const std::uint32_t t0 = surface.first_triangle, t1 = t0 + surface.triangle_count;
+    surface_front[s] = t1 > t0 ? patches.front_patch_of_triangle[t0] : PatchSet::kNoPatch;
+    surface_back[s] = t1 > t0 ? patches.back_patch_of_triangle[t0] : PatchSet::kNoPatch;
+    for (std::uint32_t t = t0; t < t1; ++t) {
+      if (patches.front_patch_of_triangle[t] != surface_front[s]) surface_front[s] = kByTriangle;
+      if (patches.back_patch_of_triangle[t] != surface_back[s]) surface_back[s] = kByTriangle;
+    }
+  }
 
   const std::size_t n_surfaces = scene.surfaces.size();
   tbb::enumerable_thread_specific<Scratch> scratch([&] {
@@ -180,11 +191,11 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
       for (std::size_t i = 0; i < m; ++i) {
         const std::uint64_t k = k0 + i;
         const auto u = ray_uniforms(key, k);
+        // Stratum k of the patch's area, walked in triangle order (coherent origins).
         const double target = (double(k) + u[0]) * step;
         while (j + 1 < t_end && cumulative[j] <= target) ++j;
         const double below = j > t_begin ? cumulative[j - 1] : 0.0;
-        const double width = cumulative[j] - below;
-        const double r = std::min(std::max((target - below) / width, 0.0), 1.0 - 1e-16);
+        const double r = std::min(std::max((target - below) * inverse_area[j], 0.0), 1.0 - 1e-16);
         const Barycentric bc = sample_triangle_uniform(r, u[1]);
         const Vec3 d = sample_cosine_hemisphere(u[2], u[3]);
         const TriangleFrame& f = frames[patches.triangle_index[j]];
@@ -215,10 +226,12 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
           ++out.escaped;
           continue;
         }
-        const Receive& rc = receive[h.triangle];
-        const std::uint32_t surface = rc.surface;
+        const std::uint32_t surface = h.surface;
         ++s.hits_on_surface[surface];
-        const std::uint32_t q = h.front ? rc.front : rc.back;
+        std::uint32_t q = h.front ? surface_front[surface] : surface_back[surface];
+        if (q == kByTriangle)
+          q = h.front ? patches.front_patch_of_triangle[h.triangle]
+                      : patches.back_patch_of_triangle[h.triangle];
         if (q == PatchSet::kNoPatch) {
           ++out.back_face;
           ++s.back_on_surface[surface];

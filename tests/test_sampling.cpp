@@ -25,7 +25,7 @@ double chi_square_limit(int k) {
 
 }  // namespace
 
-TEST_CASE("sin and cos of 2 pi u agree with the library to 1e-9", "[sampling]") {
+TEST_CASE("sin and cos of 2 pi u agree with the library to 4e-7", "[sampling]") {
   double worst = 0;
   for (int i = 0; i <= 100000; ++i) {
     const double u = i / 100000.0 * 0.999999999;
@@ -34,7 +34,7 @@ TEST_CASE("sin and cos of 2 pi u agree with the library to 1e-9", "[sampling]") 
     worst = std::max({worst, std::fabs(s - std::sin(2 * kPi * u)),
                       std::fabs(c - std::cos(2 * kPi * u))});
   }
-  CHECK(worst < 1e-9);
+  CHECK(worst < 4e-7);
 }
 
 TEST_CASE("triangle sampling inverts and covers the triangle uniformly", "[sampling]") {
@@ -45,10 +45,8 @@ TEST_CASE("triangle sampling inverts and covers the triangle uniformly", "[sampl
       CHECK(b.b2 >= 0);
       CHECK(b.b1 + b.b2 <= 1 + 1e-15);
       const auto u = invert_triangle_uniform(b);
-      if (u1 > 0) {
-        CHECK(u[0] == Approx(u1).margin(1e-14));
-        CHECK(u[1] == Approx(u2).margin(1e-14));
-      }
+      CHECK(u[0] == Approx(u1).margin(1e-14));
+      CHECK(u[1] == Approx(u2).margin(1e-14));
     }
   }
   // Uniformity: split the unit right triangle into 4 congruent sub-triangles by its edge
@@ -77,13 +75,13 @@ TEST_CASE("cosine hemisphere: unit directions, density, inverse", "[sampling]") 
   for (double u1 : {0.0, 0.2, 0.5, 0.95}) {
     for (double u2 : {0.0, 0.25, 0.6, 0.999}) {
       const Vec3 d = sample_cosine_hemisphere(u1, u2);
-      CHECK(norm(d) == Approx(1.0).margin(1e-9));
+      CHECK(norm(d) == Approx(1.0).margin(1e-6));  // float square roots, as the rays
       CHECK(d.z >= 0);
       CHECK(cosine_hemisphere_pdf(d) == Approx(d.z / kPi));
       if (u1 > 0) {
         const auto u = invert_cosine_hemisphere(d);
-        CHECK(u[0] == Approx(u1).margin(1e-9));
-        CHECK(u[1] == Approx(u2).margin(1e-9));
+        CHECK(u[0] == Approx(u1).margin(1e-6));
+        CHECK(u[1] == Approx(u2).margin(1e-6));
       }
     }
   }

@@ -34,6 +34,7 @@ struct Ray {
 struct RayHit {
   static constexpr std::uint32_t kMiss = 0xffffffffu;
   std::uint32_t triangle = kMiss;  // index into Scene::triangles, kMiss when nothing is hit
+  std::uint32_t surface = kMiss;   // index into Scene::surfaces
   bool front = false;              // the ray arrived on the triangle's front side
   float t = 0;                     // hit distance
 };
