@@ -85,13 +85,13 @@ struct ObjWriter {
   }
 };
 
-std::string furnace_obj(std::size_t* triangle_count) {
+std::string furnace_obj(bool with_roof) {
   ObjWriter w;
   const double L = 4, W = 3, H = 2.5;
   const int n = 64;  // cells along each wall edge: 6 walls x 2 x 64^2 = 49k triangles
   // Walls with normals pointing into the furnace.
   w.grid("hearth", {0, 0, 0}, {L, 0, 0}, {0, W, 0}, n, n);
-  w.grid("roof", {0, 0, H}, {0, W, 0}, {L, 0, 0}, n, n);
+  if (with_roof) w.grid("roof", {0, 0, H}, {0, W, 0}, {L, 0, 0}, n, n);
   w.grid("wall_south", {0, 0, 0}, {0, 0, H}, {L, 0, 0}, n, n);
   w.grid("wall_north", {0, W, 0}, {L, 0, 0}, {0, 0, H}, n, n);
   w.grid("wall_west", {0, 0, 0}, {0, W, 0}, {0, 0, H}, n, n);
@@ -101,7 +101,6 @@ std::string furnace_obj(std::size_t* triangle_count) {
     w.box("billet_" + std::to_string(i), {0.6 + 0.8 * i, 1.0, 0.1}, {0.5, 1.0, 0.5}, 20);
   for (int i = 0; i < 6; ++i)
     w.sphere("tile_" + std::to_string(i), {0.7 + 0.55 * i, 2.4, 1.6}, 0.2, 36, 72);
-  *triangle_count = w.triangles;
   return w.out.str();
 }
 
@@ -109,91 +108,84 @@ double seconds_since(std::chrono::steady_clock::time_point t0) {
   return std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
 }
 
-}  // namespace
-
-int main(int argc, char** argv) {
-  const std::uint64_t rays_per_patch = argc > 1 ? std::strtoull(argv[1], nullptr, 10) : 400000;
-  const int threads = argc > 2 ? std::atoi(argv[2]) : tbb::info::default_concurrency();
-  const bool robust = !(argc > 3 && std::string(argv[3]) == "fast");
-
-  std::size_t n_tri = 0;
-  std::istringstream obj(furnace_obj(&n_tri));
-  const Scene scene = load_obj(obj, "bench-furnace");
-  const PatchSet patches = make_surface_patches(scene);
-  std::printf("mesh: %zu triangles, %zu surfaces; %llu rays per surface; %d threads; %s\n",
-              scene.triangles.size(), scene.surfaces.size(),
-              static_cast<unsigned long long>(rays_per_patch), threads,
-              robust ? "Embree robust mode" : "Embree default mode");
-
-  // --- Embree alone: the same rays, generated beforehand, traced with rtcIntersect1. ---
-  // Both traces work in the tracer's frame: coordinates minus the bounding-box centre.
+// The rays hearthray emits, generated the same way (same seed, strata and maps), in the
+// tracer's frame (coordinates minus the bounding-box centre).
+std::vector<Ray> make_rays(const Scene& scene, const PatchSet& patches, std::uint64_t per_patch) {
   const Vec3 centre = (scene.bounds.lo + scene.bounds.hi) * 0.5;
   std::vector<Ray> rays;
-  rays.reserve(rays_per_patch * patches.size());
-  {
-    ViewFactorOptions o;  // same seed as below
-    for (std::uint32_t p = 0; p < patches.size(); ++p) {
-      const std::uint32_t t0 = patches.triangle_offset[p], t1 = patches.triangle_offset[p + 1];
-      std::vector<double> cum;
-      double sum = 0;
-      for (std::uint32_t k = t0; k < t1; ++k)
-        cum.push_back(sum += scene.triangle_area(patches.triangle_index[k]));
-      const std::uint64_t key = patch_stream_key(o.seed, p);
-      std::size_t j = 0;
-      for (std::uint64_t k = 0; k < rays_per_patch; ++k) {
-        const auto u = ray_uniforms(key, k);
-        const double target = sum * ((double(k) + u[0]) / double(rays_per_patch));
-        while (j + 1 < cum.size() && cum[j] <= target) ++j;
-        const double below = j ? cum[j - 1] : 0.0;
-        const double r = std::min((target - below) / (cum[j] - below), 1.0 - 1e-16);
-        const std::uint32_t t = patches.triangle_index[t0 + j];
-        const Triangle& tri = scene.triangles[t];
-        const Vec3 a = scene.vertices[tri.v[0]] - centre, b = scene.vertices[tri.v[1]] - centre,
-                   c = scene.vertices[tri.v[2]] - centre;
-        const Barycentric bc = sample_triangle_uniform(r, u[1]);
-        const Vec3 n = scene.normal(t);
-        Vec3 tt, bb;
-        orthonormal_basis(n, &tt, &bb);
-        const Vec3 d = sample_cosine_hemisphere(u[2], u[3]);
-        const double scale = std::max({std::fabs(a.x), std::fabs(a.y), std::fabs(a.z),
-                                       std::fabs(b.x), std::fabs(b.y), std::fabs(b.z),
-                                       std::fabs(c.x), std::fabs(c.y), std::fabs(c.z)});
-        const Vec3 org = a + (b - a) * bc.b1 + (c - a) * bc.b2 + n * (scale / 65536.0);
-        const Vec3 dir = tt * d.x + bb * d.y + n * d.z;
-        Ray ray;
-        for (int i = 0; i < 3; ++i) {
-          ray.org[i] = float(org[i]);
-          ray.dir[i] = float(dir[i]);
-        }
-        rays.push_back(ray);
+  rays.reserve(per_patch * patches.size());
+  const ViewFactorOptions defaults;
+  for (std::uint32_t p = 0; p < patches.size(); ++p) {
+    const std::uint32_t t0 = patches.triangle_offset[p], t1 = patches.triangle_offset[p + 1];
+    std::vector<double> cum;
+    double sum = 0;
+    for (std::uint32_t k = t0; k < t1; ++k)
+      cum.push_back(sum += scene.triangle_area(patches.triangle_index[k]));
+    const std::uint64_t key = patch_stream_key(defaults.seed, p);
+    std::size_t j = 0;
+    for (std::uint64_t k = 0; k < per_patch; ++k) {
+      const auto u = ray_uniforms(key, k);
+      const double target = sum * ((double(k) + u[0]) / double(per_patch));
+      while (j + 1 < cum.size() && cum[j] <= target) ++j;
+      const double below = j ? cum[j - 1] : 0.0;
+      const double r = std::min((target - below) / (cum[j] - below), 1.0 - 1e-16);
+      const std::uint32_t t = patches.triangle_index[t0 + j];
+      const Triangle& tri = scene.triangles[t];
+      const Vec3 a = scene.vertices[tri.v[0]] - centre, b = scene.vertices[tri.v[1]] - centre,
+                 c = scene.vertices[tri.v[2]] - centre;
+      const Barycentric bc = sample_triangle_uniform(r, u[1]);
+      const Vec3 n = scene.normal(t);
+      Vec3 tt, bb;
+      orthonormal_basis(n, &tt, &bb);
+      const Vec3 d = sample_cosine_hemisphere(u[2], u[3]);
+      double scale = scene.bounds.diagonal() / 1024;
+      for (const Vec3* v : {&a, &b, &c})
+        scale = std::max({scale, std::fabs(v->x), std::fabs(v->y), std::fabs(v->z)});
+      const Vec3 org = a + (b - a) * bc.b1 + (c - a) * bc.b2 + n * (scale / 65536.0);
+      const Vec3 dir = tt * d.x + bb * d.y + n * d.z;
+      Ray ray;
+      for (int i = 0; i < 3; ++i) {
+        ray.org[i] = float(org[i]);
+        ray.dir[i] = float(dir[i]);
       }
+      rays.push_back(ray);
     }
   }
+  return rays;
+}
 
-  RTCDevice device = rtcNewDevice("verbose=0");
-  RTCScene rscene = rtcNewScene(device);
-  rtcSetSceneFlags(rscene, robust ? RTC_SCENE_FLAG_ROBUST : RTC_SCENE_FLAG_NONE);
-  rtcSetSceneBuildQuality(rscene, RTC_BUILD_QUALITY_HIGH);
-  RTCGeometry geom = rtcNewGeometry(device, RTC_GEOMETRY_TYPE_TRIANGLE);
-  auto* vb = static_cast<float*>(rtcSetNewGeometryBuffer(geom, RTC_BUFFER_TYPE_VERTEX, 0,
-                                                         RTC_FORMAT_FLOAT3, 3 * sizeof(float),
-                                                         scene.vertices.size()));
-  for (std::size_t i = 0; i < scene.vertices.size(); ++i)
-    for (int k = 0; k < 3; ++k) vb[3 * i + k] = float(scene.vertices[i][k] - centre[k]);
-  auto* ib = static_cast<unsigned*>(rtcSetNewGeometryBuffer(geom, RTC_BUFFER_TYPE_INDEX, 0,
-                                                            RTC_FORMAT_UINT3, 3 * sizeof(unsigned),
-                                                            scene.triangles.size()));
-  for (std::size_t t = 0; t < scene.triangles.size(); ++t)
-    for (int k = 0; k < 3; ++k) ib[3 * t + k] = scene.triangles[t].v[k];
-  rtcCommitGeometry(geom);
-  rtcAttachGeometry(rscene, geom);
-  rtcReleaseGeometry(geom);
-  rtcCommitScene(rscene);
-
-  tbb::task_arena arena(threads);
-  std::atomic<std::uint64_t> missed{0};
-  auto embree_alone = [&] {
-    missed = 0;
+// Embree alone: one geometry, the given flags, rtcIntersect1 over the pre-generated rays.
+class EmbreeAlone {
+ public:
+  EmbreeAlone(const Scene& scene, bool robust) {
+    device_ = rtcNewDevice("verbose=0");
+    scene_ = rtcNewScene(device_);
+    rtcSetSceneFlags(scene_, robust ? RTC_SCENE_FLAG_ROBUST : RTC_SCENE_FLAG_NONE);
+    rtcSetSceneBuildQuality(scene_, RTC_BUILD_QUALITY_HIGH);
+    const Vec3 centre = (scene.bounds.lo + scene.bounds.hi) * 0.5;
+    RTCGeometry geom = rtcNewGeometry(device_, RTC_GEOMETRY_TYPE_TRIANGLE);
+    auto* vb = static_cast<float*>(rtcSetNewGeometryBuffer(geom, RTC_BUFFER_TYPE_VERTEX, 0,
+                                                           RTC_FORMAT_FLOAT3, 3 * sizeof(float),
+                                                           scene.vertices.size()));
+    for (std::size_t i = 0; i < scene.vertices.size(); ++i)
+      for (int k = 0; k < 3; ++k) vb[3 * i + k] = float(scene.vertices[i][k] - centre[k]);
+    auto* ib = static_cast<unsigned*>(
+        rtcSetNewGeometryBuffer(geom, RTC_BUFFER_TYPE_INDEX, 0, RTC_FORMAT_UINT3,
+                                3 * sizeof(unsigned), scene.triangles.size()));
+    for (std::size_t t = 0; t < scene.triangles.size(); ++t)
+      for (int k = 0; k < 3; ++k) ib[3 * t + k] = scene.triangles[t].v[k];
+    rtcCommitGeometry(geom);
+    rtcAttachGeometry(scene_, geom);
+    rtcReleaseGeometry(geom);
+    rtcCommitScene(scene_);
+  }
+  ~EmbreeAlone() {
+    rtcReleaseScene(scene_);
+    rtcReleaseDevice(device_);
+  }
+  // Seconds to trace all rays; `missed` gets the rays that hit nothing.
+  double trace(tbb::task_arena& arena, const std::vector<Ray>& rays, std::uint64_t* missed) const {
+    std::atomic<std::uint64_t> miss_total{0};
     const auto t0 = std::chrono::steady_clock::now();
     arena.execute([&] {
       tbb::parallel_for(tbb::blocked_range<std::size_t>(0, rays.size(), 16384),
@@ -217,70 +209,86 @@ int main(int argc, char** argv) {
                             rh.ray.flags = 0;
                             rh.hit.geomID = RTC_INVALID_GEOMETRY_ID;
                             rh.hit.instID[0] = RTC_INVALID_GEOMETRY_ID;
-                            rtcIntersect1(rscene, &ctx, &rh);
+                            rtcIntersect1(scene_, &ctx, &rh);
                             miss += rh.hit.geomID == RTC_INVALID_GEOMETRY_ID;
                           }
-                          missed += miss;
+                          miss_total += miss;
                         });
     });
+    *missed = miss_total;
     return seconds_since(t0);
-  };
+  }
 
-  // --- hearthray: sampling, tracing and tallying. ---
-  TracerOptions tracer_options;
-  tracer_options.robust = robust;
-  const Tracer tracer(scene, tracer_options);
+ private:
+  RTCDevice device_ = nullptr;
+  RTCScene scene_ = nullptr;
+};
+
+void run_case(const std::string& name, const std::string& obj_text, std::uint64_t per_patch,
+              int threads) {
+  std::istringstream obj(obj_text);
+  const Scene scene = load_obj(obj, name);
+  const PatchSet patches = make_surface_patches(scene);
+  const std::vector<Ray> rays = make_rays(scene, patches, per_patch);
+  const double n = double(rays.size());
+  std::printf(
+      "\n%s: %zu triangles, %zu surfaces, %llu rays per surface (%.1f M rays), %d threads\n",
+      name.c_str(), scene.triangles.size(), scene.surfaces.size(),
+      static_cast<unsigned long long>(per_patch), n / 1e6, threads);
+
+  tbb::task_arena arena(threads);
+  const EmbreeAlone robust(scene, true), plain(scene, false);
+  TracerOptions checked_options, robust_options;
+  checked_options.edges = EdgeMode::checked;
+  robust_options.edges = EdgeMode::robust;
+  const Tracer checked_tracer(scene, checked_options), robust_tracer(scene, robust_options);
   ViewFactorOptions options;
-  options.rays_per_patch = rays_per_patch;
+  options.rays_per_patch = per_patch;
   options.threads = threads;
-  std::uint64_t escaped = 0;
-  auto hearthray_run = [&] {
+
+  // Alternate the runs, three rounds, and keep the best time of each: other load on the
+  // machine only ever slows a run down.
+  double t_robust = 1e300, t_plain = 1e300, t_checked = 1e300, t_hr_robust = 1e300;
+  std::uint64_t missed_robust = 0, missed_plain = 0, escaped = 0, retraced = 0;
+  for (int round = 0; round < 3; ++round) {
+    t_robust = std::min(t_robust, robust.trace(arena, rays, &missed_robust));
+    t_plain = std::min(t_plain, plain.trace(arena, rays, &missed_plain));
     TraceStats stats;
-    const Tallies tallies = trace_tallies(scene, patches, tracer, options, &stats);
+    Tallies tallies = trace_tallies(scene, patches, checked_tracer, options, &stats);
+    t_checked = std::min(t_checked, stats.seconds);
+    retraced = stats.retraced;
     escaped = 0;
     for (auto e : tallies.escaped) escaped += e;
-    return stats.seconds;
-  };
-
-  // The same pre-generated rays through hearthray's Tracer (its Embree scene, no sampling):
-  // separates the cost of sampling and tallying from that of the scene set-up.
-  std::vector<RayHit> all_hits(rays.size());
-  auto tracer_only = [&] {
-    const auto t0 = std::chrono::steady_clock::now();
-    arena.execute([&] {
-      tbb::parallel_for(tbb::blocked_range<std::size_t>(0, rays.size(), 16384),
-                        [&](const tbb::blocked_range<std::size_t>& range) {
-                          for (std::size_t i = range.begin(); i < range.end(); i += 256)
-                            tracer.trace(&rays[i], &all_hits[i],
-                                         std::min<std::size_t>(256, range.end() - i));
-                        });
-    });
-    return seconds_since(t0);
-  };
-
-  // Alternate the two, three rounds, and keep the best time of each: the machine's other
-  // load only ever slows a run down.
-  double embree_seconds = 1e300, hearthray_seconds = 1e300, tracer_seconds = 1e300;
-  for (int round = 0; round < 3; ++round) {
-    embree_seconds = std::min(embree_seconds, embree_alone());
-    tracer_seconds = std::min(tracer_seconds, tracer_only());
-    hearthray_seconds = std::min(hearthray_seconds, hearthray_run());
+    tallies = trace_tallies(scene, patches, robust_tracer, options, &stats);
+    t_hr_robust = std::min(t_hr_robust, stats.seconds);
   }
-  rtcReleaseScene(rscene);
-  rtcReleaseDevice(device);
-  const double n_rays = double(rays.size());
-  const double embree_rate = n_rays / embree_seconds;
-  const double hearthray_rate = n_rays / hearthray_seconds;
-
-  std::printf("embree alone : %12.0f rays %8.3f s %8.3f Mrays/s (%llu missed)\n", n_rays,
-              embree_seconds, embree_rate / 1e6, static_cast<unsigned long long>(missed.load()));
+  std::printf("  embree alone, robust intersector   %8.3f s %8.3f Mrays/s  (%llu missed)\n",
+              t_robust, n / t_robust / 1e6, static_cast<unsigned long long>(missed_robust));
+  std::printf("  embree alone, default intersector  %8.3f s %8.3f Mrays/s  (%llu missed)\n",
+              t_plain, n / t_plain / 1e6, static_cast<unsigned long long>(missed_plain));
   std::printf(
-      "tracer only  : %12.0f rays %8.3f s %8.3f Mrays/s (hearthray's Embree scene, "
-      "rays given)\n",
-      n_rays, tracer_seconds, n_rays / tracer_seconds / 1e6);
-  std::printf("hearthray    : %12.0f rays %8.3f s %8.3f Mrays/s (%llu escaped)\n", n_rays,
-              hearthray_seconds, hearthray_rate / 1e6, static_cast<unsigned long long>(escaped));
-  std::printf("ratio hearthray / embree alone: %.3f (goal >= 0.90; best of 3 alternating runs)\n",
-              hearthray_rate / embree_rate);
+      "  hearthray, edges checked (default) %8.3f s %8.3f Mrays/s  (%llu escaped, %llu retraced)\n",
+      t_checked, n / t_checked / 1e6, static_cast<unsigned long long>(escaped),
+      static_cast<unsigned long long>(retraced));
+  std::printf("  hearthray, edges robust            %8.3f s %8.3f Mrays/s\n", t_hr_robust,
+              n / t_hr_robust / 1e6);
+  std::printf("  ratio hearthray / embree alone, both leak-free (checked / robust):   %.3f\n",
+              t_robust / t_checked);
+  std::printf("  ratio hearthray / embree alone, same intersector (robust / robust):  %.3f\n",
+              t_robust / t_hr_robust);
+  std::printf("  ratio hearthray / embree alone, fastest each (checked / default):    %.3f\n",
+              t_plain / t_checked);
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  const std::uint64_t per_patch = argc > 1 ? std::strtoull(argv[1], nullptr, 10) : 400000;
+  const int threads = argc > 2 ? std::atoi(argv[2]) : tbb::info::default_concurrency();
+  std::printf(
+      "hearthray benchmark: rays per second, best of 3 alternating runs; goal: hearthray "
+      ">= 0.90 of Embree alone\n");
+  run_case("closed furnace with obstructions", furnace_obj(true), per_patch, threads);
+  run_case("open furnace (no roof)", furnace_obj(false), per_patch, threads);
   return 0;
 }

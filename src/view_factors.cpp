@@ -94,6 +94,7 @@ struct Scratch {
   std::vector<Ray> rays;
   std::vector<RayHit> hits;
   std::vector<float> offset;  // origin offset of each ray of the batch
+  std::uint64_t retraced = 0;
 };
 
 constexpr std::uint64_t kChunkRays = 16384;
@@ -213,6 +214,7 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
       tracer.trace(s.rays.data(), s.hits.data(), m);
       for (std::size_t i = 0; i < m; ++i) {
         RayHit& h = s.hits[i];
+        s.retraced += h.retraced;
         // A back-face hit within a few offsets of the origin is not radiation arriving
         // anywhere: the sampled point rounded onto (or just behind) the plane of a neighbour
         // meeting the emitter at an edge. Trace on from just past it.
@@ -315,6 +317,8 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
 
   if (stats) {
     stats->rays = rays_total;
+    stats->retraced = 0;
+    for (const Scratch& s : scratch) stats->retraced += s.retraced;
     stats->seconds = seconds;
     stats->rays_per_second = seconds > 0 ? double(rays_total) / seconds : 0;
     stats->threads = threads;

@@ -11,11 +11,23 @@
 
 namespace hearthray {
 
+// How rays are kept from slipping through the shared edges of a mesh. Embree's default
+// intersector lets ~1e-6 of rays through; its robust mode lets none through but costs about
+// 20 % (measured by scripts/bench). In an enclosure a ray that slipped through a wall would be
+// counted as radiation to the surroundings.
+enum class EdgeMode {
+  // Default intersector, and every ray that misses or lands on a back face is traced again in
+  // robust mode. A ray that slips through a one-sided wall ends in one of those two ways (it
+  // leaves the scene or meets the back of something), so it is always re-traced; in a closed
+  // enclosure that is ~1e-6 of rays, and the speed is the default intersector's. Not covered:
+  // a ray through an inner edge of a two-sided sheet landing on a front face behind it.
+  checked,
+  robust,  // robust intersector for every ray
+  fast     // default intersector only: ~1e-6 of rays may leak (for measurements)
+};
+
 struct TracerOptions {
-  // Embree's robust mode closes the ~1e-6 gaps its default intersector leaves on shared
-  // edges of a closed mesh, at 10-25 % of speed. On by default: in an enclosure a ray that
-  // slips through an edge would be counted as radiation to the surroundings.
-  bool robust = true;
+  EdgeMode edges = EdgeMode::checked;
   // Threads Embree may use to build its acceleration structure (0 = all).
   int build_threads = 0;
 };
@@ -35,6 +47,7 @@ struct RayHit {
   static constexpr std::uint32_t kMiss = 0xffffffffu;
   std::uint32_t triangle = kMiss;  // index into Scene::triangles, kMiss when nothing is hit
   std::uint32_t surface = kMiss;   // index into Scene::surfaces
+  bool retraced = false;           // traced again in robust mode (EdgeMode::checked)
   bool front = false;              // the ray arrived on the triangle's front side
   float t = 0;                     // hit distance
 };

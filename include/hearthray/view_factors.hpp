@@ -57,6 +57,7 @@ struct Tallies {
 
 struct TraceStats {
   std::uint64_t rays = 0;
+  std::uint64_t retraced = 0;  // rays traced again in robust mode (EdgeMode::checked)
   double seconds = 0;
   double rays_per_second = 0;
   int threads = 0;

@@ -1,0 +1,100 @@
+// Thermal model: a scene's exchange problem. One node per surface (its temperature and
+// condition), one face per view-factor patch (a two-sided surface is a thin sheet: its front
+// and back faces sit on one node), emissivity and condition from the scene file
+// (resolve_thermal), the surroundings temperature from [surroundings]. After the solve, the
+// per-surface summary and the energy balance that every report shows.
+//
+// Leaks. Rays that escape a closed mesh went through a crack between triangles, not through an
+// opening. When they are fewer than ThermalModelOptions::leak_limit of all rays, their share
+// of each face's radiation is given back to the face itself (added to its self-view F_ii):
+// the exchange areas stay symmetric and every row still sums to one, so the enclosure still
+// balances to round-off, and the result moves by at most that share (~1e-6). The alternative,
+// a surroundings at some temperature, would make a closed furnace lose heat through a crack
+// that is not there, and refuse to solve when no [surroundings] is given. More escaped rays in
+// a closed mesh are no crack: the model keeps them as radiation to the surroundings and, when
+// no surroundings temperature is given, refuses with advice on the mesh.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "hearthray/exchange.hpp"
+#include "hearthray/patches.hpp"
+#include "hearthray/scene.hpp"
+#include "hearthray/scene_file.hpp"
+#include "hearthray/view_factors.hpp"
+
+namespace hearthray {
+
+struct ThermalModelOptions {
+  // Largest share of all rays, escaped or lost on back faces in a closed mesh, that is taken
+  // for leaks through shared edges and folded back (see above). 0 turns folding off.
+  double leak_limit = 1e-6;
+
+  bool IsValid(std::string* error) const;
+};
+
+struct ThermalModel {
+  ViewFactors factors;               // as the exchange uses them (leaks folded back)
+  std::vector<ExchangeNode> nodes;   // one per surface, in scene order
+  std::vector<ExchangeFace> faces;   // one per patch, in patch order
+  std::vector<Side> face_side;       // per face: front or back of its surface
+  std::vector<bool> two_sided;       // per surface
+  std::vector<double> emissivity;    // per surface
+  std::optional<double> surroundings_K;
+  bool mesh_closed = false;          // closed, or a closed enclosure holding two-sided sheets
+  double lost_fraction = 0;          // of all rays: escaped or absorbed on back faces
+  bool leaks_folded = false;         // lost rays were folded back as leaks
+  std::vector<std::string> notes;    // plain sentences about choices made, for the user
+
+  // The problem for solve_exchange. It points into `factors`: keep the model alive (and in
+  // place) while the problem is used.
+  ExchangeProblem problem() const;
+};
+
+// Checks the thermal part of a scene file against its scene, before any ray is traced: throws
+// InputError when the file has no thermal input at all (a bare mesh) or a surface lacks an
+// emissivity or a condition (resolve_thermal). Returns the resolved surfaces.
+std::vector<SurfaceThermal> check_thermal_input(const SceneFile& file, const Scene& scene);
+
+// Throws InputError for what check_thermal_input refuses, or when radiation leaves the scene (escapes, or lands on back
+// faces of one-sided surfaces) and no [surroundings] temperature is given: the message names
+// the surfaces and how much of their radiation leaves.
+ThermalModel build_thermal_model(const SceneFile& file, const Scene& scene,
+                                 const PatchSet& patches, const ViewFactors& factors,
+                                 const ThermalModelOptions& options = {});
+
+// One surface after the solve: powers are summed over its faces; W/m^2 values are averaged
+// over its faces, weighted by area (for a one-sided surface: its face's values).
+struct SurfaceHeat {
+  std::string name;
+  bool two_sided = false;
+  double area_m2 = 0;             // all faces
+  double emissivity = 0;
+  double temperature_K = 0;
+  double radiosity_W_m2 = 0;
+  double irradiation_W_m2 = 0;
+  double net_flux_W_m2 = 0;       // net_W / area_m2
+  double net_W = 0;               // net heat leaving by radiation (positive out)
+  double convection_W = 0;        // to the fluid (positive out)
+  double wall_loss_W = 0;         // through the wall (positive out)
+  double heat_input_W = 0;        // = net_W + convection_W + wall_loss_W
+  std::vector<std::size_t> faces; // indices into ExchangeResult::faces
+};
+
+std::vector<SurfaceHeat> surface_heat(const ThermalModel& model, const ExchangeResult& result);
+
+// Where the heat put in goes: heat_input = convection + wall_loss + to_surroundings + residual.
+struct HeatBalance {
+  double heat_input_W = 0;       // sum over surfaces (negative where heat is taken out)
+  double convection_W = 0;
+  double wall_loss_W = 0;
+  double to_surroundings_W = 0;  // net radiation received by the surroundings
+  double residual_W = 0;
+  double largest_W = 0;          // largest single flow of any surface, for relative measures
+};
+
+HeatBalance heat_balance(const ExchangeResult& result);
+
+}  // namespace hearthray
