@@ -25,6 +25,8 @@ bool ViewFactorOptions::IsValid(std::string* error) const {
   if (threads < 0) return fail("threads must be 0 (all cores) or a positive count");
   if (emitter_end != 0 && emitter_end < emitter_begin)
     return fail("emitter_end must not be below emitter_begin");
+  for (std::uint64_t n : rays_for_patch)
+    if (n == 0) return fail("every patch needs at least 1 ray");
   return true;
 }
 
@@ -107,6 +109,10 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
   std::string why;
   if (!options.IsValid(&why)) throw InputError("view factors: " + why);
   const auto n_patches = static_cast<std::uint32_t>(patches.size());
+  if (!options.rays_for_patch.empty() && options.rays_for_patch.size() != n_patches)
+    throw InputError("view factors: rays_for_patch has " +
+                     std::to_string(options.rays_for_patch.size()) + " entries for " +
+                     std::to_string(n_patches) + " patches");
   const std::uint32_t begin = options.emitter_begin;
   const std::uint32_t end = options.emitter_end == 0 ? n_patches : options.emitter_end;
   if (end > n_patches || begin > end)
@@ -128,11 +134,13 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
     }
   }
 
-  const std::uint64_t N = options.rays_per_patch;
+  auto rays_of = [&](std::uint32_t p) {
+    return options.rays_for_patch.empty() ? options.rays_per_patch : options.rays_for_patch[p];
+  };
   std::vector<Chunk> chunks;
   for (std::uint32_t p = begin; p < end; ++p)
-    for (std::uint64_t k = 0; k < N; k += kChunkRays)
-      chunks.push_back({p, k, std::min(N, k + kChunkRays)});
+    for (std::uint64_t k = 0, N = rays_of(p); k < N; k += kChunkRays)
+      chunks.push_back({p, k, std::min<std::uint64_t>(N, k + kChunkRays)});
   std::vector<ChunkResult> results(chunks.size());
 
   // The patch a hit lands in. Where a surface side is one patch (the usual case) the
@@ -165,7 +173,8 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
   });
 
   const auto start = std::chrono::steady_clock::now();
-  const std::uint64_t rays_total = N * (end - begin);
+  std::uint64_t rays_total = 0;
+  for (std::uint32_t p = begin; p < end; ++p) rays_total += rays_of(p);
   std::atomic<std::uint64_t> rays_done{0};
   std::mutex progress_mutex;
   double last_report = 0;
@@ -179,6 +188,7 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
     const std::uint32_t t_end = patches.triangle_offset[p + 1];
     const double area = cumulative[t_end - 1];
     const std::uint64_t key = patch_stream_key(options.seed, p);
+    const std::uint64_t N = rays_of(p);
     const double step = area / double(N);  // area per stratum
     // First triangle of this chunk's stratum; later rays advance monotonically.
     std::uint32_t j = static_cast<std::uint32_t>(
@@ -310,7 +320,7 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
     }
     touched.clear();
     tallies.hit_offset.push_back(tallies.hit_patch.size());
-    tallies.rays.push_back(N);
+    tallies.rays.push_back(rays_of(p));
     tallies.escaped.push_back(escaped);
     tallies.back_face.push_back(back);
   }

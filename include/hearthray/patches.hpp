@@ -1,7 +1,8 @@
 // Patches: the units that emit and receive rays and appear as rows and columns of the
-// view-factor matrix. Today every surface side is one patch (a two-sided surface gives a front
-// and a back patch); finer patches split a surface into pieces later. A patch is a set of
-// triangles seen from one side.
+// view-factor matrix. A patch is a set of triangles of one surface seen from one side. By
+// default every surface side is one patch (a two-sided surface gives a front and a back
+// patch); finer patches come from splitting large triangles (`subdivide`) and grouping
+// triangles on a grid of the patch size (`make_patches`), or one patch per triangle.
 #pragma once
 
 #include <cstdint>
@@ -15,10 +16,11 @@ namespace hearthray {
 enum class Side : std::uint8_t { front, back };
 
 struct Patch {
-  std::string name;         // surface name; "name (front)" / "name (back)" when two-sided
+  std::string name;  // surface name; "name (front)" / "name (back)" when two-sided;
+                     // "name#k" (k = 1, 2, ...) for the k-th patch of a split surface
   std::uint32_t surface = 0;
   Side side = Side::front;
-  double area = 0;          // m^2
+  double area = 0;  // m^2
 };
 
 struct PatchSet {
@@ -37,5 +39,28 @@ struct PatchSet {
 
 // One patch per surface side, in surface order (front before back).
 PatchSet make_surface_patches(const Scene& scene);
+
+// How a surface is cut into patches: whole, one per mesh triangle, or pieces of about `size`
+// metres (triangles longer than `size` are split first, see `subdivide`).
+struct PatchSpec {
+  enum class Mode { whole, per_triangle, size } mode = Mode::whole;
+  double size = 0;  // m, for Mode::size
+};
+
+// Splits, by longest-edge bisection, every triangle whose longest edge exceeds the size of its
+// surface's spec until none does. A split edge is split in every triangle that shares it
+// (vertices welded by position), so the mesh stays conforming: no T-junctions, no cracks.
+// `specs` has one entry per surface. Surfaces, names and areas are unchanged.
+Scene subdivide(const Scene& scene, const std::vector<PatchSpec>& specs);
+
+// Patches by spec, per surface side, in surface order (front before back). Mode::size groups
+// the surface's triangles by the cell of a grid of that size their centroid falls in (a
+// finely meshed surface is not left with one patch per tiny triangle); run `subdivide` first
+// so that no triangle is larger than its patch should be.
+PatchSet make_patches(const Scene& scene, const std::vector<PatchSpec>& specs);
+
+// Rays per patch from a total budget spread in proportion to area, with a floor per patch.
+std::vector<std::uint64_t> rays_by_area(const PatchSet& patches, std::uint64_t total,
+                                        std::uint64_t floor);
 
 }  // namespace hearthray
