@@ -19,11 +19,11 @@ namespace fs = std::filesystem;
 
 const std::vector<std::string> kTopKeys = {"mesh", "rays", "surroundings", "defaults", "surface"};
 const std::vector<std::string> kMeshKeys = {"file", "unit", "surfaces_from"};
-const std::vector<std::string> kRaysKeys = {"per_patch", "seed"};
+const std::vector<std::string> kRaysKeys = {"per_patch", "total", "min_per_patch", "seed"};
 const std::vector<std::string> kSurroundingsKeys = {"temperature"};
 const std::vector<std::string> kSurfaceKeys = {"two_sided",  "emissivity", "temperature",
                                                "heat_flux",  "power",      "adiabatic",
-                                               "convection", "wall"};
+                                               "convection", "wall",       "patches"};
 const std::vector<std::string> kConvectionKeys = {"h", "fluid"};
 const std::vector<std::string> kWallKeys = {"U", "outside", "thickness", "conductivity"};
 
@@ -197,6 +197,26 @@ class Reader {
     return w;
   }
 
+  // patches = "whole" | "triangles" | a length such as "0.25 m".
+  PatchSpec patch_spec(const toml::node& node, const std::string& table_name) const {
+    const char* forms =
+        "patches = \"0.25 m\" (pieces of about that size), \"triangles\" (one "
+        "per mesh triangle) or \"whole\"";
+    if (!node.is_string())
+      fail(node.source(), std::string("patches in ") + table_name + " must be a string: " + forms);
+    const std::string text = node.as_string()->get();
+    if (text == "whole") return {};
+    if (text == "triangles") return {PatchSpec::Mode::per_triangle, 0};
+    double size = 0;
+    try {
+      size = parse_length(text, "patches");
+    } catch (const InputError&) {
+      fail(node.source(), "patches in " + table_name + " is '" + text + "'; write " + forms);
+    }
+    if (!(size > 0)) fail(node.source(), "patches in " + table_name + " must be a positive length");
+    return {PatchSpec::Mode::size, size};
+  }
+
   SurfaceSpec surface(const toml::table& t, const std::string& table_name,
                       bool allow_two_sided) const {
     SurfaceSpec spec;
@@ -258,6 +278,8 @@ class Reader {
         spec.convection = convection(*node, table_name);
       } else if (key == "wall") {
         spec.wall_loss = wall(*node, table_name);
+      } else if (key == "patches") {
+        spec.patches = patch_spec(*node, table_name);
       }
     }
     return spec;
@@ -329,6 +351,20 @@ class Reader {
         file.rays_per_patch = whole_number(*n, "per_patch", true, "200_000");
       }
       if (const toml::node* n = rays.get("seed")) file.seed = whole_number(*n, "seed", false, "1");
+      if (const toml::node* n = rays.get("total")) {
+        if (file.rays_per_patch)
+          fail(n->source(),
+               "[rays] gives both per_patch and total: give one (total spreads a "
+               "ray budget over the patches by area)");
+        file.rays_total = whole_number(*n, "total", true, "50_000_000");
+      }
+      if (const toml::node* n = rays.get("min_per_patch")) {
+        if (!file.rays_total)
+          fail(n->source(),
+               "min_per_patch in [rays] goes with total = ...; with per_patch every "
+               "patch gets the same rays anyway");
+        file.rays_min_per_patch = whole_number(*n, "min_per_patch", true, "1000");
+      }
     }
 
     if (const toml::node* sur_node = root.get("surroundings")) {
@@ -431,6 +467,19 @@ Scene load_scene(const SceneFile& file) {
     scene.surfaces[static_cast<std::size_t>(index)].two_sided = spec.two_sided;
   }
   return scene;
+}
+
+std::vector<PatchSpec> patch_specs(const SceneFile& file, const Scene& scene) {
+  std::vector<PatchSpec> specs;
+  specs.reserve(scene.surfaces.size());
+  for (const Surface& surface : scene.surfaces) {
+    const SurfaceSpec* spec = file.find(surface.name);
+    if (spec && spec->patches)
+      specs.push_back(*spec->patches);
+    else
+      specs.push_back(file.defaults.patches.value_or(PatchSpec{}));
+  }
+  return specs;
 }
 
 std::vector<SurfaceThermal> resolve_thermal(const SceneFile& file, const Scene& scene) {

@@ -301,3 +301,49 @@ TEST_CASE("thermal settings resolve per surface or say what is missing", "[scene
   CHECK(ok[0].emissivity == 0.8);
   CHECK(ok[0].condition.kind == ConditionKind::adiabatic);
 }
+
+TEST_CASE("patch sizes and ray budgets are read per surface and by default", "[scene_file]") {
+  SceneDir dir;
+  const SceneFile file = read_scene_file(dir.scene(R"([rays]
+total = 2_000_000
+min_per_patch = 500
+[defaults]
+patches = "250 mm"
+[surface.wall]
+patches = "triangles"
+[surface.door]
+patches = "whole"
+)"));
+  REQUIRE(file.rays_total);
+  CHECK(*file.rays_total == 2000000);
+  CHECK(*file.rays_min_per_patch == 500);
+  const Scene scene = load_scene(file);
+  const std::vector<PatchSpec> specs = patch_specs(file, scene);
+  auto spec_of = [&](const std::string& name) {
+    return specs[static_cast<std::size_t>(scene.find_surface(name))];
+  };
+  CHECK(spec_of("hearth").mode == PatchSpec::Mode::size);
+  CHECK(spec_of("hearth").size == Approx(0.25));
+  CHECK(spec_of("wall").mode == PatchSpec::Mode::per_triangle);
+  CHECK(spec_of("door").mode == PatchSpec::Mode::whole);
+}
+
+TEST_CASE("bad patch and budget settings are errors saying what to write", "[scene_file]") {
+  SceneDir dir;
+  struct Case {
+    std::string body, expect;
+  };
+  const std::vector<Case> cases = {
+      {"[surface.wall]\npatches = \"small\"\n", "\"triangles\""},
+      {"[surface.wall]\npatches = 0.25\n", "must be a string"},
+      {"[surface.wall]\npatches = \"-1 m\"\n", "0.25 m"},
+      {"[surface.wall]\npatches = \"3 kW\"\n", "0.25 m"},
+      {"[rays]\nper_patch = 1000\ntotal = 5000\n", "both per_patch and total"},
+      {"[rays]\nmin_per_patch = 10\n", "goes with total"},
+      {"[rays]\ntotal = 0\n", "positive"},
+  };
+  for (const Case& c : cases) {
+    INFO(c.body);
+    CHECK_THROWS_WITH(read_scene_file(dir.scene(c.body)), Catch::Contains(c.expect));
+  }
+}

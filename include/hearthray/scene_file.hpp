@@ -3,7 +3,7 @@
 // "1.5 kW", "350 W/m2"); unknown or misspelled keys are errors naming the key and the line.
 //
 //   [mesh]      file, unit (mm|cm|m|in|ft), surfaces_from (groups|materials)
-//   [rays]      per_patch, seed
+//   [rays]      per_patch, or total (a budget spread by area) with min_per_patch; seed
 //   [surroundings] temperature
 //   [defaults]  any surface key except two_sided, used where a surface gives none
 //   [surface.NAME] two_sided, emissivity, and at most one of
@@ -11,6 +11,7 @@
 //               convection = { h = "8 W/m2K", fluid = "20 C" }
 //               wall = { U = "0.9 W/m2K", outside = "20 C" }
 //                   or { thickness = "230 mm", conductivity = "0.3 W/mK", outside = "20 C" }
+//               patches = "0.25 m" (pieces of about that size) | "triangles" | "whole"
 #pragma once
 
 #include <cstdint>
@@ -20,6 +21,7 @@
 #include <vector>
 
 #include "hearthray/exchange.hpp"
+#include "hearthray/patches.hpp"
 #include "hearthray/scene.hpp"
 
 namespace hearthray {
@@ -31,6 +33,7 @@ struct SurfaceSpec {
   double value = 0;
   std::optional<Convection> convection;
   std::optional<WallLoss> wall_loss;
+  std::optional<PatchSpec> patches;  // how the surface is cut into patches (default: whole)
   int line = 0;  // line of the table in the scene file (0 when not from a file)
 };
 
@@ -40,6 +43,8 @@ struct SceneFile {
   MeshOptions mesh;
   std::optional<std::uint64_t> rays_per_patch;
   std::optional<std::uint64_t> seed;
+  std::optional<std::uint64_t> rays_total;          // budget spread over patches by area
+  std::optional<std::uint64_t> rays_min_per_patch;  // floor per patch with rays_total
   std::optional<double> surroundings_K;
   SurfaceSpec defaults;
   std::vector<std::pair<std::string, SurfaceSpec>> surfaces;  // in file order
@@ -58,6 +63,9 @@ SceneFile open_scene(const std::string& path);
 // Loads the mesh and applies per-surface settings (two_sided). A surface named in the scene
 // but absent from the mesh is an error listing the names that exist.
 Scene load_scene(const SceneFile& file);
+
+// Patch spec of every surface of the scene (surface spec over defaults; whole by default).
+std::vector<PatchSpec> patch_specs(const SceneFile& file, const Scene& scene);
 
 // Resolved thermal description of every surface (surface spec over defaults). Throws
 // InputError naming the surface when it has no emissivity or no condition.
