@@ -8,7 +8,7 @@ import math
 
 class Obj:
     def __init__(self, header):
-        self.lines = ["# " + line for line in header.strip().splitlines()]
+        self.lines = [("# " + line).rstrip() for line in header.strip().splitlines()]
         self.nv = 0
 
     def group(self, name):
@@ -59,6 +59,67 @@ class Obj:
             self.face([(x, y, cz + height) for x, y in ring])
             self.face([(x, y, cz) for x, y in reversed(ring)])
 
+    def groups(self, quads_by_group):
+        """Writes {group: [quad, ...]} as OBJ groups, in the dict's order."""
+        for name, quads in quads_by_group.items():
+            if not quads:
+                continue
+            self.group(name)
+            for quad in quads:
+                self.face(quad)
+
     def write(self, path):
         with open(path, "w") as f:
             f.write("\n".join(self.lines) + "\n")
+
+
+def refine(breaks, max_step):
+    """Sorted break list with extra breaks so that no interval is longer than max_step."""
+    out = [breaks[0]]
+    for a, b in zip(breaks, breaks[1:]):
+        n = max(1, math.ceil((b - a) / max_step - 1e-9))
+        out.extend(a + (b - a) * k / n for k in range(1, n))
+        out.append(b)
+    return out
+
+
+# For each side of a box: the fixed axis, whether it sits at the low or high end, and the two
+# axes (a, b) along which a cell (a0,b0) (a1,b0) (a1,b1) (a0,b1) runs counter-clockwise seen
+# from outside the box (a x b points out).
+_SIDES = {
+    "bottom": (2, 0, 1, 0),  # z = min, y x x = -z
+    "top": (2, 1, 0, 1),     # z = max, x x y = +z
+    "south": (1, 0, 0, 2),   # y = min, x x z = -y
+    "north": (1, 1, 2, 0),   # y = max, z x x = +y
+    "west": (0, 0, 2, 1),    # x = min, z x y = -x
+    "east": (0, 1, 1, 2),    # x = max, y x z = +x
+}
+
+
+def gridded_box(xs, ys, zs, assign, inward=True):
+    """Quads covering the six sides of the box [xs[0], xs[-1]] x [ys[0], ys[-1]] x [zs[0],
+    zs[-1]], each side split along every break of the sorted lists xs, ys, zs. Sides meeting at
+    an edge then share their vertices (a watertight mesh without T-junctions), and a window or
+    a panel is a set of cells whose edges lie on breaks.
+
+    assign(side, centre) names the group of the cell with this centre (x, y, z) on this side
+    ("bottom", "top", "south" (y min), "north", "west" (x min), "east"), or None to leave the
+    cell out. Returns {group: [quad, ...]} in order of first use; fronts face into the box
+    when inward, out of it otherwise."""
+    axes = (xs, ys, zs)
+    out = {}
+    for side, (fixed, high, a, b) in _SIDES.items():
+        level = axes[fixed][-1 if high else 0]
+        for b0, b1 in zip(axes[b], axes[b][1:]):
+            for a0, a1 in zip(axes[a], axes[a][1:]):
+                def point(u, v):
+                    p = [0.0, 0.0, 0.0]
+                    p[fixed], p[a], p[b] = level, u, v
+                    return tuple(p)
+                quad = [point(a0, b0), point(a1, b0), point(a1, b1), point(a0, b1)]
+                centre = point((a0 + a1) / 2, (b0 + b1) / 2)
+                name = assign(side, centre)
+                if name is None:
+                    continue
+                out.setdefault(name, []).append(list(reversed(quad)) if inward else quad)
+    return out

@@ -8,16 +8,18 @@
 // the nodes' E, so M is factored once and the node balances become
 //   Q_rad = c + K E_U            (K: nodes x unknown nodes, exact),
 // after which Newton's method on the unknown node temperatures only needs small dense solves.
+// That is the path for small problems (ExchangeOptions::dense_face_limit); larger ones go to
+// the sparse Newton-Krylov path of exchange_large.cpp.
 #include "hearthray/exchange.hpp"
 
 #include <Eigen/Dense>
-#include <Eigen/IterativeLinearSolvers>
 #include <Eigen/SparseCore>
 #include <algorithm>
 #include <cmath>
 #include <numeric>
 #include <vector>
 
+#include "exchange_krylov.hpp"
 #include "exchange_setup.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/units.hpp"
@@ -32,50 +34,27 @@ namespace {
 constexpr double kSigma = kStefanBoltzmann;
 // Reciprocal condition number below which a matrix is treated as singular.
 constexpr double kSingularRcond = 1e-14;
-// Relative residual of the iterative radiosity solve (BiCGSTAB) on large problems.
-constexpr double kIterativeTolerance = 1e-14;
 
 double sigma_t4(double kelvin) {
   return kSigma * std::pow(kelvin, 4);
 }
 
-// Solves M X = B for all columns of B. Returns false (with a message) on failure.
-bool solve_radiosity(const Setup& s, const ExchangeOptions& options, const Eigen::MatrixXd& B,
-                     Eigen::MatrixXd* X, ExchangeStatus* status, std::string* message) {
+// Solves M X = B for all columns of B by a dense LU factorisation. Returns false (with a
+// message) on failure.
+bool solve_radiosity(const Setup& s, const Eigen::MatrixXd& B, Eigen::MatrixXd* X,
+                     ExchangeStatus* status, std::string* message) {
   const Eigen::VectorXd reflect = Eigen::VectorXd::Ones(s.faces) - s.eps;
-  if (s.faces <= static_cast<std::size_t>(options.dense_face_limit)) {
-    Eigen::MatrixXd M = -(reflect.asDiagonal() * Eigen::MatrixXd(*s.F));
-    M.diagonal().array() += 1.0;
-    Eigen::PartialPivLU<Eigen::MatrixXd> lu(M);
-    if (!(lu.rcond() > kSingularRcond)) {
-      *status = ExchangeStatus::singular;
-      *message = "the radiosity matrix I - (1 - eps) F is singular (reciprocal condition " +
-                 format_number(lu.rcond()) +
-                 "); check the view factors (rows must sum to 1 or less, none negative)";
-      return false;
-    }
-    *X = lu.solve(B);
-  } else {
-    // M is strictly diagonally dominant by rows when F >= 0, rows sum to <= 1 and eps > 0,
-    // so a Krylov solver with a diagonal preconditioner converges quickly; a sparse LU would
-    // fill in badly, since in an enclosure most patches see most others.
-    SparseMatrix M = -(reflect.asDiagonal() * (*s.F));
-    SparseMatrix identity(s.faces, s.faces);
-    identity.setIdentity();
-    M += identity;
-    Eigen::BiCGSTAB<SparseMatrix, Eigen::DiagonalPreconditioner<double>> solver;
-    solver.setTolerance(kIterativeTolerance);
-    solver.setMaxIterations(static_cast<int>(std::min<std::size_t>(10000, 10 * s.faces)));
-    solver.compute(M);
-    *X = solver.solve(B);
-    if (solver.info() != Eigen::Success) {
-      *status = ExchangeStatus::not_converged;
-      *message = "the iterative radiosity solve (BiCGSTAB) did not converge: relative residual " +
-                 format_number(solver.error()) + " after " + std::to_string(solver.iterations()) +
-                 " iterations";
-      return false;
-    }
+  Eigen::MatrixXd M = -(reflect.asDiagonal() * Eigen::MatrixXd(*s.F));
+  M.diagonal().array() += 1.0;
+  Eigen::PartialPivLU<Eigen::MatrixXd> lu(M);
+  if (!(lu.rcond() > kSingularRcond)) {
+    *status = ExchangeStatus::singular;
+    *message = "the radiosity matrix I - (1 - eps) F is singular (reciprocal condition " +
+               format_number(lu.rcond()) +
+               "); check the view factors (rows must sum to 1 or less, none negative)";
+    return false;
   }
+  *X = lu.solve(B);
   if (!X->allFinite()) {
     *status = ExchangeStatus::singular;
     *message = "the radiosity solve gave non-finite values; check the view factors";
@@ -93,8 +72,7 @@ struct Reduced {
   Eigen::MatrixXd K;         // nodes x unknowns: d Q_rad / d E_U
 };
 
-bool reduce(const Setup& s, const ExchangeOptions& options, Reduced* r, ExchangeStatus* status,
-            std::string* message) {
+bool reduce(const Setup& s, Reduced* r, ExchangeStatus* status, std::string* message) {
   r->column.assign(s.nodes, -1);
   for (std::size_t k = 0; k < s.nodes; ++k) {
     if (!s.fixed[k]) {
@@ -113,7 +91,7 @@ bool reduce(const Setup& s, const ExchangeOptions& options, Reduced* r, Exchange
     }
     B(i, 0) += (1 - s.eps[i]) * s.to_surroundings[i] * s.surroundings_Eb;
   }
-  if (!solve_radiosity(s, options, B, &r->X, status, message)) return false;
+  if (!solve_radiosity(s, B, &r->X, status, message)) return false;
   // q = eps (E - F J - F_s E_s), split into its constant part and its part in E_U.
   const Eigen::MatrixXd FX = (*s.F) * r->X;
   r->c = Eigen::VectorXd::Zero(s.nodes);
@@ -142,20 +120,7 @@ double conduction_out(const Setup& s, std::size_t k, double T) {
 bool starting_temperatures(const Setup& s, const Reduced& r, Eigen::VectorXd* T,
                            std::string* message) {
   const Eigen::Index u = static_cast<Eigen::Index>(r.unknown.size());
-  std::vector<double> levels;
-  for (std::size_t k = 0; k < s.nodes; ++k) {
-    if (s.fixed[k]) levels.push_back(s.fixed_K[k]);
-    if (s.hA[k] > 0) levels.push_back(s.fluid_K[k]);
-    if (s.UA[k] > 0) levels.push_back(s.outside_K[k]);
-  }
-  if (s.surroundings_Eb > 0 && s.to_surroundings.maxCoeff() > 0) {
-    levels.push_back(std::pow(s.surroundings_Eb / kSigma, 0.25));
-  }
-  double reference = 300.0;  // only if nothing is known (the input checks prevent that)
-  if (!levels.empty()) {
-    reference = std::accumulate(levels.begin(), levels.end(), 0.0) / double(levels.size());
-  }
-  *T = Eigen::VectorXd::Constant(u, reference);
+  *T = Eigen::VectorXd::Constant(u, exchange_detail::reference_temperature(s));
   bool any_conduction = false;
   for (int k : r.unknown) any_conduction = any_conduction || s.hA[k] > 0 || s.UA[k] > 0;
 
@@ -293,41 +258,12 @@ void newton(const Setup& s, const Reduced& r, const ExchangeOptions& options, Ei
   }
 }
 
-// Face and node results from the final temperatures: radiosity from the factored system,
-// fluxes from q = eps (E - G).
-void fill_results(const Setup& s, const Reduced& r, const Eigen::VectorXd& T,
-                  ExchangeResult* result) {
-  const Eigen::VectorXd all = node_temperatures(s, r, T);
+// Radiosities of the dense path at the final temperatures, from the factored system.
+Eigen::VectorXd dense_radiosity(const Reduced& r, const Eigen::VectorXd& T) {
   const Eigen::Index u = T.size();
   Eigen::VectorXd E_U(u);
   for (Eigen::Index j = 0; j < u; ++j) E_U[j] = sigma_t4(T[j]);
-  const Eigen::VectorXd J = r.X.col(0) + r.X.rightCols(u) * E_U;
-  const Eigen::VectorXd G = (*s.F) * J + s.to_surroundings * s.surroundings_Eb;
-  result->faces.assign(s.faces, FaceResult{});
-  result->surroundings_W = 0;
-  double net_sum = 0;
-  for (std::size_t i = 0; i < s.faces; ++i) {
-    const std::uint32_t k = s.node_of_face[i];
-    FaceResult& f = result->faces[i];
-    f.radiosity = J[i];
-    f.irradiation = G[i];
-    f.net_flux = s.eps[i] * (sigma_t4(all[k]) - G[i]);
-    f.net_power = s.area[i] * f.net_flux;
-    net_sum += f.net_power;
-    result->surroundings_W += s.area[i] * s.to_surroundings[i] * (J[i] - s.surroundings_Eb);
-    result->nodes[k].net_radiation_W += f.net_power;
-  }
-  result->balance_W = net_sum - result->surroundings_W;
-  result->final_residual_W = 0;
-  for (std::size_t k = 0; k < s.nodes; ++k) {
-    NodeResult& n = result->nodes[k];
-    n.temperature_K = all[k];
-    n.convection_W = s.hA[k] * (all[k] - s.fluid_K[k]);
-    n.wall_loss_W = s.UA[k] * (all[k] - s.outside_K[k]);
-    n.heat_input_W = n.net_radiation_W + n.convection_W + n.wall_loss_W;
-    n.residual_W = s.fixed[k] ? 0.0 : n.heat_input_W - s.input_W[k];
-    result->final_residual_W = std::max(result->final_residual_W, std::abs(n.residual_W));
-  }
+  return r.X.col(0) + r.X.rightCols(u) * E_U;
 }
 
 }  // namespace
@@ -344,8 +280,15 @@ ExchangeResult solve_exchange(const ExchangeProblem& problem, const ExchangeOpti
     result.nodes[k].area = s.node_area[k];
     if (s.fixed[k]) result.nodes[k].temperature_K = s.fixed_K[k];
   }
+  if (s.faces > static_cast<std::size_t>(options.dense_face_limit)) {
+    result.iterative = true;
+    Eigen::VectorXd J, node_K;
+    exchange_detail::solve_large(s, options, &result, &J, &node_K);
+    exchange_detail::fill_results(s, J, node_K, &result);  // the last iterate
+    return result;
+  }
   Reduced r;
-  if (!reduce(s, options, &r, &result.status, &result.message)) return result;
+  if (!reduce(s, &r, &result.status, &result.message)) return result;
   Eigen::VectorXd T;
   std::string infeasible;
   if (!starting_temperatures(s, r, &T, &infeasible)) {
@@ -354,9 +297,65 @@ ExchangeResult solve_exchange(const ExchangeProblem& problem, const ExchangeOpti
   } else {
     newton(s, r, options, &T, &result);
   }
-  fill_results(s, r, T, &result);  // the last iterate, also when not converged
+  // The last iterate, also when not converged.
+  exchange_detail::fill_results(s, dense_radiosity(r, T), node_temperatures(s, r, T), &result);
   return result;
 }
+
+namespace exchange_detail {
+
+double reference_temperature(const Setup& s) {
+  std::vector<double> levels;
+  for (std::size_t k = 0; k < s.nodes; ++k) {
+    if (s.fixed[k]) levels.push_back(s.fixed_K[k]);
+    if (s.hA[k] > 0) levels.push_back(s.fluid_K[k]);
+    if (s.UA[k] > 0) levels.push_back(s.outside_K[k]);
+  }
+  if (s.surroundings_Eb > 0 && s.to_surroundings.maxCoeff() > 0) {
+    levels.push_back(std::pow(s.surroundings_Eb / kSigma, 0.25));
+  }
+  if (levels.empty()) return 300.0;  // only if nothing is known (the input checks prevent that)
+  return std::accumulate(levels.begin(), levels.end(), 0.0) / double(levels.size());
+}
+
+void fill_results(const Setup& s, const Eigen::VectorXd& J, const Eigen::VectorXd& node_K,
+                  ExchangeResult* result) {
+  Eigen::VectorXd G;
+  multiply(*s.F, J, &G);
+  G += s.to_surroundings * s.surroundings_Eb;
+  result->faces.assign(s.faces, FaceResult{});
+  for (NodeResult& n : result->nodes) n.net_radiation_W = 0;
+  result->surroundings_W = 0;
+  result->radiosity_residual = 0;
+  double net_sum = 0;
+  for (std::size_t i = 0; i < s.faces; ++i) {
+    const std::uint32_t k = s.node_of_face[i];
+    const double E = sigma_t4(node_K[k]);
+    FaceResult& f = result->faces[i];
+    f.radiosity = J[i];
+    f.irradiation = G[i];
+    f.net_flux = s.eps[i] * (E - G[i]);
+    f.net_power = s.area[i] * f.net_flux;
+    net_sum += f.net_power;
+    result->surroundings_W += s.area[i] * s.to_surroundings[i] * (J[i] - s.surroundings_Eb);
+    result->nodes[k].net_radiation_W += f.net_power;
+    const double residual = J[i] - s.eps[i] * E - (1 - s.eps[i]) * G[i];
+    result->radiosity_residual = std::max(result->radiosity_residual, std::abs(residual));
+  }
+  result->balance_W = net_sum - result->surroundings_W;
+  result->final_residual_W = 0;
+  for (std::size_t k = 0; k < s.nodes; ++k) {
+    NodeResult& n = result->nodes[k];
+    n.temperature_K = node_K[k];
+    n.convection_W = s.hA[k] * (node_K[k] - s.fluid_K[k]);
+    n.wall_loss_W = s.UA[k] * (node_K[k] - s.outside_K[k]);
+    n.heat_input_W = n.net_radiation_W + n.convection_W + n.wall_loss_W;
+    n.residual_W = s.fixed[k] ? 0.0 : n.heat_input_W - s.input_W[k];
+    result->final_residual_W = std::max(result->final_residual_W, std::abs(n.residual_W));
+  }
+}
+
+}  // namespace exchange_detail
 
 bool ExchangeOptions::IsValid(std::string* error) const {
   std::string problem;
@@ -366,6 +365,14 @@ bool ExchangeOptions::IsValid(std::string* error) const {
     problem = "max_iterations is " + std::to_string(max_iterations) + "; it must be at least 1";
   } else if (dense_face_limit < 0) {
     problem = "dense_face_limit is " + std::to_string(dense_face_limit) + "; it must be >= 0";
+  } else if (!(std::isfinite(linear_tolerance) && linear_tolerance > 0 && linear_tolerance < 1)) {
+    problem = "linear_tolerance is " + format_number(linear_tolerance) +
+              "; it must be above 0 and below 1";
+  } else if (max_linear_iterations < 1) {
+    problem = "max_linear_iterations is " + std::to_string(max_linear_iterations) +
+              "; it must be at least 1";
+  } else if (gmres_restart < 1) {
+    problem = "gmres_restart is " + std::to_string(gmres_restart) + "; it must be at least 1";
   }
   if (error != nullptr) *error = problem;
   return problem.empty();
@@ -388,6 +395,11 @@ std::string ExchangeResult::BriefReport() const {
           format_number(final_residual_W) + " W; " + std::to_string(faces.size()) + " faces on " +
           std::to_string(nodes.size()) + " surfaces; surroundings receive " +
           format_number(surroundings_W) + " W; balance " + format_number(balance_W) + " W";
+  if (iterative) {
+    text += "; sparse Newton-Krylov path: " + std::to_string(linear_iterations) +
+            " GMRES iteration(s), last relative residual " + format_number(linear_residual) +
+            "; largest radiosity residual " + format_number(radiosity_residual) + " W/m^2";
+  }
   if (!message.empty()) text += "\n  " + message;
   return text;
 }

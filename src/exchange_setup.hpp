@@ -37,5 +37,20 @@ Setup check_and_set_up(const ExchangeProblem& problem);
 
 std::string format_number(double value);
 
+// A temperature level to start Newton's method from: the mean of the given temperatures
+// (fixed nodes, fluids, outside, surroundings seen by some face).
+double reference_temperature(const Setup& s);
+
+// Face and node results from radiosities J (per face) and temperatures (per node), with the
+// net flux q = eps (E - G), G = F J + F_s E_s; also the largest radiosity residual.
+void fill_results(const Setup& s, const Eigen::VectorXd& J, const Eigen::VectorXd& node_K,
+                  ExchangeResult* result);
+
+// The large path (src/exchange_large.cpp): Newton-Krylov on radiosities and node temperatures
+// together. Fills status, message, iterations and the linear-solve fields of `result`, and
+// leaves the last iterate in J and node_K (also when it did not converge).
+void solve_large(const Setup& s, const ExchangeOptions& options, ExchangeResult* result,
+                 Eigen::VectorXd* J, Eigen::VectorXd* node_K);
+
 }  // namespace exchange_detail
 }  // namespace hearthray

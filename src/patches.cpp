@@ -21,6 +21,7 @@ void add_groups(const Scene& scene, std::uint32_t s,
     for (std::size_t g = 0; g < groups.size(); ++g) {
       Patch patch;
       patch.surface = s;
+      patch.piece = static_cast<std::uint32_t>(g);
       patch.side = k == 0 ? Side::front : Side::back;
       patch.name = surface.name;
       if (split) patch.name += "#" + std::to_string(g + 1);

@@ -22,7 +22,7 @@ namespace hearthray {
 
 // Part of every key. Change it whenever tracing or sampling changes what (mesh, rays, seed)
 // produce, or when the file layout changes: old files then simply stop matching.
-inline constexpr const char* kTallyCacheFormat = "hearthray-tallies/1";
+inline constexpr const char* kTallyCacheFormat = "hearthray-tallies/2";
 
 // 128 bits from two unrelated 64-bit hashes of the same bytes (FNV-1a and a word-wise
 // multiply-xorshift mix), so an accidental collision needs both to collide at once.
@@ -31,21 +31,20 @@ struct TallyCacheKey {
   std::uint64_t mix = 0;
 
   std::string hex() const;  // 32 hexadecimal digits
-  bool operator==(const TallyCacheKey& other) const {
-    return fnv == other.fnv && mix == other.mix;
-  }
+  bool operator==(const TallyCacheKey& other) const { return fnv == other.fnv && mix == other.mix; }
 };
 
 // What the tallies depend on besides the mesh.
 struct TallyCacheSettings {
-  std::uint64_t rays_per_patch = 0;
+  std::vector<PatchSpec> patch_specs;  // per surface: how it is cut into patches
+  std::vector<std::uint64_t> rays;     // rays of each patch
   std::uint64_t seed = 0;
   bool smoothed = true;  // the factors are smoothed after loading
 };
 
 // Hashes the mesh file's bytes, the mesh unit, surfaces_from, the degenerate-triangle
-// threshold, the number of surfaces and the two-sided flag of each, rays per patch, seed,
-// smoothing and kTallyCacheFormat. Throws InputError when the mesh file cannot be read.
+// threshold, the number of surfaces and the two-sided flag and patch spec of each, the rays
+// of every patch, seed, smoothing and kTallyCacheFormat. Throws InputError when the mesh file cannot be read.
 TallyCacheKey tally_cache_key(const SceneFile& file, const Scene& scene,
                               const TallyCacheSettings& settings);
 
@@ -61,16 +60,16 @@ enum class CacheStatus { hit, missing, rejected };
 struct CachedTallies {
   CacheStatus status = CacheStatus::missing;
   std::string path;
-  std::string reason;         // why a file was rejected (empty on a hit or when missing)
-  Tallies tallies;            // on a hit
-  double trace_seconds = 0;   // how long the original tracing took
+  std::string reason;        // why a file was rejected (empty on a hit or when missing)
+  Tallies tallies;           // on a hit
+  double trace_seconds = 0;  // how long the original tracing took
 };
 
 // Reads DIR/<key>.tallies and checks it against the key and against the scene it should
-// describe: one full row per patch, `rays_per_patch` rays each, every ray accounted for.
+// describe: one full row per patch, `rays[p]` rays for patch p, every ray accounted for.
 CachedTallies load_cached_tallies(const std::string& dir, const TallyCacheKey& key,
                                   const Scene& scene, const PatchSet& patches,
-                                  std::uint64_t rays_per_patch);
+                                  const std::vector<std::uint64_t>& rays);
 
 struct CacheWrite {
   bool stored = false;

@@ -71,11 +71,22 @@ struct ExchangeProblem {
 struct ExchangeOptions {
   // Newton stops when max |node balance residual| <= tolerance * scale, where scale is the
   // largest heat flow in the problem, counting each node's black-body emission A sigma T^4.
+  // On the large path every face's radiosity equation must also hold to tolerance times the
+  // largest black-body emissive power (W/m^2) in the problem.
   double tolerance = 1e-10;
   int max_iterations = 50;
-  // Up to this many faces the radiosity matrix is factored densely (Eigen PartialPivLU);
-  // above it, BiCGSTAB with a diagonal preconditioner works on the sparse F.
+  // Up to this many faces the radiosity matrix is factored densely (Eigen PartialPivLU) and
+  // Newton works on the unknown node temperatures alone. Above it, the large path: Newton's
+  // method on radiosities and temperatures together, each step one GMRES solve with the sparse
+  // F (memory grows with the non-zeros of F, never with faces^2). The default is the measured
+  // size at which the large path becomes the faster one (bench/exchange).
   int dense_face_limit = 1500;
+  // Large path only. The linear solve of each Newton step stops when its relative residual is
+  // at most max(linear_tolerance, min(1e-3, 0.1 / ratio)), ratio being how far the current
+  // residuals are above the tolerance: just as tight as the step needs.
+  double linear_tolerance = 1e-12;
+  int max_linear_iterations = 2000;  // GMRES iterations per Newton step
+  int gmres_restart = 50;            // Krylov vectors kept (memory: that many vectors per face)
 
   bool IsValid(std::string* error) const;
 };
@@ -105,6 +116,10 @@ struct ExchangeResult {
   std::string message;
   int iterations = 0;
   double final_residual_W = 0;      // max over nodes of |balance residual|
+  double radiosity_residual = 0;    // W/m^2, max over faces of |radiosity equation residual|
+  bool iterative = false;           // the large path (sparse Newton-Krylov) was used
+  int linear_iterations = 0;        // large path: GMRES iterations over all Newton steps
+  double linear_residual = 0;       // large path: relative residual of the last linear solve
   double surroundings_W = 0;        // net radiation received by the surroundings
   double balance_W = 0;             // sum of radiation out of all faces minus surroundings
   std::vector<FaceResult> faces;

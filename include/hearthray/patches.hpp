@@ -19,6 +19,7 @@ struct Patch {
   std::string name;  // surface name; "name (front)" / "name (back)" when two-sided;
                      // "name#k" (k = 1, 2, ...) for the k-th patch of a split surface
   std::uint32_t surface = 0;
+  std::uint32_t piece = 0;  // which piece of its surface (front and back of a piece share it)
   Side side = Side::front;
   double area = 0;  // m^2
 };

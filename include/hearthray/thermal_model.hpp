@@ -1,8 +1,12 @@
-// Thermal model: a scene's exchange problem. One node per surface (its temperature and
-// condition), one face per view-factor patch (a two-sided surface is a thin sheet: its front
-// and back faces sit on one node), emissivity and condition from the scene file
-// (resolve_thermal), the surroundings temperature from [surroundings]. After the solve, the
-// per-surface summary and the energy balance that every report shows.
+// Thermal model: a scene's exchange problem. One node per piece of a surface (a whole surface
+// is one piece; a surface cut into patches has one piece per patch), carrying its temperature
+// and condition; one face per view-factor patch (a two-sided surface is a thin sheet: the front
+// and back faces of a piece sit on one node). Emissivity and condition come from the scene file
+// (resolve_thermal), the surroundings temperature from [surroundings]. A surface's condition
+// applies to each of its pieces: a temperature or heat flux as given, adiabatic as given, and
+// a power spread as a uniform flux, each piece taking power x (piece area / surface area).
+// After the solve, the per-surface summary (sums over pieces; temperatures area-weighted, with
+// their range) and the energy balance that every report shows.
 //
 // Leaks. Rays that escape a closed mesh went through a crack between triangles, not through an
 // opening. When they are fewer than ThermalModelOptions::leak_limit of all rays, their share
@@ -36,17 +40,21 @@ struct ThermalModelOptions {
 };
 
 struct ThermalModel {
-  ViewFactors factors;               // as the exchange uses them (leaks folded back)
-  std::vector<ExchangeNode> nodes;   // one per surface, in scene order
-  std::vector<ExchangeFace> faces;   // one per patch, in patch order
-  std::vector<Side> face_side;       // per face: front or back of its surface
-  std::vector<bool> two_sided;       // per surface
-  std::vector<double> emissivity;    // per surface
+  ViewFactors factors;              // as the exchange uses them (leaks folded back)
+  std::vector<ExchangeNode> nodes;  // one per surface piece, in patch order
+  std::vector<std::uint32_t> node_surface;  // per node: its surface
+  std::vector<ExchangeFace> faces;  // one per patch, in patch order
+  std::vector<Side> face_side;      // per face: front or back of its surface
+  std::vector<std::string> surface_names;  // per surface
+  std::vector<NodeCondition> surface_conditions;  // per surface, as given (power not split)
+  std::vector<bool> two_sided;      // per surface
+  std::vector<double> emissivity;   // per surface
   std::optional<double> surroundings_K;
-  bool mesh_closed = false;          // closed, or a closed enclosure holding two-sided sheets
-  double lost_fraction = 0;          // of all rays: escaped or absorbed on back faces
-  bool leaks_folded = false;         // lost rays were folded back as leaks
-  std::vector<std::string> notes;    // plain sentences about choices made, for the user
+  bool mesh_closed = false;        // the one-sided surfaces close an enclosure (which may
+                                   // hold two-sided sheets)
+  double lost_fraction = 0;        // of all rays: escaped or absorbed on back faces
+  bool leaks_folded = false;       // lost rays were folded back as leaks
+  std::vector<std::string> notes;  // plain sentences about choices made, for the user
 
   // The problem for solve_exchange. It points into `factors`: keep the model alive (and in
   // place) while the problem is used.
@@ -58,11 +66,11 @@ struct ThermalModel {
 // emissivity or a condition (resolve_thermal). Returns the resolved surfaces.
 std::vector<SurfaceThermal> check_thermal_input(const SceneFile& file, const Scene& scene);
 
-// Throws InputError for what check_thermal_input refuses, or when radiation leaves the scene (escapes, or lands on back
-// faces of one-sided surfaces) and no [surroundings] temperature is given: the message names
-// the surfaces and how much of their radiation leaves.
-ThermalModel build_thermal_model(const SceneFile& file, const Scene& scene,
-                                 const PatchSet& patches, const ViewFactors& factors,
+// Throws InputError for what check_thermal_input refuses, or when radiation leaves the scene
+// (escapes, or lands on back faces of one-sided surfaces) and no [surroundings] temperature is
+// given: the message names the surfaces and how much of their radiation leaves.
+ThermalModel build_thermal_model(const SceneFile& file, const Scene& scene, const PatchSet& patches,
+                                 const ViewFactors& factors,
                                  const ThermalModelOptions& options = {});
 
 // One surface after the solve: powers are summed over its faces; W/m^2 values are averaged
@@ -70,29 +78,33 @@ ThermalModel build_thermal_model(const SceneFile& file, const Scene& scene,
 struct SurfaceHeat {
   std::string name;
   bool two_sided = false;
-  double area_m2 = 0;             // all faces
+  double area_m2 = 0;  // all faces
   double emissivity = 0;
-  double temperature_K = 0;
+  double temperature_K = 0;      // area-weighted mean over the surface's pieces
+  double temperature_min_K = 0;  // range over the pieces (equal to the mean for one piece)
+  double temperature_max_K = 0;
+  std::size_t pieces = 1;
   double radiosity_W_m2 = 0;
   double irradiation_W_m2 = 0;
-  double net_flux_W_m2 = 0;       // net_W / area_m2
-  double net_W = 0;               // net heat leaving by radiation (positive out)
-  double convection_W = 0;        // to the fluid (positive out)
-  double wall_loss_W = 0;         // through the wall (positive out)
-  double heat_input_W = 0;        // = net_W + convection_W + wall_loss_W
-  std::vector<std::size_t> faces; // indices into ExchangeResult::faces
+  double net_flux_W_m2 = 0;        // net_W / area_m2
+  double net_W = 0;                // net heat leaving by radiation (positive out)
+  double convection_W = 0;         // to the fluid (positive out)
+  double wall_loss_W = 0;          // through the wall (positive out)
+  double heat_input_W = 0;         // = net_W + convection_W + wall_loss_W
+  std::vector<std::size_t> faces;  // indices into ExchangeResult::faces
+  std::vector<std::size_t> nodes;  // indices into ExchangeResult::nodes
 };
 
 std::vector<SurfaceHeat> surface_heat(const ThermalModel& model, const ExchangeResult& result);
 
 // Where the heat put in goes: heat_input = convection + wall_loss + to_surroundings + residual.
 struct HeatBalance {
-  double heat_input_W = 0;       // sum over surfaces (negative where heat is taken out)
+  double heat_input_W = 0;  // sum over surfaces (negative where heat is taken out)
   double convection_W = 0;
   double wall_loss_W = 0;
   double to_surroundings_W = 0;  // net radiation received by the surroundings
   double residual_W = 0;
-  double largest_W = 0;          // largest single flow of any surface, for relative measures
+  double largest_W = 0;  // largest single flow of any surface, for relative measures
 };
 
 HeatBalance heat_balance(const ExchangeResult& result);

@@ -1,4 +1,6 @@
-"""Generates kiln.obj: an invented top-loading electric kiln with a ware stack (demo only).
+"""Invented for the demo; not a real product or building.
+
+Generates kiln.obj: a top-loading electric kiln with a ware stack.
 
 Firing chamber 600 x 600 x 700 mm (inside), two kiln shelves (20 mm thick slabs, modelled as
 thin two-sided sheets) on three posts each, and pots standing on the floor and on each shelf.

@@ -22,4 +22,33 @@ struct CheckArgs {
 };
 int run_check_command(const CheckArgs& args);
 
+struct SolveArgs {
+  std::string input;       // scene.toml
+  std::string output_dir;  // -o: surfaces.csv, report.json, view_factors.csv/.json
+  RaySettings rays;
+  std::string cache_dir;  // --cache; "" = default
+  bool no_cache = false;
+};
+// Exit codes: 0 solved, 2 bad input, 4 the solver did not converge (outputs still written).
+inline constexpr int kExitNotConverged = 4;
+int run_solve_command(const SolveArgs& args);
+
+struct RenderArgs {
+  std::string input;              // scene.toml or mesh.obj
+  std::string output;             // -o picture.png
+  std::string field = "surface";  // surface | area | view-factor-to=<surface>
+  int width = 800, height = 600;
+  std::vector<double> camera, target, up;  // x,y,z; camera and target in the mesh's unit
+  double fov = 30;                         // vertical, degrees
+  std::vector<std::string> hide;           // surfaces cut away
+  std::string title;                       // "" = file name and field
+  bool no_title = false;
+  std::vector<double> range;   // low,high of the colour bar
+  std::uint64_t rays = 20000;  // per patch, for view-factor-to
+  std::uint64_t seed = 1;
+  int threads = 0;
+  bool quiet = false;
+};
+int run_render_command(const RenderArgs& args);
+
 }  // namespace hearthray::cli

@@ -2,9 +2,12 @@
 
 #include <unistd.h>
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <iostream>
+
+#include "hearthray/cache.hpp"
 
 namespace hearthray::cli {
 
@@ -20,31 +23,119 @@ void show_progress(const TraceProgress& p) {
   std::fflush(stderr);
 }
 
+std::string seconds_text(double seconds) {
+  char buffer[32];
+  std::snprintf(buffer, sizeof buffer, "%.3g", seconds);
+  return buffer;
+}
+
+// The traced scene, its patches and rays, as the file and the command line say.
+FactorRun start(const SceneFile& file, const Scene& scene, const RaySettings& settings) {
+  FactorRun run;
+  Discretised d = discretise(file, scene, settings.rays);
+  run.scene = std::move(d.scene);
+  run.patches = std::move(d.patches);
+  run.specs = std::move(d.specs);
+  run.rays = std::move(d.rays);
+  const bool uniform = std::all_of(run.rays.begin(), run.rays.end(),
+                                   [&](std::uint64_t n) { return n == run.rays.front(); });
+  run.rays_per_patch = uniform && !run.rays.empty() ? run.rays.front() : 0;
+  run.seed = ray_seed(file, settings);
+  return run;
+}
+
+// Diagnoses and (unless raw) smooths the run's tallies.
+void finish(const RaySettings& settings, FactorRun* run) {
+  const Scene& scene = run->scene;
+  run->diagnostics = diagnose_rays(scene, run->patches, run->tallies, analyse_topology(scene));
+  if (settings.raw) {
+    run->factors = raw_view_factors(run->patches, run->tallies);
+  } else {
+    run->factors =
+        smooth_view_factors(run->patches, run->tallies, SmoothingOptions{}, &run->smoothing);
+  }
+}
+
 }  // namespace
 
-FactorRun run_view_factors(const SceneFile& file, const Scene& scene,
-                           const RaySettings& settings) {
-  FactorRun run;
-  run.rays_per_patch = settings.rays.value_or(file.rays_per_patch.value_or(kDefaultRaysPerPatch));
-  run.seed = settings.seed.value_or(file.seed.value_or(kDefaultSeed));
-  run.patches = make_surface_patches(scene);
+std::uint64_t rays_per_patch(const SceneFile& file, const RaySettings& settings) {
+  return settings.rays.value_or(file.rays_per_patch.value_or(kDefaultRaysPerPatch));
+}
 
+std::uint64_t ray_seed(const SceneFile& file, const RaySettings& settings) {
+  return settings.seed.value_or(file.seed.value_or(kDefaultSeed));
+}
+
+FactorRun run_view_factors(const SceneFile& file, const Scene& scene, const RaySettings& settings) {
+  FactorRun run = start(file, scene, settings);
   ViewFactorOptions options;
-  options.rays_per_patch = run.rays_per_patch;
+  options.rays_for_patch = run.rays;
   options.seed = run.seed;
   options.threads = settings.threads;
   const bool show = !settings.quiet && isatty(fileno(stderr));
   if (show) options.progress = show_progress;
 
-  const Tracer tracer(scene, options.tracer);
-  run.tallies = trace_tallies(scene, run.patches, tracer, options, &run.stats);
+  const Tracer tracer(run.scene, options.tracer);
+  run.tallies = trace_tallies(run.scene, run.patches, tracer, options, &run.stats);
   if (show) std::fprintf(stderr, "\r%60s\r", "");
+  finish(settings, &run);
+  return run;
+}
 
-  run.diagnostics = diagnose_rays(scene, run.patches, run.tallies, analyse_topology(scene));
-  if (settings.raw) {
-    run.factors = raw_view_factors(run.patches, run.tallies);
+FactorRun factors_from_tallies(const SceneFile& file, const Scene& scene,
+                               const RaySettings& settings, Tallies tallies) {
+  FactorRun run = start(file, scene, settings);
+  run.tallies = std::move(tallies);
+  for (std::uint64_t n : run.tallies.rays) run.stats.rays += n;
+  finish(settings, &run);
+  return run;
+}
+
+FactorRun cached_view_factors(const SceneFile& file, const Scene& scene,
+                              const RaySettings& settings, const CacheChoice& cache,
+                              std::vector<std::string>* log, std::vector<std::string>* warnings) {
+  const std::string dir = cache.use ? (cache.dir.empty() ? default_cache_dir() : cache.dir) : "";
+  if (dir.empty()) {
+    if (cache.use) {
+      warnings->push_back(
+          "no cache folder: set HEARTHRAY_CACHE (or HOME) or give --cache DIR; "
+          "view factors are traced every time");
+    }
+    FactorRun run = run_view_factors(file, scene, settings);
+    log->push_back("view factors: traced " + std::to_string(run.stats.rays) + " rays in " +
+                   seconds_text(run.stats.seconds) + " s (cache not used)");
+    return run;
+  }
+  const FactorRun plan = start(file, scene, settings);
+  TallyCacheSettings key_settings;
+  key_settings.patch_specs = plan.specs;
+  key_settings.rays = plan.rays;
+  key_settings.seed = plan.seed;
+  key_settings.smoothed = !settings.raw;
+  const TallyCacheKey key = tally_cache_key(file, scene, key_settings);
+  CachedTallies cached = load_cached_tallies(dir, key, plan.scene, plan.patches, plan.rays);
+  if (cached.status == CacheStatus::hit) {
+    FactorRun run = factors_from_tallies(file, scene, settings, std::move(cached.tallies));
+    run.from_cache = true;
+    run.cache_path = cached.path;
+    log->push_back("view factors: from cache " + cached.path);
+    return run;
+  }
+  if (cached.status == CacheStatus::rejected) {
+    warnings->push_back("ignored the cache file " + cached.path + ": " + cached.reason +
+                        "; tracing again");
+  }
+  FactorRun run = run_view_factors(file, scene, settings);
+  const std::string seconds = seconds_text(run.stats.seconds);
+  const CacheWrite written = store_cached_tallies(dir, key, run.tallies, run.stats.seconds);
+  if (written.stored) {
+    run.cache_path = written.path;
+    log->push_back("view factors: traced " + std::to_string(run.stats.rays) + " rays in " +
+                   seconds + " s; stored in cache " + written.path);
   } else {
-    run.factors = smooth_view_factors(run.patches, run.tallies, SmoothingOptions{}, &run.smoothing);
+    warnings->push_back("could not store the view factors in the cache: " + written.reason);
+    log->push_back("view factors: traced " + std::to_string(run.stats.rays) + " rays in " +
+                   seconds + " s");
   }
   return run;
 }

@@ -1,11 +1,12 @@
 // Shared pieces of the command-line tool: running the view-factor stages with a progress
-// line, and printing warnings. The tool only parses arguments, calls library stages and
-// writes outputs.
+// line (or taking their tallies from the cache), and printing warnings. The tool only parses
+// arguments, calls library stages and writes outputs.
 #pragma once
 
 #include <cstdint>
 #include <optional>
 #include <string>
+#include <vector>
 
 #include "hearthray/diagnostics.hpp"
 #include "hearthray/io.hpp"
@@ -17,30 +18,55 @@
 
 namespace hearthray::cli {
 
-inline constexpr std::uint64_t kDefaultRaysPerPatch = 100000;
 inline constexpr std::uint64_t kDefaultSeed = 1;
+inline constexpr const char* kToolVersion = "0.1.0";
 
 struct RaySettings {
   std::optional<std::uint64_t> rays;  // command line over scene file over default
   std::optional<std::uint64_t> seed;
   int threads = 0;
-  bool raw = false;     // skip smoothing
-  bool quiet = false;   // no progress line, no summary
+  bool raw = false;    // skip smoothing
+  bool quiet = false;  // no progress line, no summary
 };
 
 struct FactorRun {
+  Scene scene;                      // as traced: surfaces cut into patches where asked
   PatchSet patches;
+  std::vector<PatchSpec> specs;     // per surface
+  std::vector<std::uint64_t> rays;  // per patch
   Tallies tallies;
   ViewFactors factors;
   TraceStats stats;
   SmoothingSummary smoothing;
   RayDiagnostics diagnostics;
-  std::uint64_t rays_per_patch = 0;
+  std::uint64_t rays_per_patch = 0;  // when every patch has the same rays, else 0
   std::uint64_t seed = 0;
+  bool from_cache = false;  // tallies read from the cache: no ray was traced
+  std::string cache_path;   // the cache file read or written ("" when none)
 };
+
+// Rays per patch and seed: command line over scene file over default.
+std::uint64_t rays_per_patch(const SceneFile& file, const RaySettings& settings);
+std::uint64_t ray_seed(const SceneFile& file, const RaySettings& settings);
 
 // Traces, diagnoses and (unless raw) smooths.
 FactorRun run_view_factors(const SceneFile& file, const Scene& scene, const RaySettings& settings);
+// The same from tallies traced earlier (all emitters, with the settings' rays and seed).
+FactorRun factors_from_tallies(const SceneFile& file, const Scene& scene,
+                               const RaySettings& settings, Tallies tallies);
+
+struct CacheChoice {
+  bool use = true;
+  std::string dir;  // "" = default_cache_dir()
+};
+
+// Tallies from the cache when a valid file has the key of (mesh bytes, mesh settings, sides,
+// rays, seed), else traced and stored. Appends what happened to `log` ("view factors: from
+// cache ...") and problems with the cache (a rejected file, a folder that cannot be written)
+// to `warnings`.
+FactorRun cached_view_factors(const SceneFile& file, const Scene& scene,
+                              const RaySettings& settings, const CacheChoice& cache,
+                              std::vector<std::string>* log, std::vector<std::string>* warnings);
 
 // The report fields for the JSON output.
 FactorReportInfo report_info(const SceneFile& file, const FactorRun& run);

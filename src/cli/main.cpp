@@ -40,6 +40,64 @@ int main(int argc, char** argv) {
   cmd_check->add_option("--threads", check.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
 
+  SolveArgs solve;
+  CLI::App* cmd_solve = app.add_subcommand(
+      "solve", "Radiant heat exchange: heat flows and surface temperatures from a scene file");
+  cmd_solve->add_option("scene", solve.input, "Scene file (.toml) with thermal conditions")
+      ->required();
+  cmd_solve->add_option("-o,--output", solve.output_dir,
+                        "Folder for surfaces.csv, report.json and view_factors.csv/.json");
+  cmd_solve->add_flag("-q,--quiet", solve.rays.quiet, "No progress, notes or summary lines");
+  cmd_solve->add_option("--rays", solve.rays.rays, "Rays per surface (default: scene, 100000)")
+      ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 40));
+  cmd_solve->add_option("--seed", solve.rays.seed, "Random seed (default: scene, 1)");
+  cmd_solve->add_option("--threads", solve.rays.threads, "Worker threads (default: all)")
+      ->check(CLI::Range(0, 1024));
+  CLI::Option* cache_dir =
+      cmd_solve->add_option("--cache", solve.cache_dir,
+                            "View-factor cache folder (default: $HEARTHRAY_CACHE, "
+                            "$XDG_CACHE_HOME/hearthray or ~/.cache/hearthray)");
+  cmd_solve
+      ->add_flag("--no-cache", solve.no_cache, "Always trace; neither read nor write the cache")
+      ->excludes(cache_dir);
+
+  RenderArgs render;
+  CLI::App* cmd_render = app.add_subcommand(
+      "render", "PNG picture of the model coloured by surface, patch area or a view factor");
+  cmd_render->add_option("scene", render.input, "Scene file (.toml) or mesh (.obj)")->required();
+  cmd_render->add_option("-o,--output", render.output, "Picture file (.png)")->required();
+  cmd_render->add_option("--field", render.field,
+                         "surface, area or view-factor-to=<surface> (default surface)");
+  cmd_render->add_option("--width", render.width, "Pixels (default 800)")
+      ->check(CLI::Range(16, 16384));
+  cmd_render->add_option("--height", render.height, "Pixels (default 600)")
+      ->check(CLI::Range(16, 16384));
+  cmd_render->add_option("--camera", render.camera, "Camera position x,y,z in the mesh's unit")
+      ->delimiter(',')
+      ->expected(3);
+  cmd_render->add_option("--target", render.target, "Point looked at x,y,z (default: centre)")
+      ->delimiter(',')
+      ->expected(3);
+  cmd_render->add_option("--up", render.up, "Up direction x,y,z (default 0,0,1)")
+      ->delimiter(',')
+      ->expected(3);
+  cmd_render->add_option("--fov", render.fov, "Vertical field of view, degrees (default 30)")
+      ->check(CLI::Range(0.1, 170.0));
+  cmd_render->add_option("--hide", render.hide, "Surfaces to cut away: name,name,...")
+      ->delimiter(',');
+  cmd_render->add_option("--title", render.title, "Title line (default: file and field)");
+  cmd_render->add_flag("--no-title", render.no_title, "No title line");
+  cmd_render->add_option("--range", render.range, "Colour bar low,high (default: the data's)")
+      ->delimiter(',')
+      ->expected(2);
+  cmd_render
+      ->add_option("--rays", render.rays, "Rays per surface for view-factor-to (default 20000)")
+      ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 32));
+  cmd_render->add_option("--seed", render.seed, "Random seed (default 1)");
+  cmd_render->add_option("--threads", render.threads, "Worker threads (default: all)")
+      ->check(CLI::Range(0, 1024));
+  cmd_render->add_flag("-q,--quiet", render.quiet, "No summary line");
+
   auto known = [&](const std::string& name) {
     for (const CLI::App* sub : app.get_subcommands({}))
       if (sub->get_name() == name) return true;
@@ -68,6 +126,8 @@ int main(int argc, char** argv) {
   try {
     if (*cmd_factors) return run_factors_command(factors);
     if (*cmd_check) return run_check_command(check);
+    if (*cmd_solve) return run_solve_command(solve);
+    if (*cmd_render) return run_render_command(render);
   } catch (const hearthray::InputError& e) {
     std::cerr << "error: " << e.what() << "\n";
     return 2;

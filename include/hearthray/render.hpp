@@ -1,0 +1,92 @@
+// Pictures of the model coloured by a per-patch quantity: one camera ray per sub-pixel traced
+// with the Tracer, flat colour per patch through a perceptually uniform colour map, gentle
+// shading by the angle to the view, thin dark edges where the surface changes, a colour bar
+// with the quantity and its unit, and a title. Written as 8-bit RGB PNG.
+//
+// What is drawn: a ray that meets a face from a side that is no patch (the back of a one-sided
+// surface) or a face of a hidden surface goes on past it, so an enclosure whose normals point
+// inward is seen into from outside, and a roof or door can be cut away. The back of a
+// two-sided surface is its back patch, and is drawn with that patch's value.
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "hearthray/fields.hpp"
+#include "hearthray/geometry.hpp"
+#include "hearthray/patches.hpp"
+#include "hearthray/scene.hpp"
+#include "hearthray/tracer.hpp"
+
+namespace hearthray {
+
+struct Rgb {
+  std::uint8_t r = 0, g = 0, b = 0;
+  bool operator==(const Rgb& o) const { return r == o.r && g == o.g && b == o.b; }
+  bool operator!=(const Rgb& o) const { return !(*this == o); }
+};
+
+// 8-bit sRGB image, rows top to bottom.
+struct Image {
+  int width = 0, height = 0;
+  std::vector<std::uint8_t> rgb;  // 3 * width * height
+
+  Rgb at(int x, int y) const {
+    const std::size_t i = 3 * (std::size_t(y) * std::size_t(width) + std::size_t(x));
+    return {rgb[i], rgb[i + 1], rgb[i + 2]};
+  }
+};
+
+struct RenderOptions {
+  int width = 800;  // pixels, the whole picture (colour bar and title included)
+  int height = 600;
+  // Camera, in metres in the scene's frame. Without a position the camera looks at the target
+  // from the direction (1, -1.4, 1) at the distance that frames the model's bounding box.
+  std::optional<Vec3> camera;
+  std::optional<Vec3> target;  // default: centre of the model's bounding box
+  Vec3 up{0, 0, 1};
+  double fov_degrees = 30;          // vertical field of view of the model's part of the picture
+  std::vector<std::string> hidden;  // names of surfaces that rays pass through
+  std::string title;                // top line; nothing when empty
+  // Colour range; each end defaults to the field's finite extreme.
+  std::optional<double> range_min, range_max;
+  // Non-empty: the field holds category indices (e.g. surface numbers) coloured by a
+  // qualitative palette and listed in a legend under these names, instead of a colour bar.
+  std::vector<std::string> categories;
+  Rgb background{247, 247, 245};
+  double shading = 0.25;  // darkening at grazing view, 0..1 (0: flat colours)
+  bool edges = true;      // dark lines where the surface changes (patch, when patches are large)
+  int supersampling = 2;  // rays per pixel along each axis, 1..4
+  int threads = 0;        // 0 = all cores; the picture does not depend on it
+
+  // False with a message naming the field and the constraint when an option is out of range.
+  bool IsValid(std::string* error) const;
+};
+
+// Throws InputError for invalid options, an unknown hidden surface or a field with the wrong
+// number of values.
+Image render(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
+             const PatchField& field, const RenderOptions& options);
+
+// PNG, 8-bit RGB. Throw InputError naming the file when it cannot be written or read.
+void write_png(const std::string& path, const Image& image);
+Image read_png(const std::string& path);
+
+// sRGB components in [0, 1].
+struct Colour {
+  double r = 0, g = 0, b = 0;
+};
+// The sequential colour map: t in [0, 1] (clamped) from dark blue-violet through red and
+// orange to pale yellow, with CIELAB lightness rising strictly and equal colour differences
+// for equal steps of t.
+Colour sequential_colour(double t);
+// Qualitative palette for categories: distinct hues of similar lightness, repeating after
+// kCategoryColours entries.
+inline constexpr int kCategoryColours = 12;
+Colour category_colour(std::size_t index);
+// Colour of patches without a value.
+inline constexpr Colour kNoDataColour{0.62, 0.62, 0.62};
+
+}  // namespace hearthray

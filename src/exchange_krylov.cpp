@@ -1,0 +1,119 @@
+// Deterministic sparse product and restarted GMRES for the exchange solver's large path.
+#include "exchange_krylov.hpp"
+
+#include <tbb/blocked_range.h>
+#include <tbb/parallel_for.h>
+
+#include <algorithm>
+#include <cmath>
+
+namespace hearthray {
+namespace exchange_detail {
+
+void multiply(const SparseMatrix& F, const Eigen::VectorXd& x, Eigen::VectorXd* y) {
+  y->resize(F.rows());
+  double* out = y->data();
+  const double* in = x.data();
+  // Rows of a few hundred non-zeros each: blocks of 64 rows are large enough to amortise the
+  // scheduling and small enough to balance rows of very different lengths.
+  tbb::parallel_for(tbb::blocked_range<Eigen::Index>(0, F.rows(), 64),
+                    [&](const tbb::blocked_range<Eigen::Index>& rows) {
+                      for (Eigen::Index i = rows.begin(); i != rows.end(); ++i) {
+                        double sum = 0;
+                        for (SparseMatrix::InnerIterator it(F, i); it; ++it) {
+                          sum += it.value() * in[it.col()];
+                        }
+                        out[i] = sum;
+                      }
+                    });
+}
+
+KrylovSummary gmres(const LinearOperator& A, const LinearOperator& precondition,
+                    const Eigen::VectorXd& b, const KrylovOptions& options, Eigen::VectorXd* x) {
+  using Eigen::Index;
+  const Index n = b.size();
+  x->setZero(n);
+  KrylovSummary summary;
+  const double b_norm = b.norm();
+  if (!(b_norm > 0)) {
+    summary.converged = std::isfinite(b_norm);
+    return summary;
+  }
+  const Index m = std::max<Index>(1, std::min<Index>(options.restart, n));
+  const double target = options.tolerance * b_norm;
+  auto apply_preconditioner = [&](const Eigen::VectorXd& in, Eigen::VectorXd* out) {
+    if (precondition) {
+      precondition(in, out);
+    } else {
+      *out = in;
+    }
+  };
+
+  Eigen::MatrixXd V(n, m + 1);               // orthonormal Krylov basis
+  Eigen::MatrixXd H = Eigen::MatrixXd::Zero(m + 1, m);  // Hessenberg, rotated to triangular
+  Eigen::VectorXd cs(m), sn(m), g(m + 1);
+  Eigen::VectorXd r = b, w(n), z(n);
+  double beta = b_norm;  // ||b - A x|| for the current x (x = 0 at the start)
+  while (beta > target && summary.iterations < options.max_iterations) {
+    V.col(0) = r / beta;
+    H.setZero();
+    g.setZero();
+    g[0] = beta;
+    Index j = 0;
+    bool broke_down = false;
+    while (j < m && summary.iterations < options.max_iterations) {
+      apply_preconditioner(V.col(j), &z);
+      A(z, &w);
+      ++summary.iterations;
+      // Classical Gram-Schmidt, twice ("twice is enough": Giraud, Langou & Rozloznik 2005).
+      const auto basis = V.leftCols(j + 1);
+      Eigen::VectorXd h = basis.transpose() * w;
+      w.noalias() -= basis * h;
+      const Eigen::VectorXd h2 = basis.transpose() * w;
+      w.noalias() -= basis * h2;
+      h += h2;
+      H.col(j).head(j + 1) = h;
+      const double h_next = w.norm();
+      H(j + 1, j) = h_next;
+      // Givens rotations keep H upper triangular and g the rotated residual.
+      for (Index i = 0; i < j; ++i) {
+        const double a = H(i, j), c = H(i + 1, j);
+        H(i, j) = cs[i] * a + sn[i] * c;
+        H(i + 1, j) = -sn[i] * a + cs[i] * c;
+      }
+      const double d = std::hypot(H(j, j), h_next);
+      if (!(d > 0)) {  // A z = 0 for a non-zero z: the operator is singular here
+        broke_down = true;
+        break;
+      }
+      cs[j] = H(j, j) / d;
+      sn[j] = h_next / d;
+      H(j, j) = d;
+      H(j + 1, j) = 0;
+      g[j + 1] = -sn[j] * g[j];
+      g[j] *= cs[j];
+      ++j;
+      if (!(h_next > 0) || std::abs(g[j]) <= target) break;
+      V.col(j) = w / h_next;
+    }
+    if (j > 0) {
+      const Eigen::VectorXd y =
+          H.topLeftCorner(j, j).triangularView<Eigen::Upper>().solve(g.head(j));
+      const Eigen::VectorXd update = V.leftCols(j) * y;
+      apply_preconditioner(update, &z);
+      *x += z;
+    }
+    // The true residual, not the recurrence's estimate, decides (and restarts from it).
+    A(*x, &w);
+    r = b - w;
+    const double previous = beta;
+    beta = r.norm();
+    if (broke_down || !std::isfinite(beta) || (j == 0 && beta >= previous)) break;
+  }
+  summary.relative_residual = beta / b_norm;
+  summary.converged = beta <= target;
+  return summary;
+}
+
+}  // namespace exchange_detail
+}  // namespace hearthray

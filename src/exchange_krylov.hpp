@@ -1,0 +1,42 @@
+// Private to the exchange solver: a deterministic parallel sparse product and a restarted
+// Krylov solver for the large-problem path.
+#pragma once
+
+#include <Eigen/Dense>
+#include <functional>
+
+#include "hearthray/view_factors.hpp"
+
+namespace hearthray {
+namespace exchange_detail {
+
+// y = F x. Rows run in parallel, but each row is summed by one thread in its stored order,
+// so y is bitwise the same for any thread count.
+void multiply(const SparseMatrix& F, const Eigen::VectorXd& x, Eigen::VectorXd* y);
+
+// out = A in, for a linear operator given as a function (never a stored matrix).
+using LinearOperator = std::function<void(const Eigen::VectorXd& in, Eigen::VectorXd* out)>;
+
+struct KrylovOptions {
+  double tolerance = 1e-10;  // stop when ||b - A x||_2 <= tolerance ||b||_2
+  int max_iterations = 1000;
+  int restart = 50;  // GMRES(m): Krylov vectors kept before a restart
+};
+
+struct KrylovSummary {
+  bool converged = false;
+  int iterations = 0;              // products with A
+  double relative_residual = 0;    // ||b - A x||_2 / ||b||_2, recomputed from x at the end
+};
+
+// Restarted GMRES with right preconditioning (Saad & Schultz, SIAM J. Sci. Stat. Comput. 7,
+// 1986; Saad, Iterative Methods for Sparse Linear Systems, 2nd ed., alg. 6.11 and 9.5), so the
+// norm it watches is the true residual of A x = b. Orthogonalisation by classical Gram-Schmidt
+// applied twice (as stable as the modified form, and done as matrix-vector products). Starts
+// from x = 0. `precondition` applies M^-1 (may be empty: none). Single-threaded apart from
+// what the operator does, so the result does not depend on the thread count.
+KrylovSummary gmres(const LinearOperator& A, const LinearOperator& precondition,
+                    const Eigen::VectorXd& b, const KrylovOptions& options, Eigen::VectorXd* x);
+
+}  // namespace exchange_detail
+}  // namespace hearthray

@@ -1,0 +1,278 @@
+// The large path of the exchange solver: Newton's method on radiosities and node temperatures
+// together, each step one sparse linear solve by GMRES. Memory grows with the non-zeros of F
+// plus a few vectors per face; F is used as given, never copied or densified.
+//
+// Unknowns: the radiosity J_i of every face, and the emissive power E_k = sigma T_k^4 of every
+// node whose temperature is unknown. Equations of the net-radiation method (Modest, Radiative
+// Heat Transfer, 3rd ed., sec. 5.3; the iterative solution of these equations is discussed in
+// the same chapter): for face i on node k,
+//   r_i = J_i - eps_i E_k - (1 - eps_i) G_i = 0,     G_i = (F J)_i + F_is E_s,
+// and for every node k of unknown temperature,
+//   R_k = sum_{i on k} A_i eps_i (E_k - G_i) + hA_k (T_k - T_f) + UA_k (T_k - T_o) - input_k = 0.
+// E rather than T is the unknown: radiation is then linear, so a problem without convection or
+// wall loss is one linear solve, and what is left nonlinear is T = (E / sigma)^(1/4) in the
+// convection and wall terms: concave and increasing, which Newton's method handles calmly.
+//
+// A Newton step (dJ, dE) solves the linearised equations. The node rows are diagonal in dE,
+//   a_k dE_k - sum_{i on k} A_i eps_i (F dJ)_i = -R_k,
+//   a_k = sum_{i on k} A_i eps_i + (hA + UA)_k dT_k/dE_k,
+// so dE is eliminated exactly, node by node (a Schur complement on the node block), leaving
+//   S dJ = b,   S x = x - (1 - eps) (F x) - eps_i / a_k sum_{i' on k} A_i' eps_i' (F x)_i',
+//   b_i = -r_i - eps_i R_k / a_k,
+// and then dE_k = (-R_k + sum_{i on k} A_i eps_i (F dJ)_i) / a_k. S = I - W F with W >= 0
+// block diagonal by node and rows of W summing to at most 1 (exactly 1 on a reradiating node:
+// all it receives it sends out again). With F >= 0 and rows of F summing to at most 1, S is an
+// M-matrix, non-singular when something fixes the temperature level (which the input checks
+// ensure): GMRES needs only products with F, and few of them unless the enclosure is nearly
+// closed with nearly nothing taking heat out (each bounce then loses little).
+#include <Eigen/Dense>
+#include <algorithm>
+#include <cmath>
+#include <string>
+
+#include "exchange_krylov.hpp"
+#include "exchange_setup.hpp"
+#include "hearthray/units.hpp"
+
+namespace hearthray {
+namespace exchange_detail {
+namespace {
+
+constexpr double kSigma = kStefanBoltzmann;
+// A Newton step changes no node's temperature by more than this factor (up or down): the same
+// guard as the dense path's, applied per node, so that one node far from its answer does not
+// shorten the steps of all the others.
+constexpr double kStepFactor = 2.0;
+// The loosest relative residual ever asked of a linear solve.
+constexpr double kLoosestLinear = 1e-3;
+
+double kelvin_of(double E) {
+  return std::pow(E / kSigma, 0.25);
+}
+
+struct Iterate {
+  Eigen::VectorXd J;  // per face, W/m^2
+  Eigen::VectorXd E;  // per node, sigma T^4, W/m^2
+  Eigen::VectorXd T;  // per node, K
+};
+
+struct Residuals {
+  Eigen::VectorXd face;  // r_i, W/m^2
+  Eigen::VectorXd node;  // R_k, W (0 on nodes of fixed temperature)
+  double face_allowed = 0, node_allowed = 0;
+  Eigen::Index worst_face = 0, worst_node = 0;
+  double face_ratio = 0, node_ratio = 0;  // largest |residual| / allowed
+  double ratio() const { return std::max(face_ratio, node_ratio); }
+};
+
+class LargeSolver {
+ public:
+  LargeSolver(const Setup& s, const ExchangeOptions& options) : s_(s), options_(options) {
+    weight_ = s.area.cwiseProduct(s.eps);
+    reflect_ = Eigen::VectorXd::Ones(s.faces) - s.eps;
+    from_surroundings_ = s.to_surroundings * s.surroundings_Eb;
+    for (std::size_t k = 0; k < s.nodes; ++k) {
+      if (!s.fixed[k] && (s.hA[k] > 0 || s.UA[k] > 0)) nonlinear_ = true;
+    }
+  }
+
+  void solve(ExchangeResult* result, Iterate* it);
+
+ private:
+  Residuals evaluate(const Iterate& it) const;
+  // sum over the faces of each node of A_i eps_i v_i, for nodes of unknown temperature.
+  Eigen::VectorXd node_sums(const Eigen::VectorXd& v) const;
+  void apply_schur(const Eigen::VectorXd& x, Eigen::VectorXd* out) const;
+  std::string not_converged_message(const Residuals& res, const Iterate& it, int steps) const;
+
+  const Setup& s_;
+  const ExchangeOptions& options_;
+  Eigen::VectorXd weight_;             // A_i eps_i
+  Eigen::VectorXd reflect_;            // 1 - eps_i
+  Eigen::VectorXd from_surroundings_;  // F_is E_s
+  Eigen::VectorXd a_;                  // per node: a_k of the current step
+  bool nonlinear_ = false;             // some unknown node has convection or a wall loss
+  mutable Eigen::VectorXd scratch_;
+};
+
+Eigen::VectorXd LargeSolver::node_sums(const Eigen::VectorXd& v) const {
+  Eigen::VectorXd sums = Eigen::VectorXd::Zero(s_.nodes);
+  for (std::size_t i = 0; i < s_.faces; ++i) {
+    const std::uint32_t k = s_.node_of_face[i];
+    if (!s_.fixed[k]) sums[k] += weight_[i] * v[i];
+  }
+  return sums;
+}
+
+Residuals LargeSolver::evaluate(const Iterate& it) const {
+  Eigen::VectorXd G;
+  multiply(*s_.F, it.J, &G);
+  G += from_surroundings_;
+  Residuals res;
+  res.face.resize(s_.faces);
+  Eigen::VectorXd Q = Eigen::VectorXd::Zero(s_.nodes);  // net radiation out of each node, W
+  for (std::size_t i = 0; i < s_.faces; ++i) {
+    const std::uint32_t k = s_.node_of_face[i];
+    res.face[i] = it.J[i] - s_.eps[i] * it.E[k] - reflect_[i] * G[i];
+    Q[k] += weight_[i] * (it.E[k] - G[i]);
+  }
+  // The same scale as the dense path: the largest heat flow, counting black-body emission.
+  double scale = 0;
+  res.node = Eigen::VectorXd::Zero(s_.nodes);
+  for (std::size_t k = 0; k < s_.nodes; ++k) {
+    const double conduction =
+        s_.hA[k] * (it.T[k] - s_.fluid_K[k]) + s_.UA[k] * (it.T[k] - s_.outside_K[k]);
+    const double input = s_.fixed[k] ? 0.0 : s_.input_W[k];
+    scale = std::max({scale, s_.node_area[k] * it.E[k], std::abs(Q[k]), std::abs(conduction),
+                      std::abs(input)});
+    if (!s_.fixed[k]) res.node[k] = Q[k] + conduction - input;
+  }
+  const double emissive_scale = std::max(it.E.maxCoeff(), s_.surroundings_Eb);
+  res.node_allowed = options_.tolerance * scale;
+  res.face_allowed = options_.tolerance * emissive_scale;
+  res.node_ratio = res.node.cwiseAbs().maxCoeff(&res.worst_node) / res.node_allowed;
+  res.face_ratio = res.face.cwiseAbs().maxCoeff(&res.worst_face) / res.face_allowed;
+  return res;
+}
+
+void LargeSolver::apply_schur(const Eigen::VectorXd& x, Eigen::VectorXd* out) const {
+  multiply(*s_.F, x, &scratch_);
+  const Eigen::VectorXd sums = node_sums(scratch_);
+  out->resize(s_.faces);
+  for (std::size_t i = 0; i < s_.faces; ++i) {
+    const std::uint32_t k = s_.node_of_face[i];
+    double value = x[i] - reflect_[i] * scratch_[i];
+    if (!s_.fixed[k]) value -= s_.eps[i] * sums[k] / a_[k];
+    (*out)[i] = value;
+  }
+}
+
+std::string LargeSolver::not_converged_message(const Residuals& res, const Iterate& it,
+                                               int steps) const {
+  std::string text = "Newton's method did not converge in " + std::to_string(steps) +
+                     " iterations: largest residual ";
+  if (res.node_ratio >= res.face_ratio) {
+    const Eigen::Index k = res.worst_node;
+    text += format_number(std::abs(res.node[k])) + " W on surface '" + s_.node_names[k] +
+            "' at " + format_number(it.T[k]) + " K (tolerance " +
+            format_number(res.node_allowed) + " W)";
+    if (it.T[k] < 1) {
+      text +=
+          "; its temperature heads to 0 K: the heat taken out of it may be more than it can "
+          "receive";
+    }
+  } else {
+    const Eigen::Index i = res.worst_face;
+    text += format_number(std::abs(res.face[i])) + " W/m^2 in the radiosity of face " +
+            std::to_string(i) + " (surface '" + s_.node_names[s_.node_of_face[i]] +
+            "'; tolerance " + format_number(res.face_allowed) + " W/m^2)";
+  }
+  return text;
+}
+
+void LargeSolver::solve(ExchangeResult* result, Iterate* it) {
+  // Start: unknown nodes at the mean known level; every face at its node's black-body
+  // radiosity. The radiosity equations are linear, so the first step puts J in line anyway.
+  const double start_E = kSigma * std::pow(reference_temperature(s_), 4);
+  it->E.resize(s_.nodes);
+  it->T.resize(s_.nodes);
+  for (std::size_t k = 0; k < s_.nodes; ++k) {
+    it->E[k] = s_.fixed[k] ? kSigma * std::pow(s_.fixed_K[k], 4) : start_E;
+    it->T[k] = s_.fixed[k] ? s_.fixed_K[k] : kelvin_of(start_E);
+  }
+  it->J.resize(s_.faces);
+  for (std::size_t i = 0; i < s_.faces; ++i) it->J[i] = it->E[s_.node_of_face[i]];
+
+  const LinearOperator schur = [this](const Eigen::VectorXd& x, Eigen::VectorXd* out) {
+    apply_schur(x, out);
+  };
+  KrylovOptions krylov;
+  krylov.max_iterations = options_.max_linear_iterations;
+  krylov.restart = options_.gmres_restart;
+  a_ = Eigen::VectorXd::Ones(s_.nodes);
+  for (;;) {
+    const Residuals res = evaluate(*it);
+    if (!std::isfinite(res.ratio())) {
+      result->status = ExchangeStatus::singular;
+      result->message = "the residuals are not finite at Newton iteration " +
+                        std::to_string(result->iterations) + "; check the view factors";
+      return;
+    }
+    if (res.ratio() <= 1) {
+      result->status = ExchangeStatus::converged;
+      return;
+    }
+    if (result->iterations >= options_.max_iterations) {
+      result->status = ExchangeStatus::not_converged;
+      result->message = not_converged_message(res, *it, result->iterations);
+      return;
+    }
+    // The Newton system, with dE eliminated node by node.
+    const Eigen::VectorXd weight_sums = node_sums(Eigen::VectorXd::Ones(s_.faces));
+    for (std::size_t k = 0; k < s_.nodes; ++k) {
+      if (s_.fixed[k]) continue;
+      const double dT_dE = 1 / (4 * kSigma * std::pow(it->T[k], 3));
+      a_[k] = weight_sums[k] + (s_.hA[k] + s_.UA[k]) * dT_dE;
+    }
+    Eigen::VectorXd b(s_.faces);
+    for (std::size_t i = 0; i < s_.faces; ++i) {
+      const std::uint32_t k = s_.node_of_face[i];
+      b[i] = -res.face[i] - (s_.fixed[k] ? 0.0 : s_.eps[i] * res.node[k] / a_[k]);
+    }
+    // As tight as this step needs to bring the residuals under the tolerance (with a factor
+    // 10 to spare), no tighter: early steps of a nonlinear problem are not worth solving hard.
+    krylov.tolerance =
+        std::max(options_.linear_tolerance, std::min(kLoosestLinear, 0.1 / res.ratio()));
+    Eigen::VectorXd dJ;
+    const KrylovSummary linear = gmres(schur, LinearOperator(), b, krylov, &dJ);
+    result->linear_iterations += linear.iterations;
+    result->linear_residual = linear.relative_residual;
+    if (!linear.converged) {
+      result->status = ExchangeStatus::not_converged;
+      result->message =
+          "the linear solve of Newton step " + std::to_string(result->iterations + 1) +
+          " (GMRES(" + std::to_string(krylov.restart) + ")) reached relative residual " +
+          format_number(linear.relative_residual) + ", not the " +
+          format_number(krylov.tolerance) + " asked, after " +
+          std::to_string(linear.iterations) +
+          " iterations; raise max_linear_iterations, or check the view factors (rows must sum "
+          "to 1 or less)";
+      return;
+    }
+    Eigen::VectorXd FdJ;
+    multiply(*s_.F, dJ, &FdJ);
+    const Eigen::VectorXd received = node_sums(FdJ);
+    for (std::size_t k = 0; k < s_.nodes; ++k) {
+      if (s_.fixed[k]) continue;
+      const double dE = (-res.node[k] + received[k]) / a_[k];
+      if (!nonlinear_ && !(it->E[k] + dE > 0)) {
+        // Radiation only: the problem is linear and this step went to its exact answer.
+        result->status = ExchangeStatus::not_converged;
+        result->message = "no solution with positive temperatures: surface '" +
+                          s_.node_names[k] + "' would need sigma T^4 = " +
+                          format_number(it->E[k] + dE) + " W/m^2 to balance its heat input " +
+                          format_number(s_.input_W[k]) +
+                          " W (more heat is taken out than radiation can bring to it)";
+        return;
+      }
+      const double factor4 = std::pow(kStepFactor, 4);
+      it->E[k] = std::clamp(it->E[k] + dE, it->E[k] / factor4, it->E[k] * factor4);
+      it->T[k] = kelvin_of(it->E[k]);
+    }
+    it->J += dJ;
+    ++result->iterations;
+  }
+}
+
+}  // namespace
+
+void solve_large(const Setup& s, const ExchangeOptions& options, ExchangeResult* result,
+                 Eigen::VectorXd* J, Eigen::VectorXd* node_K) {
+  Iterate it;
+  LargeSolver(s, options).solve(result, &it);
+  *J = std::move(it.J);
+  *node_K = std::move(it.T);
+}
+
+}  // namespace exchange_detail
+}  // namespace hearthray

@@ -1,0 +1,283 @@
+// The exchange problem of a scene: nodes from surfaces, faces from patches, leaks folded back,
+// open scenes checked for a surroundings temperature before anything is solved.
+#include "hearthray/thermal_model.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+
+#include "hearthray/error.hpp"
+
+namespace hearthray {
+namespace {
+
+std::string percent(double fraction) {
+  char buffer[32];
+  std::snprintf(buffer, sizeof buffer, fraction >= 0.001 ? "%.1f %%" : "%.2g %%", 100 * fraction);
+  return buffer;
+}
+
+std::string scene_name(const SceneFile& file) {
+  return file.path.empty() ? file.mesh_path : file.path;
+}
+
+// Share of each face's radiation that leaves the enclosure: escaped, or absorbed on the back
+// of a one-sided surface (the exchange sends both to the surroundings).
+double lost(const ViewFactors& vf, std::size_t i) {
+  return (vf.to_surroundings.empty() ? 0.0 : vf.to_surroundings[i]) +
+         (vf.to_back_faces.empty() ? 0.0 : vf.to_back_faces[i]);
+}
+
+// Leaks returned to the face that emitted them: S_ii += A_i F_i,lost. Symmetric, row sums
+// unchanged (see the header).
+void fold_leaks(ViewFactors* vf) {
+  const std::size_t n = vf->size();
+  std::vector<Eigen::Triplet<double>> entries;
+  entries.reserve(static_cast<std::size_t>(vf->F.nonZeros()) + n);
+  for (Eigen::Index i = 0; i < vf->F.outerSize(); ++i) {
+    for (SparseMatrix::InnerIterator it(vf->F, i); it; ++it) {
+      entries.emplace_back(it.row(), it.col(), it.value());
+    }
+  }
+  for (std::size_t i = 0; i < n; ++i) {
+    const double share = lost(*vf, i);
+    if (share > 0) entries.emplace_back(Eigen::Index(i), Eigen::Index(i), share);
+  }
+  vf->F.setFromTriplets(entries.begin(), entries.end());  // duplicates are summed
+  vf->to_surroundings.assign(n, 0.0);
+  vf->to_back_faces.assign(n, 0.0);
+}
+
+// The surfaces that send radiation out of the scene, worst first, as "'door' 35 %, ...".
+std::string leaving_list(const ThermalModel& m, std::size_t* count) {
+  std::vector<double> area(m.nodes.size(), 0.0), out(m.nodes.size(), 0.0);
+  for (std::size_t f = 0; f < m.faces.size(); ++f) {
+    area[m.faces[f].node] += m.factors.areas[f];
+    out[m.faces[f].node] += m.factors.areas[f] * lost(m.factors, f);
+  }
+  std::vector<std::pair<double, std::size_t>> shares;
+  for (std::size_t k = 0; k < m.nodes.size(); ++k) {
+    if (out[k] > 0) shares.emplace_back(out[k] / area[k], k);
+  }
+  std::sort(shares.begin(), shares.end(), [](const auto& a, const auto& b) {
+    return a.first > b.first || (a.first == b.first && a.second < b.second);
+  });
+  *count = shares.size();
+  std::string list;
+  for (std::size_t j = 0; j < shares.size() && j < 5; ++j) {
+    list += (j ? ", '" : "'") + m.nodes[shares[j].second].name + "' " + percent(shares[j].first);
+  }
+  if (shares.size() > 5) list += " and " + std::to_string(shares.size() - 5) + " more";
+  return list;
+}
+
+}  // namespace
+
+bool ThermalModelOptions::IsValid(std::string* error) const {
+  if (std::isfinite(leak_limit) && leak_limit >= 0 && leak_limit < 1) return true;
+  if (error != nullptr) {
+    *error = "leak_limit is " + std::to_string(leak_limit) + "; it must be in [0, 1)";
+  }
+  return false;
+}
+
+ExchangeProblem ThermalModel::problem() const {
+  ExchangeProblem p;
+  p.nodes = nodes;
+  p.faces = faces;
+  p.view_factors = &factors;
+  p.surroundings_K = surroundings_K;
+  return p;
+}
+
+std::vector<SurfaceThermal> check_thermal_input(const SceneFile& file, const Scene& scene) {
+  if (!file.has_thermal_input()) {
+    throw InputError(
+        file.path.empty()
+            ? "'" + file.mesh_path +
+                  "' is a mesh: a solve needs a scene file (.toml) that gives every surface an "
+                  "emissivity and a condition (temperature, heat_flux, power or adiabatic = "
+                  "true), per surface in [surface.NAME] or for all in [defaults]"
+            : file.path +
+                  ": no surface has an emissivity or a condition: give them per surface in "
+                  "[surface.NAME] (emissivity = 0.85, temperature = \"1250 C\") or for all in "
+                  "[defaults]");
+  }
+  return resolve_thermal(file, scene);
+}
+
+ThermalModel build_thermal_model(const SceneFile& file, const Scene& scene, const PatchSet& patches,
+                                 const ViewFactors& factors, const ThermalModelOptions& options) {
+  std::string error;
+  if (!options.IsValid(&error)) throw InputError("thermal model options: " + error);
+  const std::vector<SurfaceThermal> thermal = check_thermal_input(file, scene);
+  if (factors.size() != patches.size() || factors.areas.size() != patches.size()) {
+    throw InputError("the view factors have " + std::to_string(factors.size()) +
+                     " rows but the scene has " + std::to_string(patches.size()) +
+                     " patches: compute them for this scene");
+  }
+
+  ThermalModel m;
+  m.factors = factors;
+  m.surroundings_K = file.surroundings_K;
+  for (std::size_t s = 0; s < scene.surfaces.size(); ++s) {
+    m.surface_names.push_back(scene.surfaces[s].name);
+    m.surface_conditions.push_back(thermal[s].condition);
+    m.two_sided.push_back(scene.surfaces[s].two_sided);
+    m.emissivity.push_back(thermal[s].emissivity);
+  }
+  // One node per (surface, piece); the front and back faces of a piece share it.
+  std::vector<std::vector<std::uint32_t>> node_of(scene.surfaces.size());
+  std::vector<std::uint32_t> pieces(scene.surfaces.size(), 0);
+  for (const Patch& patch : patches.patches)
+    pieces[patch.surface] = std::max(pieces[patch.surface], patch.piece + 1);
+  std::vector<double> piece_area, surface_area(scene.surfaces.size(), 0.0);
+  for (std::size_t p = 0; p < patches.size(); ++p) {
+    const Patch& patch = patches.patches[p];
+    auto& nodes = node_of[patch.surface];
+    if (nodes.size() <= patch.piece) nodes.resize(patch.piece + 1, PatchSet::kNoPatch);
+    if (nodes[patch.piece] == PatchSet::kNoPatch) {
+      nodes[patch.piece] = static_cast<std::uint32_t>(m.nodes.size());
+      std::string name = scene.surfaces[patch.surface].name;
+      if (pieces[patch.surface] > 1) name += "#" + std::to_string(patch.piece + 1);
+      m.nodes.push_back({name, thermal[patch.surface].condition});
+      m.node_surface.push_back(patch.surface);
+      piece_area.push_back(0.0);
+    }
+    const std::uint32_t node = nodes[patch.piece];
+    m.faces.push_back({node, thermal[patch.surface].emissivity});
+    m.face_side.push_back(patch.side);
+    if (patch.side == Side::front) {
+      piece_area[node] += factors.areas[p];
+      surface_area[patch.surface] += factors.areas[p];
+    }
+  }
+  // A power is spread over the surface as a uniform flux: each piece takes its area's share.
+  for (std::size_t k = 0; k < m.nodes.size(); ++k) {
+    NodeCondition& c = m.nodes[k].condition;
+    const double whole = surface_area[m.node_surface[k]];
+    if (c.kind == ConditionKind::power && whole > 0) c.value *= piece_area[k] / whole;
+  }
+
+  const MeshTopology topology = analyse_topology(scene);
+  // Only the one-sided surfaces can close an enclosure: the back of a two-sided sheet that is
+  // part of the outer boundary looks out of it, and what it sends there is no leak.
+  m.mesh_closed = topology.one_sided_closed;
+  // Share of all rays lost, weighted by rays emitted (by area for factors without rays).
+  double weight = 0, lost_weight = 0;
+  for (std::size_t f = 0; f < m.factors.size(); ++f) {
+    const bool by_rays = f < m.factors.rays.size() && m.factors.rays[f] > 0;
+    const double w = by_rays ? double(m.factors.rays[f]) : m.factors.areas[f];
+    weight += w;
+    lost_weight += w * lost(m.factors, f);
+  }
+  m.lost_fraction = weight > 0 ? lost_weight / weight : 0.0;
+
+  if (m.mesh_closed && m.lost_fraction > 0 && m.lost_fraction < options.leak_limit) {
+    fold_leaks(&m.factors);
+    m.leaks_folded = true;
+    char buffer[64];
+    std::snprintf(buffer, sizeof buffer, "%.2g", m.lost_fraction);
+    m.notes.push_back("the mesh is closed, and " + std::string(buffer) +
+                      " of all rays left it or were absorbed on back faces: taken for leaks "
+                      "through shared edges and returned to the faces that sent them, not "
+                      "sent to the surroundings");
+  }
+
+  std::size_t leaving = 0;
+  const std::string list = leaving_list(m, &leaving);
+  if (leaving > 0 && !m.surroundings_K) {
+    const std::string fix = "add\n  [surroundings]\n  temperature = \"20 C\"\nto " +
+                            scene_name(file) + " (the temperature of what the openings see)";
+    if (m.mesh_closed) {
+      throw InputError("the mesh '" + file.mesh_path + "' is closed, yet " +
+                       percent(m.lost_fraction) +
+                       " of all rays left it or were absorbed on back faces (by surface: " + list +
+                       "): too many for leaks through shared edges. Look for gaps or for "
+                       "surfaces whose normals point out of the enclosure (hearthray check "
+                       "shows both); if radiation really leaves, " +
+                       fix);
+    }
+    bool back_faces = false;
+    for (double b : m.factors.to_back_faces) back_faces = back_faces || b > 0;
+    throw InputError(
+        "the scene is open: radiation leaves it from " + std::to_string(leaving) +
+        " surface(s) (share of each one's radiation: " + list + "; " + percent(m.lost_fraction) +
+        " of all rays" +
+        (back_faces ? ", counting rays absorbed on the back of one-sided surfaces" : "") +
+        "), but no surroundings temperature is given: " + fix + ", or close the geometry");
+  }
+  if (leaving == 0 && m.surroundings_K) {
+    m.notes.push_back(
+        "no radiation leaves the scene: the [surroundings] temperature plays no "
+        "part");
+  }
+  return m;
+}
+
+std::vector<SurfaceHeat> surface_heat(const ThermalModel& model, const ExchangeResult& result) {
+  const std::size_t n_surfaces = model.two_sided.size();
+  std::vector<SurfaceHeat> out(n_surfaces);
+  for (std::size_t s = 0; s < n_surfaces; ++s) {
+    out[s].name = model.surface_names[s];
+    out[s].two_sided = model.two_sided[s];
+    out[s].emissivity = model.emissivity[s];
+    out[s].pieces = 0;
+    out[s].temperature_min_K = INFINITY;
+    out[s].temperature_max_K = -INFINITY;
+  }
+  std::vector<double> node_area(model.nodes.size(), 0.0);
+  for (std::size_t f = 0; f < model.faces.size() && f < result.faces.size(); ++f) {
+    const std::uint32_t node = model.faces[f].node;
+    SurfaceHeat& s = out[model.node_surface[node]];
+    const double area = model.factors.areas[f];
+    s.faces.push_back(f);
+    s.area_m2 += area;
+    node_area[node] += area;
+    s.radiosity_W_m2 += area * result.faces[f].radiosity;
+    s.irradiation_W_m2 += area * result.faces[f].irradiation;
+  }
+  for (std::size_t k = 0; k < model.nodes.size() && k < result.nodes.size(); ++k) {
+    SurfaceHeat& s = out[model.node_surface[k]];
+    const NodeResult& n = result.nodes[k];
+    s.nodes.push_back(k);
+    ++s.pieces;
+    s.temperature_K += node_area[k] * n.temperature_K;
+    s.temperature_min_K = std::min(s.temperature_min_K, n.temperature_K);
+    s.temperature_max_K = std::max(s.temperature_max_K, n.temperature_K);
+    s.net_W += n.net_radiation_W;
+    s.convection_W += n.convection_W;
+    s.wall_loss_W += n.wall_loss_W;
+    s.heat_input_W += n.heat_input_W;
+  }
+  for (SurfaceHeat& s : out) {
+    if (s.area_m2 > 0) {
+      s.radiosity_W_m2 /= s.area_m2;
+      s.irradiation_W_m2 /= s.area_m2;
+      s.net_flux_W_m2 = s.net_W / s.area_m2;
+      s.temperature_K /= s.area_m2;
+    }
+  }
+  return out;
+}
+
+HeatBalance heat_balance(const ExchangeResult& result) {
+  HeatBalance b;
+  double net = 0;
+  for (const NodeResult& n : result.nodes) {
+    b.heat_input_W += n.heat_input_W;
+    b.convection_W += n.convection_W;
+    b.wall_loss_W += n.wall_loss_W;
+    net += n.net_radiation_W;
+    b.largest_W = std::max({b.largest_W, std::abs(n.net_radiation_W), std::abs(n.convection_W),
+                            std::abs(n.wall_loss_W), std::abs(n.heat_input_W)});
+  }
+  b.to_surroundings_W = result.surroundings_W;
+  b.largest_W = std::max(b.largest_W, std::abs(b.to_surroundings_W));
+  // heat_input - convection - wall_loss is the net radiation of all surfaces; what the
+  // surroundings do not take of it is the residual.
+  b.residual_W = net - b.to_surroundings_W;
+  return b;
+}
+
+}  // namespace hearthray

@@ -1,0 +1,329 @@
+// Solve outputs: terminal table, per-face CSV and report.json. Files carry full double
+// precision; the table rounds for reading.
+#include "hearthray/thermal_report.hpp"
+
+#include <algorithm>
+#include <charconv>
+#include <cmath>
+#include <cstdio>
+#include <nlohmann/json.hpp>
+#include <ostream>
+
+namespace hearthray {
+namespace {
+
+using json = nlohmann::ordered_json;  // keys in the order written
+
+constexpr double kZeroCelsius = 273.15;
+constexpr int kWidth = 12;
+
+std::string format(const char* spec, double v) {
+  char buffer[48];
+  std::snprintf(buffer, sizeof buffer, spec, v);
+  return buffer;
+}
+
+// Watts and W/m^2 with one decimal, large values in exponent form; never "-0.0".
+std::string watts(double v) {
+  if (!std::isfinite(v)) return "n/a";
+  if (std::abs(v) < 0.05) v = 0;
+  return format(std::abs(v) >= 1e8 ? "%.4g" : "%.1f", v);
+}
+
+std::string pad(const std::string& s, std::size_t width, bool right) {
+  if (s.size() >= width) return s;
+  const std::string fill(width - s.size(), ' ');
+  return right ? fill + s : s + fill;
+}
+
+// Shortest text that reads back as the same double.
+std::string number(double v) {
+  if (!std::isfinite(v)) return "nan";
+  char buffer[32];
+  const auto end = std::to_chars(buffer, buffer + sizeof buffer, v).ptr;
+  return std::string(buffer, end);
+}
+
+std::string csv_field(const std::string& s) {
+  if (s.find_first_of(",\"\r\n") == std::string::npos) return s;
+  std::string out = "\"";
+  for (char c : s) {
+    if (c == '"') out += '"';
+    out += c;
+  }
+  return out + "\"";
+}
+
+json condition_json(const NodeCondition& c) {
+  json j;
+  switch (c.kind) {
+    case ConditionKind::temperature:
+      j["kind"] = "temperature";
+      j["temperature_K"] = c.value;
+      break;
+    case ConditionKind::heat_flux:
+      j["kind"] = "heat_flux";
+      j["heat_flux_W_m2"] = c.value;
+      break;
+    case ConditionKind::power:
+      j["kind"] = "power";
+      j["power_W"] = c.value;
+      break;
+    case ConditionKind::adiabatic:
+      j["kind"] = "adiabatic";
+      break;
+  }
+  j["convection"] = c.convection
+                        ? json{{"h_W_m2K", c.convection->h}, {"fluid_K", c.convection->fluid_K}}
+                        : json(nullptr);
+  j["wall"] = c.wall_loss ? json{{"U_W_m2K", c.wall_loss->U}, {"outside_K", c.wall_loss->outside_K}}
+                          : json(nullptr);
+  return j;
+}
+
+const char* side_name(Side side) {
+  return side == Side::front ? "front" : "back";
+}
+
+}  // namespace
+
+std::string to_string(ExchangeStatus status) {
+  switch (status) {
+    case ExchangeStatus::converged:
+      return "converged";
+    case ExchangeStatus::not_converged:
+      return "not_converged";
+    case ExchangeStatus::singular:
+      return "singular";
+  }
+  return "unknown";
+}
+
+void print_solve_table(std::ostream& out, const std::vector<SurfaceHeat>& surfaces,
+                       const HeatBalance& balance, const ExchangeResult& result) {
+  struct Column {
+    const char* title;
+    const char* unit;
+  };
+  const Column columns[] = {{"area", "m2"},       {"emissivity", ""},    {"T", "C"},
+                            {"T", "K"},           {"radiosity", "W/m2"}, {"irradiation", "W/m2"},
+                            {"net flux", "W/m2"}, {"net rad.", "W"},     {"convection", "W"},
+                            {"wall loss", "W"},   {"heat input", "W"}};
+  std::size_t name_width = 7;
+  bool any_two_sided = false;
+  for (const SurfaceHeat& s : surfaces) {
+    name_width = std::max(name_width, s.name.size() + 2);
+    any_two_sided = any_two_sided || s.two_sided;
+  }
+  std::string titles = pad("surface", name_width, false), units(name_width, ' ');
+  for (const Column& c : columns) {
+    titles += pad(c.title, kWidth, true);
+    units += pad(c.unit, kWidth, true);
+  }
+  out << titles << "\n" << units << "\n";
+  for (const SurfaceHeat& s : surfaces) {
+    std::string line = pad(s.name + (s.two_sided ? " *" : ""), name_width, false);
+    const std::string cells[] = {format("%.4g", s.area_m2),
+                                 format("%.3g", s.emissivity),
+                                 format("%.1f", s.temperature_K - kZeroCelsius),
+                                 format("%.1f", s.temperature_K),
+                                 watts(s.radiosity_W_m2),
+                                 watts(s.irradiation_W_m2),
+                                 watts(s.net_flux_W_m2),
+                                 watts(s.net_W),
+                                 watts(s.convection_W),
+                                 watts(s.wall_loss_W),
+                                 watts(s.heat_input_W)};
+    for (const std::string& c : cells) line += pad(c, kWidth, true);
+    out << line << "\n";
+  }
+  for (const SurfaceHeat& s : surfaces) {
+    if (s.pieces <= 1) continue;
+    out << "  " << s.name << ": " << s.pieces << " patches; T above is their area-weighted mean, "
+        << "they range from " << format("%.1f", s.temperature_min_K - kZeroCelsius) << " to "
+        << format("%.1f", s.temperature_max_K - kZeroCelsius) << " C (each in surfaces.csv)\n";
+  }
+  if (any_two_sided) {
+    out << "* two-sided: both faces on one line (W/m2 averaged over them, W summed); each face "
+           "is in surfaces.csv\n";
+  }
+  out << "net rad.: net heat leaving by radiation; heat input = net rad. + convection + wall "
+         "loss (positive: heat put into the surface)\n\n";
+
+  const double relative = balance.largest_W > 0 ? balance.residual_W / balance.largest_W : 0.0;
+  out << "energy balance\n"
+      << "  heat put in, all surfaces       " << pad(watts(balance.heat_input_W), 14, true)
+      << " W\n"
+      << "  to the fluids by convection     " << pad(watts(balance.convection_W), 14, true)
+      << " W\n"
+      << "  through the walls               " << pad(watts(balance.wall_loss_W), 14, true) << " W\n"
+      << "  radiation to the surroundings   " << pad(watts(balance.to_surroundings_W), 14, true)
+      << " W\n"
+      << "  residual                        " << pad(format("%.3g", balance.residual_W), 14, true)
+      << " W (" << format("%.2g", std::abs(relative)) << " of the largest flow)\n\n";
+
+  out << "solver: ";
+  if (result.status == ExchangeStatus::converged) {
+    out << "converged after " << result.iterations << " Newton iteration(s)";
+  } else {
+    out << (result.status == ExchangeStatus::singular ? "FAILED (singular)" : "NOT CONVERGED")
+        << " after " << result.iterations << " Newton iteration(s): the values above are not "
+        << "an answer";
+  }
+  out << "; largest node residual " << format("%.3g", result.final_residual_W) << " W\n";
+  if (!result.message.empty()) out << "  " << result.message << "\n";
+  out << "\ncaution: " << kEngineeringCaution << "\n";
+}
+
+void write_surfaces_csv(std::ostream& out, const ThermalModel& model,
+                        const ExchangeResult& result) {
+  out << "surface,face,side,area_m2,emissivity,temperature_K,temperature_C,radiosity_W_m2,"
+         "irradiation_W_m2,net_flux_W_m2,net_W,convection_W,wall_loss_W,heat_input_W\n";
+  std::vector<double> node_area(model.nodes.size(), 0.0);
+  for (std::size_t f = 0; f < model.faces.size(); ++f) {
+    node_area[model.faces[f].node] += model.factors.areas[f];
+  }
+  for (std::size_t f = 0; f < model.faces.size() && f < result.faces.size(); ++f) {
+    const std::uint32_t k = model.faces[f].node;
+    const NodeResult& n = result.nodes[k];
+    const FaceResult& face = result.faces[f];
+    const double share = model.factors.areas[f] / node_area[k];
+    const double convection = n.convection_W * share, wall = n.wall_loss_W * share;
+    out << csv_field(model.surface_names[model.node_surface[k]]) << ","
+        << csv_field(model.factors.names[f]) << ","
+        << side_name(model.face_side[f]) << "," << number(model.factors.areas[f]) << ","
+        << number(model.faces[f].emissivity) << "," << number(n.temperature_K) << ","
+        << number(n.temperature_K - kZeroCelsius) << "," << number(face.radiosity) << ","
+        << number(face.irradiation) << "," << number(face.net_flux) << "," << number(face.net_power)
+        << "," << number(convection) << "," << number(wall) << ","
+        << number(face.net_power + convection + wall) << "\n";
+  }
+}
+
+void write_solve_json(std::ostream& out, const SolveReportInfo& info, const ThermalModel& model,
+                      const ExchangeResult& result) {
+  json doc;
+  doc["tool"] = "hearthray";
+  doc["version"] = info.version;
+  doc["caution"] = kEngineeringCaution;
+
+  json scene_surfaces = json::array();
+  for (std::size_t k = 0; k < model.surface_names.size(); ++k) {
+    json s;
+    s["name"] = model.surface_names[k];
+    s["two_sided"] = bool(model.two_sided[k]);
+    s["emissivity"] = model.emissivity[k];
+    s["condition"] = condition_json(model.surface_conditions[k]);
+    scene_surfaces.push_back(s);
+  }
+  json scene;
+  scene["file"] = info.scene;
+  scene["mesh"] = {{"file", info.mesh}, {"unit", info.unit}, {"surfaces_from", info.surfaces_from}};
+  scene["rays"] = {{"per_patch", info.rays_per_patch}, {"seed", info.seed}};
+  scene["surroundings_K"] = model.surroundings_K ? json(*model.surroundings_K) : json(nullptr);
+  scene["surfaces"] = scene_surfaces;
+  doc["scene"] = scene;
+
+  json vf;
+  vf["rays_per_patch"] = info.rays_per_patch;
+  vf["rays_total"] = info.rays_total;
+  vf["seed"] = info.seed;
+  vf["seconds"] = info.trace_seconds ? json(*info.trace_seconds) : json("cache");
+  vf["cache_file"] = info.cache_file.empty() ? json(nullptr) : json(info.cache_file);
+  vf["smoothing"] = info.smoothing;
+  vf["smoothing_iterations"] = info.smoothing_iterations;
+  vf["max_correction_sigma"] = info.max_correction_sigma;
+  vf["escaped_fraction"] = info.escaped_fraction;
+  vf["back_face_fraction"] = info.back_face_fraction;
+  vf["mesh_closed"] = model.mesh_closed;
+  vf["leaks_folded"] = model.leaks_folded;
+  vf["warnings"] = info.warnings;
+  vf["files"] = info.files;
+  doc["view_factors"] = vf;
+
+  doc["solver"] = {{"method", "net radiation (radiosity), Newton on surface temperatures"},
+                   {"status", to_string(result.status)},
+                   {"message", result.message},
+                   {"iterations", result.iterations},
+                   {"final_residual_W", result.final_residual_W}};
+
+  json surfaces = json::array();
+  for (const SurfaceHeat& s : surface_heat(model, result)) {
+    // Faces listed for whole surfaces; a surface cut into patches has them in surfaces.csv.
+    json faces = json::array();
+    for (std::size_t f : s.pieces == 1 ? s.faces : std::vector<std::size_t>{}) {
+      const FaceResult& r = result.faces[f];
+      faces.push_back({{"name", model.factors.names[f]},
+                       {"side", side_name(model.face_side[f])},
+                       {"area_m2", model.factors.areas[f]},
+                       {"radiosity_W_m2", r.radiosity},
+                       {"irradiation_W_m2", r.irradiation},
+                       {"net_flux_W_m2", r.net_flux},
+                       {"net_W", r.net_power}});
+    }
+    surfaces.push_back({{"name", s.name},
+                        {"two_sided", s.two_sided},
+                        {"area_m2", s.area_m2},
+                        {"emissivity", s.emissivity},
+                        {"temperature_K", s.temperature_K},
+                        {"temperature_C", s.temperature_K - kZeroCelsius},
+                        {"temperature_min_K", s.temperature_min_K},
+                        {"temperature_max_K", s.temperature_max_K},
+                        {"patches_per_side", s.pieces},
+                        {"net_W", s.net_W},
+                        {"net_flux_W_m2", s.net_flux_W_m2},
+                        {"radiosity_W_m2", s.radiosity_W_m2},
+                        {"irradiation_W_m2", s.irradiation_W_m2},
+                        {"convection_W", s.convection_W},
+                        {"wall_loss_W", s.wall_loss_W},
+                        {"heat_input_W", s.heat_input_W},
+                        {"faces", faces}});
+  }
+  doc["surfaces"] = surfaces;
+
+  const HeatBalance b = heat_balance(result);
+  doc["balance"] = {{"heat_input_W", b.heat_input_W},
+                    {"convection_W", b.convection_W},
+                    {"wall_loss_W", b.wall_loss_W},
+                    {"to_surroundings_W", b.to_surroundings_W},
+                    {"residual_W", b.residual_W},
+                    {"largest_W", b.largest_W},
+                    {"relative_residual", b.largest_W > 0 ? b.residual_W / b.largest_W : 0.0}};
+  doc["notes"] = info.notes;
+  out << doc.dump(2) << "\n";
+}
+
+std::vector<PatchField> solve_fields(const ThermalModel& model, const ExchangeResult& result) {
+  const std::size_t n = model.faces.size();
+  PatchField temperature{"temperature", "°C", std::vector<double>(n)};
+  PatchField net{"net radiative flux", "W/m²", std::vector<double>(n)};
+  PatchField irradiation{"irradiation", "W/m²", std::vector<double>(n)};
+  PatchField radiosity{"radiosity", "W/m²", std::vector<double>(n)};
+  PatchField input{"heat input flux", "W/m²", std::vector<double>(n)};
+  PatchField error{"view-factor standard error", "-", std::vector<double>(n)};
+  std::vector<double> node_area(model.nodes.size(), 0.0);
+  for (std::size_t f = 0; f < n; ++f) node_area[model.faces[f].node] += model.factors.areas[f];
+  const ViewFactors& vf = model.factors;
+  for (std::size_t f = 0; f < n && f < result.faces.size(); ++f) {
+    const std::uint32_t k = model.faces[f].node;
+    const NodeResult& node = result.nodes[k];
+    const FaceResult& face = result.faces[f];
+    temperature.values[f] = node.temperature_K - kZeroCelsius;
+    net.values[f] = face.net_flux;
+    irradiation.values[f] = face.irradiation;
+    radiosity.values[f] = face.radiosity;
+    // Convection and wall loss are per m^2 of the node's faces.
+    input.values[f] = face.net_flux + (node.convection_W + node.wall_loss_W) / node_area[k];
+    double worst = 0;
+    if (f < vf.rays.size() && vf.rays[f] > 0) {
+      for (SparseMatrix::InnerIterator it(vf.F, Eigen::Index(f)); it; ++it)
+        worst = std::max(worst, vf.standard_error(f, it.value()));
+      if (f < vf.to_surroundings.size())
+        worst = std::max(worst, vf.standard_error(f, vf.to_surroundings[f]));
+    }
+    error.values[f] = f < vf.rays.size() && vf.rays[f] > 0 ? worst : NAN;
+  }
+  return {temperature, net, irradiation, radiosity, input, error};
+}
+
+}  // namespace hearthray

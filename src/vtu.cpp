@@ -1,0 +1,179 @@
+// ASCII VTK XML unstructured grid. ASCII rather than appended binary: any reader accepts it,
+// and a person can look inside; numbers carry 17 significant digits, so a reader gets back the
+// doubles that were written.
+#include "hearthray/vtu.hpp"
+
+#include <cmath>
+#include <cstdint>
+#include <cstdio>
+#include <memory>
+#include <set>
+
+#include "hearthray/error.hpp"
+
+namespace hearthray {
+namespace {
+
+struct FileCloser {
+  void operator()(std::FILE* f) const {
+    if (f) std::fclose(f);
+  }
+};
+using File = std::unique_ptr<std::FILE, FileCloser>;
+
+std::string xml_escape(const std::string& text) {
+  std::string out;
+  for (char c : text) {
+    switch (c) {
+      case '&':
+        out += "&amp;";
+        break;
+      case '<':
+        out += "&lt;";
+        break;
+      case '>':
+        out += "&gt;";
+        break;
+      case '"':
+        out += "&quot;";
+        break;
+      default:
+        out += c;
+    }
+  }
+  return out;
+}
+
+// Text for an XML comment: "--" may not appear inside one.
+std::string comment_safe(const std::string& text) {
+  std::string out;
+  for (char c : text) out += (c == '-' && !out.empty() && out.back() == '-') ? '_' : c;
+  return out;
+}
+
+// Writes `count` values produced by `value(i)` with `format`, eight to a line.
+template <class F>
+void write_values(std::FILE* f, std::size_t count, F value) {
+  for (std::size_t i = 0; i < count; ++i) {
+    value(f, i);
+    std::fputc((i % 8 == 7 || i + 1 == count) ? '\n' : ' ', f);
+  }
+}
+
+void write_double(std::FILE* f, double v) {
+  if (std::isnan(v))
+    std::fputs("nan", f);
+  else if (std::isinf(v))
+    std::fputs(v > 0 ? "inf" : "-inf", f);
+  else
+    std::fprintf(f, "%.17g", v);
+}
+
+}  // namespace
+
+std::string vtu_array_name(const PatchField& field) {
+  return field.unit.empty() ? field.name : field.name + " [" + field.unit + "]";
+}
+
+void write_vtu(const std::string& path, const Scene& scene, const PatchSet& patches,
+               const std::vector<PatchField>& fields) {
+  std::set<std::string> names{"surface", "patch", "side"};
+  for (const PatchField& field : fields) {
+    check_field(field, patches);
+    if (!names.insert(vtu_array_name(field)).second)
+      throw InputError("cannot write '" + path + "': two cell arrays would be named '" +
+                       vtu_array_name(field) + "'");
+  }
+
+  // Points: the vertices the patches use, in mesh order.
+  const std::size_t n_patches = patches.size();
+  std::vector<std::int64_t> point_of_vertex(scene.vertices.size(), -1);
+  for (std::uint32_t t : patches.triangle_index)
+    for (std::uint32_t v : scene.triangles[t].v) point_of_vertex[v] = 0;
+  std::vector<std::uint32_t> points;
+  for (std::size_t v = 0; v < scene.vertices.size(); ++v) {
+    if (point_of_vertex[v] < 0) continue;
+    point_of_vertex[v] = std::int64_t(points.size());
+    points.push_back(std::uint32_t(v));
+  }
+  const std::size_t n_cells = patches.triangle_index.size();
+  // Patch of each cell, in cell order.
+  std::vector<std::uint32_t> cell_patch(n_cells);
+  for (std::size_t p = 0; p < n_patches; ++p)
+    for (std::uint32_t k = patches.triangle_offset[p]; k < patches.triangle_offset[p + 1]; ++k)
+      cell_patch[k] = std::uint32_t(p);
+
+  File file(std::fopen(path.c_str(), "wb"));
+  if (!file) throw InputError("cannot open '" + path + "' for writing");
+  std::FILE* f = file.get();
+
+  std::fputs("<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n", f);
+  std::fputs("<VTKFile type=\"UnstructuredGrid\" version=\"1.0\" byte_order=\"LittleEndian\">\n",
+             f);
+  std::fputs("<!-- written by hearthray; surfaces:", f);
+  for (std::size_t s = 0; s < scene.surfaces.size(); ++s)
+    std::fprintf(f, " %zu %s%s", s, comment_safe(scene.surfaces[s].name).c_str(),
+                 s + 1 < scene.surfaces.size() ? "," : "");
+  std::fputs(" -->\n", f);
+  std::fputs("  <UnstructuredGrid>\n", f);
+  std::fprintf(f, "    <Piece NumberOfPoints=\"%zu\" NumberOfCells=\"%zu\">\n", points.size(),
+               n_cells);
+
+  std::fputs("      <Points>\n", f);
+  std::fputs(
+      "        <DataArray type=\"Float64\" Name=\"Points\" NumberOfComponents=\"3\" "
+      "format=\"ascii\">\n",
+      f);
+  write_values(f, 3 * points.size(), [&](std::FILE* out, std::size_t i) {
+    write_double(out, scene.vertices[points[i / 3]][int(i % 3)]);
+  });
+  std::fputs("        </DataArray>\n      </Points>\n", f);
+
+  std::fputs("      <Cells>\n", f);
+  std::fputs("        <DataArray type=\"Int64\" Name=\"connectivity\" format=\"ascii\">\n", f);
+  write_values(f, 3 * n_cells, [&](std::FILE* out, std::size_t i) {
+    const std::size_t cell = i / 3;
+    const Triangle& tri = scene.triangles[patches.triangle_index[cell]];
+    const bool back = patches.patches[cell_patch[cell]].side == Side::back;
+    static constexpr int kFront[3] = {0, 1, 2}, kBack[3] = {0, 2, 1};
+    const int corner = (back ? kBack : kFront)[i % 3];
+    std::fprintf(out, "%lld", static_cast<long long>(point_of_vertex[tri.v[corner]]));
+  });
+  std::fputs("        </DataArray>\n", f);
+  std::fputs("        <DataArray type=\"Int64\" Name=\"offsets\" format=\"ascii\">\n", f);
+  write_values(f, n_cells, [&](std::FILE* out, std::size_t i) {
+    std::fprintf(out, "%llu", static_cast<unsigned long long>(3 * (i + 1)));
+  });
+  std::fputs("        </DataArray>\n", f);
+  std::fputs("        <DataArray type=\"UInt8\" Name=\"types\" format=\"ascii\">\n", f);
+  write_values(f, n_cells, [&](std::FILE* out, std::size_t) { std::fputs("5", out); });
+  std::fputs("        </DataArray>\n      </Cells>\n", f);
+
+  std::fputs("      <CellData Scalars=\"surface\">\n", f);
+  auto int_array = [&](const char* name, auto value) {
+    std::fprintf(f, "        <DataArray type=\"Int32\" Name=\"%s\" format=\"ascii\">\n", name);
+    write_values(f, n_cells, [&](std::FILE* out, std::size_t i) {
+      std::fprintf(out, "%ld", static_cast<long>(value(cell_patch[i])));
+    });
+    std::fputs("        </DataArray>\n", f);
+  };
+  int_array("surface", [&](std::uint32_t p) { return patches.patches[p].surface; });
+  int_array("patch", [&](std::uint32_t p) { return p; });
+  int_array("side", [&](std::uint32_t p) { return patches.patches[p].side == Side::back; });
+  for (const PatchField& field : fields) {
+    std::fprintf(f, "        <DataArray type=\"Float64\" Name=\"%s\" format=\"ascii\">\n",
+                 xml_escape(vtu_array_name(field)).c_str());
+    write_values(f, n_cells, [&](std::FILE* out, std::size_t i) {
+      write_double(out, field.values[cell_patch[i]]);
+    });
+    std::fputs("        </DataArray>\n", f);
+  }
+  std::fputs("      </CellData>\n", f);
+  std::fputs("    </Piece>\n  </UnstructuredGrid>\n</VTKFile>\n", f);
+
+  const bool failed = std::ferror(f) != 0;
+  if (std::fclose(file.release()) != 0 || failed)
+    throw InputError("writing '" + path + "' failed (disk full or no permission?)");
+}
+
+}  // namespace hearthray
