@@ -20,7 +20,7 @@ using LinearOperator = std::function<void(const Eigen::VectorXd& in, Eigen::Vect
 struct KrylovOptions {
   double tolerance = 1e-10;  // stop when ||b - A x||_2 <= tolerance ||b||_2
   int max_iterations = 1000;
-  int restart = 50;  // GMRES(m): Krylov vectors kept before a restart
+  int restart = 100;  // GMRES(m): Krylov vectors kept before a restart
 };
 
 struct KrylovSummary {

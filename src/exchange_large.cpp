@@ -56,13 +56,23 @@ struct Iterate {
   Eigen::VectorXd T;  // per node, K
 };
 
+// The stopping rule: with scale the largest heat flow (as on the dense path) and E_max the
+// largest black-body emissive power,
+//   max_k |R_k| <= tolerance * scale               (every node's energy balance, W),
+//   max_i |r_i| <= tolerance * E_max               (every face's radiosity equation, W/m^2),
+//   |sum_i A_i r_i| <= tolerance * scale           (the power the radiosity residuals put into
+//                                                   the whole energy balance, W).
+// The last one keeps a closed enclosure balanced to the tolerance however many faces it has:
+// with reciprocity and closure, sum over faces of A q minus the surroundings' share is exactly
+// -sum_i A_i r_i.
 struct Residuals {
   Eigen::VectorXd face;  // r_i, W/m^2
   Eigen::VectorXd node;  // R_k, W (0 on nodes of fixed temperature)
+  double energy = 0;     // sum_i A_i r_i, W
   double face_allowed = 0, node_allowed = 0;
   Eigen::Index worst_face = 0, worst_node = 0;
-  double face_ratio = 0, node_ratio = 0;  // largest |residual| / allowed
-  double ratio() const { return std::max(face_ratio, node_ratio); }
+  double face_ratio = 0, node_ratio = 0, energy_ratio = 0;  // |residual| / allowed
+  double ratio() const { return std::max({face_ratio, node_ratio, energy_ratio}); }
 };
 
 class LargeSolver {
@@ -114,6 +124,7 @@ Residuals LargeSolver::evaluate(const Iterate& it) const {
   for (std::size_t i = 0; i < s_.faces; ++i) {
     const std::uint32_t k = s_.node_of_face[i];
     res.face[i] = it.J[i] - s_.eps[i] * it.E[k] - reflect_[i] * G[i];
+    res.energy += s_.area[i] * res.face[i];
     Q[k] += weight_[i] * (it.E[k] - G[i]);
   }
   // The same scale as the dense path: the largest heat flow, counting black-body emission.
@@ -132,6 +143,7 @@ Residuals LargeSolver::evaluate(const Iterate& it) const {
   res.face_allowed = options_.tolerance * emissive_scale;
   res.node_ratio = res.node.cwiseAbs().maxCoeff(&res.worst_node) / res.node_allowed;
   res.face_ratio = res.face.cwiseAbs().maxCoeff(&res.worst_face) / res.face_allowed;
+  res.energy_ratio = std::abs(res.energy) / res.node_allowed;
   return res;
 }
 
@@ -151,7 +163,7 @@ std::string LargeSolver::not_converged_message(const Residuals& res, const Itera
                                                int steps) const {
   std::string text = "Newton's method did not converge in " + std::to_string(steps) +
                      " iterations: largest residual ";
-  if (res.node_ratio >= res.face_ratio) {
+  if (res.node_ratio >= std::max(res.face_ratio, res.energy_ratio)) {
     const Eigen::Index k = res.worst_node;
     text += format_number(std::abs(res.node[k])) + " W on surface '" + s_.node_names[k] +
             "' at " + format_number(it.T[k]) + " K (tolerance " +
@@ -161,6 +173,10 @@ std::string LargeSolver::not_converged_message(const Residuals& res, const Itera
           "; its temperature heads to 0 K: the heat taken out of it may be more than it can "
           "receive";
     }
+  } else if (res.energy_ratio >= res.face_ratio) {
+    text += format_number(std::abs(res.energy)) +
+            " W in the net power of the radiosity residuals over all faces (tolerance " +
+            format_number(res.node_allowed) + " W)";
   } else {
     const Eigen::Index i = res.worst_face;
     text += format_number(std::abs(res.face[i])) + " W/m^2 in the radiosity of face " +

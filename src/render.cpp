@@ -3,13 +3,11 @@
 // category legend) drawn with the project's bitmap font.
 #include "hearthray/render.hpp"
 
-#include <tbb/blocked_range.h>
 #include <tbb/parallel_for.h>
 #include <tbb/task_arena.h>
 
 #include <algorithm>
 #include <cmath>
-#include <cstdio>
 #include <limits>
 #include <set>
 
@@ -17,11 +15,6 @@
 #include "render_parts.hpp"
 
 namespace hearthray {
-
-using render_detail::draw_text;
-using render_detail::fit_text;
-using render_detail::kLineHeight;
-using render_detail::text_width;
 
 bool RenderOptions::IsValid(std::string* error) const {
   auto fail = [&](const std::string& message) {
@@ -216,12 +209,15 @@ ColourRange colour_range(const PatchField& field, const RenderOptions& o) {
   if (!(lo < hi)) {  // one value only, or one given end beyond the data
     const double pad = std::max({std::fabs(lo), std::fabs(hi), 1e-300}) * 0.05;
     const double width = (lo == 0 && hi == 0) ? 1.0 : pad;
-    if (o.range_min && !o.range_max)
+    if (o.range_min && !o.range_max) {
       hi = lo + 2 * width;
-    else if (o.range_max && !o.range_min)
+    } else if (o.range_max && !o.range_min) {
       lo = hi - 2 * width;
-    else
-      lo -= width, hi = lo + 2 * width;
+    } else {
+      const double middle = lo;
+      lo = middle - width;
+      hi = middle + width;
+    }
   }
   r.lo = lo;
   r.hi = hi;
@@ -245,6 +241,11 @@ Image render(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
     }
     hidden[std::size_t(s)] = 1;
   }
+  if (options.camera && !options.target &&
+      norm(*options.camera - (scene.bounds.lo + scene.bounds.hi) * 0.5) == 0)
+    throw InputError(
+        "picture options: the camera is at the centre of the model, the point it "
+        "looks at by default; give a target");
 
   // Colour of each patch.
   const bool categorical = !options.categories.empty();
@@ -254,7 +255,7 @@ Image render(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
   std::set<std::size_t> used_categories;
   for (std::size_t p = 0; p < patches.size(); ++p) {
     const double v = field.values[p];
-    patch_has_value[p] = std::isfinite(v) && (!categorical || v >= 0);
+    patch_has_value[p] = std::isfinite(v) && (!categorical || (v >= 0 && v < 1e9));
     if (!patch_has_value[p]) {
       patch_colour[p] = kNoDataColour;
     } else if (categorical) {
@@ -281,7 +282,10 @@ Image render(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
   std::vector<Sample> samples(columns * std::size_t(cam.rows));
   std::vector<std::uint8_t> edge(samples.size(), 0);
   std::vector<std::uint8_t> row_no_data(std::size_t(view_h), 0);
-  std::vector<std::size_t> row_model(std::size_t(view_h), 0), row_patch_edges(row_model);
+  // Sub-pixels each patch covers: patch edges are drawn only between patches large enough on
+  // screen (about 12 x 12 pixels) for the lines not to crowd them.
+  std::vector<std::uint32_t> coverage(patches.size(), 0);
+  const std::uint32_t min_coverage = std::uint32_t(150 * ss * ss);
   Image image;
   image.width = options.width;
   image.height = options.height;
@@ -300,6 +304,11 @@ Image render(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
       trace_rows(scene, patches, tracer, cam, hidden, y * ss, (y + 1) * ss,
                  &samples[std::size_t(y * ss) * columns]);
     });
+  });
+  for (const Sample& s : samples)
+    if (s.patch != kBackground) ++coverage[s.patch];
+
+  arena.execute([&] {
     // 2. Edges: each boundary between two sub-pixels is drawn on the nearer one, so a
     // silhouette darkens the object and not the background.
     tbb::parallel_for(0, view_h, [&](int y) {
@@ -307,7 +316,6 @@ Image render(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
         for (int i = 0; i < cam.columns; ++i) {
           const Sample& s = samples[std::size_t(j) * columns + std::size_t(i)];
           if (s.patch == kBackground) continue;
-          ++row_model[std::size_t(y)];
           const Vec3 normal = scene.normal(s.triangle);
           const Vec3 p = hit_point(i, j, s);
           const double footprint = 2.0 * double(s.t) * cam.step;
@@ -324,23 +332,16 @@ Image render(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
               kind |= kSurfaceEdge;
             } else if (std::fabs(dot(normal, hit_point(ni, nj, n) - p)) > footprint) {
               kind |= kDepthEdge;
-            } else if (n.patch != s.patch) {
+            } else if (n.patch != s.patch && coverage[s.patch] >= min_coverage &&
+                       coverage[n.patch] >= min_coverage) {
               kind |= kPatchEdge;
             }
           }
           edge[std::size_t(j) * columns + std::size_t(i)] = kind;
-          if (kind == kPatchEdge) ++row_patch_edges[std::size_t(y)];
         }
       }
     });
   });
-  // Patch edges only where patches are large enough on screen for lines not to crowd them.
-  std::size_t model = 0, patch_edges = 0;
-  for (int y = 0; y < view_h; ++y) {
-    model += row_model[std::size_t(y)];
-    patch_edges += row_patch_edges[std::size_t(y)];
-  }
-  const bool draw_patch_edges = options.edges && patch_edges * 12 < model;
 
   const Colour bg{options.background.r / 255.0, options.background.g / 255.0,
                   options.background.b / 255.0};
@@ -364,7 +365,7 @@ Image render(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
               const std::uint8_t e = edge[k];
               if (e & (kSurfaceEdge | kDepthEdge))
                 f *= 0.3;
-              else if ((e & kPatchEdge) && draw_patch_edges)
+              else if (e & kPatchEdge)
                 f *= 0.7;
             }
             const Colour& c = patch_colour[s.patch];

@@ -71,11 +71,13 @@ std::string category_name(const RenderOptions& o, std::size_t k) {
   return k < o.categories.size() ? o.categories[k] : "#" + std::to_string(k);
 }
 
+// Bar width, tick length, and the gap between tick and label (wide enough that a tick does not
+// read as a minus sign).
 struct BarGeometry {
   int bar_width, tick_length, gap;
 };
 BarGeometry bar_geometry(int scale) {
-  return {10 * scale, 3 * scale, 2 * scale};
+  return {10 * scale, 3 * scale, 5 * scale};
 }
 
 }  // namespace
@@ -105,7 +107,7 @@ std::vector<std::string> tick_labels(double lo, double hi, int count) {
 Overlay plan_overlay(const RenderOptions& o, const PatchField& field, double lo, double hi,
                      const std::vector<std::size_t>& categories) {
   Overlay ov;
-  ov.scale = std::max(1, std::min(o.width / 400, o.height / 300));
+  ov.scale = std::max(1, int(std::lround(std::min(o.width / 400.0, o.height / 300.0))));
   ov.pad = 5 * ov.scale;
   const int line = kLineHeight * ov.scale;
   if (!o.title.empty() && line + 2 * ov.pad <= o.height / 4) ov.title_height = line + 2 * ov.pad;

@@ -10,6 +10,7 @@
 #include <filesystem>
 #include <sstream>
 
+#include "comfort_input_toml.hpp"
 #include "hearthray/error.hpp"
 
 namespace hearthray {
@@ -17,7 +18,8 @@ namespace {
 
 namespace fs = std::filesystem;
 
-const std::vector<std::string> kTopKeys = {"mesh", "rays", "surroundings", "defaults", "surface"};
+const std::vector<std::string> kTopKeys = {"mesh",     "rays",    "surroundings",
+                                           "defaults", "surface", "comfort"};
 const std::vector<std::string> kMeshKeys = {"file", "unit", "surfaces_from"};
 const std::vector<std::string> kRaysKeys = {"per_patch", "total", "min_per_patch", "seed"};
 const std::vector<std::string> kSurroundingsKeys = {"temperature"};
@@ -394,6 +396,9 @@ class Reader {
       // toml++ keeps keys sorted; the file order is the order of the tables' lines.
       std::stable_sort(file.surfaces.begin(), file.surfaces.end(),
                        [](const auto& a, const auto& b) { return a.second.line < b.second.line; });
+    }
+    if (const toml::node* comfort = root.get("comfort")) {
+      file.comfort = read_comfort_table(*comfort, path_);
     }
     return file;
   }

@@ -8,6 +8,7 @@
 
 #include "hearthray/error.hpp"
 #include "hearthray/view_factors.hpp"
+#include "view_factors_check.hpp"
 
 namespace hearthray {
 namespace {
@@ -15,6 +16,10 @@ namespace {
 std::string patch_label(const PatchSet& patches, std::size_t p) {
   return "patch " + std::to_string(p) + " '" + patches.patches[p].name + "'";
 }
+
+}  // namespace
+
+namespace tallies_detail {
 
 // Tallies come from trace_tallies or merge_shards (or a file, later): check the structure
 // before indexing with it, so that a mismatch is a message instead of a crash.
@@ -64,7 +69,7 @@ void check_tallies(const PatchSet& patches, const Tallies& t) {
   }
 }
 
-}  // namespace
+}  // namespace tallies_detail
 
 double ViewFactors::standard_error(std::size_t i, double f) const {
   const std::uint64_t n = rays.at(i);
@@ -75,7 +80,7 @@ double ViewFactors::standard_error(std::size_t i, double f) const {
 }
 
 ViewFactors raw_view_factors(const PatchSet& patches, const Tallies& tallies) {
-  check_tallies(patches, tallies);
+  tallies_detail::check_tallies(patches, tallies);
   const std::size_t n = patches.size();
   const std::size_t rows = tallies.rows();
 
@@ -90,24 +95,33 @@ ViewFactors raw_view_factors(const PatchSet& patches, const Tallies& tallies) {
   vf.to_surroundings.resize(rows);
   vf.to_back_faces.resize(rows);
 
-  vf.F.resize(static_cast<Eigen::Index>(rows), static_cast<Eigen::Index>(n));
-  Eigen::VectorXi per_row(static_cast<Eigen::Index>(rows));
-  for (std::size_t r = 0; r < rows; ++r) {
-    per_row[static_cast<Eigen::Index>(r)] =
-        static_cast<int>(tallies.hit_offset[r + 1] - tallies.hit_offset[r]);
+  // Written straight into compressed storage (one pass to count the entries, one to fill): no
+  // insertion bookkeeping and no slack at any size.
+  std::uint64_t entries = 0;
+  for (const std::uint64_t count : tallies.hit_count) entries += count > 0 ? 1 : 0;
+  if (entries > static_cast<std::uint64_t>(std::numeric_limits<SparseMatrix::StorageIndex>::max())) {
+    throw InputError("the view-factor matrix would have " + std::to_string(entries) +
+                     " entries, more than its index type can address; use fewer patches");
   }
-  vf.F.reserve(per_row);
+  vf.F.resize(static_cast<Eigen::Index>(rows), static_cast<Eigen::Index>(n));
+  vf.F.resizeNonZeros(static_cast<Eigen::Index>(entries));
+  SparseMatrix::StorageIndex* offset = vf.F.outerIndexPtr();
+  SparseMatrix::StorageIndex* column = vf.F.innerIndexPtr();
+  double* value = vf.F.valuePtr();
+  SparseMatrix::StorageIndex next = 0;
+  offset[0] = 0;
   for (std::size_t r = 0; r < rows; ++r) {
     const double rays = static_cast<double>(tallies.rays[r]);
     for (std::uint64_t k = tallies.hit_offset[r]; k < tallies.hit_offset[r + 1]; ++k) {
       if (tallies.hit_count[k] == 0) continue;  // no hit: a structural zero, not an entry
-      vf.F.insert(static_cast<Eigen::Index>(r), static_cast<Eigen::Index>(tallies.hit_patch[k])) =
-          static_cast<double>(tallies.hit_count[k]) / rays;
+      column[next] = static_cast<SparseMatrix::StorageIndex>(tallies.hit_patch[k]);
+      value[next] = static_cast<double>(tallies.hit_count[k]) / rays;
+      ++next;
     }
+    offset[r + 1] = next;
     vf.to_surroundings[r] = static_cast<double>(tallies.escaped[r]) / rays;
     vf.to_back_faces[r] = static_cast<double>(tallies.back_face[r]) / rays;
   }
-  vf.F.makeCompressed();
   vf.smoothed = false;
   vf.max_correction_sigma = 0;
   return vf;

@@ -72,21 +72,23 @@ struct ExchangeOptions {
   // Newton stops when max |node balance residual| <= tolerance * scale, where scale is the
   // largest heat flow in the problem, counting each node's black-body emission A sigma T^4.
   // On the large path every face's radiosity equation must also hold to tolerance times the
-  // largest black-body emissive power (W/m^2) in the problem.
+  // largest black-body emissive power (W/m^2) in the problem, and the net power of those
+  // residuals over all faces (what they add to the energy balance) to tolerance * scale.
   double tolerance = 1e-10;
   int max_iterations = 50;
   // Up to this many faces the radiosity matrix is factored densely (Eigen PartialPivLU) and
   // Newton works on the unknown node temperatures alone. Above it, the large path: Newton's
   // method on radiosities and temperatures together, each step one GMRES solve with the sparse
   // F (memory grows with the non-zeros of F, never with faces^2). The default is the measured
-  // size at which the large path becomes the faster one (bench/exchange).
-  int dense_face_limit = 1500;
+  // crossover (bench/exchange, 2 cores): the paths take the same time at 50-100 faces, both
+  // under a millisecond; at 500 faces the large path is 10-15 times faster, at 5000 200-400.
+  int dense_face_limit = 100;
   // Large path only. The linear solve of each Newton step stops when its relative residual is
   // at most max(linear_tolerance, min(1e-3, 0.1 / ratio)), ratio being how far the current
   // residuals are above the tolerance: just as tight as the step needs.
   double linear_tolerance = 1e-12;
   int max_linear_iterations = 2000;  // GMRES iterations per Newton step
-  int gmres_restart = 50;            // Krylov vectors kept (memory: that many vectors per face)
+  int gmres_restart = 100;           // Krylov vectors kept (memory: that many doubles per face)
 
   bool IsValid(std::string* error) const;
 };

@@ -12,6 +12,8 @@
 //               wall = { U = "0.9 W/m2K", outside = "20 C" }
 //                   or { thickness = "230 mm", conductivity = "0.3 W/mK", outside = "20 C" }
 //               patches = "0.25 m" (pieces of about that size) | "triangles" | "whole"
+//   [comfort]   air_temperature, air_speed, rays, [comfort.point.NAME], [comfort.grid]
+//               (see comfort_input.hpp)
 #pragma once
 
 #include <cstdint>
@@ -20,6 +22,7 @@
 #include <utility>
 #include <vector>
 
+#include "hearthray/comfort_input.hpp"
 #include "hearthray/exchange.hpp"
 #include "hearthray/patches.hpp"
 #include "hearthray/scene.hpp"
@@ -48,6 +51,7 @@ struct SceneFile {
   std::optional<double> surroundings_K;
   SurfaceSpec defaults;
   std::vector<std::pair<std::string, SurfaceSpec>> surfaces;  // in file order
+  std::optional<ComfortInput> comfort;  // [comfort]: points and air for the comfort figures
 
   const SurfaceSpec* find(const std::string& name) const;
   bool has_thermal_input() const;  // any emissivity or condition given

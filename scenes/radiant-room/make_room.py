@@ -83,7 +83,32 @@ wall = {{ U = "0.54 W/m2K", outside = "5 C" }}          # cellar
 
 [surface.ceiling]
 convection = {{ h = "1 W/m2K", fluid = "20 C" }}        # warmer than the air, facing down
-{panels}"""
+{panels}
+# Comfort figures (hearthray comfort / compare): at three places people use, and over the
+# occupied zone at 0.6 m (the reference height for seated people), 0.5 m from the walls.
+[comfort]
+air_temperature = "20 C"
+air_speed = "0.1 m/s"
+rays = 40_000                                         # per point and direction
+
+[comfort.point.sofa_by_window]
+position = ["2.5 m", "0.9 m", "0.6 m"]
+kind = "seated"
+
+[comfort.point.desk]
+position = ["4.2 m", "3.3 m", "0.6 m"]
+kind = "seated"
+
+[comfort.point.standing_middle]
+position = ["2.5 m", "2.0 m", "1.1 m"]
+kind = "standing"
+
+[comfort.grid]
+height = "0.6 m"
+spacing = "0.25 m"
+margin = "0.5 m"
+kind = "sphere"
+"""
 
 PANEL = """
 [surface.{name}]

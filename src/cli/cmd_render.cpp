@@ -75,7 +75,8 @@ int run_render_command(const RenderArgs& args) {
   options.hidden = args.hide;
   options.threads = args.threads;
   if (!args.range.empty()) {
-    if (args.range.size() != 2) throw InputError("--range expects two numbers low,high");
+    if (args.range.size() != 2 || !(args.range[0] < args.range[1]))
+      throw InputError("--range expects two numbers low,high with low below high");
     options.range_min = args.range[0];
     options.range_max = args.range[1];
   }

@@ -9,6 +9,8 @@
 #include "hearthray/error.hpp"
 #include "hearthray/thermal_model.hpp"
 #include "hearthray/thermal_report.hpp"
+#include "hearthray/render.hpp"
+#include "hearthray/tracer.hpp"
 #include "hearthray/vtu.hpp"
 
 namespace hearthray::cli {
@@ -46,59 +48,20 @@ SolveReportInfo solve_info(const SceneFile& file, const FactorRun& run, const Th
   return info;
 }
 
-// Opens `path` for writing or throws InputError naming it.
-std::ofstream open_output(const fs::path& path) {
-  std::ofstream out(path, std::ios::binary | std::ios::trunc);
-  if (!out) throw InputError("cannot write '" + path.string() + "'");
-  return out;
-}
-
 }  // namespace
 
 int run_solve_command(const SolveArgs& args) {
-  const SceneFile file = open_scene(args.input);
-  const Scene scene = load_scene(file);
-  // Thermal input checked before any ray is traced: a typo costs no tracing time.
-  check_thermal_input(file, scene);
-
-  std::vector<std::string> log, cache_warnings;
   CacheChoice cache;
   cache.use = !args.no_cache;
   cache.dir = args.cache_dir;
-  const FactorRun run = cached_view_factors(file, scene, args.rays, cache, &log, &cache_warnings);
-  // A refused model shows its error first, then the ray warnings that may explain it (flipped
-  // normals, a leak).
-  auto refuse = [&](const InputError& e) {
-    std::cerr << "error: " << e.what() << "\n";
-    for (const std::string& w : run.diagnostics.warnings) std::cerr << "warning: " << w << "\n";
-    return 2;
-  };
-  ThermalModel model;
-  try {
-    model = build_thermal_model(file, run.scene, run.patches, run.factors);
-  } catch (const InputError& e) {
-    return refuse(e);
-  }
-
-  // A leak folded back
-  // into a closed enclosure is reported by the model's note, not as radiation to surroundings.
-  std::vector<std::string> warnings = scene.warnings;
-  for (const std::string& w : run.diagnostics.warnings) {
-    if (!(model.leaks_folded && w.rfind("leak:", 0) == 0)) warnings.push_back(w);
-  }
-  for (const std::string& w : warnings) std::cerr << "warning: " << w << "\n";
-  for (const std::string& w : cache_warnings) std::cerr << "warning: " << w << "\n";
-  if (!args.rays.quiet) {
-    for (const std::string& n : run.diagnostics.notes) std::cerr << "note: " << n << "\n";
-    for (const std::string& n : model.notes) std::cerr << "note: " << n << "\n";
-  }
-
-  ExchangeResult result;
-  try {
-    result = solve_exchange(model.problem(), ExchangeOptions{});
-  } catch (const InputError& e) {
-    return refuse(e);
-  }
+  SolvedScene solved;
+  if (const int status = solve_scene(args.input, args.rays, cache, &solved)) return status;
+  const SceneFile& file = solved.file;
+  const FactorRun& run = solved.run;
+  const ThermalModel& model = solved.model;
+  const ExchangeResult& result = solved.result;
+  const std::vector<std::string>& log = solved.log;
+  const std::vector<std::string>& warnings = solved.warnings;
 
   if (!args.rays.quiet) {
     std::cout << "hearthray solve " << file.path << "\n";
@@ -110,13 +73,7 @@ int run_solve_command(const SolveArgs& args) {
   }
 
   if (!args.output_dir.empty()) {
-    const fs::path dir(args.output_dir);
-    std::error_code ec;
-    fs::create_directories(dir, ec);
-    if (ec || !fs::is_directory(dir)) {
-      throw InputError("cannot create the output folder '" + dir.string() + "'" +
-                       (ec ? ": " + ec.message() : std::string()));
-    }
+    const fs::path dir = make_output_dir(args.output_dir);
     const FactorReportInfo factor_info = report_info(file, run);
     SolveReportInfo info = solve_info(file, run, model, warnings);
     // Dense view-factor files for a few surfaces; for many patches only the sparse one.
@@ -126,9 +83,24 @@ int run_solve_command(const SolveArgs& args) {
               : std::vector<std::string>{"view_factors.mtx"};
     for (const std::string& name : factor_files)
       write_factors_file((dir / name).string(), run.factors, factor_info);
-    write_vtu((dir / "patches.vtu").string(), run.scene, run.patches,
-              solve_fields(model, result));
+    const std::vector<PatchField> fields = solve_fields(model, result);
+    write_vtu((dir / "patches.vtu").string(), run.scene, run.patches, fields);
     info.files = {"surfaces.csv", "patches.vtu"};
+    // Pictures of the temperature and the net radiative flux from the default view.
+    const Tracer tracer(run.scene);
+    const std::string scene_name = fs::path(file.path).stem().string();
+    for (const auto& [field_name, picture] :
+         {std::pair<std::string, std::string>{"temperature", "temperature.png"},
+          {"net radiative flux", "net_flux.png"}}) {
+      for (const PatchField& field : fields) {
+        if (field.name != field_name) continue;
+        RenderOptions options;
+        options.title = scene_name + ": " + field.name;
+        write_png((dir / picture).string(),
+                  render(run.scene, run.patches, tracer, field, options));
+        info.files.push_back(picture);
+      }
+    }
     info.files.insert(info.files.end(), factor_files.begin(), factor_files.end());
     {
       std::ofstream csv = open_output(dir / "surfaces.csv");

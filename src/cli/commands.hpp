@@ -33,6 +33,18 @@ struct SolveArgs {
 inline constexpr int kExitNotConverged = 4;
 int run_solve_command(const SolveArgs& args);
 
+struct ComfortArgs {
+  std::vector<std::string> inputs;  // comfort: one scene; compare: two or more
+  std::string output_dir;           // comfort -o: comfort.csv, comfort.txt, maps (PNG)
+  RaySettings rays;                 // --threads, --quiet; rays and seed from the scene
+  std::string cache_dir;            // --cache; "" = default
+  bool no_cache = false;
+};
+// Exit codes as for solve. `comfort`: table, summary, cautions, files. `compare`: the scenes
+// side by side.
+int run_comfort_command(const ComfortArgs& args);
+int run_compare_command(const ComfortArgs& args);
+
 struct RenderArgs {
   std::string input;              // scene.toml or mesh.obj
   std::string output;             // -o picture.png

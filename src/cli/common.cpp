@@ -8,6 +8,7 @@
 #include <iostream>
 
 #include "hearthray/cache.hpp"
+#include "hearthray/error.hpp"
 
 namespace hearthray::cli {
 
@@ -176,6 +177,64 @@ std::string smoothing_line(const FactorRun& run) {
                 run.smoothing.iterations, run.smoothing.converged ? "" : " (NOT converged)",
                 run.factors.max_correction_sigma);
   return buffer;
+}
+
+std::filesystem::path make_output_dir(const std::string& dir) {
+  const std::filesystem::path path(dir);
+  std::error_code ec;
+  std::filesystem::create_directories(path, ec);
+  if (ec || !std::filesystem::is_directory(path)) {
+    throw InputError("cannot create the output folder '" + path.string() + "'" +
+                     (ec ? ": " + ec.message() : std::string()));
+  }
+  return path;
+}
+
+std::ofstream open_output(const std::filesystem::path& path) {
+  std::ofstream out(path, std::ios::binary | std::ios::trunc);
+  if (!out) throw InputError("cannot write '" + path.string() + "'");
+  return out;
+}
+
+int solve_scene(const std::string& input, const RaySettings& settings, const CacheChoice& cache,
+                SolvedScene* out) {
+  SolvedScene& s = *out;
+  s.file = open_scene(input);
+  s.scene = load_scene(s.file);
+  // Thermal input checked before any ray is traced: a typo costs no tracing time.
+  check_thermal_input(s.file, s.scene);
+  std::vector<std::string> cache_warnings;
+  s.run = cached_view_factors(s.file, s.scene, settings, cache, &s.log, &cache_warnings);
+  // A refused model shows its error first, then the ray warnings that may explain it (flipped
+  // normals, a leak).
+  auto refuse = [&](const InputError& e) {
+    std::cerr << "error: " << e.what() << "\n";
+    for (const std::string& w : s.run.diagnostics.warnings) std::cerr << "warning: " << w << "\n";
+    return 2;
+  };
+  try {
+    s.model = build_thermal_model(s.file, s.run.scene, s.run.patches, s.run.factors);
+  } catch (const InputError& e) {
+    return refuse(e);
+  }
+  // A leak folded back into a closed enclosure is reported by the model's note, not as
+  // radiation to surroundings.
+  s.warnings = s.scene.warnings;
+  for (const std::string& w : s.run.diagnostics.warnings) {
+    if (!(s.model.leaks_folded && w.rfind("leak:", 0) == 0)) s.warnings.push_back(w);
+  }
+  for (const std::string& w : s.warnings) std::cerr << "warning: " << w << "\n";
+  for (const std::string& w : cache_warnings) std::cerr << "warning: " << w << "\n";
+  if (!settings.quiet) {
+    for (const std::string& n : s.run.diagnostics.notes) std::cerr << "note: " << n << "\n";
+    for (const std::string& n : s.model.notes) std::cerr << "note: " << n << "\n";
+  }
+  try {
+    s.result = solve_exchange(s.model.problem(), ExchangeOptions{});
+  } catch (const InputError& e) {
+    return refuse(e);
+  }
+  return 0;
 }
 
 }  // namespace hearthray::cli

@@ -4,16 +4,20 @@
 #pragma once
 
 #include <cstdint>
+#include <filesystem>
+#include <fstream>
 #include <optional>
 #include <string>
 #include <vector>
 
 #include "hearthray/diagnostics.hpp"
+#include "hearthray/exchange.hpp"
 #include "hearthray/io.hpp"
 #include "hearthray/patches.hpp"
 #include "hearthray/scene.hpp"
 #include "hearthray/scene_file.hpp"
 #include "hearthray/smoothing.hpp"
+#include "hearthray/thermal_model.hpp"
 #include "hearthray/view_factors.hpp"
 
 namespace hearthray::cli {
@@ -76,5 +80,28 @@ void print_warnings(const Scene& scene, const RayDiagnostics& diagnostics, bool 
 
 // One line about the smoothing, e.g. for the terminal.
 std::string smoothing_line(const FactorRun& run);
+
+// Creates the output folder (and its parents) or throws InputError naming it.
+std::filesystem::path make_output_dir(const std::string& dir);
+// Opens `path` for writing or throws InputError naming it.
+std::ofstream open_output(const std::filesystem::path& path);
+
+// A scene solved as `solve` does it: scene file -> view factors (cache) -> thermal model ->
+// exchange. The model points into itself (its problem into its factors): keep it in place.
+struct SolvedScene {
+  SceneFile file;
+  Scene scene;
+  FactorRun run;
+  ThermalModel model;
+  ExchangeResult result;
+  std::vector<std::string> log;       // what happened to the view factors
+  std::vector<std::string> warnings;  // scene and ray warnings (a folded leak left out)
+};
+
+// Runs the stages and prints warnings (and, unless quiet, notes) to stderr. Returns 0, or 2
+// after printing `error: ...` when the thermal model or the exchange refuses the input.
+// Throws InputError for other bad input. The result may be unconverged: check its status.
+int solve_scene(const std::string& input, const RaySettings& settings, const CacheChoice& cache,
+                SolvedScene* out);
 
 }  // namespace hearthray::cli

@@ -61,6 +61,25 @@ int main(int argc, char** argv) {
       ->add_flag("--no-cache", solve.no_cache, "Always trace; neither read nor write the cache")
       ->excludes(cache_dir);
 
+  ComfortArgs comfort, compare;
+  CLI::App* cmd_comfort = app.add_subcommand(
+      "comfort", "Radiant comfort at points and over a grid: t_mr, t_o, asymmetry, maps");
+  CLI::App* cmd_compare = app.add_subcommand(
+      "compare", "Comfort of two or more scenes (e.g. panel layouts) side by side");
+  for (auto [cmd, a] : {std::pair{cmd_comfort, &comfort}, std::pair{cmd_compare, &compare}}) {
+    const bool one = cmd == cmd_comfort;
+    cmd->add_option("scene", a->inputs, one ? "Scene file (.toml) with a [comfort] table"
+                                            : "Scene files (.toml) with [comfort] tables")
+        ->required()
+        ->expected(one ? 1 : 2, one ? 1 : 64);
+    if (one) cmd->add_option("-o,--output", a->output_dir, "Folder for comfort.csv and maps");
+    cmd->add_flag("-q,--quiet", a->rays.quiet, "No progress, notes or view-factor lines");
+    cmd->add_option("--threads", a->rays.threads, "Worker threads (default: all)")
+        ->check(CLI::Range(0, 1024));
+    CLI::Option* dir = cmd->add_option("--cache", a->cache_dir, "View-factor cache folder");
+    cmd->add_flag("--no-cache", a->no_cache, "Always trace view factors")->excludes(dir);
+  }
+
   RenderArgs render;
   CLI::App* cmd_render = app.add_subcommand(
       "render", "PNG picture of the model coloured by surface, patch area or a view factor");
@@ -128,6 +147,8 @@ int main(int argc, char** argv) {
     if (*cmd_check) return run_check_command(check);
     if (*cmd_solve) return run_solve_command(solve);
     if (*cmd_render) return run_render_command(render);
+    if (*cmd_comfort) return run_comfort_command(comfort);
+    if (*cmd_compare) return run_compare_command(compare);
   } catch (const hearthray::InputError& e) {
     std::cerr << "error: " << e.what() << "\n";
     return 2;

@@ -1,0 +1,72 @@
+// Outputs of the comfort figures: the table for the terminal, the summary over the points,
+// comfort.csv, floor-plan maps, plain cautions about hot surfaces, and one line per scene for
+// comparing layouts. Every report carries kComfortCaution.
+#pragma once
+
+#include <iosfwd>
+#include <string>
+#include <vector>
+
+#include "hearthray/comfort.hpp"
+#include "hearthray/render.hpp"
+#include "hearthray/thermal_model.hpp"
+
+namespace hearthray {
+
+inline constexpr const char* kComfortCaution =
+    "These comfort figures are engineering estimates from a gray, diffuse radiation model with "
+    "Monte Carlo statistics and standard curves; they are no substitute for local codes, the "
+    "heater maker's instructions and professional design.";
+
+// Min, mean and max over points, and the share of points within each limit.
+struct Range {
+  double min = 0, mean = 0, max = 0;
+};
+struct ComfortSummary {
+  std::size_t points = 0;
+  Range mean_radiant_K, operative_K, vertical_K, horizontal_K;
+  double within_vertical = 0;    // share of points (0..1) with vertical asymmetry within limit
+  double within_horizontal = 0;  // the same, horizontal
+  double within_both = 0;
+  const PointComfort* worst = nullptr;  // largest asymmetry relative to its limit
+  double worst_ratio = 0;               // that asymmetry / its limit
+};
+ComfortSummary summarise_comfort(const std::vector<PointComfort>& points);
+
+// One line per point: name, kind, t_mr, t_o (with standard errors), asymmetries with their
+// cases and PD, verdict; then the summary and where the limits come from.
+void print_comfort_table(std::ostream& out, const std::vector<PointComfort>& points,
+                         const ComfortSummary& summary);
+
+// One row per point: position, body, t_mr, the six t_pr, asymmetries, PD, t_o (°C), standard
+// errors, lost fraction, verdict.
+void write_comfort_csv(std::ostream& out, const std::vector<PointComfort>& points);
+
+// Plain warnings: hot surfaces within reach, glass close to hot surfaces, and the general
+// caution (clearances from anything that burns; local codes; the maker's instructions).
+std::vector<std::string> comfort_cautions(const Scene& scene,
+                                          const std::vector<SurfaceHeat>& surfaces);
+
+// Heated surfaces: those given a positive power or heat flux.
+struct HeaterSummary {
+  double power_W = 0;
+  double surface_max_K = 0;  // hottest piece of any heated surface
+  std::size_t count = 0;
+};
+HeaterSummary summarise_heaters(const ThermalModel& model,
+                                const std::vector<SurfaceHeat>& surfaces);
+
+// A floor-plan map of one quantity over the grid points (x right, y up), the room outline and
+// every surface's plan outline drawn over it: heated surfaces in red-orange outline, surfaces
+// whose name holds "window" or "glass" in light blue; a colour bar with its range, written
+// with a small built-in digit font (the render module's font is not public).
+enum class MapQuantity { mean_radiant, operative, asymmetry };
+struct MapOptions {
+  int pixels_per_metre = 100;
+  std::vector<std::string> heaters;  // surface names drawn as heaters
+};
+// Throws InputError when no point belongs to a grid.
+Image comfort_map(const Scene& scene, const std::vector<PointComfort>& points, MapQuantity q,
+                  const MapOptions& options);
+
+}  // namespace hearthray

@@ -1,0 +1,234 @@
+// `hearthray comfort` and `hearthray compare`: a scene solved as `solve` does it, then the
+// comfort figures at the points of its [comfort] table (library: hearthray/comfort.hpp).
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <iostream>
+#include <sstream>
+
+#include "commands.hpp"
+#include "hearthray/comfort.hpp"
+#include "hearthray/comfort_report.hpp"
+#include "hearthray/error.hpp"
+#include "hearthray/thermal_report.hpp"
+
+namespace hearthray::cli {
+
+namespace {
+
+namespace fs = std::filesystem;
+
+constexpr double kZeroCelsius = 273.15;
+// A point whose rays leave the room more often than this is probably outside it.
+constexpr double kLostWarning = 1e-3;
+
+struct ComfortRun {
+  SolvedScene solved;
+  std::vector<PointComfort> points;
+  std::vector<SurfaceHeat> surfaces;
+  HeaterSummary heaters;
+  std::vector<std::string> cautions;
+  std::vector<std::string> heater_names;
+};
+
+CacheChoice cache_choice(const ComfortArgs& args) {
+  CacheChoice cache;
+  cache.use = !args.no_cache;
+  cache.dir = args.cache_dir;
+  return cache;
+}
+
+// Solves `input` and computes its comfort figures. Returns an exit code (0 when all went well).
+int run_comfort(const std::string& input, const ComfortArgs& args, ComfortRun* out) {
+  {
+    // The [comfort] table and its points are checked before any ray is traced.
+    const SceneFile file = open_scene(input);
+    if (!file.comfort) {
+      throw InputError(input +
+                       ": no [comfort] table: add one with air_temperature = \"20 C\" and "
+                       "[comfort.point.NAME] position = [\"1.2 m\", \"2.0 m\", \"0.6 m\"] or "
+                       "[comfort.grid] height = \"0.6 m\"");
+    }
+    comfort_points(load_scene(file), *file.comfort);
+  }
+  SolvedScene& s = out->solved;
+  if (const int status = solve_scene(input, args.rays, cache_choice(args), &s)) return status;
+  if (s.result.status != ExchangeStatus::converged) {
+    std::cerr << "error: " << input << ": the exchange solve did not converge ("
+              << to_string(s.result.status) << "): " << s.result.message
+              << "; no comfort figures without surface temperatures\n";
+    return kExitNotConverged;
+  }
+  const ComfortInput& in = *s.file.comfort;
+  const std::vector<ComfortPoint> points = comfort_points(s.run.scene, in);
+  const Tracer tracer(s.run.scene);
+  AngleFactorOptions options;
+  options.rays = in.rays;
+  options.seed = s.run.seed;
+  options.threads = args.rays.threads;
+  const std::vector<PointFactors> factors =
+      trace_angle_factors(s.run.scene, s.run.patches, tracer, points, options);
+
+  RadiantField field;
+  for (const FaceResult& f : s.result.faces) field.radiosity.push_back(f.radiosity);
+  field.surroundings_K = s.model.surroundings_K.value_or(0.0);
+  ComfortConditions air{in.air_K, in.air_speed};
+  for (std::size_t k = 0; k < points.size(); ++k) {
+    out->points.push_back(evaluate_comfort(points[k], factors[k], field, air));
+    const double lost = out->points.back().lost_fraction;
+    if (lost > kLostWarning) {
+      std::cerr << "warning: " << input << ": " << std::to_string(100 * lost).substr(0, 5)
+                << " % of the rays from point " << points[k].name
+                << " leave the room or meet the back of a wall: is the point inside?"
+                << (s.model.surroundings_K ? "" : " (they are counted at 0 K: no [surroundings])")
+                << "\n";
+    }
+  }
+  out->surfaces = surface_heat(s.model, s.result);
+  out->heaters = summarise_heaters(s.model, out->surfaces);
+  out->cautions = comfort_cautions(s.run.scene, out->surfaces);
+  for (std::size_t k = 0; k < s.model.surface_conditions.size(); ++k) {
+    const NodeCondition& c = s.model.surface_conditions[k];
+    if ((c.kind == ConditionKind::power || c.kind == ConditionKind::heat_flux) && c.value > 0)
+      out->heater_names.push_back(s.model.surface_names[k]);
+  }
+  return 0;
+}
+
+std::string fmt(const char* spec, double v) {
+  char b[64];
+  std::snprintf(b, sizeof b, spec, v);
+  return b;
+}
+
+void print_report(std::ostream& out, const ComfortRun& r) {
+  const ComfortInput& in = *r.solved.file.comfort;
+  out << "air " << fmt("%.1f C", in.air_K - kZeroCelsius) << ", " << fmt("%.2g m/s", in.air_speed)
+      << "; " << in.rays << " rays per point for the body and for each of six planes, seed "
+      << r.solved.run.seed << "\n";
+  if (r.heaters.count) {
+    out << "heaters: " << r.heaters.count << ", " << fmt("%.0f W", r.heaters.power_W)
+        << " in total, surface up to " << fmt("%.1f C", r.heaters.surface_max_K - kZeroCelsius)
+        << "\n";
+  }
+  out << "\n";
+  print_comfort_table(out, r.points, summarise_comfort(r.points));
+  out << "\ncautions:\n";
+  for (const std::string& c : r.cautions) out << "  - " << c << "\n";
+}
+
+}  // namespace
+
+int run_comfort_command(const ComfortArgs& args) {
+  const std::string& input = args.inputs.at(0);
+  ComfortRun r;
+  if (const int status = run_comfort(input, args, &r)) return status;
+  if (!args.rays.quiet) {
+    std::cout << "hearthray comfort " << input << "\n";
+    for (const std::string& line : r.solved.log) std::cout << line << "\n";
+  }
+  print_report(std::cout, r);
+  if (args.output_dir.empty()) return 0;
+
+  const fs::path dir = make_output_dir(args.output_dir);
+  std::vector<std::string> files = {"comfort.csv", "comfort.txt"};
+  {
+    std::ofstream csv = open_output(dir / "comfort.csv");
+    write_comfort_csv(csv, r.points);
+  }
+  {
+    std::ofstream text = open_output(dir / "comfort.txt");
+    text << "hearthray comfort " << input << "\n";
+    print_report(text, r);
+  }
+  const bool grid = std::any_of(r.points.begin(), r.points.end(),
+                                [](const PointComfort& p) { return p.point.grid_i >= 0; });
+  if (grid) {
+    MapOptions options;
+    options.heaters = r.heater_names;
+    const std::pair<MapQuantity, const char*> maps[] = {
+        {MapQuantity::mean_radiant, "map_mean_radiant.png"},
+        {MapQuantity::operative, "map_operative.png"},
+        {MapQuantity::asymmetry, "map_asymmetry.png"}};
+    for (const auto& [q, name] : maps) {
+      write_png((dir / name).string(), comfort_map(r.solved.run.scene, r.points, q, options));
+      files.push_back(name);
+    }
+  }
+  if (!args.rays.quiet) {
+    std::cout << "\nwrote " << dir.string() << ": ";
+    for (std::size_t k = 0; k < files.size(); ++k) std::cout << (k ? ", " : "") << files[k];
+    std::cout << "\n";
+  }
+  return 0;
+}
+
+int run_compare_command(const ComfortArgs& args) {
+  std::vector<ComfortRun> runs(args.inputs.size());
+  for (std::size_t k = 0; k < args.inputs.size(); ++k) {
+    if (const int status = run_comfort(args.inputs[k], args, &runs[k])) return status;
+  }
+  std::vector<std::string> head = {""};
+  for (const std::string& in : args.inputs) head.push_back(fs::path(in).stem().string());
+  std::vector<std::vector<std::string>> rows = {head};
+  auto row = [&](const std::string& label, auto cell) {
+    std::vector<std::string> r = {label};
+    for (const ComfortRun& run : runs) r.push_back(cell(run, summarise_comfort(run.points)));
+    rows.push_back(r);
+  };
+  using S = ComfortSummary;
+  row("heated surfaces", [](const ComfortRun& r, const S&) { return std::to_string(r.heaters.count); });
+  row("heater power (W)", [](const ComfortRun& r, const S&) { return fmt("%.0f", r.heaters.power_W); });
+  row("heater surface, hottest (C)", [](const ComfortRun& r, const S&) {
+    return r.heaters.count ? fmt("%.1f", r.heaters.surface_max_K - kZeroCelsius) : "-";
+  });
+  row("points", [](const ComfortRun&, const S& s) { return std::to_string(s.points); });
+  row("mean radiant temp. min-max (C)", [](const ComfortRun&, const S& s) {
+    return fmt("%.1f", s.mean_radiant_K.min - kZeroCelsius) + " - " +
+           fmt("%.1f", s.mean_radiant_K.max - kZeroCelsius);
+  });
+  row("operative temp. min-max (C)", [](const ComfortRun&, const S& s) {
+    return fmt("%.1f", s.operative_K.min - kZeroCelsius) + " - " +
+           fmt("%.1f", s.operative_K.max - kZeroCelsius);
+  });
+  row("operative temp. mean (C)",
+      [](const ComfortRun&, const S& s) { return fmt("%.1f", s.operative_K.mean - kZeroCelsius); });
+  row("vertical asymmetry max (K)",
+      [](const ComfortRun&, const S& s) { return fmt("%.1f", s.vertical_K.max); });
+  row("horizontal asymmetry max (K)",
+      [](const ComfortRun&, const S& s) { return fmt("%.1f", s.horizontal_K.max); });
+  row("worst asymmetry / its limit", [](const ComfortRun&, const S& s) {
+    return fmt("%.2f", s.worst_ratio);
+  });
+  row("share within limits", [](const ComfortRun&, const S& s) {
+    return fmt("%.0f %%", 100 * s.within_both);
+  });
+
+  std::vector<std::size_t> width(head.size(), 0);
+  for (const auto& r : rows)
+    for (std::size_t c = 0; c < r.size(); ++c) width[c] = std::max(width[c], r[c].size());
+  std::cout << "hearthray compare\n\n";
+  for (const auto& r : rows) {
+    for (std::size_t c = 0; c < r.size(); ++c) {
+      const std::string fill(width[c] - r[c].size(), ' ');
+      std::cout << (c == 0 ? r[c] + fill : "   " + fill + r[c]);
+    }
+    std::cout << "\n";
+  }
+  std::cout << "\nlimits (PD about 5 %): warm ceiling 5 K, cool wall 10 K, cool ceiling 14 K, "
+               "warm wall 23 K (ISO 7730 Table A.4, ASHRAE 55; recalled from memory).\n"
+               "\ncautions:\n";
+  std::vector<std::string> said;
+  for (std::size_t k = 0; k < runs.size(); ++k) {
+    for (const std::string& c : runs[k].cautions) {
+      if (std::find(said.begin(), said.end(), c) != said.end()) continue;
+      said.push_back(c);
+      const bool general = c == kComfortCaution || c.rfind("Keep the clearances", 0) == 0;
+      std::cout << "  - " << (general ? "" : head[k + 1] + ": ") << c << "\n";
+    }
+  }
+  return 0;
+}
+
+}  // namespace hearthray::cli

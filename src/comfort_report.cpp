@@ -1,0 +1,232 @@
+// Comfort outputs: table, summary, CSV, cautions and heater summary (see comfort_report.hpp).
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <ostream>
+
+#include "hearthray/comfort_report.hpp"
+
+namespace hearthray {
+namespace {
+
+constexpr double kZeroCelsius = 273.15;
+// A person can reach a surface whose lowest point is below this height above the floor
+// (common practice for an arm's reach; no published source).
+constexpr double kReachHeight_m = 2.0;
+// Surfaces above about 43 C can burn skin on long contact (EN ISO 13732-1 gives thresholds for
+// contact of minutes to hours around 43-51 C; recalled from memory).
+constexpr double kTouchLimit_C = 43;
+// A surface counts as hot for the glass warning above this temperature, and glass within this
+// distance of it (gap between their bounding boxes) is named. Our own round numbers.
+constexpr double kHot_C = 40;
+constexpr double kNearGlass_m = 0.6;
+
+std::string fmt(const char* spec, double v) {
+  char b[64];
+  std::snprintf(b, sizeof b, spec, v);
+  return b;
+}
+
+std::string pad(const std::string& s, std::size_t w) {
+  return s.size() >= w ? s : std::string(w - s.size(), ' ') + s;
+}
+
+std::string name_pad(const std::string& s, std::size_t w) {
+  return s.size() >= w ? s : s + std::string(w - s.size(), ' ');
+}
+
+std::string celsius(double K) {
+  return fmt("%.1f", K - kZeroCelsius);
+}
+
+Range range(const std::vector<PointComfort>& points, double (*get)(const PointComfort&)) {
+  Range r{INFINITY, 0, -INFINITY};
+  for (const PointComfort& p : points) {
+    const double v = get(p);
+    r.min = std::min(r.min, v);
+    r.max = std::max(r.max, v);
+    r.mean += v / double(points.size());
+  }
+  return r;
+}
+
+std::string lower(std::string s) {
+  std::transform(s.begin(), s.end(), s.begin(), [](unsigned char c) { return char(std::tolower(c)); });
+  return s;
+}
+
+Box3 surface_box(const Scene& scene, std::uint32_t s) {
+  Box3 b;
+  const Surface& surf = scene.surfaces[s];
+  for (std::uint32_t t = surf.first_triangle; t < surf.first_triangle + surf.triangle_count; ++t) {
+    for (std::uint32_t v : scene.triangles[t].v) b.grow(scene.vertices[v]);
+  }
+  return b;
+}
+
+double box_gap(const Box3& a, const Box3& b) {
+  const Vec3 d{std::max({0.0, a.lo.x - b.hi.x, b.lo.x - a.hi.x}),
+               std::max({0.0, a.lo.y - b.hi.y, b.lo.y - a.hi.y}),
+               std::max({0.0, a.lo.z - b.hi.z, b.lo.z - a.hi.z})};
+  return norm(d);
+}
+
+std::string verdict(const PointComfort& p) {
+  if (p.within_limits()) return "within limits";
+  std::string v;
+  if (!p.vertical.within()) v += to_string(p.vertical.kind) + " over " + fmt("%.0f K", p.vertical.limit_K);
+  if (!p.horizontal.within()) {
+    v += (v.empty() ? "" : "; ") + to_string(p.horizontal.kind) + " over " +
+         fmt("%.0f K", p.horizontal.limit_K);
+  }
+  return v;
+}
+
+}  // namespace
+
+ComfortSummary summarise_comfort(const std::vector<PointComfort>& points) {
+  ComfortSummary s;
+  s.points = points.size();
+  if (points.empty()) return s;
+  s.mean_radiant_K = range(points, [](const PointComfort& p) { return p.mean_radiant.kelvin; });
+  s.operative_K = range(points, [](const PointComfort& p) { return p.operative_K; });
+  s.vertical_K = range(points, [](const PointComfort& p) { return p.vertical.delta_K; });
+  s.horizontal_K = range(points, [](const PointComfort& p) { return p.horizontal.delta_K; });
+  const double n = double(points.size());
+  for (const PointComfort& p : points) {
+    s.within_vertical += p.vertical.within() / n;
+    s.within_horizontal += p.horizontal.within() / n;
+    s.within_both += p.within_limits() / n;
+    for (const Asymmetry* a : {&p.vertical, &p.horizontal}) {
+      const double ratio = a->delta_K / a->limit_K;
+      if (!s.worst || ratio > s.worst_ratio) {
+        s.worst = &p;
+        s.worst_ratio = ratio;
+      }
+    }
+  }
+  return s;
+}
+
+void print_comfort_table(std::ostream& out, const std::vector<PointComfort>& points,
+                         const ComfortSummary& s) {
+  std::size_t w = 5;
+  for (const PointComfort& p : points) w = std::max(w, p.point.name.size());
+  out << name_pad("point", w) << "  " << name_pad("kind", 8) << pad("t_mr C", 8) << pad("+-", 6)
+      << pad("t_o C", 8) << pad("vert K", 8) << "  " << name_pad("case", 12) << pad("PD %", 6)
+      << pad("horiz K", 9) << "  " << name_pad("case", 10) << pad("PD %", 6) << "  verdict\n";
+  for (const PointComfort& p : points) {
+    out << name_pad(p.point.name, w) << "  " << name_pad(to_string(p.point.body), 8)
+        << pad(celsius(p.mean_radiant.kelvin), 8) << pad(fmt("%.2f", p.mean_radiant.se_K), 6)
+        << pad(celsius(p.operative_K), 8) << pad(fmt("%.1f", p.vertical.delta_K), 8) << "  "
+        << name_pad(to_string(p.vertical.kind), 12) << pad(fmt("%.1f", p.vertical.pd_percent), 6)
+        << pad(fmt("%.1f", p.horizontal.delta_K), 9) << "  "
+        << name_pad(to_string(p.horizontal.kind), 10)
+        << pad(fmt("%.1f", p.horizontal.pd_percent), 6) << "  " << verdict(p) << "\n";
+  }
+  if (points.empty()) return;
+  auto line = [&](const char* what, const Range& r, bool temperature) {
+    const double shift = temperature ? kZeroCelsius : 0;
+    out << "  " << name_pad(what, 34) << fmt("%7.1f", r.min - shift) << fmt("%7.1f", r.mean - shift)
+        << fmt("%7.1f", r.max - shift) << "\n";
+  };
+  out << "\nsummary over " << s.points << " points" << name_pad("", 9) << "    min   mean    max\n";
+  line("mean radiant temperature (C)", s.mean_radiant_K, true);
+  line("operative temperature (C)", s.operative_K, true);
+  line("vertical asymmetry (K)", s.vertical_K, false);
+  line("horizontal asymmetry (K)", s.horizontal_K, false);
+  out << "  within the vertical limit: " << fmt("%.0f %%", 100 * s.within_vertical)
+      << "; horizontal: " << fmt("%.0f %%", 100 * s.within_horizontal)
+      << "; both: " << fmt("%.0f %%", 100 * s.within_both) << " of points\n";
+  if (s.worst) {
+    const PointComfort& p = *s.worst;
+    const Asymmetry& a =
+        p.vertical.delta_K / p.vertical.limit_K >= p.horizontal.delta_K / p.horizontal.limit_K
+            ? p.vertical
+            : p.horizontal;
+    out << "  worst asymmetry: " << fmt("%.1f K", a.delta_K) << " (" << to_string(a.kind)
+        << ", limit " << fmt("%.0f K", a.limit_K) << ", PD " << fmt("%.1f %%", a.pd_percent)
+        << ") at " << p.point.name << "\n";
+  }
+  out << "limits (PD about 5 %): warm ceiling 5 K, cool wall 10 K, cool ceiling 14 K, warm wall "
+         "23 K -- ISO 7730 Table A.4 (categories A, B) and ASHRAE 55; PD from the ISO 7730 "
+         "curves (sec. 6.3). Values recalled from memory; check them against the standards.\n"
+         "t_o = A t_a + (1 - A) t_mr, A = 0.5 / 0.6 / 0.7 for air below 0.2 / 0.6 / 1.0 m/s "
+         "(ISO 7726, ASHRAE 55; recalled). +- is one standard error of t_mr from the rays.\n";
+}
+
+void write_comfort_csv(std::ostream& out, const std::vector<PointComfort>& points) {
+  out << "point,kind,x_m,y_m,z_m,mean_radiant_C,mean_radiant_se_K,operative_C";
+  for (const char* d : kPlaneNames) out << ",plane_radiant_" << d << "_C";
+  out << ",vertical_asymmetry_K,vertical_se_K,vertical_case,vertical_pd_percent"
+         ",horizontal_asymmetry_K,horizontal_se_K,horizontal_axis,horizontal_case,"
+         "horizontal_pd_percent,lost_fraction,within_limits\n";
+  auto num = [](double v) { return fmt("%.6g", v); };
+  for (const PointComfort& p : points) {
+    out << p.point.name << "," << to_string(p.point.body) << "," << num(p.point.position.x) << ","
+        << num(p.point.position.y) << "," << num(p.point.position.z) << ","
+        << num(p.mean_radiant.kelvin - kZeroCelsius) << "," << num(p.mean_radiant.se_K) << ","
+        << num(p.operative_K - kZeroCelsius);
+    for (const RadiantTemperature& t : p.plane) out << "," << num(t.kelvin - kZeroCelsius);
+    out << "," << num(p.vertical.delta_K) << "," << num(p.vertical.se_K) << ","
+        << to_string(p.vertical.kind) << "," << num(p.vertical.pd_percent) << ","
+        << num(p.horizontal.delta_K) << "," << num(p.horizontal.se_K) << ","
+        << (p.horizontal.axis == 0 ? "x" : "y") << "," << to_string(p.horizontal.kind) << ","
+        << num(p.horizontal.pd_percent) << "," << num(p.lost_fraction) << ","
+        << (p.within_limits() ? "yes" : "no") << "\n";
+  }
+}
+
+std::vector<std::string> comfort_cautions(const Scene& scene,
+                                          const std::vector<SurfaceHeat>& surfaces) {
+  std::vector<std::string> out;
+  const double floor = scene.bounds.lo.z;
+  for (std::size_t s = 0; s < surfaces.size() && s < scene.surfaces.size(); ++s) {
+    const SurfaceHeat& hot = surfaces[s];
+    const double t_C = hot.temperature_max_K - kZeroCelsius;
+    if (t_C <= kHot_C) continue;
+    const Box3 box = surface_box(scene, std::uint32_t(s));
+    const double low = box.lo.z - floor;
+    if (t_C > kTouchLimit_C && low < kReachHeight_m) {
+      out.push_back(hot.name + " reaches " + fmt("%.0f C", t_C) + " and comes down to " +
+                    fmt("%.1f m", low) +
+                    " above the floor, within reach: surfaces above about 43 C can burn on "
+                    "longer contact; guard it or place it out of reach, as the maker says.");
+    }
+    for (std::size_t g = 0; g < scene.surfaces.size(); ++g) {
+      const std::string n = lower(scene.surfaces[g].name);
+      if (g == s || (n.find("window") == std::string::npos && n.find("glass") == std::string::npos &&
+                     n.find("glaz") == std::string::npos))
+        continue;
+      const double gap = box_gap(box, surface_box(scene, std::uint32_t(g)));
+      if (gap <= kNearGlass_m) {
+        out.push_back(scene.surfaces[g].name + " (glass) is " + fmt("%.2f m", gap) + " from " +
+                      hot.name + " at " + fmt("%.0f C", t_C) +
+                      ": uneven heating can crack glass; keep the clearance the panel maker "
+                      "gives.");
+      }
+    }
+  }
+  out.push_back(
+      "Keep the clearances the heater maker gives from curtains, furniture, glass and anything "
+      "that burns; follow local codes and the maker's instructions.");
+  out.push_back(kComfortCaution);
+  return out;
+}
+
+HeaterSummary summarise_heaters(const ThermalModel& model,
+                                const std::vector<SurfaceHeat>& surfaces) {
+  HeaterSummary h;
+  for (std::size_t s = 0; s < surfaces.size() && s < model.surface_conditions.size(); ++s) {
+    const NodeCondition& c = model.surface_conditions[s];
+    const bool heated = (c.kind == ConditionKind::power || c.kind == ConditionKind::heat_flux) &&
+                        c.value > 0;
+    if (!heated) continue;
+    ++h.count;
+    h.power_W += surfaces[s].heat_input_W;
+    h.surface_max_K = std::max(h.surface_max_K, surfaces[s].temperature_max_K);
+  }
+  return h;
+}
+
+}  // namespace hearthray

@@ -1,0 +1,325 @@
+// The exchange solver's large path (sparse Newton-Krylov) against its dense path (LU of the
+// radiosity matrix, Newton on the node temperatures alone) on the same problems, each path
+// forced through ExchangeOptions::dense_face_limit; the energy balance of closed enclosures;
+// reported non-convergence; independence from the thread count; and the GMRES helper itself.
+// The problems are synthetic (random sparse symmetric exchange areas: reciprocity exact by
+// construction), common practice for checking one solver against another; no published
+// source. The two paths share only the input checks and the final flux formula, so agreement
+// to 1e-8 is a real check of the Newton-Krylov solve.
+#include <tbb/global_control.h>
+#include <tbb/task_arena.h>
+
+#include <Eigen/Dense>
+#include <Eigen/SparseCore>
+#include <catch2/catch.hpp>
+#include <cmath>
+#include <random>
+#include <vector>
+
+#include "../src/exchange_krylov.hpp"
+#include "hearthray/exchange.hpp"
+#include "hearthray/units.hpp"
+
+using namespace hearthray;
+
+namespace {
+
+// n faces with about `partners` random partners each: S symmetric, no self-view. Face i loses
+// a random share (up to open_fraction) of its radiation out of the scene, split between
+// escape and back faces; A_i = (row sum of S) / (1 - lost_i), so A_i F_ij = S_ij exactly.
+ViewFactors random_enclosure(int n, int partners, double open_fraction, std::uint64_t seed) {
+  std::mt19937_64 rng(seed);
+  std::uniform_real_distribution<double> unit(0.0, 1.0);
+  std::vector<Eigen::Triplet<double>> s;
+  for (int i = 0; i < n; ++i) {
+    for (int k = 0; k < partners / 2; ++k) {
+      int j = int(unit(rng) * (n - 1)) % (n - 1);
+      if (j >= i) ++j;
+      const double w = 0.05 + unit(rng);
+      s.emplace_back(i, j, w);
+      s.emplace_back(j, i, w);
+    }
+  }
+  SparseMatrix S(n, n);
+  S.setFromTriplets(s.begin(), s.end());
+  const Eigen::VectorXd row = S * Eigen::VectorXd::Ones(n);
+  ViewFactors vf;
+  Eigen::VectorXd inverse_area(n);
+  for (int i = 0; i < n; ++i) {
+    const double lost = open_fraction * unit(rng);
+    vf.areas.push_back(row[i] / (1 - lost));
+    inverse_area[i] = 1 / vf.areas[i];
+    vf.names.push_back("p" + std::to_string(i));
+    vf.to_surroundings.push_back(0.7 * lost);
+    vf.to_back_faces.push_back(lost - 0.7 * lost);
+  }
+  vf.rays.assign(n, 0);
+  vf.F = inverse_area.asDiagonal() * S;
+  return vf;
+}
+
+enum class Mix { fixed_only, inputs, conduction };
+
+// Node k's condition: fixed temperatures only, or fixed / power / heat flux / adiabatic in
+// turn, with convection and wall losses on some in the `conduction` mix.
+NodeCondition condition(Mix mix, int k, std::mt19937_64& rng) {
+  std::uniform_real_distribution<double> unit(0.0, 1.0);
+  NodeCondition c;
+  const int kind = mix == Mix::fixed_only ? 0 : k % 4;
+  switch (kind) {
+    case 0:
+      c = {ConditionKind::temperature, 400 + 900 * unit(rng), {}, {}};
+      break;
+    case 1:
+      c = {ConditionKind::power, 50 + 200 * unit(rng), {}, {}};
+      break;
+    case 2:
+      c = {ConditionKind::heat_flux, 1000 * unit(rng), {}, {}};
+      break;
+    default:
+      c = {ConditionKind::adiabatic, 0, {}, {}};
+  }
+  if (mix == Mix::conduction && kind != 0 && k % 3 == 0) c.convection = Convection{12, 310};
+  if (mix == Mix::conduction && k % 5 == 0) c.wall_loss = WallLoss{2.5, 290};
+  return c;
+}
+
+// Faces [0, n) on nodes: `faces_per_node` consecutive faces per node (2: two-sided sheets),
+// or, with `spread` > 0, face i on node i % spread (surfaces of many patches).
+ExchangeProblem make_problem(const ViewFactors& vf, Mix mix, int faces_per_node, int spread,
+                             std::uint64_t seed) {
+  const int n = int(vf.areas.size());
+  const int nodes = spread > 0 ? spread : (n + faces_per_node - 1) / faces_per_node;
+  std::mt19937_64 rng(seed);
+  std::uniform_real_distribution<double> unit(0.0, 1.0);
+  ExchangeProblem p;
+  p.view_factors = &vf;
+  for (int k = 0; k < nodes; ++k) p.nodes.push_back({"n" + std::to_string(k), condition(mix, k, rng)});
+  for (int i = 0; i < n; ++i) {
+    const int node = spread > 0 ? i % spread : i / faces_per_node;
+    p.faces.push_back({std::uint32_t(node), 0.2 + 0.8 * unit(rng)});
+  }
+  bool open = false;
+  for (int i = 0; i < n; ++i) open = open || vf.to_surroundings[i] + vf.to_back_faces[i] > 0;
+  if (open) p.surroundings_K = 300.0;
+  return p;
+}
+
+ExchangeOptions forced(bool large, int faces) {
+  ExchangeOptions o;
+  o.dense_face_limit = large ? 0 : faces;
+  return o;
+}
+
+// Both paths solve `p`; every reported quantity agrees to 1e-8, relative to itself for
+// temperatures, radiosities and irradiations, and to the largest of its kind for flows (a net
+// flow near zero, e.g. of a reradiating node, has no relative accuracy of its own).
+void check_paths_agree(const ExchangeProblem& p) {
+  const int n = int(p.faces.size());
+  const ExchangeResult large = solve_exchange(p, forced(true, n));
+  const ExchangeResult dense = solve_exchange(p, forced(false, n));
+  INFO(large.BriefReport());
+  INFO(dense.BriefReport());
+  REQUIRE(large.status == ExchangeStatus::converged);
+  REQUIRE(dense.status == ExchangeStatus::converged);
+  REQUIRE(large.iterative);
+  REQUIRE_FALSE(dense.iterative);
+  CHECK(large.linear_iterations > 0);
+  CHECK(dense.linear_iterations == 0);
+  double flow = 0, flux = 0;
+  for (const NodeResult& node : dense.nodes) {
+    flow = std::max({flow, std::abs(node.net_radiation_W), std::abs(node.heat_input_W)});
+  }
+  for (const FaceResult& f : dense.faces) flux = std::max(flux, std::abs(f.net_flux));
+  const double rel = 1e-8;
+  for (std::size_t k = 0; k < p.nodes.size(); ++k) {
+    CHECK(large.nodes[k].temperature_K == Approx(dense.nodes[k].temperature_K).epsilon(rel));
+    CHECK(large.nodes[k].net_radiation_W ==
+          Approx(dense.nodes[k].net_radiation_W).margin(rel * flow));
+    CHECK(large.nodes[k].heat_input_W == Approx(dense.nodes[k].heat_input_W).margin(rel * flow));
+    CHECK(large.nodes[k].convection_W == Approx(dense.nodes[k].convection_W).margin(rel * flow));
+    CHECK(large.nodes[k].wall_loss_W == Approx(dense.nodes[k].wall_loss_W).margin(rel * flow));
+  }
+  for (int i = 0; i < n; ++i) {
+    CHECK(large.faces[i].radiosity == Approx(dense.faces[i].radiosity).epsilon(rel));
+    CHECK(large.faces[i].irradiation == Approx(dense.faces[i].irradiation).epsilon(rel));
+    CHECK(large.faces[i].net_flux == Approx(dense.faces[i].net_flux).margin(rel * flux));
+  }
+  CHECK(large.surroundings_W == Approx(dense.surroundings_W).margin(rel * flow));
+  CHECK(large.final_residual_W <= 1e-9 * flow);
+}
+
+double largest_flow(const ExchangeResult& r) {
+  double largest = 0;
+  for (const NodeResult& node : r.nodes) largest = std::max(largest, std::abs(node.net_radiation_W));
+  return largest;
+}
+
+}  // namespace
+
+TEST_CASE("large and dense paths agree: fixed temperatures, closed enclosure", "[exchange]") {
+  const ViewFactors vf = random_enclosure(400, 40, 0.0, 11);
+  check_paths_agree(make_problem(vf, Mix::fixed_only, 1, 0, 12));
+}
+
+TEST_CASE("large and dense paths agree: powers, heat fluxes and adiabatic nodes",
+          "[exchange]") {
+  const ViewFactors vf = random_enclosure(400, 40, 0.0, 21);
+  check_paths_agree(make_problem(vf, Mix::inputs, 1, 0, 22));
+}
+
+TEST_CASE("large and dense paths agree: convection and wall losses", "[exchange]") {
+  const ViewFactors vf = random_enclosure(400, 40, 0.0, 31);
+  check_paths_agree(make_problem(vf, Mix::conduction, 1, 0, 32));
+}
+
+TEST_CASE("large and dense paths agree: two-sided sheets (two faces on a node)", "[exchange]") {
+  const ViewFactors vf = random_enclosure(400, 40, 0.0, 41);
+  check_paths_agree(make_problem(vf, Mix::conduction, 2, 0, 42));
+}
+
+TEST_CASE("large and dense paths agree: open scene with surroundings and back faces",
+          "[exchange]") {
+  const ViewFactors vf = random_enclosure(400, 40, 0.3, 51);
+  check_paths_agree(make_problem(vf, Mix::conduction, 1, 0, 52));
+}
+
+TEST_CASE("large and dense paths agree: surfaces of many faces", "[exchange]") {
+  const ViewFactors vf = random_enclosure(600, 30, 0.1, 61);
+  check_paths_agree(make_problem(vf, Mix::conduction, 1, 24, 62));
+}
+
+TEST_CASE("the large path balances closed enclosures to 1e-9 of the largest heat flow",
+          "[exchange]") {
+  const ViewFactors vf = random_enclosure(3000, 60, 0.0, 71);
+  for (Mix mix : {Mix::fixed_only, Mix::inputs, Mix::conduction}) {
+    const ExchangeProblem p = make_problem(vf, mix, 1, 0, 72);
+    const ExchangeResult r = solve_exchange(p, forced(true, 3000));
+    INFO(r.BriefReport());
+    REQUIRE(r.status == ExchangeStatus::converged);
+    const double largest = largest_flow(r);
+    REQUIRE(largest > 0);
+    CHECK(std::abs(r.balance_W) <= 1e-9 * largest);
+    CHECK(r.surroundings_W == 0);
+    // Heat put in equals heat taken out by convection and wall losses.
+    double input = 0, conducted = 0, scale = 0;
+    for (const NodeResult& n : r.nodes) {
+      input += n.heat_input_W;
+      conducted += n.convection_W + n.wall_loss_W;
+      scale = std::max(scale, std::abs(n.heat_input_W));
+    }
+    CHECK(std::abs(input - conducted) <= 1e-9 * std::max(largest, scale));
+    CHECK(r.final_residual_W <= 1e-9 * largest);
+  }
+}
+
+TEST_CASE("the large path reports non-convergence instead of throwing", "[exchange]") {
+  const ViewFactors vf = random_enclosure(300, 30, 0.0, 81);
+  const ExchangeProblem p = make_problem(vf, Mix::conduction, 1, 0, 82);
+  ExchangeOptions o = forced(true, 300);
+
+  SECTION("too few Newton iterations") {
+    o.max_iterations = 1;
+    ExchangeResult r;
+    REQUIRE_NOTHROW(r = solve_exchange(p, o));
+    CHECK(r.status == ExchangeStatus::not_converged);
+    CHECK(r.iterations == 1);
+    CHECK_THAT(r.message, Catch::Contains("did not converge in 1 iterations"));
+    CHECK(r.final_residual_W > 1e-9 * largest_flow(r));
+    CHECK_THAT(r.BriefReport(), Catch::Contains("NOT CONVERGED"));
+  }
+  SECTION("too few linear iterations") {
+    o.max_linear_iterations = 2;
+    const ExchangeResult r = solve_exchange(p, o);
+    CHECK(r.status == ExchangeStatus::not_converged);
+    CHECK_THAT(r.message, Catch::Contains("linear solve of Newton step 1"));
+    CHECK_THAT(r.message, Catch::Contains("max_linear_iterations"));
+    CHECK(r.linear_iterations == 2);
+    CHECK(r.linear_residual > 0);
+  }
+  SECTION("a heat input no positive temperature can balance") {
+    // Radiation only: taking 1 GW out of one patch has no solution.
+    ExchangeProblem q = make_problem(vf, Mix::inputs, 1, 0, 82);
+    q.nodes[1].condition = {ConditionKind::power, -1e9, {}, {}};
+    const ExchangeResult r = solve_exchange(q, o);
+    CHECK(r.status == ExchangeStatus::not_converged);
+    CHECK_THAT(r.message, Catch::Contains("no solution with positive temperatures") &&
+                              Catch::Contains("'n1'"));
+  }
+}
+
+TEST_CASE("the large path gives bitwise the same result for any thread count", "[exchange]") {
+  const ViewFactors vf = random_enclosure(2000, 60, 0.1, 91);
+  const ExchangeProblem p = make_problem(vf, Mix::conduction, 1, 0, 92);
+  auto solve_with = [&](int threads) {
+    tbb::global_control allow(tbb::global_control::max_allowed_parallelism, threads);
+    tbb::task_arena arena(threads);
+    ExchangeResult r;
+    arena.execute([&] { r = solve_exchange(p, forced(true, 2000)); });
+    return r;
+  };
+  const ExchangeResult one = solve_with(1), four = solve_with(4);
+  REQUIRE(one.status == ExchangeStatus::converged);
+  CHECK(one.iterations == four.iterations);
+  CHECK(one.linear_iterations == four.linear_iterations);
+  bool same = true;
+  for (std::size_t i = 0; i < p.faces.size(); ++i) {
+    same = same && one.faces[i].radiosity == four.faces[i].radiosity &&
+           one.faces[i].net_flux == four.faces[i].net_flux;
+  }
+  for (std::size_t k = 0; k < p.nodes.size(); ++k) {
+    same = same && one.nodes[k].temperature_K == four.nodes[k].temperature_K;
+  }
+  CHECK(same);
+  CHECK(one.balance_W == four.balance_W);
+}
+
+TEST_CASE("GMRES solves a non-symmetric system to its stated residual", "[exchange]") {
+  using exchange_detail::gmres;
+  using exchange_detail::KrylovOptions;
+  using exchange_detail::LinearOperator;
+  // A diagonally dominant non-symmetric matrix; the reference is a dense LU solve.
+  const int n = 200;
+  std::mt19937_64 rng(5);
+  std::uniform_real_distribution<double> unit(-1.0, 1.0);
+  Eigen::MatrixXd A(n, n);
+  for (int i = 0; i < n; ++i) {
+    for (int j = 0; j < n; ++j) A(i, j) = unit(rng) / n;
+    A(i, i) += 1.0 + 0.5 * (i % 7);
+  }
+  Eigen::VectorXd b(n);
+  for (int i = 0; i < n; ++i) b[i] = unit(rng);
+  const Eigen::VectorXd reference = A.partialPivLu().solve(b);
+  const LinearOperator op = [&](const Eigen::VectorXd& x, Eigen::VectorXd* y) { *y = A * x; };
+
+  for (int restart : {3, 10, 100}) {
+    KrylovOptions o;
+    o.tolerance = 1e-12;
+    o.restart = restart;
+    Eigen::VectorXd x;
+    const auto summary = gmres(op, LinearOperator(), b, o, &x);
+    INFO("restart " << restart);
+    CHECK(summary.converged);
+    CHECK(summary.relative_residual <= 1e-12);
+    CHECK((b - A * x).norm() <= 1e-12 * b.norm() * (1 + 1e-9));
+    CHECK((x - reference).norm() <= 1e-10 * reference.norm());
+  }
+  // A preconditioner (the inverse diagonal) changes the path, not the answer.
+  KrylovOptions o;
+  o.tolerance = 1e-12;
+  const Eigen::VectorXd inverse_diagonal = A.diagonal().cwiseInverse();
+  const LinearOperator jacobi = [&](const Eigen::VectorXd& x, Eigen::VectorXd* y) {
+    *y = inverse_diagonal.cwiseProduct(x);
+  };
+  Eigen::VectorXd x;
+  CHECK(gmres(op, jacobi, b, o, &x).converged);
+  CHECK((x - reference).norm() <= 1e-10 * reference.norm());
+  // Out of iterations: reported, with the true residual.
+  o.max_iterations = 2;
+  o.restart = 1;
+  const auto cut = gmres(op, LinearOperator(), b, o, &x);
+  CHECK_FALSE(cut.converged);
+  CHECK(cut.iterations == 2);
+  CHECK(cut.relative_residual == Approx((b - A * x).norm() / b.norm()).epsilon(1e-12));
+  CHECK(cut.relative_residual > 1e-12);
+}
