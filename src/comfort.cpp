@@ -37,7 +37,7 @@ BodyShape shape(ComfortBody body) {
     case ComfortBody::seated:
       return {0.25, 0.20};
     default:
-      return {1.0, 0.0};
+      return {1.0, 1.0};  // the sphere: handled apart (weight 1 in every direction)
   }
 }
 
@@ -90,8 +90,8 @@ struct Scratch {
 };
 
 DirectionTally trace_one(const PatchSet& patches, const Tracer& tracer, const ComfortPoint& point,
-                         std::size_t point_index, std::size_t e,
-                         const AngleFactorOptions& options, Scratch& s) {
+                         std::size_t point_index, std::size_t e, const AngleFactorOptions& options,
+                         Scratch& s) {
   if (s.count.size() != patches.size()) s.count.assign(patches.size(), 0);
   s.rays.resize(kBatch);
   s.hits.resize(kBatch);
@@ -138,11 +138,13 @@ DirectionTally trace_one(const PatchSet& patches, const Tracer& tracer, const Co
 }  // namespace
 
 double projected_area_weight(ComfortBody body, double sin_beta) {
+  if (body == ComfortBody::sphere) return 1;
   const BodyShape f = shape(body);
   return f.a * std::sqrt(std::max(0.0, 1 - sin_beta * sin_beta)) + f.b * std::abs(sin_beta);
 }
 
 double body_density_max(ComfortBody body) {
+  if (body == ComfortBody::sphere) return 1;
   const BodyShape f = shape(body);
   return std::hypot(f.a, f.b);
 }
@@ -161,8 +163,7 @@ double factor_standard_error(double f, std::uint64_t n) {
   return n ? std::sqrt(std::max(0.0, f * (1 - f)) / double(n)) : 0;
 }
 
-double factor_to_surface(const DirectionTally& t, const PatchSet& patches,
-                         std::uint32_t surface) {
+double factor_to_surface(const DirectionTally& t, const PatchSet& patches, std::uint32_t surface) {
   std::uint64_t hits = 0;
   for (std::size_t k = 0; k < t.patch.size(); ++k) {
     if (patches.patches[t.patch[k]].surface == surface) hits += t.count[k];
@@ -212,8 +213,9 @@ std::vector<ComfortPoint> comfort_points(const Scene& scene, const ComfortInput&
                          std::to_string(hi - lo) + " m long there)");
       }
       const int n = int(std::floor(length / g.spacing + 1e-9)) + 1;
-      if (n > 1000) throw InputError("[comfort.grid] spacing gives over 1000 points along " +
-                                     std::string(name) + ": give a larger spacing");
+      if (n > 1000)
+        throw InputError("[comfort.grid] spacing gives over 1000 points along " +
+                         std::string(name) + ": give a larger spacing");
       std::vector<double> at(std::size_t(n), 0.0);
       const double start = 0.5 * (lo + hi) - 0.5 * (n - 1) * g.spacing;
       for (int i = 0; i < n; ++i) at[std::size_t(i)] = start + i * g.spacing;

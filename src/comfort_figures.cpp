@@ -83,21 +83,22 @@ double operative_air_weight(double air_speed) {
 RadiantTemperature radiant_temperature(const DirectionTally& t, const RadiantField& field) {
   RadiantTemperature r;
   if (t.rays == 0) return r;
-  // Per-ray value X = J/sigma of the patch hit (K^4), or T_s^4 for a ray that is lost.
+  // Per-ray value X = J/sigma of the patch hit (K^4), or T_s^4 for a ray that is lost. Two
+  // passes (mean, then squared deviations) keep a uniform room's error at exactly zero.
   const double n = double(t.rays);
-  double mean = 0, square = 0;
-  for (std::size_t k = 0; k < t.patch.size(); ++k) {
-    const double x = field.radiosity[t.patch[k]] / kStefanBoltzmann;
-    const double f = double(t.count[k]) / n;
-    mean += f * x;
-    square += f * x * x;
-  }
   const double lost = t.lost();
   const double xs = std::pow(field.surroundings_K, 4);
-  mean += lost * xs;
-  square += lost * xs * xs;
+  double mean = lost * xs;
+  for (std::size_t k = 0; k < t.patch.size(); ++k) {
+    mean += double(t.count[k]) / n * (field.radiosity[t.patch[k]] / kStefanBoltzmann);
+  }
+  double variance = lost * (xs - mean) * (xs - mean);
+  for (std::size_t k = 0; k < t.patch.size(); ++k) {
+    const double d = field.radiosity[t.patch[k]] / kStefanBoltzmann - mean;
+    variance += double(t.count[k]) / n * d * d;
+  }
+  variance /= n;
   r.kelvin = std::pow(std::max(mean, 0.0), 0.25);
-  const double variance = std::max(0.0, square - mean * mean) / n;
   r.se_K = r.kelvin > 0 ? std::sqrt(variance) / (4 * r.kelvin * r.kelvin * r.kelvin) : 0;
   return r;
 }
@@ -113,10 +114,9 @@ PointComfort evaluate_comfort(const ComfortPoint& point, const PointFactors& fac
   const RadiantTemperature& up = c.plane[plus_z];
   const RadiantTemperature& down = c.plane[minus_z];
   const double vertical = up.kelvin - down.kelvin;
-  c.vertical = make_asymmetry(vertical, std::hypot(up.se_K, down.se_K),
-                              vertical >= 0 ? AsymmetryCase::warm_ceiling
-                                            : AsymmetryCase::cool_ceiling,
-                              2);
+  c.vertical =
+      make_asymmetry(vertical, std::hypot(up.se_K, down.se_K),
+                     vertical >= 0 ? AsymmetryCase::warm_ceiling : AsymmetryCase::cool_ceiling, 2);
 
   const double dx = c.plane[plus_x].kelvin - c.plane[minus_x].kelvin;
   const double dy = c.plane[plus_y].kelvin - c.plane[minus_y].kelvin;

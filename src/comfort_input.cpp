@@ -91,15 +91,17 @@ class ComfortReader {
     char* end = nullptr;
     const double v = std::strtod(s.c_str(), &end);
     std::string unit(end == s.c_str() ? s : std::string(end));
-    unit.erase(std::remove_if(unit.begin(), unit.end(),
-                              [](unsigned char c) { return std::isspace(c); }),
-               unit.end());
+    unit.erase(
+        std::remove_if(unit.begin(), unit.end(), [](unsigned char c) { return std::isspace(c); }),
+        unit.end());
     if (end == s.c_str() || unit != "m/s" || !std::isfinite(v)) {
       fail(node, "air_speed in [comfort] is \"" + s + "\"; write air_speed = \"0.1 m/s\"");
     }
     if (v < 0 || v > kMaxAirSpeed) {
-      fail(node, "air_speed in [comfort] must be between 0 and 1 m/s (the simple operative "
-                 "temperature form of ISO 7726 / ASHRAE 55 holds up to 1 m/s); got \"" + s + "\"");
+      fail(node,
+           "air_speed in [comfort] must be between 0 and 1 m/s (the simple operative "
+           "temperature form of ISO 7726 / ASHRAE 55 holds up to 1 m/s); got \"" +
+               s + "\"");
     }
     return v;
   }
@@ -154,8 +156,8 @@ class ComfortReader {
     const toml::node* air = t.get("air_temperature");
     if (!air) fail(node, "[comfort] has no air_temperature: write air_temperature = \"20 C\"");
     try {
-      in.air_K = parse_temperature(text(*air, "air_temperature", "[comfort]", "20 C"),
-                                   "air_temperature");
+      in.air_K =
+          parse_temperature(text(*air, "air_temperature", "[comfort]", "20 C"), "air_temperature");
     } catch (const InputError& e) {
       fail(*air, std::string("in [comfort], ") + e.what());
     }
@@ -176,9 +178,10 @@ class ComfortReader {
     }
     if (const toml::node* g = t.get("grid")) in.grid = grid(*g);
     if (in.points.empty() && !in.grid) {
-      fail(node, "[comfort] has neither points nor a grid: add [comfort.point.NAME] with "
-                 "position = [\"1.2 m\", \"2.0 m\", \"0.6 m\"], or [comfort.grid] with height, "
-                 "spacing and margin");
+      fail(node,
+           "[comfort] has neither points nor a grid: add [comfort.point.NAME] with "
+           "position = [\"1.2 m\", \"2.0 m\", \"0.6 m\"], or [comfort.grid] with height, "
+           "spacing and margin");
     }
     return in;
   }

@@ -193,31 +193,33 @@ Image comfort_map(const Scene& scene, const std::vector<PointComfort>& points, M
   }
   for (const PointComfort& p : points) {
     if (p.point.grid_i >= 0) continue;
-    const int x = int(std::lround(px(p.point.position.x))), y = int(std::lround(py(p.point.position.y)));
+    const int x = int(std::lround(px(p.point.position.x))),
+              y = int(std::lround(py(p.point.position.y)));
     c.fill(x - 3, y - 3, x + 4, y + 4, {0, 0, 0});
     c.fill(x - 1, y - 1, x + 2, y + 2, {255, 255, 255});
   }
 
-  // Surfaces in plan: glass in light blue, heaters in white with a dark rim, the rest thin grey
-  // (walls seen edge-on fall on the room outline). Passes in order, so that no rim is drawn
-  // over the white line of a neighbouring segment.
-  std::vector<std::array<Vec3, 2>> plain, glass, heater;
+  // Surfaces in plan: glass in light blue, heaters in white with a dark rim (other surfaces
+  // are not drawn: walls seen edge-on fall on the room outline, and the outlines of floor and
+  // ceiling pieces only clutter). Passes in order, so that no rim is drawn over the white line
+  // of a neighbouring segment.
+  std::vector<std::array<Vec3, 2>> glass, heater, other;
   for (const Surface& s : scene.surfaces) {
     std::string n = s.name;
     std::transform(n.begin(), n.end(), n.begin(),
                    [](unsigned char ch) { return char(std::tolower(ch)); });
-    auto& into = n.find("window") != std::string::npos || n.find("glass") != std::string::npos
-                     ? glass
-                 : std::find(options.heaters.begin(), options.heaters.end(), s.name) !=
-                         options.heaters.end()
-                     ? heater
-                     : plain;
+    auto& into =
+        n.find("window") != std::string::npos || n.find("glass") != std::string::npos ? glass
+        : std::find(options.heaters.begin(), options.heaters.end(), s.name) != options.heaters.end()
+            ? heater
+            : other;
+    if (&into == &other) continue;
     for (const auto& e : outline(scene, s)) into.push_back(e);
   }
   auto draw = [&](const std::vector<std::array<Vec3, 2>>& edges, int width, Rgb colour) {
-    for (const auto& e : edges) c.line(px(e[0].x), py(e[0].y), px(e[1].x), py(e[1].y), width, colour);
+    for (const auto& e : edges)
+      c.line(px(e[0].x), py(e[0].y), px(e[1].x), py(e[1].y), width, colour);
   };
-  draw(plain, 1, {110, 110, 110});
   draw(glass, 7, {80, 190, 255});
   draw(heater, 5, {20, 20, 20});
   draw(heater, 2, {255, 255, 255});

@@ -1,10 +1,10 @@
 // Comfort outputs: table, summary, CSV, cautions and heater summary (see comfort_report.hpp).
+#include "hearthray/comfort_report.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <ostream>
-
-#include "hearthray/comfort_report.hpp"
 
 namespace hearthray {
 namespace {
@@ -51,7 +51,8 @@ Range range(const std::vector<PointComfort>& points, double (*get)(const PointCo
 }
 
 std::string lower(std::string s) {
-  std::transform(s.begin(), s.end(), s.begin(), [](unsigned char c) { return char(std::tolower(c)); });
+  std::transform(s.begin(), s.end(), s.begin(),
+                 [](unsigned char c) { return char(std::tolower(c)); });
   return s;
 }
 
@@ -74,7 +75,8 @@ double box_gap(const Box3& a, const Box3& b) {
 std::string verdict(const PointComfort& p) {
   if (p.within_limits()) return "within limits";
   std::string v;
-  if (!p.vertical.within()) v += to_string(p.vertical.kind) + " over " + fmt("%.0f K", p.vertical.limit_K);
+  if (!p.vertical.within())
+    v += to_string(p.vertical.kind) + " over " + fmt("%.0f K", p.vertical.limit_K);
   if (!p.horizontal.within()) {
     v += (v.empty() ? "" : "; ") + to_string(p.horizontal.kind) + " over " +
          fmt("%.0f K", p.horizontal.limit_K);
@@ -195,8 +197,8 @@ std::vector<std::string> comfort_cautions(const Scene& scene,
     }
     for (std::size_t g = 0; g < scene.surfaces.size(); ++g) {
       const std::string n = lower(scene.surfaces[g].name);
-      if (g == s || (n.find("window") == std::string::npos && n.find("glass") == std::string::npos &&
-                     n.find("glaz") == std::string::npos))
+      if (g == s || (n.find("window") == std::string::npos &&
+                     n.find("glass") == std::string::npos && n.find("glaz") == std::string::npos))
         continue;
       const double gap = box_gap(box, surface_box(scene, std::uint32_t(g)));
       if (gap <= kNearGlass_m) {
@@ -219,8 +221,8 @@ HeaterSummary summarise_heaters(const ThermalModel& model,
   HeaterSummary h;
   for (std::size_t s = 0; s < surfaces.size() && s < model.surface_conditions.size(); ++s) {
     const NodeCondition& c = model.surface_conditions[s];
-    const bool heated = (c.kind == ConditionKind::power || c.kind == ConditionKind::heat_flux) &&
-                        c.value > 0;
+    const bool heated =
+        (c.kind == ConditionKind::power || c.kind == ConditionKind::heat_flux) && c.value > 0;
     if (!heated) continue;
     ++h.count;
     h.power_W += surfaces[s].heat_input_W;

@@ -49,7 +49,7 @@ KrylovSummary gmres(const LinearOperator& A, const LinearOperator& precondition,
     }
   };
 
-  Eigen::MatrixXd V(n, m + 1);               // orthonormal Krylov basis
+  Eigen::MatrixXd V(n, m + 1);                          // orthonormal Krylov basis
   Eigen::MatrixXd H = Eigen::MatrixXd::Zero(m + 1, m);  // Hessenberg, rotated to triangular
   Eigen::VectorXd cs(m), sn(m), g(m + 1);
   Eigen::VectorXd r = b, w(n), z(n);

@@ -25,8 +25,8 @@ struct KrylovOptions {
 
 struct KrylovSummary {
   bool converged = false;
-  int iterations = 0;              // products with A
-  double relative_residual = 0;    // ||b - A x||_2 / ||b||_2, recomputed from x at the end
+  int iterations = 0;            // products with A
+  double relative_residual = 0;  // ||b - A x||_2 / ||b||_2, recomputed from x at the end
 };
 
 // Restarted GMRES with right preconditioning (Saad & Schultz, SIAM J. Sci. Stat. Comput. 7,

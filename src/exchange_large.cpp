@@ -134,8 +134,8 @@ Residuals LargeSolver::evaluate(const Iterate& it) const {
     const double conduction =
         s_.hA[k] * (it.T[k] - s_.fluid_K[k]) + s_.UA[k] * (it.T[k] - s_.outside_K[k]);
     const double input = s_.fixed[k] ? 0.0 : s_.input_W[k];
-    scale = std::max({scale, s_.node_area[k] * it.E[k], std::abs(Q[k]), std::abs(conduction),
-                      std::abs(input)});
+    scale = std::max(
+        {scale, s_.node_area[k] * it.E[k], std::abs(Q[k]), std::abs(conduction), std::abs(input)});
     if (!s_.fixed[k]) res.node[k] = Q[k] + conduction - input;
   }
   const double emissive_scale = std::max(it.E.maxCoeff(), s_.surroundings_Eb);
@@ -165,9 +165,8 @@ std::string LargeSolver::not_converged_message(const Residuals& res, const Itera
                      " iterations: largest residual ";
   if (res.node_ratio >= std::max(res.face_ratio, res.energy_ratio)) {
     const Eigen::Index k = res.worst_node;
-    text += format_number(std::abs(res.node[k])) + " W on surface '" + s_.node_names[k] +
-            "' at " + format_number(it.T[k]) + " K (tolerance " +
-            format_number(res.node_allowed) + " W)";
+    text += format_number(std::abs(res.node[k])) + " W on surface '" + s_.node_names[k] + "' at " +
+            format_number(it.T[k]) + " K (tolerance " + format_number(res.node_allowed) + " W)";
     if (it.T[k] < 1) {
       text +=
           "; its temperature heads to 0 K: the heat taken out of it may be more than it can "
@@ -246,11 +245,10 @@ void LargeSolver::solve(ExchangeResult* result, Iterate* it) {
     if (!linear.converged) {
       result->status = ExchangeStatus::not_converged;
       result->message =
-          "the linear solve of Newton step " + std::to_string(result->iterations + 1) +
-          " (GMRES(" + std::to_string(krylov.restart) + ")) reached relative residual " +
-          format_number(linear.relative_residual) + ", not the " +
-          format_number(krylov.tolerance) + " asked, after " +
-          std::to_string(linear.iterations) +
+          "the linear solve of Newton step " + std::to_string(result->iterations + 1) + " (GMRES(" +
+          std::to_string(krylov.restart) + ")) reached relative residual " +
+          format_number(linear.relative_residual) + ", not the " + format_number(krylov.tolerance) +
+          " asked, after " + std::to_string(linear.iterations) +
           " iterations; raise max_linear_iterations, or check the view factors (rows must sum "
           "to 1 or less)";
       return;
@@ -264,10 +262,9 @@ void LargeSolver::solve(ExchangeResult* result, Iterate* it) {
       if (!nonlinear_ && !(it->E[k] + dE > 0)) {
         // Radiation only: the problem is linear and this step went to its exact answer.
         result->status = ExchangeStatus::not_converged;
-        result->message = "no solution with positive temperatures: surface '" +
-                          s_.node_names[k] + "' would need sigma T^4 = " +
-                          format_number(it->E[k] + dE) + " W/m^2 to balance its heat input " +
-                          format_number(s_.input_W[k]) +
+        result->message = "no solution with positive temperatures: surface '" + s_.node_names[k] +
+                          "' would need sigma T^4 = " + format_number(it->E[k] + dE) +
+                          " W/m^2 to balance its heat input " + format_number(s_.input_W[k]) +
                           " W (more heat is taken out than radiation can bring to it)";
         return;
       }

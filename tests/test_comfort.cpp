@@ -2,13 +2,16 @@
 // (closure, the person's projected-area density against a quadrature of the same density),
 // the figures from hand-made tallies, and the `comfort` / `compare` commands end to end.
 // Closed forms and a worked room are in validation/test_comfort_validation.cpp.
+#include <algorithm>
 #include <catch2/catch.hpp>
 #include <cmath>
+#include <filesystem>
 #include <string>
 
 #include "hearthray/comfort.hpp"
 #include "hearthray/comfort_report.hpp"
 #include "hearthray/error.hpp"
+#include "hearthray/sampling.hpp"
 #include "hearthray/scene_file.hpp"
 #include "hearthray/units.hpp"
 #include "support/cli_run.hpp"
@@ -231,19 +234,18 @@ TEST_CASE("comfort and compare commands run end to end", "[comfort]") {
   write_text(dir / "cube.obj", unit_cube_obj());
   write_text(dir / "a.toml", cube_scene(kGoodComfort));
   write_text(dir / "b.toml", cube_scene(std::string(kGoodComfort) + "\n[surface.roof]\n"
-                                        "temperature = \"40 C\"\n"));
-  CliResult r = run_cli("comfort " + (dir / "a.toml").string() + " -q -o " +
-                            (dir / "out").string(),
-                        dir);
+                                                                    "temperature = \"40 C\"\n"));
+  CliResult r =
+      run_cli("comfort " + (dir / "a.toml").string() + " -q -o " + (dir / "out").string(), dir);
   INFO(r.err);
   REQUIRE(r.status == 0);
   CHECK_THAT(r.out, Catch::Contains("middle") && Catch::Contains("within limits") &&
                         Catch::Contains("local codes"));
   const std::string csv = slurp(dir / "out" / "comfort.csv");
   CHECK(std::count(csv.begin(), csv.end(), '\n') == 1 + 10);
-  CHECK(fs::exists(dir / "out" / "map_operative.png"));
+  CHECK(std::filesystem::exists(dir / "out" / "map_operative.png"));
   // Everything at 20 C: t_mr is 20.0 C everywhere.
-  CHECK_THAT(csv, Catch::Contains("middle,seated,0.5,0.5,0.5,0,"));
+  CHECK_THAT(csv, Catch::Contains("middle,seated,0.5,0.5,0.5,20,"));
 
   r = run_cli("compare " + (dir / "a.toml").string() + " " + (dir / "b.toml").string(), dir);
   REQUIRE(r.status == 0);

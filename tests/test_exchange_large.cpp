@@ -94,7 +94,8 @@ ExchangeProblem make_problem(const ViewFactors& vf, Mix mix, int faces_per_node,
   std::uniform_real_distribution<double> unit(0.0, 1.0);
   ExchangeProblem p;
   p.view_factors = &vf;
-  for (int k = 0; k < nodes; ++k) p.nodes.push_back({"n" + std::to_string(k), condition(mix, k, rng)});
+  for (int k = 0; k < nodes; ++k)
+    p.nodes.push_back({"n" + std::to_string(k), condition(mix, k, rng)});
   for (int i = 0; i < n; ++i) {
     const int node = spread > 0 ? i % spread : i / faces_per_node;
     p.faces.push_back({std::uint32_t(node), 0.2 + 0.8 * unit(rng)});
@@ -151,7 +152,8 @@ void check_paths_agree(const ExchangeProblem& p) {
 
 double largest_flow(const ExchangeResult& r) {
   double largest = 0;
-  for (const NodeResult& node : r.nodes) largest = std::max(largest, std::abs(node.net_radiation_W));
+  for (const NodeResult& node : r.nodes)
+    largest = std::max(largest, std::abs(node.net_radiation_W));
   return largest;
 }
 
@@ -162,8 +164,7 @@ TEST_CASE("large and dense paths agree: fixed temperatures, closed enclosure", "
   check_paths_agree(make_problem(vf, Mix::fixed_only, 1, 0, 12));
 }
 
-TEST_CASE("large and dense paths agree: powers, heat fluxes and adiabatic nodes",
-          "[exchange]") {
+TEST_CASE("large and dense paths agree: powers, heat fluxes and adiabatic nodes", "[exchange]") {
   const ViewFactors vf = random_enclosure(400, 40, 0.0, 21);
   check_paths_agree(make_problem(vf, Mix::inputs, 1, 0, 22));
 }

@@ -120,10 +120,10 @@ ViewFactors synthetic_factors(std::size_t n, std::size_t per_row) {
 struct Box {
   double size[3];
   struct Wall {
-    int axis;        // normal along this axis
-    bool high;       // at size[axis] (normal points down the axis) or at 0
-    int u, v;        // in-plane axes
-    int nu, nv;      // patches along u and v
+    int axis;    // normal along this axis
+    bool high;   // at size[axis] (normal points down the axis) or at 0
+    int u, v;    // in-plane axes
+    int nu, nv;  // patches along u and v
     std::size_t first;
   };
   std::vector<Wall> walls;
@@ -288,11 +288,12 @@ ExchangeProblem synthetic_problem(const ViewFactors& vf, double fixed_fraction,
 }
 
 void print_result(const char* label, const ExchangeResult& r, double seconds) {
-  std::printf("  %-6s %9.4f s  Newton %2d  GMRES %5d  status %s  node residual %.2e W  "
-              "balance %.2e W\n",
-              label, seconds, r.iterations, r.linear_iterations,
-              r.status == ExchangeStatus::converged ? "converged" : "FAILED", r.final_residual_W,
-              r.balance_W);
+  std::printf(
+      "  %-6s %9.4f s  Newton %2d  GMRES %5d  status %s  node residual %.2e W  "
+      "balance %.2e W\n",
+      label, seconds, r.iterations, r.linear_iterations,
+      r.status == ExchangeStatus::converged ? "converged" : "FAILED", r.final_residual_W,
+      r.balance_W);
 }
 
 void compare(const ExchangeProblem& p, int repeats) {
@@ -355,10 +356,10 @@ int solve_and_report(const ViewFactors& vf, const ExchangeProblem& p, double bui
   const double F_mib = vf.F.nonZeros() * (sizeof(double) + sizeof(int)) / 1048576.0;
   std::size_t fixed = 0;
   for (const auto& node : p.nodes) fixed += node.condition.kind == ConditionKind::temperature;
-  std::printf("%zu faces, %zu nodes (%zu fixed), %ld non-zeros in F (%.0f MiB); built in "
-              "%.2f s, peak while building %.0f MiB\n",
-              p.faces.size(), p.nodes.size(), fixed, long(vf.F.nonZeros()), F_mib, build_s,
-              peak_mib());
+  std::printf(
+      "%zu faces, %zu nodes (%zu fixed), %ld non-zeros in F (%.0f MiB); built in "
+      "%.2f s, peak while building %.0f MiB\n",
+      p.faces.size(), p.nodes.size(), fixed, long(vf.F.nonZeros()), F_mib, build_s, peak_mib());
   reset_peak();
   const auto start = std::chrono::steady_clock::now();
   const ExchangeResult r = solve_exchange(p, ExchangeOptions{});

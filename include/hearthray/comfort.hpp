@@ -54,8 +54,8 @@ std::vector<ComfortPoint> comfort_points(const Scene& scene, const ComfortInput&
 // Rays from one point in one direction distribution, as counts.
 struct DirectionTally {
   std::uint64_t rays = 0;
-  std::uint64_t escaped = 0;    // hit nothing
-  std::uint64_t back_face = 0;  // met the back of a one-sided surface
+  std::uint64_t escaped = 0;         // hit nothing
+  std::uint64_t back_face = 0;       // met the back of a one-sided surface
   std::vector<std::uint32_t> patch;  // patches hit, ascending
   std::vector<std::uint64_t> count;  // their hits
 
@@ -138,7 +138,7 @@ struct Asymmetry {
   double limit_K = 0;
   double pd_percent = 0;
   bool pd_extrapolated = false;
-  int axis = 2;       // 0 x, 1 y, 2 z
+  int axis = 2;  // 0 x, 1 y, 2 z
   bool within() const { return delta_K < limit_K; }
 };
 
@@ -146,8 +146,8 @@ struct PointComfort {
   ComfortPoint point;
   RadiantTemperature mean_radiant;
   std::array<RadiantTemperature, 6> plane;  // plane radiant temperatures by PlaneDirection
-  Asymmetry vertical;    // +z (up-facing element: ceiling side) against -z
-  Asymmetry horizontal;  // the larger of x and y
+  Asymmetry vertical;                       // +z (up-facing element: ceiling side) against -z
+  Asymmetry horizontal;                     // the larger of x and y
   double operative_K = 0;
   double lost_fraction = 0;  // of the body's rays: left the scene or met a back face
   bool within_limits() const { return vertical.within() && horizontal.within(); }

@@ -62,10 +62,10 @@ struct ExchangeFace {
 
 struct ExchangeProblem {
   std::vector<ExchangeNode> nodes;
-  std::vector<ExchangeFace> faces;      // one per row of view_factors, same order
+  std::vector<ExchangeFace> faces;  // one per row of view_factors, same order
   // Areas, F, to_surroundings and to_back_faces per face (the last two may be empty: none).
   const ViewFactors* view_factors = nullptr;
-  std::optional<double> surroundings_K;       // needed when any face sees the surroundings
+  std::optional<double> surroundings_K;  // needed when any face sees the surroundings
 };
 
 struct ExchangeOptions {
@@ -96,34 +96,34 @@ struct ExchangeOptions {
 enum class ExchangeStatus { converged, not_converged, singular };
 
 struct FaceResult {
-  double radiosity = 0;     // W/m^2
-  double irradiation = 0;   // W/m^2
-  double net_flux = 0;      // W/m^2, radiation leaving minus arriving
-  double net_power = 0;     // W
+  double radiosity = 0;    // W/m^2
+  double irradiation = 0;  // W/m^2
+  double net_flux = 0;     // W/m^2, radiation leaving minus arriving
+  double net_power = 0;    // W
 };
 
 struct NodeResult {
   std::string name;
-  double area = 0;              // m^2, all faces
+  double area = 0;  // m^2, all faces
   double temperature_K = 0;
-  double net_radiation_W = 0;   // net radiation leaving, all faces
-  double convection_W = 0;      // to the fluid (positive out of the surface)
-  double wall_loss_W = 0;       // through the wall (positive out of the surface)
-  double heat_input_W = 0;      // = net_radiation + convection + wall_loss
-  double residual_W = 0;        // balance residual for nodes with a prescribed input
+  double net_radiation_W = 0;  // net radiation leaving, all faces
+  double convection_W = 0;     // to the fluid (positive out of the surface)
+  double wall_loss_W = 0;      // through the wall (positive out of the surface)
+  double heat_input_W = 0;     // = net_radiation + convection + wall_loss
+  double residual_W = 0;       // balance residual for nodes with a prescribed input
 };
 
 struct ExchangeResult {
   ExchangeStatus status = ExchangeStatus::singular;
   std::string message;
   int iterations = 0;
-  double final_residual_W = 0;      // max over nodes of |balance residual|
-  double radiosity_residual = 0;    // W/m^2, max over faces of |radiosity equation residual|
-  bool iterative = false;           // the large path (sparse Newton-Krylov) was used
-  int linear_iterations = 0;        // large path: GMRES iterations over all Newton steps
-  double linear_residual = 0;       // large path: relative residual of the last linear solve
-  double surroundings_W = 0;        // net radiation received by the surroundings
-  double balance_W = 0;             // sum of radiation out of all faces minus surroundings
+  double final_residual_W = 0;    // max over nodes of |balance residual|
+  double radiosity_residual = 0;  // W/m^2, max over faces of |radiosity equation residual|
+  bool iterative = false;         // the large path (sparse Newton-Krylov) was used
+  int linear_iterations = 0;      // large path: GMRES iterations over all Newton steps
+  double linear_residual = 0;     // large path: relative residual of the last linear solve
+  double surroundings_W = 0;      // net radiation received by the surroundings
+  double balance_W = 0;           // sum of radiation out of all faces minus surroundings
   std::vector<FaceResult> faces;
   std::vector<NodeResult> nodes;
 

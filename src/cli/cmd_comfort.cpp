@@ -178,8 +178,10 @@ int run_compare_command(const ComfortArgs& args) {
     rows.push_back(r);
   };
   using S = ComfortSummary;
-  row("heated surfaces", [](const ComfortRun& r, const S&) { return std::to_string(r.heaters.count); });
-  row("heater power (W)", [](const ComfortRun& r, const S&) { return fmt("%.0f", r.heaters.power_W); });
+  row("heated surfaces",
+      [](const ComfortRun& r, const S&) { return std::to_string(r.heaters.count); });
+  row("heater power (W)",
+      [](const ComfortRun& r, const S&) { return fmt("%.0f", r.heaters.power_W); });
   row("heater surface, hottest (C)", [](const ComfortRun& r, const S&) {
     return r.heaters.count ? fmt("%.1f", r.heaters.surface_max_K - kZeroCelsius) : "-";
   });
@@ -198,12 +200,10 @@ int run_compare_command(const ComfortArgs& args) {
       [](const ComfortRun&, const S& s) { return fmt("%.1f", s.vertical_K.max); });
   row("horizontal asymmetry max (K)",
       [](const ComfortRun&, const S& s) { return fmt("%.1f", s.horizontal_K.max); });
-  row("worst asymmetry / its limit", [](const ComfortRun&, const S& s) {
-    return fmt("%.2f", s.worst_ratio);
-  });
-  row("share within limits", [](const ComfortRun&, const S& s) {
-    return fmt("%.0f %%", 100 * s.within_both);
-  });
+  row("worst asymmetry / its limit",
+      [](const ComfortRun&, const S& s) { return fmt("%.2f", s.worst_ratio); });
+  row("share within limits",
+      [](const ComfortRun&, const S& s) { return fmt("%.0f %%", 100 * s.within_both); });
 
   std::vector<std::size_t> width(head.size(), 0);
   for (const auto& r : rows)
@@ -219,15 +219,18 @@ int run_compare_command(const ComfortArgs& args) {
   std::cout << "\nlimits (PD about 5 %): warm ceiling 5 K, cool wall 10 K, cool ceiling 14 K, "
                "warm wall 23 K (ISO 7730 Table A.4, ASHRAE 55; recalled from memory).\n"
                "\ncautions:\n";
-  std::vector<std::string> said;
+  // Cautions about one scene first, named; then the general ones, once.
+  std::vector<std::string> general;
   for (std::size_t k = 0; k < runs.size(); ++k) {
     for (const std::string& c : runs[k].cautions) {
-      if (std::find(said.begin(), said.end(), c) != said.end()) continue;
-      said.push_back(c);
-      const bool general = c == kComfortCaution || c.rfind("Keep the clearances", 0) == 0;
-      std::cout << "  - " << (general ? "" : head[k + 1] + ": ") << c << "\n";
+      if (c == kComfortCaution || c.rfind("Keep the clearances", 0) == 0) {
+        if (std::find(general.begin(), general.end(), c) == general.end()) general.push_back(c);
+      } else {
+        std::cout << "  - " << head[k + 1] << ": " << c << "\n";
+      }
     }
   }
+  for (const std::string& c : general) std::cout << "  - " << c << "\n";
   return 0;
 }
 
