@@ -94,7 +94,7 @@ int main(int argc, char** argv) {
   options.rays_for_patch = d.rays;
   options.threads = threads;
   TraceStats stats;
-  const Tallies tallies = trace_tallies(d.scene, d.patches, tracer, options, &stats);
+  Tallies tallies = trace_tallies(d.scene, d.patches, tracer, options, &stats);
   stages.done("trace", std::to_string(stats.rays) + " rays, " +
                            std::to_string(stats.rays_per_second / 1e6).substr(0, 5) + " Mrays/s, " +
                            std::to_string(tallies.hit_patch.size()) + " non-zeros");
@@ -103,7 +103,7 @@ int main(int argc, char** argv) {
       smooth_view_factors(d.patches, tallies, SmoothingOptions{}, &smoothing);
   stages.done("smoothing", std::to_string(smoothing.iterations) + " iterations, row error " +
                                std::to_string(smoothing.max_row_error));
-  const ThermalModel model = build_thermal_model(file, d.scene, d.patches, factors);
+  const ThermalModel model = build_thermal_model(file, d.scene, d.patches, std::move(factors));
   stages.done("thermal model", std::to_string(model.nodes.size()) + " nodes, " +
                                    std::to_string(model.faces.size()) + " faces");
   const ExchangeResult result = solve_exchange(model.problem(), ExchangeOptions{});

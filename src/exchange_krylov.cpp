@@ -54,13 +54,13 @@ KrylovSummary gmres(const LinearOperator& A, const LinearOperator& precondition,
   Eigen::VectorXd cs(m), sn(m), g(m + 1);
   Eigen::VectorXd r = b, w(n), z(n);
   double beta = b_norm;  // ||b - A x|| for the current x (x = 0 at the start)
+  bool broke_down = false;
   while (beta > target && summary.iterations < options.max_iterations) {
     V.col(0) = r / beta;
     H.setZero();
     g.setZero();
     g[0] = beta;
     Index j = 0;
-    bool broke_down = false;
     while (j < m && summary.iterations < options.max_iterations) {
       apply_preconditioner(V.col(j), &z);
       A(z, &w);
@@ -112,6 +112,7 @@ KrylovSummary gmres(const LinearOperator& A, const LinearOperator& precondition,
   }
   summary.relative_residual = beta / b_norm;
   summary.converged = beta <= target;
+  summary.breakdown = broke_down && !summary.converged;
   return summary;
 }
 

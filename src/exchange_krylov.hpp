@@ -27,6 +27,7 @@ struct KrylovSummary {
   bool converged = false;
   int iterations = 0;            // products with A
   double relative_residual = 0;  // ||b - A x||_2 / ||b||_2, recomputed from x at the end
+  bool breakdown = false;        // A z = 0 for some z != 0: the operator is singular
 };
 
 // Restarted GMRES with right preconditioning (Saad & Schultz, SIAM J. Sci. Stat. Comput. 7,

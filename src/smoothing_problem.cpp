@@ -24,10 +24,14 @@ using Index = SparseMatrix::StorageIndex;
 constexpr std::size_t kPairsPerBlock = std::size_t{1} << 16;
 constexpr std::size_t kMaxBlocks = 16;
 
-inline Eigen::Index at(std::size_t i) { return static_cast<Eigen::Index>(i); }
+inline Eigen::Index at(std::size_t i) {
+  return static_cast<Eigen::Index>(i);
+}
 
 // Self, escaped and back-face exchange areas; a zero count stays +0 even where mu_i <= 0.
-inline double own_area(double count, double mu_i) { return count == 0 ? 0.0 : count / mu_i; }
+inline double own_area(double count, double mu_i) {
+  return count == 0 ? 0.0 : count / mu_i;
+}
 
 // Visits the partners j > i of row i in ascending order: receivers j of row i's rays and
 // senders j whose rays reached i (sent_from[sent_begin[i] .. sent_begin[i+1])), each once, as
@@ -119,8 +123,8 @@ std::vector<std::size_t> partition(const std::vector<std::uint64_t>& offsets) {
   block[0] = 0;
   for (std::size_t b = 1; b < blocks; ++b) {
     const std::uint64_t target = total * b / blocks;
-    block[b] = static_cast<std::size_t>(
-        std::lower_bound(offsets.begin(), offsets.end(), target) - offsets.begin());
+    block[b] = static_cast<std::size_t>(std::lower_bound(offsets.begin(), offsets.end(), target) -
+                                        offsets.begin());
   }
   return block;
 }
@@ -235,7 +239,8 @@ Problem make_problem(const PatchSet& patches, const Tallies& t) {
     const std::uint32_t* last = t.hit_patch.data() + t.hit_offset[i + 1];
     const std::uint32_t* self = std::lower_bound(first, last, static_cast<std::uint32_t>(i));
     if (self != last && *self == i) {
-      p.self[at(i)] = static_cast<double>(t.hit_count[static_cast<std::size_t>(self - t.hit_patch.data())]);
+      p.self[at(i)] =
+          static_cast<double>(t.hit_count[static_cast<std::size_t>(self - t.hit_patch.data())]);
     }
   }
   p.lumped = p.self + p.escaped + p.back;
@@ -253,8 +258,8 @@ Problem make_problem(const PatchSet& patches, const Tallies& t) {
       }
     }
   };
-  std::vector<std::uint64_t> cursor = block_histograms<std::uint64_t>(
-      tally_block, n, [&](std::size_t b, auto&& add) {
+  std::vector<std::uint64_t> cursor =
+      block_histograms<std::uint64_t>(tally_block, n, [&](std::size_t b, auto&& add) {
         each_sender(b, [&](std::uint32_t i, std::size_t) { add(i); });
       });
   std::vector<std::uint64_t> sent_begin(n + 1, 0);
@@ -298,15 +303,15 @@ Problem make_problem(const PatchSet& patches, const Tallies& t) {
   double* count = p.F.valuePtr();
   for_each_block(p.block, [&](std::size_t, std::size_t first, std::size_t last) {
     // Row j's rays to partners i < j are read in ascending i as the block's rows are filled,
-    // from the first one at or after the block's first row.
+    // from the first one at or after the block's first row (only senders j > first matter).
     std::vector<std::uint64_t> next(n);
-    for (std::size_t j = 0; j < n; ++j) {
+    for (std::size_t j = first + 1; j < n; ++j) {
       const std::uint32_t* row = t.hit_patch.data() + t.hit_offset[j];
-      next[j] = t.hit_offset[j] +
-                static_cast<std::uint64_t>(
-                    std::lower_bound(row, t.hit_patch.data() + t.hit_offset[j + 1],
-                                     static_cast<std::uint32_t>(first)) -
-                    row);
+      next[j] =
+          t.hit_offset[j] +
+          static_cast<std::uint64_t>(std::lower_bound(row, t.hit_patch.data() + t.hit_offset[j + 1],
+                                                      static_cast<std::uint32_t>(first)) -
+                                     row);
     }
     for (std::size_t i = first; i < last; ++i) {
       std::uint64_t out = p.row_begin[i];
@@ -345,7 +350,8 @@ void row_sums(Problem& p, const Eigen::VectorXd& mu, Eigen::VectorXd* R, Eigen::
   const auto size = static_cast<Eigen::Index>(p.n);
   R->resize(size);
   H_diag->resize(size);
-  accumulate_pairs<2>(p, RowSumKernel{mu.data(), p.count(), p.weight()}, {R->data(), H_diag->data()});
+  accumulate_pairs<2>(p, RowSumKernel{mu.data(), p.count(), p.weight()},
+                      {R->data(), H_diag->data()});
   for (Eigen::Index i = 0; i < size; ++i) {
     const double c = p.lumped[i];
     p.own_weight[i] = c == 0 ? 0.0 : c / (mu[i] * mu[i]);
@@ -385,8 +391,8 @@ double step_to_boundary(Problem& p, const Eigen::VectorXd& mu, const Eigen::Vect
       if (p.lumped[ii] > 0 && di < 0) a = std::min(a, 0.95 * mu_i / -di);
       for (std::uint64_t k = p.row_begin[i]; k < p.row_begin[i + 1]; ++k) {
         const Eigen::Index j = partner[k];
-        const double d = di + delta[j];
-        if (d < 0) a = std::min(a, 0.95 * (mu_i + mu[j]) / -d);
+        const double d = di + delta[j], room = 0.95 * (mu_i + mu[j]);
+        if (a * -d > room) a = room / -d;  // divides only where the step shrinks
       }
     }
     alpha[b] = a;
@@ -404,11 +410,12 @@ Measures finish(Problem& p, const Eigen::VectorXd& mu, const Tallies& t, ViewFac
   offset[0] = 0;
   for (std::size_t i = 0; i < n; ++i) {
     lower[i] = column_total(p.block_lower, blocks, n, i);
-    offset[i + 1] =
-        offset[i] + lower[i] + has_self(i) + static_cast<Index>(p.row_begin[i + 1] - p.row_begin[i]);
+    offset[i + 1] = offset[i] + lower[i] + has_self(i) +
+                    static_cast<Index>(p.row_begin[i + 1] - p.row_begin[i]);
   }
-  // Move each row's pairs to the end of its final row, last row first: a row never moves
-  // down, and every row below has already moved, so nothing is overwritten before it is read.
+  // Move each row's pairs to the end of its final row, last row first: a row only moves to
+  // higher positions, and every later row has already moved, so nothing is overwritten before
+  // it is read.
   // The weights (values from `pairs` on) are no longer needed.
   for (std::size_t i = n; i-- > 0;) {
     const std::uint64_t from = p.row_begin[i], len = p.row_begin[i + 1] - from;
@@ -456,7 +463,8 @@ Measures finish(Problem& p, const Eigen::VectorXd& mu, const Tallies& t, ViewFac
   std::vector<Index>().swap(p.block_lower);
   Measures m;
   const double top = *std::max_element(largest.begin(), largest.end());
-  m.max_reciprocity_error = top > 0 ? *std::max_element(asymmetry.begin(), asymmetry.end()) / top : 0;
+  m.max_reciprocity_error =
+      top > 0 ? *std::max_element(asymmetry.begin(), asymmetry.end()) / top : 0;
 
   // Row sums and the largest change from the raw factors F_ij = N_ij / N_i, row by row.
   std::vector<double> row_error(blocks, 0.0), correction(blocks, 0.0);

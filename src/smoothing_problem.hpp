@@ -24,16 +24,16 @@ namespace smoothing_detail {
 struct Problem {
   std::size_t n = 0;
   std::size_t pairs = 0;
-  SparseMatrix F;  // the storage described above until finish()
+  SparseMatrix F;                        // the storage described above until finish()
   std::vector<std::uint64_t> row_begin;  // n + 1: row i's pairs are [row_begin[i], row_begin[i+1])
   // Per block b and row j (index b n + j): partners i < j in block b's rows; finish() lays out
   // the entries left of the diagonal with them.
   std::vector<SparseMatrix::StorageIndex> block_lower;
   // Per patch: self hits N_ii, escaped and back-face rays, their sum c_i, and the area.
   Eigen::VectorXd self, escaped, back, lumped, area;
-  Eigen::VectorXd own_weight;            // c_i / mu_i^2 at the last row_sums()
-  std::vector<std::size_t> block;        // row boundaries of the fixed blocks (size blocks + 1)
-  std::vector<double> scratch;           // per-block accumulators of the passes
+  Eigen::VectorXd own_weight;      // c_i / mu_i^2 at the last row_sums()
+  std::vector<std::size_t> block;  // row boundaries of the fixed blocks (size blocks + 1)
+  std::vector<double> scratch;     // per-block accumulators of the passes
 
   const int* partner() const { return F.innerIndexPtr(); }
   const double* count() const { return F.valuePtr(); }

@@ -31,19 +31,15 @@ double lost(const ViewFactors& vf, std::size_t i) {
 // Leaks returned to the face that emitted them: S_ii += A_i F_i,lost. Symmetric, row sums
 // unchanged (see the header).
 void fold_leaks(ViewFactors* vf) {
+  // One free slot per row, then add on the diagonal in place (inserting it where the row has
+  // none): O(non-zeros), no triplet list, no second copy of the matrix.
   const std::size_t n = vf->size();
-  std::vector<Eigen::Triplet<double>> entries;
-  entries.reserve(static_cast<std::size_t>(vf->F.nonZeros()) + n);
-  for (Eigen::Index i = 0; i < vf->F.outerSize(); ++i) {
-    for (SparseMatrix::InnerIterator it(vf->F, i); it; ++it) {
-      entries.emplace_back(it.row(), it.col(), it.value());
-    }
-  }
+  vf->F.reserve(Eigen::VectorXi::Constant(static_cast<Eigen::Index>(n), 1));
   for (std::size_t i = 0; i < n; ++i) {
     const double share = lost(*vf, i);
-    if (share > 0) entries.emplace_back(Eigen::Index(i), Eigen::Index(i), share);
+    if (share > 0) vf->F.coeffRef(Eigen::Index(i), Eigen::Index(i)) += share;
   }
-  vf->F.setFromTriplets(entries.begin(), entries.end());  // duplicates are summed
+  vf->F.makeCompressed();
   vf->to_surroundings.assign(n, 0.0);
   vf->to_back_faces.assign(n, 0.0);
 }
@@ -107,7 +103,7 @@ std::vector<SurfaceThermal> check_thermal_input(const SceneFile& file, const Sce
 }
 
 ThermalModel build_thermal_model(const SceneFile& file, const Scene& scene, const PatchSet& patches,
-                                 const ViewFactors& factors, const ThermalModelOptions& options) {
+                                 ViewFactors factors, const ThermalModelOptions& options) {
   std::string error;
   if (!options.IsValid(&error)) throw InputError("thermal model options: " + error);
   const std::vector<SurfaceThermal> thermal = check_thermal_input(file, scene);
@@ -118,7 +114,7 @@ ThermalModel build_thermal_model(const SceneFile& file, const Scene& scene, cons
   }
 
   ThermalModel m;
-  m.factors = factors;
+  m.factors = std::move(factors);
   m.surroundings_K = file.surroundings_K;
   for (std::size_t s = 0; s < scene.surfaces.size(); ++s) {
     m.surface_names.push_back(scene.surfaces[s].name);
@@ -148,8 +144,8 @@ ThermalModel build_thermal_model(const SceneFile& file, const Scene& scene, cons
     m.faces.push_back({node, thermal[patch.surface].emissivity});
     m.face_side.push_back(patch.side);
     if (patch.side == Side::front) {
-      piece_area[node] += factors.areas[p];
-      surface_area[patch.surface] += factors.areas[p];
+      piece_area[node] += m.factors.areas[p];
+      surface_area[patch.surface] += m.factors.areas[p];
     }
   }
   // A power is spread over the surface as a uniform flux: each piece takes its area's share.

@@ -99,7 +99,8 @@ ViewFactors raw_view_factors(const PatchSet& patches, const Tallies& tallies) {
   // insertion bookkeeping and no slack at any size.
   std::uint64_t entries = 0;
   for (const std::uint64_t count : tallies.hit_count) entries += count > 0 ? 1 : 0;
-  if (entries > static_cast<std::uint64_t>(std::numeric_limits<SparseMatrix::StorageIndex>::max())) {
+  if (entries >
+      static_cast<std::uint64_t>(std::numeric_limits<SparseMatrix::StorageIndex>::max())) {
     throw InputError("the view-factor matrix would have " + std::to_string(entries) +
                      " entries, more than its index type can address; use fewer patches");
   }

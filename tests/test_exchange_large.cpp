@@ -14,6 +14,7 @@
 #include <catch2/catch.hpp>
 #include <cmath>
 #include <random>
+#include <string>
 #include <vector>
 
 #include "../src/exchange_krylov.hpp"
@@ -249,6 +250,26 @@ TEST_CASE("the large path reports non-convergence instead of throwing", "[exchan
   }
 }
 
+TEST_CASE("the large path reports a singular system as a status", "[exchange]") {
+  // Not physical: F_11 = 2 with eps = 0.5 makes I - (1 - eps) F zero (as in test_exchange.cpp
+  // for the dense path).
+  ViewFactors vf;
+  vf.names = {"p0"};
+  vf.areas = {1.0};
+  vf.rays = {0};
+  vf.F.resize(1, 1);
+  vf.F.insert(0, 0) = 2.0;
+  vf.F.makeCompressed();
+  ExchangeProblem p;
+  p.view_factors = &vf;
+  p.nodes = {{"s0", {ConditionKind::temperature, 400.0, {}, {}}}};
+  p.faces = {{0, 0.5}};
+  const ExchangeResult r = solve_exchange(p, forced(true, 1));
+  CHECK(r.iterative);
+  CHECK(r.status == ExchangeStatus::singular);
+  CHECK_THAT(r.message, Catch::Contains("singular"));
+}
+
 TEST_CASE("the large path gives bitwise the same result for any thread count", "[exchange]") {
   const ViewFactors vf = random_enclosure(2000, 60, 0.1, 91);
   const ExchangeProblem p = make_problem(vf, Mix::conduction, 1, 0, 92);
@@ -273,6 +294,23 @@ TEST_CASE("the large path gives bitwise the same result for any thread count", "
   }
   CHECK(same);
   CHECK(one.balance_W == four.balance_W);
+}
+
+TEST_CASE("options of the large path are checked", "[exchange]") {
+  std::string why;
+  ExchangeOptions o;
+  CHECK(o.IsValid(&why));
+  o.linear_tolerance = 0;
+  CHECK_FALSE(o.IsValid(&why));
+  CHECK_THAT(why, Catch::Contains("linear_tolerance"));
+  o = ExchangeOptions{};
+  o.max_linear_iterations = 0;
+  CHECK_FALSE(o.IsValid(&why));
+  CHECK_THAT(why, Catch::Contains("max_linear_iterations"));
+  o = ExchangeOptions{};
+  o.gmres_restart = 0;
+  CHECK_FALSE(o.IsValid(&why));
+  CHECK_THAT(why, Catch::Contains("gmres_restart"));
 }
 
 TEST_CASE("GMRES solves a non-symmetric system to its stated residual", "[exchange]") {
@@ -323,4 +361,16 @@ TEST_CASE("GMRES solves a non-symmetric system to its stated residual", "[exchan
   CHECK(cut.iterations == 2);
   CHECK(cut.relative_residual == Approx((b - A * x).norm() / b.norm()).epsilon(1e-12));
   CHECK(cut.relative_residual > 1e-12);
+  CHECK_FALSE(cut.breakdown);
+  // A singular operator (b outside its range) is a breakdown, not a loop to max_iterations.
+  const LinearOperator projector = [](const Eigen::VectorXd& v, Eigen::VectorXd* y) {
+    *y = v;
+    (*y)[0] = 0;
+  };
+  Eigen::VectorXd e0 = Eigen::VectorXd::Zero(n);
+  e0[0] = 1;
+  const auto singular = gmres(projector, LinearOperator(), e0, KrylovOptions{}, &x);
+  CHECK(singular.breakdown);
+  CHECK_FALSE(singular.converged);
+  CHECK(singular.iterations == 1);
 }

@@ -457,22 +457,28 @@ TEST_CASE("smoothing solves rows whose multiplier must be negative", "[smoothing
   t.hit_offset = {0, 2, 3, 4};
   t.hit_patch = {1, 2, 0, 0};
   t.hit_count = {500, 500, 100, 100};
-  SmoothingSummary summary;
-  const ViewFactors vf = smooth_view_factors(patches, t, SmoothingOptions{}, &summary);
-  INFO(summary.message);
-  REQUIRE(summary.converged);
-  CHECK(vf.F.coeff(0, 1) == Approx(0.5).epsilon(1e-12));
-  CHECK(vf.F.coeff(0, 2) == Approx(0.5).epsilon(1e-12));
-  CHECK(vf.F.coeff(1, 0) == Approx(0.9).epsilon(1e-12));
-  CHECK(vf.to_surroundings[1] == Approx(0.1).epsilon(1e-12));
-  CHECK(vf.to_surroundings[0] == 0);
-  CHECK(vf.F.coeff(1, 2) == 0);
+  // Both Newton solvers (the automatic choice is the direct one at this size).
+  for (const auto solver :
+       {SmoothingOptions::Solver::direct, SmoothingOptions::Solver::iterative}) {
+    SmoothingOptions options;
+    options.solver = solver;
+    SmoothingSummary summary;
+    const ViewFactors vf = smooth_view_factors(patches, t, options, &summary);
+    INFO(summary.message);
+    REQUIRE(summary.converged);
+    CHECK(vf.F.coeff(0, 1) == Approx(0.5).epsilon(1e-12));
+    CHECK(vf.F.coeff(0, 2) == Approx(0.5).epsilon(1e-12));
+    CHECK(vf.F.coeff(1, 0) == Approx(0.9).epsilon(1e-12));
+    CHECK(vf.to_surroundings[1] == Approx(0.1).epsilon(1e-12));
+    CHECK(vf.to_surroundings[0] == 0);
+    CHECK(vf.F.coeff(1, 2) == 0);
+  }
 }
 
 TEST_CASE("smoothing scales: a sparse enclosure of 3000 patches", "[smoothing]") {
   // Synthetic enclosure: each patch exchanges with its ring neighbours and 8 random partners
   // (exchange areas uniform in [0.5, 1.5]) and loses a little to the surroundings; A_i is the
-  // row sum. Large enough for the iterative (conjugate-gradient) Newton solve.
+  // row sum. Large enough for the iterative (conjugate-gradient) Newton solve by default.
   const std::size_t n = 3000;
   std::mt19937_64 rng(42);
   std::vector<std::vector<std::pair<std::size_t, double>>> rows(n);

@@ -81,7 +81,8 @@ struct ExchangeOptions {
   // method on radiosities and temperatures together, each step one GMRES solve with the sparse
   // F (memory grows with the non-zeros of F, never with faces^2). The default is the measured
   // crossover (bench/exchange, 2 cores): the paths take the same time at 50-100 faces, both
-  // under a millisecond; at 500 faces the large path is 10-15 times faster, at 5000 200-400.
+  // under a millisecond; at 500 faces the large path is 3-15 times faster, at 5000 faces
+  // 150-500 times (one node per face or 20 surfaces; random or box-furnace factors).
   int dense_face_limit = 100;
   // Large path only. The linear solve of each Newton step stops when its relative residual is
   // at most max(linear_tolerance, min(1e-3, 0.1 / ratio)), ratio being how far the current

@@ -7,8 +7,8 @@
 // 127(10), 2005): maximise sum_ij N_ij ln F_ij subject to the constraints. The stationary
 // point gives exchange areas S_ij = A_i F_ij = (N_ij + N_ji) / (mu_i + mu_j), and
 // S_i,surroundings = N_i,s / mu_i, with one multiplier mu_i per row found by Newton's method
-// on the row-sum equations sum_j S_ij = A_i. Above a few hundred patches each Newton system is
-// solved matrix-free by conjugate gradients (inexact Newton): time and memory per iteration
+// on the row-sum equations sum_j S_ij = A_i. Above 100 patches each Newton system is solved
+// matrix-free by conjugate gradients (inexact Newton): time and memory per iteration
 // grow with the number of non-zero tallies, and the result does not depend on the thread count.
 #pragma once
 
@@ -21,7 +21,7 @@ namespace hearthray {
 struct SmoothingOptions {
   double tolerance = 1e-13;  // stop when every |row sum - 1| is below this
   int max_iterations = 100;  // Newton iterations on the multipliers
-  // How each Newton system is solved. automatic: dense LDL^T (exact steps) up to 300 patches,
+  // How each Newton system is solved. automatic: dense LDL^T (exact steps) up to 100 patches,
   // matrix-free preconditioned conjugate gradients above. direct / iterative force one of the
   // two, to compare them; direct needs n^2 memory and is refused above 4000 patches.
   enum class Solver { automatic, direct, iterative } solver = Solver::automatic;
@@ -31,11 +31,11 @@ struct SmoothingOptions {
 
 struct SmoothingSummary {
   bool converged = false;
-  int iterations = 0;                 // Newton iterations
-  int linear_iterations = 0;          // conjugate-gradient iterations of all Newton steps
-  double max_row_error = 0;           // max_i |sum_j F_ij + F_is + F_ib - 1|
-  double max_reciprocity_error = 0;   // max |A_i F_ij - A_j F_ji| / max(A_i F_ij)
-  double max_correction_sigma = 0;    // max |F - F_raw| / sigma, sigma from the larger value
+  int iterations = 0;                // Newton iterations
+  int linear_iterations = 0;         // conjugate-gradient iterations of all Newton steps
+  double max_row_error = 0;          // max_i |sum_j F_ij + F_is + F_ib - 1|
+  double max_reciprocity_error = 0;  // max |A_i F_ij - A_j F_ji| / max(A_i F_ij)
+  double max_correction_sigma = 0;   // max |F - F_raw| / sigma, sigma from the larger value
   std::string message;
 };
 

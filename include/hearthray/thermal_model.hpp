@@ -69,9 +69,9 @@ std::vector<SurfaceThermal> check_thermal_input(const SceneFile& file, const Sce
 // Throws InputError for what check_thermal_input refuses, or when radiation leaves the scene
 // (escapes, or lands on back faces of one-sided surfaces) and no [surroundings] temperature is
 // given: the message names the surfaces and how much of their radiation leaves.
+// The factors are taken by value: move them in to avoid a copy of a large matrix.
 ThermalModel build_thermal_model(const SceneFile& file, const Scene& scene, const PatchSet& patches,
-                                 const ViewFactors& factors,
-                                 const ThermalModelOptions& options = {});
+                                 ViewFactors factors, const ThermalModelOptions& options = {});
 
 // One surface after the solve: powers are summed over its faces; W/m^2 values are averaged
 // over its faces, weighted by area (for a one-sided surface: its face's values).

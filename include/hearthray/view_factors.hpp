@@ -87,6 +87,26 @@ struct ViewFactors {
   std::size_t size() const { return names.size(); }
   // Standard error of a factor estimated from `rays[i]` rays: sqrt(F(1-F)/N_i).
   double standard_error(std::size_t i, double f) const;
+
+  // Eigen 3.4's SparseMatrix has no move operations: a "move" would copy a matrix that holds
+  // gigabytes at 100k patches. These swap it instead. (Keep the member list complete.)
+  ViewFactors() = default;
+  ViewFactors(const ViewFactors&) = default;
+  ViewFactors& operator=(const ViewFactors&) = default;
+  ViewFactors(ViewFactors&& other) noexcept { *this = std::move(other); }
+  ViewFactors& operator=(ViewFactors&& other) noexcept {
+    names = std::move(other.names);
+    areas = std::move(other.areas);
+    rays = std::move(other.rays);
+    F.swap(other.F);
+    other.F.resize(0, 0);
+    other.F.data().squeeze();
+    to_surroundings = std::move(other.to_surroundings);
+    to_back_faces = std::move(other.to_back_faces);
+    smoothed = other.smoothed;
+    max_correction_sigma = other.max_correction_sigma;
+    return *this;
+  }
 };
 
 // Raw estimate F_ij = hits_ij / N_i (no correction).

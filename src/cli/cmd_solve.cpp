@@ -77,12 +77,13 @@ int run_solve_command(const SolveArgs& args) {
     const FactorReportInfo factor_info = report_info(file, run);
     SolveReportInfo info = solve_info(file, run, model, warnings);
     // Dense view-factor files for a few surfaces; for many patches only the sparse one.
-    const bool dense = run.factors.size() <= kDenseFactorFileLimit;
+    const ViewFactors& used = solved.model.factors;  // as the exchange used them
+    const bool dense = used.size() <= kDenseFactorFileLimit;
     const std::vector<std::string> factor_files =
         dense ? std::vector<std::string>{"view_factors.csv", "view_factors.json"}
               : std::vector<std::string>{"view_factors.mtx"};
     for (const std::string& name : factor_files)
-      write_factors_file((dir / name).string(), run.factors, factor_info);
+      write_factors_file((dir / name).string(), used, factor_info);
     const std::vector<PatchField> fields = solve_fields(model, result);
     write_vtu((dir / "patches.vtu").string(), run.scene, run.patches, fields);
     info.files = {"surfaces.csv", "patches.vtu"};

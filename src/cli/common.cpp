@@ -205,6 +205,7 @@ int solve_scene(const std::string& input, const RaySettings& settings, const Cac
   check_thermal_input(s.file, s.scene);
   std::vector<std::string> cache_warnings;
   s.run = cached_view_factors(s.file, s.scene, settings, cache, &s.log, &cache_warnings);
+  s.run.tallies = Tallies{};  // smoothed and cached: the counts are no longer needed
   // A refused model shows its error first, then the ray warnings that may explain it (flipped
   // normals, a leak).
   auto refuse = [&](const InputError& e) {
@@ -213,7 +214,15 @@ int solve_scene(const std::string& input, const RaySettings& settings, const Cac
     return 2;
   };
   try {
-    s.model = build_thermal_model(s.file, s.run.scene, s.run.patches, s.run.factors);
+    // The matrix moves into the model (at 100k patches it is gigabytes); the run keeps what
+    // the reports read of it.
+    ViewFactors& factors = s.run.factors;
+    const bool smoothed = factors.smoothed;
+    const double correction = factors.max_correction_sigma;
+    s.model = build_thermal_model(s.file, s.run.scene, s.run.patches, std::move(factors));
+    factors = ViewFactors{};
+    factors.smoothed = smoothed;
+    factors.max_correction_sigma = correction;
   } catch (const InputError& e) {
     return refuse(e);
   }
