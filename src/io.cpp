@@ -16,6 +16,17 @@
 #include "hearthray/error.hpp"
 
 namespace hearthray {
+// RFC 4180: a field with a comma, a double quote or a line break is quoted, quotes doubled.
+std::string csv_field(const std::string& s) {
+  if (s.find_first_of(",\"\r\n") == std::string::npos) return s;
+  std::string out = "\"";
+  for (char c : s) {
+    if (c == '"') out += '"';
+    out += c;
+  }
+  return out + "\"";
+}
+
 namespace {
 
 // Writers need the full square matrix: a shard's rows carry no names of their own.
@@ -36,17 +47,6 @@ std::string number(double v) {
   char buffer[32];
   std::snprintf(buffer, sizeof buffer, "%.17g", v);
   return buffer;
-}
-
-// RFC 4180: a field with a comma, a double quote or a line break is quoted, quotes doubled.
-std::string csv_field(const std::string& s) {
-  if (s.find_first_of(",\"\r\n") == std::string::npos) return s;
-  std::string out = "\"";
-  for (char c : s) {
-    if (c == '"') out += '"';
-    out += c;
-  }
-  return out + "\"";
 }
 
 // Row i as N + 1 dense values, surroundings last.

@@ -9,6 +9,8 @@
 #include <nlohmann/json.hpp>
 #include <ostream>
 
+#include "hearthray/io.hpp"
+
 namespace hearthray {
 namespace {
 
@@ -42,16 +44,6 @@ std::string number(double v) {
   char buffer[32];
   const auto end = std::to_chars(buffer, buffer + sizeof buffer, v).ptr;
   return std::string(buffer, end);
-}
-
-std::string csv_field(const std::string& s) {
-  if (s.find_first_of(",\"\r\n") == std::string::npos) return s;
-  std::string out = "\"";
-  for (char c : s) {
-    if (c == '"') out += '"';
-    out += c;
-  }
-  return out + "\"";
 }
 
 json condition_json(const NodeCondition& c) {
@@ -190,12 +182,11 @@ void write_surfaces_csv(std::ostream& out, const ThermalModel& model,
     const double share = model.factors.areas[f] / node_area[k];
     const double convection = n.convection_W * share, wall = n.wall_loss_W * share;
     out << csv_field(model.surface_names[model.node_surface[k]]) << ","
-        << csv_field(model.factors.names[f]) << ","
-        << side_name(model.face_side[f]) << "," << number(model.factors.areas[f]) << ","
-        << number(model.faces[f].emissivity) << "," << number(n.temperature_K) << ","
-        << number(n.temperature_K - kZeroCelsius) << "," << number(face.radiosity) << ","
-        << number(face.irradiation) << "," << number(face.net_flux) << "," << number(face.net_power)
-        << "," << number(convection) << "," << number(wall) << ","
+        << csv_field(model.factors.names[f]) << "," << side_name(model.face_side[f]) << ","
+        << number(model.factors.areas[f]) << "," << number(model.faces[f].emissivity) << ","
+        << number(n.temperature_K) << "," << number(n.temperature_K - kZeroCelsius) << ","
+        << number(face.radiosity) << "," << number(face.irradiation) << "," << number(face.net_flux)
+        << "," << number(face.net_power) << "," << number(convection) << "," << number(wall) << ","
         << number(face.net_power + convection + wall) << "\n";
   }
 }

@@ -25,6 +25,10 @@ struct FactorReportInfo {
   std::vector<std::string> warnings;
 };
 
+// A CSV field quoted as RFC 4180 asks: with a comma, a double quote or a line break it is
+// enclosed in double quotes, and quotes inside are doubled.
+std::string csv_field(const std::string& text);
+
 // Dense CSV: header `surface,<name 1>,...,<name N>,surroundings`, one row per emitter.
 void write_factors_csv(std::ostream& out, const ViewFactors& vf);
 // Matrix Market coordinate real general, N x (N+1): the last column is the surroundings.
