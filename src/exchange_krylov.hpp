@@ -31,11 +31,12 @@ struct KrylovSummary {
 };
 
 // Restarted GMRES with right preconditioning (Saad & Schultz, SIAM J. Sci. Stat. Comput. 7,
-// 1986; Saad, Iterative Methods for Sparse Linear Systems, 2nd ed., alg. 6.11 and 9.5), so the
-// norm it watches is the true residual of A x = b. Orthogonalisation by classical Gram-Schmidt
-// applied twice (as stable as the modified form, and done as matrix-vector products). Starts
-// from x = 0. `precondition` applies M^-1 (may be empty: none). Single-threaded apart from
-// what the operator does, so the result does not depend on the thread count.
+// 1986; Saad, Iterative Methods for Sparse Linear Systems, 2nd ed., ch. 6 and 9; chapter
+// numbers recalled from memory), so the norm it watches is the true residual of A x = b.
+// Orthogonalisation by classical Gram-Schmidt applied twice (as stable as the modified form,
+// and done as matrix-vector products). Starts from x = 0. `precondition` applies M^-1 (may be
+// empty: none). Single-threaded apart from what the operator does, so the result does not
+// depend on the thread count.
 KrylovSummary gmres(const LinearOperator& A, const LinearOperator& precondition,
                     const Eigen::VectorXd& b, const KrylovOptions& options, Eigen::VectorXd* x);
 

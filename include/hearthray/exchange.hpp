@@ -84,9 +84,10 @@ struct ExchangeOptions {
   // under a millisecond; at 500 faces the large path is 3-15 times faster, at 5000 faces
   // 150-500 times (one node per face or 20 surfaces; random or box-furnace factors).
   int dense_face_limit = 100;
-  // Large path only. The linear solve of each Newton step stops when its relative residual is
-  // at most max(linear_tolerance, min(1e-3, 0.1 / ratio)), ratio being how far the current
-  // residuals are above the tolerance: just as tight as the step needs.
+  // Large path only. The linear solve of each Newton step stops at a relative residual eta,
+  // linear_tolerance <= eta <= 1e-3: with radiation only (a linear problem) eta = 0.1 / ratio,
+  // ratio being how far the residuals are above the tolerance; with convection or wall losses
+  // eta starts at 1e-3 and follows Eisenstat & Walker's forcing term, never below 0.1 / ratio.
   double linear_tolerance = 1e-12;
   int max_linear_iterations = 2000;  // GMRES iterations per Newton step
   int gmres_restart = 100;           // Krylov vectors kept (memory: that many doubles per face)
