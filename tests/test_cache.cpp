@@ -105,13 +105,16 @@ TEST_CASE("tallies survive a round trip through the cache", "[cache]") {
   const TallyCacheKey key = key_of(l, 2000);
   const std::string folder = (dir / "nested" / "cache").string();
 
-  CHECK(load_cached_tallies(folder, key, l.scene, l.patches, std::vector<std::uint64_t>(l.patches.size(), 2000)).status == CacheStatus::missing);
+  CHECK(load_cached_tallies(folder, key, l.scene, l.patches,
+                            std::vector<std::uint64_t>(l.patches.size(), 2000))
+            .status == CacheStatus::missing);
   const CacheWrite w = store_cached_tallies(folder, key, t, 0.25);
   REQUIRE(w.stored);
   CHECK(w.path == tally_cache_path(folder, key));
   CHECK(w.path.find(key.hex() + ".tallies") != std::string::npos);
 
-  const CachedTallies c = load_cached_tallies(folder, key, l.scene, l.patches, std::vector<std::uint64_t>(l.patches.size(), 2000));
+  const CachedTallies c = load_cached_tallies(folder, key, l.scene, l.patches,
+                                              std::vector<std::uint64_t>(l.patches.size(), 2000));
   REQUIRE(c.status == CacheStatus::hit);
   CHECK(c.trace_seconds == 0.25);
   CHECK(c.tallies.patch_count == t.patch_count);
@@ -137,7 +140,8 @@ TEST_CASE("a bad cache file is rejected and never trusted", "[cache]") {
 
   auto rejected_with = [&](const std::string& bytes, const std::string& reason) {
     write_text(path, bytes);
-    const CachedTallies c = load_cached_tallies(folder, key, l.scene, l.patches, std::vector<std::uint64_t>(l.patches.size(), 2000));
+    const CachedTallies c = load_cached_tallies(folder, key, l.scene, l.patches,
+                                                std::vector<std::uint64_t>(l.patches.size(), 2000));
     INFO("reason: " << c.reason);
     CHECK(c.status == CacheStatus::rejected);
     CHECK_THAT(c.reason, Contains(reason));
@@ -158,11 +162,13 @@ TEST_CASE("a bad cache file is rejected and never trusted", "[cache]") {
 
   // A valid file read for other settings: another rays count, or another scene's patches.
   write_text(path, good);
-  CachedTallies c = load_cached_tallies(folder, key, l.scene, l.patches, std::vector<std::uint64_t>(l.patches.size(), 3000));
+  CachedTallies c = load_cached_tallies(folder, key, l.scene, l.patches,
+                                        std::vector<std::uint64_t>(l.patches.size(), 3000));
   CHECK(c.status == CacheStatus::rejected);
   CHECK_THAT(c.reason, Contains("rays"));
   const Loaded sheet = load(dir, unit_cube_obj(), "[surface.east]\ntwo_sided = true\n");
-  c = load_cached_tallies(folder, key, sheet.scene, sheet.patches, std::vector<std::uint64_t>(sheet.patches.size(), 2000));
+  c = load_cached_tallies(folder, key, sheet.scene, sheet.patches,
+                          std::vector<std::uint64_t>(sheet.patches.size(), 2000));
   CHECK(c.status == CacheStatus::rejected);
   CHECK_THAT(c.reason, Contains("patches"));
 

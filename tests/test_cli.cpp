@@ -65,7 +65,9 @@ g east
 f 2 6 7 3
 )";
 
-void write(const fs::path& p, const std::string& text) { std::ofstream(p) << text; }
+void write(const fs::path& p, const std::string& text) {
+  std::ofstream(p) << text;
+}
 
 }  // namespace
 
@@ -73,8 +75,8 @@ TEST_CASE("factors writes CSV, JSON, Matrix Market and NPY", "[cli]") {
   const fs::path dir = scratch_dir("formats");
   write(dir / "cube.obj", kCubeObj);
   const auto r = run("factors " + (dir / "cube.obj").string() + " --rays 20000 --quiet -o " +
-                         (dir / "F.csv").string() + " -o " + (dir / "F.json").string() +
-                         " -o " + (dir / "F.mtx").string() + " -o " + (dir / "F.npy").string(),
+                         (dir / "F.csv").string() + " -o " + (dir / "F.json").string() + " -o " +
+                         (dir / "F.mtx").string() + " -o " + (dir / "F.npy").string(),
                      dir);
   REQUIRE(r.status == 0);
   CHECK(r.err.empty());

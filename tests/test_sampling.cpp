@@ -31,8 +31,8 @@ TEST_CASE("sin and cos of 2 pi u agree with the library to 4e-7", "[sampling]") 
     const double u = i / 100000.0 * 0.999999999;
     double s, c;
     sincos_2pi(u, &s, &c);
-    worst = std::max({worst, std::fabs(s - std::sin(2 * kPi * u)),
-                      std::fabs(c - std::cos(2 * kPi * u))});
+    worst = std::max(
+        {worst, std::fabs(s - std::sin(2 * kPi * u)), std::fabs(c - std::cos(2 * kPi * u))});
   }
   CHECK(worst < 4e-7);
 }

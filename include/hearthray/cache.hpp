@@ -44,7 +44,8 @@ struct TallyCacheSettings {
 
 // Hashes the mesh file's bytes, the mesh unit, surfaces_from, the degenerate-triangle
 // threshold, the number of surfaces and the two-sided flag and patch spec of each, the rays
-// of every patch, seed, smoothing and kTallyCacheFormat. Throws InputError when the mesh file cannot be read.
+// of every patch, seed, smoothing and kTallyCacheFormat. Throws InputError when the mesh file
+// cannot be read.
 TallyCacheKey tally_cache_key(const SceneFile& file, const Scene& scene,
                               const TallyCacheSettings& settings);
 

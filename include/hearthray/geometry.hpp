@@ -18,17 +18,30 @@ struct Vec3 {
   constexpr Vec3 operator-() const { return {-x, -y, -z}; }
   constexpr Vec3 operator*(double s) const { return {x * s, y * s, z * s}; }
   constexpr Vec3 operator/(double s) const { return {x / s, y / s, z / s}; }
-  Vec3& operator+=(const Vec3& o) { x += o.x; y += o.y; z += o.z; return *this; }
+  Vec3& operator+=(const Vec3& o) {
+    x += o.x;
+    y += o.y;
+    z += o.z;
+    return *this;
+  }
   constexpr bool operator==(const Vec3& o) const { return x == o.x && y == o.y && z == o.z; }
 };
 
-constexpr Vec3 operator*(double s, const Vec3& v) { return v * s; }
-constexpr double dot(const Vec3& a, const Vec3& b) { return a.x * b.x + a.y * b.y + a.z * b.z; }
+constexpr Vec3 operator*(double s, const Vec3& v) {
+  return v * s;
+}
+constexpr double dot(const Vec3& a, const Vec3& b) {
+  return a.x * b.x + a.y * b.y + a.z * b.z;
+}
 constexpr Vec3 cross(const Vec3& a, const Vec3& b) {
   return {a.y * b.z - a.z * b.y, a.z * b.x - a.x * b.z, a.x * b.y - a.y * b.x};
 }
-inline double norm(const Vec3& v) { return std::sqrt(dot(v, v)); }
-inline Vec3 normalized(const Vec3& v) { return v / norm(v); }
+inline double norm(const Vec3& v) {
+  return std::sqrt(dot(v, v));
+}
+inline Vec3 normalized(const Vec3& v) {
+  return v / norm(v);
+}
 inline bool is_finite(const Vec3& v) {
   return std::isfinite(v.x) && std::isfinite(v.y) && std::isfinite(v.z);
 }

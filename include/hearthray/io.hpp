@@ -12,13 +12,13 @@ namespace hearthray {
 
 // What a report carries besides the matrix (echoed into JSON).
 struct FactorReportInfo {
-  std::string scene;                 // scene or mesh file
+  std::string scene;  // scene or mesh file
   std::uint64_t seed = 0;
   std::uint64_t rays_per_patch = 0;
   double trace_seconds = 0;
   double rays_per_second = 0;
   int threads = 0;
-  std::string smoothing;             // method name, or "none (raw)"
+  std::string smoothing;  // method name, or "none (raw)"
   int smoothing_iterations = 0;
   double max_row_error = 0;
   double max_reciprocity_error = 0;

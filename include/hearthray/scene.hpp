@@ -21,9 +21,9 @@ struct Triangle {
 
 struct Surface {
   std::string name;
-  bool two_sided = false;           // emits and receives on both sides (two result entries)
-  double area = 0;                  // m^2 (one side)
-  std::uint32_t first_triangle = 0; // triangles [first_triangle, first_triangle + triangle_count)
+  bool two_sided = false;            // emits and receives on both sides (two result entries)
+  double area = 0;                   // m^2 (one side)
+  std::uint32_t first_triangle = 0;  // triangles [first_triangle, first_triangle + triangle_count)
   std::uint32_t triangle_count = 0;
   std::uint32_t dropped_degenerate = 0;  // triangles dropped for zero area
 };
@@ -31,7 +31,7 @@ struct Surface {
 enum class SurfacesFrom { groups, materials };
 
 struct MeshOptions {
-  LengthUnit unit = LengthUnit::m;              // unit of the OBJ coordinates
+  LengthUnit unit = LengthUnit::m;  // unit of the OBJ coordinates
   SurfacesFrom surfaces_from = SurfacesFrom::groups;
   // A triangle is degenerate when its area is below this fraction of the squared bounding-box
   // diagonal (scale-free, so the same mesh in mm or km drops the same triangles).
@@ -39,12 +39,12 @@ struct MeshOptions {
 };
 
 struct Scene {
-  std::string source;                // file the mesh came from ("<memory>" for streams)
-  std::vector<Vec3> vertices;        // metres
-  std::vector<Triangle> triangles;   // grouped by surface, in surface order
-  std::vector<Surface> surfaces;     // in order of first appearance in the file
-  std::vector<std::string> warnings; // e.g. dropped degenerate triangles, per surface
-  Box3 bounds;                       // of the vertices used by triangles
+  std::string source;                 // file the mesh came from ("<memory>" for streams)
+  std::vector<Vec3> vertices;         // metres
+  std::vector<Triangle> triangles;    // grouped by surface, in surface order
+  std::vector<Surface> surfaces;      // in order of first appearance in the file
+  std::vector<std::string> warnings;  // e.g. dropped degenerate triangles, per surface
+  Box3 bounds;                        // of the vertices used by triangles
 
   // Index of the surface with this name, or -1.
   int find_surface(const std::string& name) const;
@@ -62,12 +62,12 @@ Scene load_obj(std::istream& in, const std::string& name, const MeshOptions& opt
 
 // Topology report used by `check` and to decide whether escaping rays are leaks.
 struct MeshTopology {
-  bool closed = false;                 // every edge (vertices welded by position) has 2 faces
-  bool one_sided_closed = false;       // the same for one-sided surfaces alone: an enclosure
-                                       // that may hold two-sided sheets
-  std::size_t boundary_edges = 0;      // edges with one face
-  std::size_t nonmanifold_edges = 0;   // edges with more than two faces
-  std::size_t duplicate_triangles = 0; // same three positions as an earlier triangle
+  bool closed = false;                  // every edge (vertices welded by position) has 2 faces
+  bool one_sided_closed = false;        // the same for one-sided surfaces alone: an enclosure
+                                        // that may hold two-sided sheets
+  std::size_t boundary_edges = 0;       // edges with one face
+  std::size_t nonmanifold_edges = 0;    // edges with more than two faces
+  std::size_t duplicate_triangles = 0;  // same three positions as an earlier triangle
 };
 MeshTopology analyse_topology(const Scene& scene);
 

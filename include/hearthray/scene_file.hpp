@@ -37,12 +37,12 @@ struct SurfaceSpec {
   std::optional<Convection> convection;
   std::optional<WallLoss> wall_loss;
   std::optional<PatchSpec> patches;  // how the surface is cut into patches (default: whole)
-  int line = 0;  // line of the table in the scene file (0 when not from a file)
+  int line = 0;                      // line of the table in the scene file (0 when not from a file)
 };
 
 struct SceneFile {
-  std::string path;                 // the scene file ("" when a bare mesh was given)
-  std::string mesh_path;            // resolved relative to the scene file's folder
+  std::string path;       // the scene file ("" when a bare mesh was given)
+  std::string mesh_path;  // resolved relative to the scene file's folder
   MeshOptions mesh;
   std::optional<std::uint64_t> rays_per_patch;
   std::optional<std::uint64_t> seed;
@@ -103,7 +103,7 @@ double parse_temperature(const std::string& text, const std::string& what);  // 
 double parse_power(const std::string& text, const std::string& what);        // W, kW, MW -> W
 double parse_heat_flux(const std::string& text, const std::string& what);    // W/m2, kW/m2
 double parse_heat_transfer_coefficient(const std::string& text, const std::string& what);
-double parse_length(const std::string& text, const std::string& what);       // mm..ft -> m
-double parse_conductivity(const std::string& text, const std::string& what); // W/mK
+double parse_length(const std::string& text, const std::string& what);        // mm..ft -> m
+double parse_conductivity(const std::string& text, const std::string& what);  // W/mK
 
 }  // namespace hearthray

@@ -40,15 +40,15 @@ struct ThermalModelOptions {
 };
 
 struct ThermalModel {
-  ViewFactors factors;              // as the exchange uses them (leaks folded back)
-  std::vector<ExchangeNode> nodes;  // one per surface piece, in patch order
-  std::vector<std::uint32_t> node_surface;  // per node: its surface
-  std::vector<ExchangeFace> faces;  // one per patch, in patch order
-  std::vector<Side> face_side;      // per face: front or back of its surface
-  std::vector<std::string> surface_names;  // per surface
+  ViewFactors factors;                            // as the exchange uses them (leaks folded back)
+  std::vector<ExchangeNode> nodes;                // one per surface piece, in patch order
+  std::vector<std::uint32_t> node_surface;        // per node: its surface
+  std::vector<ExchangeFace> faces;                // one per patch, in patch order
+  std::vector<Side> face_side;                    // per face: front or back of its surface
+  std::vector<std::string> surface_names;         // per surface
   std::vector<NodeCondition> surface_conditions;  // per surface, as given (power not split)
-  std::vector<bool> two_sided;      // per surface
-  std::vector<double> emissivity;   // per surface
+  std::vector<bool> two_sided;                    // per surface
+  std::vector<double> emissivity;                 // per surface
   std::optional<double> surroundings_K;
   bool mesh_closed = false;        // the one-sided surfaces close an enclosure (which may
                                    // hold two-sided sheets)

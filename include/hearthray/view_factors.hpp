@@ -24,11 +24,11 @@ struct TraceProgress {
 };
 
 struct ViewFactorOptions {
-  std::uint64_t rays_per_patch = 100000;  // rays emitted by every patch...
+  std::uint64_t rays_per_patch = 100000;      // rays emitted by every patch...
   std::vector<std::uint64_t> rays_for_patch;  // ...unless given here, one count per patch
-  std::uint64_t seed = 1;                 // results depend on seed and rays only
-  int threads = 0;                        // worker threads; 0 = all cores
-  std::uint32_t emitter_begin = 0;        // emitting patches [begin, end); end 0 = all
+  std::uint64_t seed = 1;                     // results depend on seed and rays only
+  int threads = 0;                            // worker threads; 0 = all cores
+  std::uint32_t emitter_begin = 0;            // emitting patches [begin, end); end 0 = all
   std::uint32_t emitter_end = 0;
   TracerOptions tracer;
   // Called now and then from worker threads (serialised); must be cheap. May be empty.
@@ -40,10 +40,10 @@ struct ViewFactorOptions {
 // Raw ray counts, sparse per emitter: memory follows the non-zeros.
 struct Tallies {
   std::size_t patch_count = 0;
-  std::uint32_t emitter_begin = 0;        // row r of the tallies is patch emitter_begin + r
-  std::vector<std::uint64_t> rays;        // per emitting row: rays emitted
-  std::vector<std::uint64_t> escaped;     // per emitting row: rays that hit nothing
-  std::vector<std::uint64_t> back_face;   // per emitting row: rays absorbed on a back face
+  std::uint32_t emitter_begin = 0;       // row r of the tallies is patch emitter_begin + r
+  std::vector<std::uint64_t> rays;       // per emitting row: rays emitted
+  std::vector<std::uint64_t> escaped;    // per emitting row: rays that hit nothing
+  std::vector<std::uint64_t> back_face;  // per emitting row: rays absorbed on a back face
   // Row r: receiving patches hit_patch[hit_offset[r] .. hit_offset[r+1]) in ascending order,
   // with their counts.
   std::vector<std::uint64_t> hit_offset{0};
@@ -75,14 +75,14 @@ using SparseMatrix = Eigen::SparseMatrix<double, Eigen::RowMajor>;
 
 // The view-factor matrix with its statistics: what every output writer reads.
 struct ViewFactors {
-  std::vector<std::string> names;         // patch names
-  std::vector<double> areas;              // m^2
-  std::vector<std::uint64_t> rays;        // rays emitted per patch
-  SparseMatrix F;                         // n x n
-  std::vector<double> to_surroundings;    // per patch: fraction that escapes
-  std::vector<double> to_back_faces;      // per patch: fraction absorbed on back faces
-  bool smoothed = false;                  // reciprocity and closure enforced
-  double max_correction_sigma = 0;        // largest smoothing change, in standard errors
+  std::vector<std::string> names;       // patch names
+  std::vector<double> areas;            // m^2
+  std::vector<std::uint64_t> rays;      // rays emitted per patch
+  SparseMatrix F;                       // n x n
+  std::vector<double> to_surroundings;  // per patch: fraction that escapes
+  std::vector<double> to_back_faces;    // per patch: fraction absorbed on back faces
+  bool smoothed = false;                // reciprocity and closure enforced
+  double max_correction_sigma = 0;      // largest smoothing change, in standard errors
 
   std::size_t size() const { return names.size(); }
   // Standard error of a factor estimated from `rays[i]` rays: sqrt(F(1-F)/N_i).

@@ -24,19 +24,20 @@ int run_check_command(const CheckArgs& args) {
   std::printf("mesh      %s (unit %s, surfaces from %s)\n", scene.source.c_str(),
               to_string(file.mesh.unit).c_str(),
               file.mesh.surfaces_from == SurfacesFrom::groups ? "groups" : "materials");
-  std::printf("bounds    x %.6g .. %.6g m, y %.6g .. %.6g m, z %.6g .. %.6g m\n",
-              scene.bounds.lo.x, scene.bounds.hi.x, scene.bounds.lo.y, scene.bounds.hi.y,
-              scene.bounds.lo.z, scene.bounds.hi.z);
-  std::printf("triangles %zu (degenerate dropped: %zu, duplicates: %zu)\n",
-              scene.triangles.size(), dropped, topology.duplicate_triangles);
+  std::printf("bounds    x %.6g .. %.6g m, y %.6g .. %.6g m, z %.6g .. %.6g m\n", scene.bounds.lo.x,
+              scene.bounds.hi.x, scene.bounds.lo.y, scene.bounds.hi.y, scene.bounds.lo.z,
+              scene.bounds.hi.z);
+  std::printf("triangles %zu (degenerate dropped: %zu, duplicates: %zu)\n", scene.triangles.size(),
+              dropped, topology.duplicate_triangles);
   if (topology.closed)
     std::printf("topology  closed: every edge is shared by exactly two triangles\n");
   else if (topology.one_sided_closed)
     std::printf("topology  closed enclosure (its one-sided surfaces) holding two-sided sheets\n");
   else
-    std::printf("topology  open: %zu boundary edges, %zu edges shared by more than two "
-                "triangles\n",
-                topology.boundary_edges, topology.nonmanifold_edges);
+    std::printf(
+        "topology  open: %zu boundary edges, %zu edges shared by more than two "
+        "triangles\n",
+        topology.boundary_edges, topology.nonmanifold_edges);
 
   // Quick ray estimate, raw counts only.
   const PatchSet patches = make_surface_patches(scene);
@@ -57,9 +58,10 @@ int run_check_command(const CheckArgs& args) {
                 surface.triangle_count, surface.area, surface.two_sided ? "two" : "one",
                 100 * share(r.back_face_hits, r.arrivals), 100 * share(r.escaped, r.emitted));
   }
-  std::printf("\n(back hits: share of arrivals on the back of a one-sided surface; escaped: "
-              "share of the surface's own rays that hit nothing; %llu rays per side)\n",
-              static_cast<unsigned long long>(args.rays));
+  std::printf(
+      "\n(back hits: share of arrivals on the back of a one-sided surface; escaped: "
+      "share of the surface's own rays that hit nothing; %llu rays per side)\n",
+      static_cast<unsigned long long>(args.rays));
   std::cout.flush();
   print_warnings(scene, d, true);
   if (d.warnings.empty() && scene.warnings.empty()) std::printf("no warnings\n");

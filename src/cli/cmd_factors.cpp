@@ -20,10 +20,10 @@ int run_factors_command(const FactorsArgs& args) {
     }
   }
   if (!args.rays.quiet) {
-    std::cout << run.factors.size() << " surfaces, " << run.rays_per_patch
-              << " rays each (seed " << run.seed << "), " << run.stats.rays << " rays in "
-              << run.stats.seconds << " s (" << run.stats.rays_per_second / 1e6
-              << " Mrays/s on " << run.stats.threads << " threads)\n"
+    std::cout << run.factors.size() << " surfaces, " << run.rays_per_patch << " rays each (seed "
+              << run.seed << "), " << run.stats.rays << " rays in " << run.stats.seconds << " s ("
+              << run.stats.rays_per_second / 1e6 << " Mrays/s on " << run.stats.threads
+              << " threads)\n"
               << smoothing_line(run) << "\n";
   }
   return 0;

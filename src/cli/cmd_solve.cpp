@@ -7,9 +7,9 @@
 
 #include "commands.hpp"
 #include "hearthray/error.hpp"
+#include "hearthray/render.hpp"
 #include "hearthray/thermal_model.hpp"
 #include "hearthray/thermal_report.hpp"
-#include "hearthray/render.hpp"
 #include "hearthray/tracer.hpp"
 #include "hearthray/vtu.hpp"
 
@@ -97,8 +97,7 @@ int run_solve_command(const SolveArgs& args) {
         if (field.name != field_name) continue;
         RenderOptions options;
         options.title = scene_name + ": " + field.name;
-        write_png((dir / picture).string(),
-                  render(run.scene, run.patches, tracer, field, options));
+        write_png((dir / picture).string(), render(run.scene, run.patches, tracer, field, options));
         info.files.push_back(picture);
       }
     }

@@ -34,7 +34,7 @@ struct RaySettings {
 };
 
 struct FactorRun {
-  Scene scene;                      // as traced: surfaces cut into patches where asked
+  Scene scene;  // as traced: surfaces cut into patches where asked
   PatchSet patches;
   std::vector<PatchSpec> specs;     // per surface
   std::vector<std::uint64_t> rays;  // per patch

@@ -68,8 +68,9 @@ int main(int argc, char** argv) {
       "compare", "Comfort of two or more scenes (e.g. panel layouts) side by side");
   for (auto [cmd, a] : {std::pair{cmd_comfort, &comfort}, std::pair{cmd_compare, &compare}}) {
     const bool one = cmd == cmd_comfort;
-    cmd->add_option("scene", a->inputs, one ? "Scene file (.toml) with a [comfort] table"
-                                            : "Scene files (.toml) with [comfort] tables")
+    cmd->add_option("scene", a->inputs,
+                    one ? "Scene file (.toml) with a [comfort] table"
+                        : "Scene files (.toml) with [comfort] tables")
         ->required()
         ->expected(one ? 1 : 2, one ? 1 : 64);
     if (one) cmd->add_option("-o,--output", a->output_dir, "Folder for comfort.csv and maps");
