@@ -8,6 +8,7 @@
 #include "hearthray/tracer.hpp"
 #include "support/cli_run.hpp"
 #include "support/meshes.hpp"
+#include "support/scene_fixtures.hpp"
 
 using namespace hearthray;
 using namespace hearthray::testing;
@@ -15,23 +16,7 @@ using Catch::Matchers::Contains;
 
 namespace {
 
-struct Loaded {
-  SceneFile file;
-  Scene scene;
-  PatchSet patches;
-};
-
-Loaded load(const ScratchDir& dir, const std::string& obj, const std::string& extra = "") {
-  write_text(dir / "mesh.obj", obj);
-  write_text(dir / "scene.toml", "[mesh]\nfile = \"mesh.obj\"\n" + extra);
-  Loaded l;
-  l.file = read_scene_file((dir / "scene.toml").string());
-  l.scene = load_scene(l.file);
-  l.patches = make_surface_patches(l.scene);
-  return l;
-}
-
-TallyCacheKey key_of(const Loaded& l, std::uint64_t rays = 1000, std::uint64_t seed = 1,
+TallyCacheKey key_of(const LoadedScene& l, std::uint64_t rays = 1000, std::uint64_t seed = 1,
                      bool smoothed = true) {
   TallyCacheSettings settings;
   settings.patch_specs = patch_specs(l.file, l.scene);
@@ -41,7 +26,7 @@ TallyCacheKey key_of(const Loaded& l, std::uint64_t rays = 1000, std::uint64_t s
   return tally_cache_key(l.file, l.scene, settings);
 }
 
-Tallies trace(const Loaded& l, std::uint64_t rays) {
+Tallies trace(const LoadedScene& l, std::uint64_t rays) {
   ViewFactorOptions options;
   options.rays_per_patch = rays;
   const Tracer tracer(l.scene, options.tracer);
@@ -79,19 +64,21 @@ class EnvVar {
 
 TEST_CASE("the cache key follows the mesh bytes and every ray setting", "[cache]") {
   const ScratchDir dir("cache-key");
-  const Loaded base = load(dir, unit_cube_obj());
+  const LoadedScene base = load_scene_text(dir, unit_cube_obj());
   const TallyCacheKey key = key_of(base);
   CHECK(key.hex().size() == 32);
   CHECK(key.hex().find_first_not_of("0123456789abcdef") == std::string::npos);
-  CHECK(key_of(load(dir, unit_cube_obj())) == key);  // same inputs, same key
+  CHECK(key_of(load_scene_text(dir, unit_cube_obj())) == key);  // same inputs, same key
 
   CHECK_FALSE(key_of(base, 1001) == key);
   CHECK_FALSE(key_of(base, 1000, 2) == key);
   CHECK_FALSE(key_of(base, 1000, 1, false) == key);
-  CHECK_FALSE(key_of(load(dir, unit_cube_obj() + "# a comment\n")) == key);
-  CHECK_FALSE(key_of(load(dir, unit_cube_obj(), "unit = \"mm\"\n")) == key);
-  CHECK_FALSE(key_of(load(dir, unit_cube_obj(), "[surface.east]\ntwo_sided = true\n")) == key);
-  CHECK_FALSE(key_of(load(dir, unit_cube_obj(), "[surface.east]\npatches = \"0.5 m\"\n")) == key);
+  CHECK_FALSE(key_of(load_scene_text(dir, unit_cube_obj() + "# a comment\n")) == key);
+  CHECK_FALSE(key_of(load_scene_text(dir, unit_cube_obj(), "unit = \"mm\"\n")) == key);
+  CHECK_FALSE(key_of(load_scene_text(dir, unit_cube_obj(), "[surface.east]\ntwo_sided = true\n")) ==
+              key);
+  CHECK_FALSE(key_of(load_scene_text(dir, unit_cube_obj(),
+                                     "[surface.east]\npatches = \"0.5 m\"\n")) == key);
   // Each half of the key changes on its own (two independent hashes).
   const TallyCacheKey other = key_of(base, 1001);
   CHECK(other.fnv != key.fnv);
@@ -100,7 +87,7 @@ TEST_CASE("the cache key follows the mesh bytes and every ray setting", "[cache]
 
 TEST_CASE("tallies survive a round trip through the cache", "[cache]") {
   const ScratchDir dir("cache-roundtrip");
-  const Loaded l = load(dir, unit_cube_obj());
+  const LoadedScene l = load_scene_text(dir, unit_cube_obj());
   const Tallies t = trace(l, 2000);
   const TallyCacheKey key = key_of(l, 2000);
   const std::string folder = (dir / "nested" / "cache").string();
@@ -130,7 +117,7 @@ TEST_CASE("tallies survive a round trip through the cache", "[cache]") {
 
 TEST_CASE("a bad cache file is rejected and never trusted", "[cache]") {
   const ScratchDir dir("cache-bad");
-  const Loaded l = load(dir, unit_cube_obj());
+  const LoadedScene l = load_scene_text(dir, unit_cube_obj());
   const Tallies t = trace(l, 2000);
   const TallyCacheKey key = key_of(l, 2000);
   const std::string folder = dir.cache();
@@ -166,7 +153,8 @@ TEST_CASE("a bad cache file is rejected and never trusted", "[cache]") {
                                         std::vector<std::uint64_t>(l.patches.size(), 3000));
   CHECK(c.status == CacheStatus::rejected);
   CHECK_THAT(c.reason, Contains("rays"));
-  const Loaded sheet = load(dir, unit_cube_obj(), "[surface.east]\ntwo_sided = true\n");
+  const LoadedScene sheet =
+      load_scene_text(dir, unit_cube_obj(), "[surface.east]\ntwo_sided = true\n");
   c = load_cached_tallies(folder, key, sheet.scene, sheet.patches,
                           std::vector<std::uint64_t>(sheet.patches.size(), 2000));
   CHECK(c.status == CacheStatus::rejected);

@@ -12,6 +12,7 @@
 
 #include "support/cli_run.hpp"
 #include "support/meshes.hpp"
+#include "support/scene_fixtures.hpp"
 
 using hearthray::Scene;
 using namespace hearthray::testing;
@@ -48,19 +49,8 @@ std::string cube_scene(const std::string& body) {
   return "[mesh]\nfile = \"cube.obj\"\nunit = \"m\"\n\n" + body + "\n";
 }
 
-const char* kGoodCube = R"(
-[rays]
-per_patch = 20_000
-[defaults]
-emissivity = 0.5
-adiabatic = true
-[surface.floor]
-emissivity = 0.8
-temperature = "1000 K"
-[surface.roof]
-emissivity = 0.6
-temperature = "400 K"
-)";
+// The hot-floor / cold-roof cube at 20 000 rays per surface.
+const std::string kGoodCube = std::string("[rays]\nper_patch = 20_000\n") + kHotFloorColdRoof;
 
 void set_up_meshes(const ScratchDir& dir) {
   write_text(dir / "cube.obj", unit_cube_obj());

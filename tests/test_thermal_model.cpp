@@ -11,29 +11,13 @@
 #include "support/cli_run.hpp"
 #include "support/closed_forms.hpp"
 #include "support/meshes.hpp"
+#include "support/scene_fixtures.hpp"
 
 using namespace hearthray;
 using namespace hearthray::testing;
 using Catch::Matchers::Contains;
 
 namespace {
-
-// Scene file and scene from OBJ and TOML text written into `dir`.
-struct Loaded {
-  SceneFile file;
-  Scene scene;
-  PatchSet patches;
-};
-
-Loaded load(const ScratchDir& dir, const std::string& obj, const std::string& body) {
-  write_text(dir / "mesh.obj", obj);
-  write_text(dir / "scene.toml", "[mesh]\nfile = \"mesh.obj\"\n" + body);
-  Loaded l;
-  l.file = read_scene_file((dir / "scene.toml").string());
-  l.scene = load_scene(l.file);
-  l.patches = make_surface_patches(l.scene);
-  return l;
-}
 
 // Exact factors of the unit cube (unit_cube_obj's order: floor, roof, south, north, west,
 // east; pairs (0,1), (2,3), (4,5) opposite): Howell C-11 for opposite faces, C-14 for faces
@@ -74,18 +58,6 @@ void leak(ViewFactors* vf, double share) {
   vf->to_surroundings[1] += share;
 }
 
-const char* kCubeBody = R"(
-[defaults]
-emissivity = 0.5
-adiabatic = true
-[surface.floor]
-emissivity = 0.8
-temperature = "1000 K"
-[surface.roof]
-emissivity = 0.6
-temperature = "400 K"
-)";
-
 double largest_flow(const ExchangeResult& r) {
   double largest = 0;
   for (const NodeResult& n : r.nodes) largest = std::max(largest, std::abs(n.net_radiation_W));
@@ -97,10 +69,11 @@ double largest_flow(const ExchangeResult& r) {
 TEST_CASE("one node per surface and one face per patch with two faces for a two-sided sheet",
           "[thermal_model]") {
   const ScratchDir dir("thermal-nodes");
-  const std::string body = std::string(kCubeBody) +
+  const std::string body = std::string(kHotFloorColdRoof) +
                            "[surface.east]\ntwo_sided = true\npower = \"50 W\"\n"
                            "convection = { h = \"5 W/m2K\", fluid = \"30 C\" }\n";
-  const Loaded with = load(dir, unit_cube_obj(), "[surroundings]\ntemperature = \"20 C\"\n" + body);
+  const LoadedScene with =
+      load_scene_text(dir, unit_cube_obj(), "[surroundings]\ntemperature = \"20 C\"\n" + body);
   const ViewFactors vf = cube_factors(with.patches, true);
   const ThermalModel m = build_thermal_model(with.file, with.scene, with.patches, vf);
   REQUIRE(m.nodes.size() == 6);
@@ -125,7 +98,7 @@ TEST_CASE("one node per surface and one face per patch with two faces for a two-
   CHECK(p.surroundings_K == m.surroundings_K);
 
   // The same scene without a surroundings temperature: refused, naming the sheet.
-  const Loaded without = load(dir, unit_cube_obj(), body);
+  const LoadedScene without = load_scene_text(dir, unit_cube_obj(), body);
   CHECK_THROWS_WITH(
       build_thermal_model(without.file, without.scene, without.patches, vf),
       Contains("the scene is open") && Contains("'east' 50.0 %") && Contains("[surroundings]"));
@@ -133,10 +106,11 @@ TEST_CASE("one node per surface and one face per patch with two faces for a two-
 
 TEST_CASE("per-surface summary and energy balance", "[thermal_model]") {
   const ScratchDir dir("thermal-summary");
-  const Loaded l = load(dir, unit_cube_obj(),
-                        std::string("[surroundings]\ntemperature = \"20 C\"\n") + kCubeBody +
-                            "[surface.east]\ntwo_sided = true\npower = \"50 W\"\n"
-                            "convection = { h = \"5 W/m2K\", fluid = \"30 C\" }\n");
+  const LoadedScene l =
+      load_scene_text(dir, unit_cube_obj(),
+                      std::string("[surroundings]\ntemperature = \"20 C\"\n") + kHotFloorColdRoof +
+                          "[surface.east]\ntwo_sided = true\npower = \"50 W\"\n"
+                          "convection = { h = \"5 W/m2K\", fluid = \"30 C\" }\n");
   const ViewFactors vf = cube_factors(l.patches, true);
   const ThermalModel m = build_thermal_model(l.file, l.scene, l.patches, vf);
   const ExchangeResult r = solve_exchange(m.problem(), ExchangeOptions{});
@@ -167,7 +141,7 @@ TEST_CASE("per-surface summary and energy balance", "[thermal_model]") {
 TEST_CASE("a tiny leak of a closed mesh is folded back and a large one refused",
           "[thermal_model]") {
   const ScratchDir dir("thermal-leak");
-  const Loaded l = load(dir, unit_cube_obj(), kCubeBody);
+  const LoadedScene l = load_scene_text(dir, unit_cube_obj(), kHotFloorColdRoof);
   const ViewFactors exact = cube_factors(l.patches);
   const ThermalModel reference = build_thermal_model(l.file, l.scene, l.patches, exact);
   CHECK(reference.mesh_closed);
@@ -210,8 +184,9 @@ TEST_CASE("a tiny leak of a closed mesh is folded back and a large one refused",
   CHECK_THROWS_WITH(build_thermal_model(l.file, l.scene, l.patches, gap),
                     Contains("is closed, yet") && Contains("gaps") && Contains("normals"));
   // ...and sent to the surroundings when they have a temperature.
-  const Loaded open = load(dir, unit_cube_obj(),
-                           std::string("[surroundings]\ntemperature = \"300 K\"\n") + kCubeBody);
+  const LoadedScene open =
+      load_scene_text(dir, unit_cube_obj(),
+                      std::string("[surroundings]\ntemperature = \"300 K\"\n") + kHotFloorColdRoof);
   const ThermalModel g = build_thermal_model(open.file, open.scene, open.patches, gap);
   CHECK_FALSE(g.leaks_folded);
   CHECK(g.factors.to_surroundings[0] == Approx(1e-3));
@@ -220,7 +195,7 @@ TEST_CASE("a tiny leak of a closed mesh is folded back and a large one refused",
 
 TEST_CASE("the thermal model refuses what it cannot build", "[thermal_model]") {
   const ScratchDir dir("thermal-refuse");
-  const Loaded l = load(dir, unit_cube_obj(), kCubeBody);
+  const LoadedScene l = load_scene_text(dir, unit_cube_obj(), kHotFloorColdRoof);
   const ViewFactors vf = cube_factors(l.patches);
 
   // A bare mesh: no thermal input at all.
@@ -244,9 +219,10 @@ TEST_CASE("the thermal model refuses what it cannot build", "[thermal_model]") {
   CHECK_THROWS_AS(build_thermal_model(l.file, l.scene, l.patches, vf, bad), InputError);
 
   // A surface with no condition (no default either).
-  const Loaded none = load(dir, unit_cube_obj(),
-                           "[defaults]\nemissivity = 0.5\n[surface.floor]\ntemperature = "
-                           "\"900 K\"\n");
+  const LoadedScene none =
+      load_scene_text(dir, unit_cube_obj(),
+                      "[defaults]\nemissivity = 0.5\n[surface.floor]\ntemperature = "
+                      "\"900 K\"\n");
   CHECK_THROWS_WITH(check_thermal_input(none.file, none.scene),
                     Contains("surface 'roof' has no condition"));
 }

@@ -11,6 +11,7 @@
 #include "support/cli_run.hpp"
 #include "support/closed_forms.hpp"
 #include "support/meshes.hpp"
+#include "support/scene_fixtures.hpp"
 
 using namespace hearthray;
 using namespace hearthray::testing;
@@ -109,23 +110,11 @@ TEST_CASE("solve: cube with a hot floor and a cold roof and adiabatic walls", "[
   //   reradiating: J_i - sum_j F_ij J_j = 0,   sigma T_i^4 = J_i
   // and the net heat leaving face i is A_i (J_i - sum_j F_ij J_j).
   const ScratchDir dir("solve-cube");
-  const json report = solve(dir, unit_cube_obj(), R"(
-[mesh]
-file = "mesh.obj"
-unit = "m"
-[rays]
-per_patch = 200_000
-seed = 11
-[defaults]
-emissivity = 0.5
-adiabatic = true
-[surface.floor]
-emissivity = 0.8
-temperature = "1000 K"
-[surface.roof]
-emissivity = 0.6
-temperature = "400 K"
-)");
+  const json report =
+      solve(dir, unit_cube_obj(),
+            std::string("[mesh]\nfile = \"mesh.obj\"\nunit = \"m\"\n[rays]\nper_patch = 200_000\n"
+                        "seed = 11\n") +
+                kHotFloorColdRoof);
   const double opposite = parallel_rectangles_aligned(1, 1, 1);
   const double adjacent = perpendicular_rectangles_common_edge(1, 1, 1);
   // Faces in unit_cube_obj's order: floor, roof, south, north, west, east; pairs (0,1), (2,3),
