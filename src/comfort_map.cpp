@@ -10,11 +10,11 @@
 
 #include "hearthray/comfort_report.hpp"
 #include "hearthray/error.hpp"
+#include "hearthray/units.hpp"
 
 namespace hearthray {
 namespace {
 
-constexpr double kZeroCelsius = 273.15;
 constexpr int kScale = 2;  // font pixels per glyph pixel
 constexpr int kLeft = 30, kTop = 44, kBottom = 34, kBarGap = 24, kBarWidth = 22, kRight = 80;
 

@@ -6,10 +6,11 @@
 #include <cstdio>
 #include <ostream>
 
+#include "hearthray/units.hpp"
+
 namespace hearthray {
 namespace {
 
-constexpr double kZeroCelsius = 273.15;
 // A person can reach a surface whose lowest point is below this height above the floor
 // (common practice for an arm's reach; no published source).
 constexpr double kReachHeight_m = 2.0;

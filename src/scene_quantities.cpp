@@ -113,7 +113,7 @@ const QuantityDef& temperature_def() {
       "1250",
       "C",
       "C, K, F",
-      {{"C", 1.0, 0.0, 273.15}, {"K", 1.0}, {"F", 5.0 / 9.0, -32.0, 273.15}}};
+      {{"C", 1.0, 0.0, kZeroCelsius}, {"K", 1.0}, {"F", 5.0 / 9.0, -32.0, kZeroCelsius}}};
   return def;
 }
 

@@ -10,13 +10,13 @@
 #include <ostream>
 
 #include "hearthray/io.hpp"
+#include "hearthray/units.hpp"
 
 namespace hearthray {
 namespace {
 
 using json = nlohmann::ordered_json;  // keys in the order written
 
-constexpr double kZeroCelsius = 273.15;
 constexpr int kWidth = 12;
 
 std::string format(const char* spec, double v) {

@@ -12,6 +12,7 @@
 #include "hearthray/comfort_report.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/thermal_report.hpp"
+#include "hearthray/units.hpp"
 
 namespace hearthray::cli {
 
@@ -19,7 +20,6 @@ namespace {
 
 namespace fs = std::filesystem;
 
-constexpr double kZeroCelsius = 273.15;
 // A point whose rays leave the room more often than this is probably outside it.
 constexpr double kLostWarning = 1e-3;
 

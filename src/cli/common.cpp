@@ -57,18 +57,8 @@ void finish(const RaySettings& settings, FactorRun* run) {
   }
 }
 
-}  // namespace
-
-std::uint64_t rays_per_patch(const SceneFile& file, const RaySettings& settings) {
-  return settings.rays.value_or(file.rays_per_patch.value_or(kDefaultRaysPerPatch));
-}
-
-std::uint64_t ray_seed(const SceneFile& file, const RaySettings& settings) {
-  return settings.seed.value_or(file.seed.value_or(kDefaultSeed));
-}
-
-FactorRun run_view_factors(const SceneFile& file, const Scene& scene, const RaySettings& settings) {
-  FactorRun run = start(file, scene, settings);
+// Traces the planned run and finishes it.
+FactorRun trace_run(FactorRun run, const RaySettings& settings) {
   ViewFactorOptions options;
   options.rays_for_patch = run.rays;
   options.seed = run.seed;
@@ -83,13 +73,14 @@ FactorRun run_view_factors(const SceneFile& file, const Scene& scene, const RayS
   return run;
 }
 
-FactorRun factors_from_tallies(const SceneFile& file, const Scene& scene,
-                               const RaySettings& settings, Tallies tallies) {
-  FactorRun run = start(file, scene, settings);
-  run.tallies = std::move(tallies);
-  for (std::uint64_t n : run.tallies.rays) run.stats.rays += n;
-  finish(settings, &run);
-  return run;
+}  // namespace
+
+std::uint64_t ray_seed(const SceneFile& file, const RaySettings& settings) {
+  return settings.seed.value_or(file.seed.value_or(kDefaultSeed));
+}
+
+FactorRun run_view_factors(const SceneFile& file, const Scene& scene, const RaySettings& settings) {
+  return trace_run(start(file, scene, settings), settings);
 }
 
 FactorRun cached_view_factors(const SceneFile& file, const Scene& scene,
@@ -107,7 +98,8 @@ FactorRun cached_view_factors(const SceneFile& file, const Scene& scene,
                    seconds_text(run.stats.seconds) + " s (cache not used)");
     return run;
   }
-  const FactorRun plan = start(file, scene, settings);
+  // Patches and rays are worked out once: the key needs them, and so does the run.
+  FactorRun plan = start(file, scene, settings);
   TallyCacheSettings key_settings;
   key_settings.patch_specs = plan.specs;
   key_settings.rays = plan.rays;
@@ -116,7 +108,10 @@ FactorRun cached_view_factors(const SceneFile& file, const Scene& scene,
   const TallyCacheKey key = tally_cache_key(file, scene, key_settings);
   CachedTallies cached = load_cached_tallies(dir, key, plan.scene, plan.patches, plan.rays);
   if (cached.status == CacheStatus::hit) {
-    FactorRun run = factors_from_tallies(file, scene, settings, std::move(cached.tallies));
+    FactorRun run = std::move(plan);
+    run.tallies = std::move(cached.tallies);
+    for (std::uint64_t n : run.tallies.rays) run.stats.rays += n;
+    finish(settings, &run);
     run.from_cache = true;
     run.cache_path = cached.path;
     log->push_back("view factors: from cache " + cached.path);
@@ -126,7 +121,7 @@ FactorRun cached_view_factors(const SceneFile& file, const Scene& scene,
     warnings->push_back("ignored the cache file " + cached.path + ": " + cached.reason +
                         "; tracing again");
   }
-  FactorRun run = run_view_factors(file, scene, settings);
+  FactorRun run = trace_run(std::move(plan), settings);
   const std::string seconds = seconds_text(run.stats.seconds);
   const CacheWrite written = store_cached_tallies(dir, key, run.tallies, run.stats.seconds);
   if (written.stored) {

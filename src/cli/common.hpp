@@ -49,15 +49,11 @@ struct FactorRun {
   std::string cache_path;   // the cache file read or written ("" when none)
 };
 
-// Rays per patch and seed: command line over scene file over default.
-std::uint64_t rays_per_patch(const SceneFile& file, const RaySettings& settings);
+// Seed: command line over scene file over default.
 std::uint64_t ray_seed(const SceneFile& file, const RaySettings& settings);
 
 // Traces, diagnoses and (unless raw) smooths.
 FactorRun run_view_factors(const SceneFile& file, const Scene& scene, const RaySettings& settings);
-// The same from tallies traced earlier (all emitters, with the settings' rays and seed).
-FactorRun factors_from_tallies(const SceneFile& file, const Scene& scene,
-                               const RaySettings& settings, Tallies tallies);
 
 struct CacheChoice {
   bool use = true;
