@@ -17,7 +17,7 @@
 #include <string>
 #include <vector>
 
-#include "../src/exchange_krylov.hpp"
+#include "../src/exchange/exchange_krylov.hpp"
 #include "hearthray/exchange.hpp"
 #include "hearthray/units.hpp"
 

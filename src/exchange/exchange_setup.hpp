@@ -46,7 +46,7 @@ double reference_temperature(const Setup& s);
 void fill_results(const Setup& s, const Eigen::VectorXd& J, const Eigen::VectorXd& node_K,
                   ExchangeResult* result);
 
-// The large path (src/exchange_large.cpp): Newton-Krylov on radiosities and node temperatures
+// The large path (src/exchange/exchange_large.cpp): Newton-Krylov on radiosities and node temperatures
 // together. Fills status, message, iterations and the linear-solve fields of `result`, and
 // leaves the last iterate in J and node_K (also when it did not converge).
 void solve_large(const Setup& s, const ExchangeOptions& options, ExchangeResult* result,

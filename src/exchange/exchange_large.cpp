@@ -41,8 +41,8 @@
 #include <cmath>
 #include <string>
 
-#include "exchange_krylov.hpp"
-#include "exchange_setup.hpp"
+#include "exchange/exchange_krylov.hpp"
+#include "exchange/exchange_setup.hpp"
 #include "hearthray/units.hpp"
 
 namespace hearthray {

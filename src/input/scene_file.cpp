@@ -10,7 +10,7 @@
 #include <filesystem>
 #include <sstream>
 
-#include "comfort_input_toml.hpp"
+#include "comfort/comfort_input_toml.hpp"
 #include "hearthray/error.hpp"
 
 namespace hearthray {

@@ -8,7 +8,7 @@
 
 #include "hearthray/error.hpp"
 #include "hearthray/view_factors.hpp"
-#include "view_factors_check.hpp"
+#include "factors/view_factors_check.hpp"
 
 namespace hearthray {
 namespace {

@@ -19,8 +19,8 @@
 #include <numeric>
 #include <vector>
 
-#include "exchange_krylov.hpp"
-#include "exchange_setup.hpp"
+#include "exchange/exchange_krylov.hpp"
+#include "exchange/exchange_setup.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/units.hpp"
 

@@ -4,7 +4,7 @@
 #include <cstdio>
 #include <numeric>
 
-#include "exchange_setup.hpp"
+#include "exchange/exchange_setup.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/units.hpp"
 

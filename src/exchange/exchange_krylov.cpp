@@ -1,5 +1,5 @@
 // Deterministic sparse product and restarted GMRES for the exchange solver's large path.
-#include "exchange_krylov.hpp"
+#include "exchange/exchange_krylov.hpp"
 
 #include <tbb/blocked_range.h>
 #include <tbb/parallel_for.h>

@@ -1,4 +1,4 @@
-// Pieces shared by the picture code (src/render.cpp, src/font.cpp); not a public header.
+// Pieces shared by the picture code (src/pictures/); not a public header.
 #pragma once
 
 #include <cstddef>

@@ -34,8 +34,8 @@
 #include <string>
 
 #include "hearthray/error.hpp"
-#include "smoothing_problem.hpp"
-#include "view_factors_check.hpp"
+#include "smoothing/smoothing_problem.hpp"
+#include "factors/view_factors_check.hpp"
 
 namespace hearthray {
 

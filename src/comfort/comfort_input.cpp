@@ -5,7 +5,7 @@
 #include <cmath>
 #include <cstdlib>
 
-#include "comfort_input_toml.hpp"
+#include "comfort/comfort_input_toml.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/scene_file.hpp"
 

@@ -1,5 +1,5 @@
 // The pair list of a smoothing problem and its O(non-zeros) passes (see smoothing_problem.hpp).
-#include "smoothing_problem.hpp"
+#include "smoothing/smoothing_problem.hpp"
 
 #include <tbb/blocked_range.h>
 #include <tbb/parallel_for.h>

@@ -12,7 +12,7 @@
 #include <set>
 
 #include "hearthray/error.hpp"
-#include "render_parts.hpp"
+#include "pictures/render_parts.hpp"
 
 namespace hearthray {
 

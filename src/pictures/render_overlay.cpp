@@ -4,7 +4,7 @@
 #include <cstdio>
 #include <cstdlib>
 
-#include "render_parts.hpp"
+#include "pictures/render_parts.hpp"
 
 namespace hearthray::render_detail {
 namespace {

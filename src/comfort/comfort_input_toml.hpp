@@ -1,4 +1,4 @@
-// Private: the [comfort] table reader, called by the scene-file reader (src/scene_file.cpp).
+// Private: the [comfort] table reader, called by the scene-file reader (src/input/scene_file.cpp).
 #pragma once
 
 #include <toml++/toml.h>

@@ -6,7 +6,7 @@
 #include <cstdint>
 #include <map>
 
-#include "render_parts.hpp"
+#include "pictures/render_parts.hpp"
 
 namespace hearthray::render_detail {
 namespace {
