@@ -10,6 +10,7 @@
 #include <cmath>
 #include <cstdio>
 
+#include "factors/hit_counter.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/sampling.hpp"
 
@@ -82,25 +83,19 @@ Vec3 direction(ComfortBody body, std::size_t e, std::uint64_t key, std::uint64_t
   return t * local.x + b * local.y + n * local.z;
 }
 
+// Per-thread scratch: the hit counter and one batch of rays.
 struct Scratch {
-  std::vector<std::uint64_t> count;  // per patch
-  std::vector<std::uint32_t> touched;
+  explicit Scratch(const PatchLookup& lookup) : counter(lookup), rays(kBatch), hits(kBatch) {}
+  HitCounter counter;
   std::vector<Ray> rays;
   std::vector<RayHit> hits;
 };
 
-DirectionTally trace_one(const PatchSet& patches, const Tracer& tracer, const ComfortPoint& point,
-                         std::size_t point_index, std::size_t e, const AngleFactorOptions& options,
-                         Scratch& s) {
-  if (s.count.size() != patches.size()) s.count.assign(patches.size(), 0);
-  s.rays.resize(kBatch);
-  s.hits.resize(kBatch);
-  s.touched.clear();
+DirectionTally trace_one(const Tracer& tracer, const ComfortPoint& point, std::size_t point_index,
+                         std::size_t e, const AngleFactorOptions& options, Scratch& s) {
   const std::uint64_t key =
       patch_stream_key(options.seed ^ kComfortStream, point_index * kEstimators + e);
   const Vec3 origin = point.position - tracer.centre();
-  DirectionTally tally;
-  tally.rays = options.rays;
   for (std::uint64_t first = 0; first < options.rays; first += kBatch) {
     const std::size_t n = std::size_t(std::min<std::uint64_t>(kBatch, options.rays - first));
     for (std::size_t i = 0; i < n; ++i) {
@@ -111,27 +106,15 @@ DirectionTally trace_one(const PatchSet& patches, const Tracer& tracer, const Co
       r.dir[0] = float(d.x), r.dir[1] = float(d.y), r.dir[2] = float(d.z);
     }
     tracer.trace(s.rays.data(), s.hits.data(), n);
-    for (std::size_t i = 0; i < n; ++i) {
-      const RayHit& h = s.hits[i];
-      if (h.triangle == RayHit::kMiss) {
-        ++tally.escaped;
-        continue;
-      }
-      const std::uint32_t p = h.front ? patches.front_patch_of_triangle[h.triangle]
-                                      : patches.back_patch_of_triangle[h.triangle];
-      if (p == PatchSet::kNoPatch) {
-        ++tally.back_face;
-        continue;
-      }
-      if (s.count[p]++ == 0) s.touched.push_back(p);
-    }
+    for (std::size_t i = 0; i < n; ++i) s.counter.add(s.hits[i]);
   }
-  std::sort(s.touched.begin(), s.touched.end());
-  for (std::uint32_t p : s.touched) {
-    tally.patch.push_back(p);
-    tally.count.push_back(s.count[p]);
-    s.count[p] = 0;
-  }
+  HitTally hits = s.counter.take();
+  DirectionTally tally;
+  tally.rays = options.rays;
+  tally.escaped = hits.escaped;
+  tally.back_face = hits.back_face;
+  tally.patch = std::move(hits.patch);
+  tally.count = std::move(hits.count);
   return tally;
 }
 
@@ -244,15 +227,15 @@ std::vector<PointFactors> trace_angle_factors(const Scene& scene, const PatchSet
                                               const AngleFactorOptions& options) {
   std::string error;
   if (!options.IsValid(&error)) throw InputError(error);
-  (void)scene;
+  const PatchLookup lookup(scene, patches);
   std::vector<PointFactors> out(points.size());
-  tbb::enumerable_thread_specific<Scratch> scratch;
+  tbb::enumerable_thread_specific<Scratch> scratch([&] { return Scratch(lookup); });
   const int threads = options.threads > 0 ? options.threads : tbb::info::default_concurrency();
   tbb::task_arena arena(threads);
   arena.execute([&] {
     tbb::parallel_for(std::size_t(0), points.size() * kEstimators, [&](std::size_t task) {
       const std::size_t k = task / kEstimators, e = task % kEstimators;
-      DirectionTally t = trace_one(patches, tracer, points[k], k, e, options, scratch.local());
+      DirectionTally t = trace_one(tracer, points[k], k, e, options, scratch.local());
       if (e == 0) {
         out[k].body = std::move(t);
       } else {

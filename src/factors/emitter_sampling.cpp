@@ -1,0 +1,118 @@
+#include "factors/emitter_sampling.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+#include "hearthray/sampling.hpp"
+
+namespace hearthray {
+namespace {
+
+// Offset of ray origins from the surface, relative to the size of the coordinates (not to
+// an absolute length), so self-hits are avoided the same way at any scale: float rounding of
+// the sampled point and of Embree's hit distance is ~1e-7 of the coordinates, and the offset
+// 2^-16 ~ 1.5e-5 of them leaves a margin of about 100. Coordinates are taken in the tracer's
+// frame (centred on the scene), so the offset follows the scene's size, not its position.
+constexpr double kRelativeOffset = 1.0 / 65536.0;
+
+std::vector<EmitterSampler::TriangleFrame> make_frames(const Scene& scene, const Vec3& centre) {
+  std::vector<EmitterSampler::TriangleFrame> frames(scene.triangles.size());
+  const double floor = scene.bounds.diagonal() / 1024;  // only guards against a zero offset
+  for (std::size_t i = 0; i < scene.triangles.size(); ++i) {
+    const Triangle& tri = scene.triangles[i];
+    const Vec3 a = scene.vertices[tri.v[0]] - centre;
+    const Vec3 b = scene.vertices[tri.v[1]] - centre;
+    const Vec3 c = scene.vertices[tri.v[2]] - centre;
+    const Vec3 n = normalized(cross(b - a, c - a));
+    Vec3 t, bt;
+    orthonormal_basis(n, &t, &bt);
+    double scale = floor;
+    for (const Vec3* p : {&a, &b, &c})
+      scale = std::max({scale, std::fabs(p->x), std::fabs(p->y), std::fabs(p->z)});
+    EmitterSampler::TriangleFrame& f = frames[i];
+    const Vec3 e1 = b - a, e2 = c - a;
+    for (int k = 0; k < 3; ++k) {
+      f.v0[k] = float(a[k]);
+      f.e1[k] = float(e1[k]);
+      f.e2[k] = float(e2[k]);
+      f.n[k] = float(n[k]);
+      f.t[k] = float(t[k]);
+      f.b[k] = float(bt[k]);
+    }
+    f.offset = float(kRelativeOffset * scale);
+  }
+  return frames;
+}
+
+}  // namespace
+
+EmitterSampler::EmitterSampler(const Scene& scene, const PatchSet& patches, const Vec3& centre,
+                               std::uint64_t seed)
+    : patches_(&patches),
+      seed_(seed),
+      frames_(make_frames(scene, centre)),
+      cumulative_(patches.triangle_index.size()),
+      inverse_area_(patches.triangle_index.size()) {
+  for (std::uint32_t p = 0; p < patches.size(); ++p) {
+    double sum = 0;
+    for (std::uint32_t k = patches.triangle_offset[p]; k < patches.triangle_offset[p + 1]; ++k) {
+      const double area = scene.triangle_area(patches.triangle_index[k]);
+      sum += area;
+      cumulative_[k] = sum;
+      inverse_area_[k] = 1.0 / area;
+    }
+  }
+}
+
+EmitterSampler::Cursor EmitterSampler::start(std::uint32_t patch, std::uint64_t total,
+                                             std::uint64_t first) const {
+  Cursor c;
+  c.patch = patch;
+  c.total = total;
+  c.key = patch_stream_key(seed_, patch);
+  const std::uint32_t t_begin = patches_->triangle_offset[patch];
+  c.triangle_end = patches_->triangle_offset[patch + 1];
+  // First triangle of the stratum of ray `first`.
+  const double area = cumulative_[c.triangle_end - 1];
+  c.triangle = static_cast<std::uint32_t>(std::upper_bound(cumulative_.begin() + t_begin,
+                                                           cumulative_.begin() + c.triangle_end,
+                                                           area * double(first) / double(total)) -
+                                          cumulative_.begin());
+  c.triangle = std::min(c.triangle, c.triangle_end - 1);
+  return c;
+}
+
+void EmitterSampler::sample(Cursor& cursor, std::uint64_t first, std::size_t count, Ray* rays,
+                            float* offset) const {
+  const std::uint32_t p = cursor.patch;
+  const float sign = patches_->patches[p].side == Side::back ? -1.0f : 1.0f;
+  const std::uint32_t t_begin = patches_->triangle_offset[p];
+  const std::uint32_t t_end = cursor.triangle_end;
+  const double step = cumulative_[t_end - 1] / double(cursor.total);  // area per stratum
+  std::uint32_t j = cursor.triangle;
+  for (std::size_t i = 0; i < count; ++i) {
+    const std::uint64_t k = first + i;
+    const auto u = ray_uniforms(cursor.key, k);
+    // Stratum k of the patch's area, walked in triangle order (coherent origins).
+    const double target = (double(k) + u[0]) * step;
+    while (j + 1 < t_end && cumulative_[j] <= target) ++j;
+    const double below = j > t_begin ? cumulative_[j - 1] : 0.0;
+    const double r = std::min(std::max((target - below) * inverse_area_[j], 0.0), 1.0 - 1e-16);
+    const Barycentric bc = sample_triangle_uniform(r, u[1]);
+    const Vec3 d = sample_cosine_hemisphere(u[2], u[3]);
+    const TriangleFrame& f = frames_[patches_->triangle_index[j]];
+    Ray& ray = rays[i];
+    const float b1 = float(bc.b1), b2 = float(bc.b2);
+    const float dx = float(d.x), dy = float(d.y), dz = float(d.z) * sign;
+    for (int c = 0; c < 3; ++c) {
+      ray.org[c] = f.v0[c] + b1 * f.e1[c] + b2 * f.e2[c] + sign * f.offset * f.n[c];
+      ray.dir[c] = dx * f.t[c] + dy * f.b[c] + dz * f.n[c];
+    }
+    ray.tnear = 0;
+    ray.tfar = 3.0e38f;
+    offset[i] = f.offset;
+  }
+  cursor.triangle = j;
+}
+
+}  // namespace hearthray

@@ -1,0 +1,52 @@
+// Rays of the emitting patches: origins uniform over a patch's area, stratified along its
+// triangle list, and cosine-weighted directions, each ray a pure function of (seed, patch,
+// ray index) so that results do not depend on how the rays are split among threads.
+#pragma once
+
+#include <cstddef>
+#include <cstdint>
+#include <vector>
+
+#include "hearthray/patches.hpp"
+#include "hearthray/scene.hpp"
+#include "hearthray/tracer.hpp"
+
+namespace hearthray {
+
+class EmitterSampler {
+ public:
+  // `centre`: origin of the tracer's frame (Tracer::centre()).
+  EmitterSampler(const Scene& scene, const PatchSet& patches, const Vec3& centre,
+                 std::uint64_t seed);
+
+  // A walk through the rays of one patch, which emits `total` rays in all, from ray `first`
+  // on. Rays are drawn in ascending index order: the stratum walk only moves forward.
+  struct Cursor {
+    std::uint32_t patch = 0;
+    std::uint64_t total = 0;
+    std::uint64_t key = 0;                         // the patch's random stream
+    std::uint32_t triangle = 0, triangle_end = 0;  // current position in the triangle list
+  };
+  Cursor start(std::uint32_t patch, std::uint64_t total, std::uint64_t first) const;
+
+  // Rays [first, first + count) of the cursor's patch, in the tracer's frame, and the origin
+  // offset of each (the distance its origin was lifted off the surface).
+  void sample(Cursor& cursor, std::uint64_t first, std::size_t count, Ray* rays,
+              float* offset) const;
+
+  // Everything the sampler needs of a triangle, in float as the rays are.
+  struct TriangleFrame {
+    float v0[3], e1[3], e2[3];
+    float n[3], t[3], b[3];  // right-handed frame, n the front normal
+    float offset;            // origin offset along the normal against self-hits
+  };
+
+ private:
+  const PatchSet* patches_;
+  std::uint64_t seed_;
+  std::vector<TriangleFrame> frames_;  // per scene triangle
+  // Along each patch's triangle list: cumulative area, and 1 / the triangle's area.
+  std::vector<double> cumulative_, inverse_area_;
+};
+
+}  // namespace hearthray

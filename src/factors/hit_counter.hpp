@@ -1,0 +1,86 @@
+// Counting where traced rays land, shared by the view-factor tracer and the comfort tracer:
+// the patch a hit belongs to, and per-patch counters whose totals cost O(patches touched) to
+// read out, not O(patches).
+#pragma once
+
+#include <cstdint>
+#include <vector>
+
+#include "hearthray/patches.hpp"
+#include "hearthray/scene.hpp"
+#include "hearthray/tracer.hpp"
+
+namespace hearthray {
+
+// The patch a hit lands in. Where a surface side is one patch (the usual case) the surface,
+// which the tracer reports without a memory lookup, settles it; otherwise the triangle does.
+class PatchLookup {
+ public:
+  PatchLookup(const Scene& scene, const PatchSet& patches);
+
+  // The receiving patch of a hit (not a miss): PatchSet::kNoPatch on the back of a
+  // one-sided surface.
+  std::uint32_t patch_of(const RayHit& hit) const {
+    const std::uint32_t q = hit.front ? surface_front_[hit.surface] : surface_back_[hit.surface];
+    if (q != kByTriangle) return q;
+    return hit.front ? patches_->front_patch_of_triangle[hit.triangle]
+                     : patches_->back_patch_of_triangle[hit.triangle];
+  }
+  std::size_t patch_count() const { return patches_->size(); }
+  std::size_t surface_count() const { return surface_front_.size(); }
+
+ private:
+  static constexpr std::uint32_t kByTriangle = 0xfffffffeu;
+  const PatchSet* patches_;
+  std::vector<std::uint32_t> surface_front_, surface_back_;  // per surface: patch or kByTriangle
+};
+
+// What one run of rays (a chunk of an emitter's rays, one comfort direction) arrived at.
+struct HitTally {
+  std::vector<std::uint32_t> patch;  // receiving patches, ascending
+  std::vector<std::uint64_t> count;  // rays that arrived at each
+  std::uint64_t escaped = 0;         // rays that hit nothing
+  std::uint64_t back_face = 0;       // rays absorbed on the back of a one-sided surface
+};
+
+// One thread's counter of ray arrivals: dense per-patch counters with a list of the touched
+// entries. Runs of rays are counted one after another (add ..., take); the per-surface
+// totals run over every ray the counter has seen.
+class HitCounter {
+ public:
+  explicit HitCounter(const PatchLookup& lookup);
+
+  void add(const RayHit& hit) {
+    if (hit.triangle == RayHit::kMiss) {
+      ++run_.escaped;
+      return;
+    }
+    ++hits_on_surface_[hit.surface];
+    const std::uint32_t q = lookup_->patch_of(hit);
+    if (q == PatchSet::kNoPatch) {
+      ++run_.back_face;
+      ++back_face_hits_on_surface_[hit.surface];
+      return;
+    }
+    if (count_[q]++ == 0) touched_.push_back(q);
+  }
+
+  // The tally of the rays added since the last take (patches ascending); the next run starts
+  // from zero.
+  HitTally take();
+
+  // Over every ray added: arrivals (front and back) per surface, and back-face arrivals.
+  const std::vector<std::uint64_t>& hits_on_surface() const { return hits_on_surface_; }
+  const std::vector<std::uint64_t>& back_face_hits_on_surface() const {
+    return back_face_hits_on_surface_;
+  }
+
+ private:
+  const PatchLookup* lookup_;
+  std::vector<std::uint64_t> count_;  // per patch, zero outside the current run's touched_
+  std::vector<std::uint32_t> touched_;
+  HitTally run_;  // escaped and back_face of the current run
+  std::vector<std::uint64_t> hits_on_surface_, back_face_hits_on_surface_;
+};
+
+}  // namespace hearthray
