@@ -1,6 +1,7 @@
 // `hearthray solve` end to end (scene file -> traced view factors -> exchange -> report.json)
-// against closed forms. The enclosure cases must agree within 0.5 % (the project's quality
-// bar) and balance to 1e-9 of their largest heat flow.
+// against closed forms. The concentric spheres must agree to 1e-9 relative (smoothing makes
+// their factors exact, see below); the cube within 0.5 % (the project's quality bar). Both
+// balance to 1e-9 of their largest heat flow.
 #include <Eigen/Dense>
 #include <catch2/catch.hpp>
 #include <cmath>
@@ -68,6 +69,12 @@ TEST_CASE("solve: concentric spheres match the two-surface enclosure formula", "
   // F12 = 1, which holds for any convex inner body, so it applies to the icosphere meshes with
   // their own areas. Inner eps 0.5 at 900 K, outer eps 0.4 at 400 K (the project's issue);
   // radii 0.5 m and 1 m and the mesh level are our choice.
+  // Tolerance 1e-9 relative, not a statistical one: the inner body is convex, so none of its
+  // rays returns to it (F11 = 0 exactly, a structural zero) and every one reaches the outer
+  // sphere; smoothing then enforces closure and reciprocity to round-off, which fixes
+  // F12 = 1, F21 = A1/A2 and F22 = 1 - A1/A2 exactly on the mesh's own areas. No ray noise
+  // is left in the answer, so any difference above round-off is a fault of the smoothing or
+  // of the solve.
   const ScratchDir dir("solve-spheres");
   const std::string obj = concentric_spheres_obj(0.5, 1.0, 3);
   const Scene mesh = load_obj_text(obj, "spheres");
@@ -95,8 +102,8 @@ temperature = "400 K"
   const double error = std::abs(inner.at("net_W").get<double>() - q) / q;
   INFO("inner net " << inner.at("net_W").get<double>() << " W, formula " << q
                     << " W, relative error " << error);
-  CHECK(error <= 0.005);
-  CHECK(surface(report, "outer").at("net_W").get<double>() == Approx(-q).epsilon(0.005));
+  CHECK(error <= 1e-9);
+  CHECK(surface(report, "outer").at("net_W").get<double>() == Approx(-q).epsilon(1e-9));
   check_balance(report);
 }
 
