@@ -1,0 +1,85 @@
+// Reciprocity and closure of gas exchange areas (see gas_zones.hpp).
+#include <algorithm>
+#include <cmath>
+
+#include "hearthray/gas_zones.hpp"
+
+namespace hearthray {
+
+namespace {
+
+// The two estimates S_ij (from row i's rays) and S_ji (from row j's) of one symmetric exchange
+// area, combined by inverse variance; the plain mean where a variance is zero.
+Eigen::MatrixXd symmetric_estimate(const Eigen::MatrixXd& S, const Eigen::MatrixXd& sigma) {
+  const Eigen::Index n = S.rows();
+  Eigen::MatrixXd M = Eigen::MatrixXd::Zero(n, n);
+  for (Eigen::Index i = 0; i < n; ++i) {
+    M(i, i) = S(i, i);
+    for (Eigen::Index j = i + 1; j < n; ++j) {
+      const double a = S(i, j), b = S(j, i);
+      const double va = sigma(i, j) * sigma(i, j), vb = sigma(j, i) * sigma(j, i);
+      const double m = (va > 0 && vb > 0) ? (a / va + b / vb) / (1 / va + 1 / vb) : 0.5 * (a + b);
+      M(i, j) = M(j, i) = m;
+    }
+  }
+  return M;
+}
+
+}  // namespace
+
+GasSmoothingSummary smooth_gas_exchange(GasExchange& x, double tolerance, int max_iterations) {
+  GasSmoothingSummary summary;
+  summary.converged = true;
+  const Eigen::Index n = Eigen::Index(x.rows());
+  for (std::size_t g = 0; g < x.gas_count(); ++g) {
+    const Eigen::MatrixXd raw = x.S[g];
+    Eigen::MatrixXd M = symmetric_estimate(raw, x.sigma[g]);
+    Eigen::VectorXd target(n);
+    for (Eigen::Index i = 0; i < n; ++i)
+      target(i) = std::max(0.0, x.row_target(g, std::size_t(i)) - x.lost[g](i));
+    // Symmetric Sinkhorn-Knopp (Knight 2008): d_i <- sqrt(d_i t_i / (M d)_i) converges to
+    // d_i (M d)_i = t_i for a symmetric non-negative M with total support. Rows with a zero
+    // target (the zones of a clear gas) are left out.
+    Eigen::VectorXd d = Eigen::VectorXd::Ones(n);
+    for (Eigen::Index i = 0; i < n; ++i)
+      if (target(i) == 0) d(i) = 0;
+    int it = 0;
+    double error = 0;
+    for (; it < max_iterations; ++it) {
+      const Eigen::VectorXd r = M * d;
+      error = 0;
+      for (Eigen::Index i = 0; i < n; ++i) {
+        if (target(i) == 0) continue;
+        error = std::max(error, std::fabs(d(i) * r(i) - target(i)) / target(i));
+      }
+      if (error < tolerance) break;
+      for (Eigen::Index i = 0; i < n; ++i)
+        if (target(i) > 0 && r(i) > 0) d(i) = std::sqrt(d(i) * target(i) / r(i));
+    }
+    summary.iterations = std::max(summary.iterations, it);
+    if (error >= tolerance) summary.converged = false;
+    Eigen::MatrixXd S = d.asDiagonal() * M * d.asDiagonal();
+    // Report on the result: row sums, symmetry, and how far each entry moved.
+    const double scale = S.cwiseAbs().maxCoeff();
+    for (Eigen::Index i = 0; i < n; ++i) {
+      const double t = x.row_target(g, std::size_t(i));
+      if (t > 0)
+        summary.max_row_error =
+            std::max(summary.max_row_error, std::fabs(S.row(i).sum() + x.lost[g](i) - t) / t);
+      for (Eigen::Index j = 0; j < n; ++j) {
+        if (scale > 0)
+          summary.max_reciprocity_error =
+              std::max(summary.max_reciprocity_error, std::fabs(S(i, j) - S(j, i)) / scale);
+        if (x.sigma[g](i, j) > 0)
+          summary.max_correction_sigma = std::max(
+              summary.max_correction_sigma, std::fabs(S(i, j) - raw(i, j)) / x.sigma[g](i, j));
+      }
+    }
+    x.S[g] = std::move(S);
+  }
+  x.smoothed = true;
+  x.max_correction_sigma = summary.max_correction_sigma;
+  return summary;
+}
+
+}  // namespace hearthray
