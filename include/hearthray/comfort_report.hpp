@@ -57,16 +57,16 @@ HeaterSummary summarise_heaters(const ThermalModel& model,
                                 const std::vector<SurfaceHeat>& surfaces);
 
 // A floor-plan map of one quantity over the grid points (x right, y up), the room outline and
-// every surface's plan outline drawn over it: heated surfaces in red-orange outline, surfaces
-// whose name holds "window" or "glass" in light blue; a colour bar with its range, written
-// with a small built-in digit font (the render module's font is not public).
+// the plan outline of heated surfaces (white with a dark rim) and of surfaces whose name holds
+// "window" or "glass" (light blue) drawn over it; named points with their names; a colour bar
+// with round ticks, a legend and a scale bar in metres. Written as PNG, SVG or PDF.
 enum class MapQuantity { mean_radiant, operative, asymmetry };
 struct MapOptions {
   int pixels_per_metre = 100;
   std::vector<std::string> heaters;  // surface names drawn as heaters
 };
 // Throws InputError when no point belongs to a grid.
-Image comfort_map(const Scene& scene, const std::vector<PointComfort>& points, MapQuantity q,
+Picture comfort_map(const Scene& scene, const std::vector<PointComfort>& points, MapQuantity q,
                   const MapOptions& options);
 
 }  // namespace hearthray

@@ -1,7 +1,9 @@
 // Pictures of the model coloured by a per-patch quantity: one camera ray per sub-pixel traced
 // with the Tracer, flat colour per patch through a perceptually uniform colour map, gentle
-// shading by the angle to the view, thin dark edges where the surface changes, a colour bar
-// with the quantity and its unit, and a title. Written as 8-bit RGB PNG.
+// shading by the angle to the view, thin dark edges where the surface changes (all in a
+// raster of the model's part of the picture), then composed with a title, a colour bar with
+// round tick values and the quantity with its unit (or a legend) drawn as vectors. Written as
+// PNG, SVG or PDF (see picture.hpp).
 //
 // What is drawn: a ray that meets a face from a side that is no patch (the back of a one-sided
 // surface) or a face of a hidden surface goes on past it, so an enclosure whose normals point
@@ -17,27 +19,11 @@
 #include "hearthray/fields.hpp"
 #include "hearthray/geometry.hpp"
 #include "hearthray/patches.hpp"
+#include "hearthray/picture.hpp"
 #include "hearthray/scene.hpp"
 #include "hearthray/tracer.hpp"
 
 namespace hearthray {
-
-struct Rgb {
-  std::uint8_t r = 0, g = 0, b = 0;
-  bool operator==(const Rgb& o) const { return r == o.r && g == o.g && b == o.b; }
-  bool operator!=(const Rgb& o) const { return !(*this == o); }
-};
-
-// 8-bit sRGB image, rows top to bottom.
-struct Image {
-  int width = 0, height = 0;
-  std::vector<std::uint8_t> rgb;  // 3 * width * height
-
-  Rgb at(int x, int y) const {
-    const std::size_t i = 3 * (std::size_t(y) * std::size_t(width) + std::size_t(x));
-    return {rgb[i], rgb[i + 1], rgb[i + 2]};
-  }
-};
 
 struct RenderOptions {
   int width = 800;  // pixels, the whole picture (colour bar and title included)
@@ -55,6 +41,9 @@ struct RenderOptions {
   // Non-empty: the field holds category indices (e.g. surface numbers) coloured by a
   // qualitative palette and listed in a legend under these names, instead of a colour bar.
   std::vector<std::string> categories;
+  // Signed quantities (a net flux): the diverging colour map, the range symmetric about zero
+  // unless given, and zero marked on the colour bar.
+  bool diverging = false;
   Rgb background{247, 247, 245};
   double shading = 0.25;  // darkening at grazing view, 0..1 (0: flat colours)
   bool edges = true;      // dark lines where the surface changes (patch, when patches are large)
@@ -67,12 +56,8 @@ struct RenderOptions {
 
 // Throws InputError for invalid options, an unknown hidden surface or a field with the wrong
 // number of values.
-Image render(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
-             const PatchField& field, const RenderOptions& options);
-
-// PNG, 8-bit RGB. Throw InputError naming the file when it cannot be written or read.
-void write_png(const std::string& path, const Image& image);
-Image read_png(const std::string& path);
+Picture render(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
+               const PatchField& field, const RenderOptions& options);
 
 // sRGB components in [0, 1].
 struct Colour {
@@ -82,6 +67,10 @@ struct Colour {
 // orange to pale yellow, with CIELAB lightness rising strictly and equal colour differences
 // for equal steps of t.
 Colour sequential_colour(double t);
+// The diverging colour map for signed quantities: t = 0.5 (zero) is a light neutral grey; below
+// it deep blue-green, above it deep copper-red, CIELAB lightness falling equally fast on both
+// sides (equal colour differences for equal steps of t on each side).
+Colour diverging_colour(double t);
 // Qualitative palette for categories: distinct hues of similar lightness, repeating after
 // kCategoryColours entries.
 inline constexpr int kCategoryColours = 12;

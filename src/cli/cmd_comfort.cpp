@@ -147,13 +147,16 @@ int run_comfort_command(const ComfortArgs& args) {
   if (grid) {
     MapOptions options;
     options.heaters = r.heater_names;
-    const std::pair<MapQuantity, const char*> maps[] = {
-        {MapQuantity::mean_radiant, "map_mean_radiant.png"},
-        {MapQuantity::operative, "map_operative.png"},
-        {MapQuantity::asymmetry, "map_asymmetry.png"}};
-    for (const auto& [q, name] : maps) {
-      write_png((dir / name).string(), comfort_map(r.solved.run.scene, r.points, q, options));
-      files.push_back(name);
+    const std::pair<MapQuantity, std::string> maps[] = {
+        {MapQuantity::mean_radiant, "map_mean_radiant"},
+        {MapQuantity::operative, "map_operative"},
+        {MapQuantity::asymmetry, "map_asymmetry"}};
+    for (const auto& [q, name] : maps) {  // each as PNG and as SVG
+      const Picture map = comfort_map(r.solved.run.scene, r.points, q, options);
+      for (const char* extension : {".png", ".svg"}) {
+        write_picture((dir / (name + extension)).string(), map);
+        files.push_back(name + extension);
+      }
     }
   }
   if (!args.rays.quiet) {

@@ -1,6 +1,7 @@
-// `hearthray render`: a PNG picture of the model coloured by a per-patch quantity. Until
-// per-patch results are stored, the quantities are those that need no solve: the surface,
-// the patch area, and the view factor to a named surface from a quick trace.
+// `hearthray render`: a picture (PNG, or SVG or PDF by the output's extension) of the model
+// coloured by a per-patch quantity. Until per-patch results are stored, the quantities are those
+// that need no solve: the surface, the patch area, and the view factor to a named surface from a
+// quick trace.
 #include <chrono>
 #include <cmath>
 #include <filesystem>
@@ -88,13 +89,13 @@ int run_render_command(const RenderArgs& args) {
   std::string problem;
   if (!options.IsValid(&problem)) throw InputError(problem);
 
-  const Image image = render(scene, patches, tracer, field, options);
-  write_png(args.output, image);
+  const Picture picture = render(scene, patches, tracer, field, options);
+  write_picture(args.output, picture);
   if (!args.quiet) {
     const double seconds =
         std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
-    std::cout << "wrote " << args.output << " (" << image.width << " x " << image.height << ", "
-              << field.name << ", " << seconds << " s)\n";
+    std::cout << "wrote " << args.output << " (" << picture.width() << " x " << picture.height()
+              << ", " << field.name << ", " << seconds << " s)\n";
   }
   return 0;
 }

@@ -90,15 +90,20 @@ int run_solve_command(const SolveArgs& args) {
     // Pictures of the temperature and the net radiative flux from the default view.
     const Tracer tracer(run.scene);
     const std::string scene_name = fs::path(file.path).stem().string();
+    // Each as PNG and as SVG; the net flux, a signed quantity, on the diverging colour map.
     for (const auto& [field_name, picture] :
-         {std::pair<std::string, std::string>{"temperature", "temperature.png"},
-          {"net radiative flux", "net_flux.png"}}) {
+         {std::pair<std::string, std::string>{"temperature", "temperature"},
+          {"net radiative flux", "net_flux"}}) {
       for (const PatchField& field : fields) {
         if (field.name != field_name) continue;
         RenderOptions options;
         options.title = scene_name + ": " + field.name;
-        write_png((dir / picture).string(), render(run.scene, run.patches, tracer, field, options));
-        info.files.push_back(picture);
+        options.diverging = field_name == "net radiative flux";
+        const Picture drawn = render(run.scene, run.patches, tracer, field, options);
+        for (const char* extension : {".png", ".svg"}) {
+          write_picture((dir / (picture + extension)).string(), drawn);
+          info.files.push_back(picture + extension);
+        }
       }
     }
     info.files.insert(info.files.end(), factor_files.begin(), factor_files.end());

@@ -1,7 +1,7 @@
-// Floor-plan maps of the comfort figures (see comfort_report.hpp): grid cells coloured through
-// the render module's sequential colour map, the plan outline of every surface drawn over them,
-// a colour bar, and labels in a small 3x5 font of our own (the render module keeps its font
-// private).
+// Floor-plan maps of the comfort figures (see comfort_report.hpp), drawn with the pictures'
+// drawing layer (pictures/canvas.hpp): grid cells coloured through the sequential colour map,
+// the plan outline of glass and heaters over them, named points with their names, a colour
+// bar with round ticks, a legend and a scale bar in metres.
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
@@ -11,87 +11,23 @@
 #include "hearthray/comfort_report.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/units.hpp"
+#include "pictures/canvas.hpp"
 
 namespace hearthray {
 namespace {
 
-constexpr int kScale = 2;  // font pixels per glyph pixel
-constexpr int kLeft = 30, kTop = 44, kBottom = 34, kBarGap = 24, kBarWidth = 22, kRight = 80;
+using pictures::Align;
+using pictures::Canvas;
+using pictures::kInk;
+using pictures::kSoftInk;
+using pictures::Weight;
 
-// 3x5 glyphs, rows top to bottom, '1' = ink.
-const std::map<char, const char*>& glyphs() {
-  static const std::map<char, const char*> g = {
-      {'0', "111101101101111"}, {'1', "010110010010111"}, {'2', "111001111100111"},
-      {'3', "111001111001111"}, {'4', "101101111001001"}, {'5', "111100111001111"},
-      {'6', "111100111101111"}, {'7', "111001001001001"}, {'8', "111101111101111"},
-      {'9', "111101111001111"}, {'.', "000000000000010"}, {'-', "000000111000000"},
-      {'A', "010101111101101"}, {'B', "110101110101110"}, {'C', "011100100100011"},
-      {'D', "110101101101110"}, {'E', "111100110100111"}, {'F', "111100110100100"},
-      {'G', "011100101101011"}, {'H', "101101111101101"}, {'I', "111010010010111"},
-      {'J', "001001001101010"}, {'K', "101101110101101"}, {'L', "100100100100111"},
-      {'M', "101111111101101"}, {'N', "110101101101101"}, {'O', "010101101101010"},
-      {'P', "110101110100100"}, {'Q', "010101101110011"}, {'R', "110101110101101"},
-      {'S', "011100010001110"}, {'T', "111010010010010"}, {'U', "101101101101111"},
-      {'V', "101101101101010"}, {'W', "101101111111101"}, {'X', "101101010101101"},
-      {'Y', "101101010010010"}, {'Z', "111001010100111"}, {'(', "010100100100010"},
-      {')', "010001001001010"}, {'/', "001001010100100"}, {',', "000000000010100"},
-      {'%', "101001010100101"}, {':', "000010000010000"}, {'+', "000010111010000"}};
-  return g;
-}
-
-class Canvas {
- public:
-  Canvas(int w, int h, Rgb background) {
-    image_.width = w;
-    image_.height = h;
-    image_.rgb.resize(std::size_t(3 * w * h));
-    for (int y = 0; y < h; ++y)
-      for (int x = 0; x < w; ++x) set(x, y, background);
-  }
-  void set(int x, int y, Rgb c) {
-    if (x < 0 || y < 0 || x >= image_.width || y >= image_.height) return;
-    const std::size_t i = 3 * (std::size_t(y) * std::size_t(image_.width) + std::size_t(x));
-    image_.rgb[i] = c.r, image_.rgb[i + 1] = c.g, image_.rgb[i + 2] = c.b;
-  }
-  void fill(int x0, int y0, int x1, int y1, Rgb c) {
-    for (int y = y0; y < y1; ++y)
-      for (int x = x0; x < x1; ++x) set(x, y, c);
-  }
-  // A line `width` pixels thick (square brush).
-  void line(double x0, double y0, double x1, double y1, int width, Rgb c) {
-    const int steps = int(std::ceil(std::max(std::abs(x1 - x0), std::abs(y1 - y0)))) + 1;
-    for (int k = 0; k <= steps; ++k) {
-      const double t = double(k) / steps;
-      const int x = int(std::lround(x0 + t * (x1 - x0))), y = int(std::lround(y0 + t * (y1 - y0)));
-      fill(x - width / 2, y - width / 2, x - width / 2 + width, y - width / 2 + width, c);
-    }
-  }
-  // Text in capitals; unknown characters are blanks. Returns the width drawn.
-  int text(int x, int y, const std::string& s, Rgb c) {
-    int cx = x;
-    for (char ch : s) {
-      const char up = char(std::toupper(static_cast<unsigned char>(ch)));
-      const auto it = glyphs().find(up);
-      if (it != glyphs().end()) {
-        for (int r = 0; r < 5; ++r)
-          for (int q = 0; q < 3; ++q)
-            if (it->second[r * 3 + q] == '1')
-              fill(cx + q * kScale, y + r * kScale, cx + (q + 1) * kScale, y + (r + 1) * kScale, c);
-      }
-      cx += 4 * kScale;
-    }
-    return cx - x;
-  }
-  Image take() { return std::move(image_); }
-
- private:
-  Image image_;
-};
-
-Rgb rgb(const Colour& c) {
-  auto b = [](double v) { return std::uint8_t(std::lround(255 * std::clamp(v, 0.0, 1.0))); };
-  return {b(c.r), b(c.g), b(c.b)};
-}
+constexpr double kFont = 13;  // pixels
+constexpr double kPad = 16, kTop = 58, kBottom = 56, kBarGap = 22;
+constexpr Colour kBackground{0.969, 0.969, 0.961};
+constexpr Colour kOutside{0.88, 0.88, 0.87};  // inside the room, outside the grid
+constexpr Colour kGlass{0.31, 0.7, 0.95};
+constexpr Colour kWhite{1, 1, 1};
 
 double value(const PointComfort& p, MapQuantity q) {
   switch (q) {
@@ -107,11 +43,11 @@ double value(const PointComfort& p, MapQuantity q) {
 std::string title(MapQuantity q) {
   switch (q) {
     case MapQuantity::mean_radiant:
-      return "MEAN RADIANT TEMPERATURE (C)";
+      return "Mean radiant temperature";
     case MapQuantity::operative:
-      return "OPERATIVE TEMPERATURE (C)";
+      return "Operative temperature";
     default:
-      return "RADIANT ASYMMETRY, LARGER OF VERT/HORIZ (K) X: OVER LIMIT";
+      return "Radiant asymmetry, the larger of vertical and horizontal";
   }
 }
 
@@ -141,33 +77,18 @@ std::vector<std::array<Vec3, 2>> outline(const Scene& scene, const Surface& s) {
   return out;
 }
 
-}  // namespace
+// Where the plan lies on the canvas: x right, y up, `ppm` pixels per metre.
+struct Plan {
+  Box3 box;
+  double ppm = 100, left = kPad, top = kTop;
+  double px(double x) const { return left + (x - box.lo.x) * ppm; }
+  double py(double y) const { return top + (box.hi.y - y) * ppm; }
+  double width() const { return std::ceil((box.hi.x - box.lo.x) * ppm); }
+  double height() const { return std::ceil((box.hi.y - box.lo.y) * ppm); }
+};
 
-Image comfort_map(const Scene& scene, const std::vector<PointComfort>& points, MapQuantity q,
-                  const MapOptions& options) {
-  std::vector<const PointComfort*> grid;
-  for (const PointComfort& p : points)
-    if (p.point.grid_i >= 0) grid.push_back(&p);
-  if (grid.empty()) throw InputError("a comfort map needs grid points: add [comfort.grid]");
-
-  const Box3& box = scene.bounds;
-  const double ppm = options.pixels_per_metre;
-  const int map_w = int(std::ceil((box.hi.x - box.lo.x) * ppm));
-  const int map_h = int(std::ceil((box.hi.y - box.lo.y) * ppm));
-  const int width = kLeft + map_w + kBarGap + kBarWidth + kRight;
-  const int height = kTop + map_h + kBottom;
-  Canvas c(width, height, {247, 247, 245});
-  auto px = [&](double x) { return kLeft + (x - box.lo.x) * ppm; };
-  auto py = [&](double y) { return kTop + (box.hi.y - y) * ppm; };
-
-  double lo = INFINITY, hi = -INFINITY;
-  for (const PointComfort* p : grid) {
-    lo = std::min(lo, value(*p, q));
-    hi = std::max(hi, value(*p, q));
-  }
-  if (hi - lo < 0.1) lo -= 0.05, hi += 0.05;
-
-  // Cell size from the grid: the spacing between neighbours (one point: the whole plan).
+// Cell size from the grid: the spacing between neighbours (one point: the whole plan).
+std::array<double, 2> cell_size(const std::vector<const PointComfort*>& grid, const Box3& box) {
   double dx = box.hi.x - box.lo.x, dy = box.hi.y - box.lo.y;
   for (const PointComfort* a : grid) {
     for (const PointComfort* b : grid) {
@@ -177,78 +98,167 @@ Image comfort_map(const Scene& scene, const std::vector<PointComfort>& points, M
         dy = b->point.position.y - a->point.position.y;
     }
   }
-  c.fill(kLeft, kTop, kLeft + map_w, kTop + map_h, {225, 225, 222});
-  for (const PointComfort* p : grid) {
-    const double v = value(*p, q);
-    const Rgb colour = rgb(sequential_colour((v - lo) / (hi - lo)));
-    const Vec3& at = p->point.position;
-    const int x0 = int(std::lround(px(at.x - dx / 2))), x1 = int(std::lround(px(at.x + dx / 2)));
-    const int y0 = int(std::lround(py(at.y + dy / 2))), y1 = int(std::lround(py(at.y - dy / 2)));
-    c.fill(x0, y0, x1, y1, colour);
-    if (q == MapQuantity::asymmetry && !p->within_limits()) {
-      const double cx = px(at.x), cy = py(at.y), r = 0.2 * std::min(dx, dy) * ppm;
-      c.line(cx - r, cy - r, cx + r, cy + r, 2, {0, 0, 0});
-      c.line(cx - r, cy + r, cx + r, cy - r, 2, {0, 0, 0});
-    }
-  }
-  for (const PointComfort& p : points) {
-    if (p.point.grid_i >= 0) continue;
-    const int x = int(std::lround(px(p.point.position.x))),
-              y = int(std::lround(py(p.point.position.y)));
-    c.fill(x - 3, y - 3, x + 4, y + 4, {0, 0, 0});
-    c.fill(x - 1, y - 1, x + 2, y + 2, {255, 255, 255});
-  }
+  return {dx, dy};
+}
 
-  // Surfaces in plan: glass in light blue, heaters in white with a dark rim (other surfaces
-  // are not drawn: walls seen edge-on fall on the room outline, and the outlines of floor and
-  // ceiling pieces only clutter). Passes in order, so that no rim is drawn over the white line
-  // of a neighbouring segment.
-  std::vector<std::array<Vec3, 2>> glass, heater, other;
+// Grid cells in colour (edges on whole pixels, so neighbours meet without seams), and a cross
+// on every point over its asymmetry limit on the asymmetry map. Returns whether any was over.
+bool draw_cells(Canvas& c, const Plan& plan, const std::vector<const PointComfort*>& grid,
+                MapQuantity q, double lo, double hi) {
+  const auto [dx, dy] = cell_size(grid, plan.box);
+  bool over = false;
+  for (const PointComfort* p : grid) {
+    const Vec3& at = p->point.position;
+    const double x0 = std::round(plan.px(at.x - dx / 2)), x1 = std::round(plan.px(at.x + dx / 2));
+    const double y0 = std::round(plan.py(at.y + dy / 2)), y1 = std::round(plan.py(at.y - dy / 2));
+    c.fill_rect(x0, y0, x1 - x0, y1 - y0, sequential_colour((value(*p, q) - lo) / (hi - lo)));
+  }
+  for (const PointComfort* p : grid) {
+    if (q != MapQuantity::asymmetry || p->within_limits()) continue;
+    over = true;
+    const double cx = plan.px(p->point.position.x), cy = plan.py(p->point.position.y);
+    const double r = 0.22 * std::min(dx, dy) * plan.ppm;
+    c.line(cx - r, cy - r, cx + r, cy + r, 2, kInk);
+    c.line(cx - r, cy + r, cx + r, cy - r, 2, kInk);
+  }
+  return over;
+}
+
+// Surfaces in plan: glass in light blue, heaters in white with a dark rim (other surfaces are
+// not drawn: walls seen edge-on fall on the room outline, and the outlines of floor and
+// ceiling pieces only clutter). Rims first, so that no rim covers the white of a neighbour.
+// Returns whether glass and heaters were drawn.
+std::array<bool, 2> draw_surfaces(Canvas& c, const Plan& plan, const Scene& scene,
+                                  const std::vector<std::string>& heaters) {
+  std::vector<std::array<Vec3, 2>> glass, heater;
   for (const Surface& s : scene.surfaces) {
     std::string n = s.name;
     std::transform(n.begin(), n.end(), n.begin(),
                    [](unsigned char ch) { return char(std::tolower(ch)); });
-    auto& into =
-        n.find("window") != std::string::npos || n.find("glass") != std::string::npos ? glass
-        : std::find(options.heaters.begin(), options.heaters.end(), s.name) != options.heaters.end()
-            ? heater
-            : other;
-    if (&into == &other) continue;
-    for (const auto& e : outline(scene, s)) into.push_back(e);
+    const bool is_glass =
+        n.find("window") != std::string::npos || n.find("glass") != std::string::npos;
+    const bool is_heater = std::find(heaters.begin(), heaters.end(), s.name) != heaters.end();
+    if (!is_glass && !is_heater) continue;
+    for (const auto& e : outline(scene, s)) (is_glass ? glass : heater).push_back(e);
   }
-  auto draw = [&](const std::vector<std::array<Vec3, 2>>& edges, int width, Rgb colour) {
+  auto draw = [&](const std::vector<std::array<Vec3, 2>>& edges, double width, const Colour& k) {
     for (const auto& e : edges)
-      c.line(px(e[0].x), py(e[0].y), px(e[1].x), py(e[1].y), width, colour);
+      c.line(plan.px(e[0].x), plan.py(e[0].y), plan.px(e[1].x), plan.py(e[1].y), width, k);
   };
-  draw(glass, 7, {80, 190, 255});
-  draw(heater, 5, {20, 20, 20});
-  draw(heater, 2, {255, 255, 255});
-  // Room outline.
-  c.line(px(box.lo.x), py(box.lo.y), px(box.hi.x), py(box.lo.y), 3, {0, 0, 0});
-  c.line(px(box.hi.x), py(box.lo.y), px(box.hi.x), py(box.hi.y), 3, {0, 0, 0});
-  c.line(px(box.hi.x), py(box.hi.y), px(box.lo.x), py(box.hi.y), 3, {0, 0, 0});
-  c.line(px(box.lo.x), py(box.hi.y), px(box.lo.x), py(box.lo.y), 3, {0, 0, 0});
+  draw(glass, 6, kGlass);
+  draw(heater, 5, kInk);
+  draw(heater, 2, kWhite);
+  c.stroke_rect(plan.px(plan.box.lo.x), plan.py(plan.box.hi.y), plan.width(), plan.height(), 2.5,
+                kInk);
+  return {!glass.empty(), !heater.empty()};
+}
 
-  // Colour bar with three labels.
-  const int bx = kLeft + map_w + kBarGap;
-  for (int y = 0; y < map_h; ++y) {
-    const double t = 1 - double(y) / std::max(1, map_h - 1);
-    c.fill(bx, kTop + y, bx + kBarWidth, kTop + y + 1, rgb(sequential_colour(t)));
+// Named points: a white dot with a dark rim and the point's name beside it.
+bool draw_named_points(Canvas& c, const Plan& plan, const std::vector<PointComfort>& points) {
+  bool any = false;
+  for (const PointComfort& p : points) {
+    if (p.point.grid_i >= 0) continue;
+    any = true;
+    const double x = plan.px(p.point.position.x), y = plan.py(p.point.position.y);
+    c.circle(x, y, 4, &kWhite, 1.5, kInk);
+    const double w = c.text_width(p.point.name, 0.9 * kFont);
+    const bool left = x + 8 + w > plan.px(plan.box.hi.x) - 4;  // keep the name in the room
+    const double tx = left ? x - 8 : x + 8;
+    c.fill_rect(left ? tx - w - 2 : tx - 2, y - 0.95 * kFont, w + 4, 1.25 * kFont, kWhite);
+    c.text(tx, y + 0.05 * kFont, p.point.name, 0.9 * kFont, kInk,
+           left ? Align::right : Align::left);
   }
+  return any;
+}
+
+// A scale bar of a round length (about a quarter of the plan's width) in metres, black and
+// white halves, its left end at (x, y).
+void draw_scale_bar(Canvas& c, double x, double y, const Plan& plan) {
+  const double want = 0.25 * (plan.box.hi.x - plan.box.lo.x);
+  double length = 0.1;
+  for (double candidate : {0.2, 0.25, 0.5, 1.0, 2.0, 2.5, 5.0, 10.0, 20.0, 50.0, 100.0})
+    if (candidate <= want) length = candidate;
+  const double w = length * plan.ppm, h = 6;
+  c.fill_rect(x, y, w / 2, h, kInk);
+  c.fill_rect(x + w / 2, y, w / 2, h, kWhite);
+  c.stroke_rect(x, y, w, h, 1, kInk);
+  const double base = y + h + kFont;
+  c.text(x, base, "0", 0.9 * kFont, kInk, Align::centre);
   char label[32];
-  for (int k = 0; k <= 2; ++k) {
-    const double v = hi - (hi - lo) * k / 2;
-    std::snprintf(label, sizeof label, "%.1f", v);
-    const int y = kTop + (map_h - 1) * k / 2;
-    c.fill(bx + kBarWidth, y, bx + kBarWidth + 5, y + 1, {0, 0, 0});
-    c.text(bx + kBarWidth + 8, std::clamp(y - 5, kTop - 4, kTop + map_h - 6), label, {0, 0, 0});
+  std::snprintf(label, sizeof label, "%g m", length);
+  c.text(x + w, base, label, 0.9 * kFont, kInk, Align::centre);
+}
+
+// The legend in one row from (x, y): what the lines and marks on the plan mean.
+void draw_legend(Canvas& c, double x, double y, const std::array<bool, 2>& surfaces, bool named,
+                 bool over) {
+  const double fs = 0.9 * kFont;
+  auto entry = [&](const std::string& name, auto mark) {
+    mark(x + 9, y);
+    c.text(x + 26, y + 0.35 * fs, name, fs, kInk);
+    x += 26 + c.text_width(name, fs) + 20;
+  };
+  if (surfaces[0])
+    entry("glass", [&](double cx, double cy) { c.line(cx - 9, cy, cx + 9, cy, 6, kGlass); });
+  if (surfaces[1])
+    entry("heater", [&](double cx, double cy) {
+      c.line(cx - 9, cy, cx + 9, cy, 5, kInk);
+      c.line(cx - 9, cy, cx + 9, cy, 2, kWhite);
+    });
+  if (named)
+    entry("named point", [&](double cx, double cy) { c.circle(cx, cy, 4, &kWhite, 1.5, kInk); });
+  if (over)
+    entry("over its limit", [&](double cx, double cy) {
+      c.line(cx - 5, cy - 5, cx + 5, cy + 5, 2, kInk);
+      c.line(cx - 5, cy + 5, cx + 5, cy - 5, 2, kInk);
+    });
+}
+
+}  // namespace
+
+Picture comfort_map(const Scene& scene, const std::vector<PointComfort>& points, MapQuantity q,
+                    const MapOptions& options) {
+  std::vector<const PointComfort*> grid;
+  for (const PointComfort& p : points)
+    if (p.point.grid_i >= 0) grid.push_back(&p);
+  if (grid.empty()) throw InputError("a comfort map needs grid points: add [comfort.grid]");
+  double lo = INFINITY, hi = -INFINITY;
+  for (const PointComfort* p : grid) {
+    lo = std::min(lo, value(*p, q));
+    hi = std::max(hi, value(*p, q));
   }
-  c.text(kLeft, 10, title(q), {0, 0, 0});
-  std::snprintf(label, sizeof label, "PLAN %.1f X %.1f M, Z UP", box.hi.x - box.lo.x,
-                box.hi.y - box.lo.y);
-  c.text(kLeft, 26, label, {90, 90, 90});
-  c.text(kLeft, kTop + map_h + 12, "X RIGHT, Y UP. BLUE: GLASS. WHITE: HEATERS", {90, 90, 90});
-  return c.take();
+  if (hi - lo < 0.1) lo -= 0.05, hi += 0.05;
+
+  Plan plan;
+  plan.box = scene.bounds;
+  plan.ppm = options.pixels_per_metre;
+  const pictures::ColourBar bar{lo, hi, sequential_colour, false};
+  Canvas measure(16, 16);
+  const double bar_width = pictures::colour_bar_width(measure, bar, kFont);
+  const int width = int(std::ceil(kPad + plan.width() + kBarGap + bar_width + kPad));
+  const int height = int(std::ceil(kTop + plan.height() + kBottom));
+  Canvas c(width, height);
+  c.fill_rect(0, 0, width, height, kBackground);
+  c.fill_rect(plan.left, plan.top, plan.width(), plan.height(), kOutside);
+
+  const bool over = draw_cells(c, plan, grid, q, lo, hi);
+  const std::array<bool, 2> surfaces = draw_surfaces(c, plan, scene, options.heaters);
+  const bool named = draw_named_points(c, plan, points);
+
+  const double bx = plan.left + plan.width() + kBarGap;
+  c.text(bx, plan.top - 8, q == MapQuantity::asymmetry ? "in K" : "in °C", kFont, kInk);
+  pictures::draw_colour_bar(c, bar, bx, plan.top, plan.top + plan.height(), kFont, kInk);
+  c.text(kPad, 24, title(q), 1.2 * kFont, kInk, Align::left, Weight::bold);
+  char subtitle[160];
+  std::snprintf(subtitle, sizeof subtitle,
+                "Plan %.1f m × %.1f m seen from above, points %.2f m above the floor",
+                plan.box.hi.x - plan.box.lo.x, plan.box.hi.y - plan.box.lo.y,
+                grid.front()->point.position.z - plan.box.lo.z);
+  c.text(kPad, 44, pictures::fit_text(c, subtitle, width - 2 * kPad, kFont), kFont, kSoftInk);
+  const double row = plan.top + plan.height() + 20;
+  draw_scale_bar(c, plan.left, row - 3, plan);
+  draw_legend(c, plan.left + 0.25 * plan.width() * 1.0 + 60, row, surfaces, named, over);
+  return c.finish();
 }
 
 }  // namespace hearthray

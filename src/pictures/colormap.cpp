@@ -1,10 +1,10 @@
-// Colour maps of our own design. The sequential map is a smooth path through CIELAB (CIE 1976
-// L*a*b*, D65 white): a uniform cubic B-spline over control points of rising lightness (its
-// ends clamped by repeating the end points), parametrised by arc length, so equal steps of the
-// value give equal colour differences (CIE76 Delta E) and lightness rises strictly (a B-spline
-// over rising control values rises: it is a moving positive average of them). The order of
-// values therefore reads from lightness alone, also in grey print. Lab to sRGB follows
-// IEC 61966-2-1 (sRGB primaries, D65, its transfer function).
+// Colour maps of our own design. The sequential map (and each half of the diverging map) is a
+// smooth path through CIELAB (CIE 1976 L*a*b*, D65 white): a uniform cubic B-spline over control
+// points of rising lightness (its ends clamped by repeating the end points), parametrised by arc
+// length, so equal steps of the value give equal colour differences (CIE76 Delta E) and lightness
+// rises strictly (a B-spline over rising control values rises: it is a moving positive average of
+// them). The order of values therefore reads from lightness alone, also in grey print. Lab to sRGB
+// follows IEC 61966-2-1 (sRGB primaries, D65, its transfer function).
 #include <algorithm>
 #include <array>
 #include <cmath>
@@ -26,17 +26,24 @@ struct Lab {
 constexpr std::array<Lab, 6> kPath{
     {{14, 22, -38}, {32, 48, -40}, {48, 62, -8}, {62, 46, 42}, {78, 12, 66}, {94, -6, 40}}};
 
+// The diverging map's two halves, each from the neutral grey at zero outwards: lightness falls
+// by the same steps on both sides; blue-green below zero, copper-red above. Chosen by hand,
+// inside the sRGB gamut (checked by the tests).
+constexpr std::array<Lab, 5> kBelowZero{
+    {{95, 0, 0}, {80, -20, -8}, {63, -32, -14}, {46, -28, -22}, {30, -14, -30}}};
+constexpr std::array<Lab, 5> kAboveZero{
+    {{95, 0, 0}, {80, 14, 20}, {63, 32, 36}, {46, 46, 34}, {30, 38, 22}}};
+
 double distance(const Lab& p, const Lab& q) {
   return std::sqrt((p.L - q.L) * (p.L - q.L) + (p.a - q.a) * (p.a - q.a) +
                    (p.b - q.b) * (p.b - q.b));
 }
 
-// Point u in [0, 1] of the uniform cubic B-spline over kPath, ends clamped.
-Lab spline(double u) {
-  constexpr int n = int(kPath.size()) + 1;  // spans over the padded control polygon
-  auto control = [](int i) {
-    return kPath[std::size_t(std::clamp(i - 2, 0, int(kPath.size()) - 1))];
-  };
+// Point u in [0, 1] of the uniform cubic B-spline over the control points path[0..n), ends
+// clamped.
+Lab spline(const Lab* path, int count, double u) {
+  const int n = count + 1;  // spans over the padded control polygon
+  auto control = [&](int i) { return path[std::clamp(i - 2, 0, count - 1)]; };
   const double x = u * n;
   const int i = std::min(int(x), n - 1);
   const double t = x - i;
@@ -52,19 +59,29 @@ Lab spline(double u) {
   return c;
 }
 
-// The spline sampled densely with its cumulative arc length, for the arc-length lookup.
+// A spline sampled densely with its cumulative arc length, for the arc-length lookup.
 struct ArcTable {
   static constexpr int kSamples = 2048;
   std::array<Lab, kSamples + 1> point;
   std::array<double, kSamples + 1> arc;
-  ArcTable() {
+  ArcTable(const Lab* path, int count) {
     arc[0] = 0;
     for (int k = 0; k <= kSamples; ++k) {
-      point[std::size_t(k)] = spline(double(k) / kSamples);
+      point[std::size_t(k)] = spline(path, count, double(k) / kSamples);
       if (k > 0)
         arc[std::size_t(k)] =
             arc[std::size_t(k - 1)] + distance(point[std::size_t(k - 1)], point[std::size_t(k)]);
     }
+  }
+  // The point a share t in [0, 1] of the arc length along.
+  Lab at(double t) const {
+    const double s = t * arc.back();
+    const auto it = std::lower_bound(arc.begin() + 1, arc.end() - 1, s);
+    const auto k = std::size_t(it - arc.begin());
+    const double u = (s - arc[k - 1]) / (arc[k] - arc[k - 1]);
+    const Lab& p = point[k - 1];
+    const Lab& q = point[k];
+    return {p.L + u * (q.L - p.L), p.a + u * (q.a - p.a), p.b + u * (q.b - p.b)};
   }
 };
 
@@ -100,16 +117,18 @@ bool in_gamut(const Lab& c) {
 }  // namespace
 
 Colour sequential_colour(double t) {
-  static const ArcTable table;
+  static const ArcTable table(kPath.data(), int(kPath.size()));
   if (!(t > 0)) t = 0;  // also NaN
   if (t > 1) t = 1;
-  const double s = t * table.arc.back();
-  const auto it = std::lower_bound(table.arc.begin() + 1, table.arc.end() - 1, s);
-  const auto k = std::size_t(it - table.arc.begin());
-  const double u = (s - table.arc[k - 1]) / (table.arc[k] - table.arc[k - 1]);
-  const Lab& p = table.point[k - 1];
-  const Lab& q = table.point[k];
-  return lab_to_srgb({p.L + u * (q.L - p.L), p.a + u * (q.a - p.a), p.b + u * (q.b - p.b)});
+  return lab_to_srgb(table.at(t));
+}
+
+Colour diverging_colour(double t) {
+  static const ArcTable below(kBelowZero.data(), int(kBelowZero.size()));
+  static const ArcTable above(kAboveZero.data(), int(kAboveZero.size()));
+  if (!(t > 0)) t = 0;  // also NaN
+  if (t > 1) t = 1;
+  return lab_to_srgb(t < 0.5 ? below.at(1 - 2 * t) : above.at(2 * t - 1));
 }
 
 Colour category_colour(std::size_t index) {

@@ -5,7 +5,7 @@
 #include <cstring>
 
 #include "hearthray/error.hpp"
-#include "hearthray/render.hpp"
+#include "hearthray/picture.hpp"
 
 namespace hearthray {
 

@@ -1,6 +1,10 @@
 // Pictures of the model: camera rays traced with the Tracer, flat per-patch colours, gentle
-// view-angle shading, edges from a sub-pixel buffer, then the title and the colour bar (or
-// category legend) drawn with the project's bitmap font.
+// view-angle shading and edges from a sub-pixel buffer make a raster of the model's part of
+// the picture; the title and the colour bar (or category legend) are drawn over it as vectors
+// (render_overlay.cpp). The model stays a traced raster rather than projected triangles: the
+// Tracer decides visibility exactly as it does for the view factors (hidden surfaces, backs of
+// one-sided surfaces passed through, interpenetrating parts), which Cairo's painter's order
+// cannot, and a model of 100 000 patches stays a picture of fixed size in SVG and PDF.
 #include "hearthray/render.hpp"
 
 #include <tbb/parallel_for.h>
@@ -12,7 +16,7 @@
 #include <set>
 
 #include "hearthray/error.hpp"
-#include "pictures/render_parts.hpp"
+#include "pictures/render_overlay.hpp"
 
 namespace hearthray {
 
@@ -191,19 +195,23 @@ constexpr std::uint8_t kPatchEdge = 4;    // another patch of the same surface
 
 struct ColourRange {
   double lo = 0, hi = 1;
-  bool any = false;  // the field has finite values
 };
 
+// The range of the colour map: the field's finite extremes unless given; for a diverging map
+// symmetric about zero; never empty.
 ColourRange colour_range(const PatchField& field, const RenderOptions& o) {
-  ColourRange r;
   double lo = std::numeric_limits<double>::infinity(), hi = -lo;
   for (double v : field.values) {
     if (!std::isfinite(v)) continue;
     lo = std::min(lo, v);
     hi = std::max(hi, v);
-    r.any = true;
   }
-  if (!r.any) lo = hi = 0;
+  if (!(lo <= hi)) lo = hi = 0;
+  if (o.diverging) {
+    const double m = std::max(std::fabs(lo), std::fabs(hi));
+    lo = -m;
+    hi = m;
+  }
   if (o.range_min) lo = *o.range_min;
   if (o.range_max) hi = *o.range_max;
   if (!(lo < hi)) {  // one value only, or one given end beyond the data
@@ -219,18 +227,10 @@ ColourRange colour_range(const PatchField& field, const RenderOptions& o) {
       hi = middle + width;
     }
   }
-  r.lo = lo;
-  r.hi = hi;
-  return r;
+  return {lo, hi};
 }
 
-}  // namespace
-
-Image render(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
-             const PatchField& field, const RenderOptions& options) {
-  std::string problem;
-  if (!options.IsValid(&problem)) throw InputError("picture options: " + problem);
-  check_field(field, patches);
+std::vector<char> hidden_surfaces(const Scene& scene, const RenderOptions& options) {
   std::vector<char> hidden(scene.surfaces.size(), 0);
   for (const std::string& name : options.hidden) {
     const int s = scene.find_surface(name);
@@ -241,162 +241,197 @@ Image render(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
     }
     hidden[std::size_t(s)] = 1;
   }
+  return hidden;
+}
+
+// Colour of each patch, whether it has a value, and the categories present.
+struct PatchColours {
+  std::vector<Colour> colour;
+  std::vector<char> has_value;
+  std::vector<std::size_t> categories;
+};
+
+PatchColours patch_colours(const PatchField& field, const RenderOptions& o,
+                           const ColourRange& range) {
+  const bool categorical = !o.categories.empty();
+  const std::size_t n = field.values.size();
+  PatchColours pc{std::vector<Colour>(n), std::vector<char>(n), {}};
+  std::set<std::size_t> used;
+  for (std::size_t p = 0; p < n; ++p) {
+    const double v = field.values[p];
+    pc.has_value[p] = std::isfinite(v) && (!categorical || (v >= 0 && v < 1e9));
+    if (!pc.has_value[p]) {
+      pc.colour[p] = kNoDataColour;
+    } else if (categorical) {
+      const auto k = std::size_t(std::llround(v));
+      used.insert(k);
+      pc.colour[p] = category_colour(k);
+    } else {
+      const double t = (v - range.lo) / (range.hi - range.lo);
+      pc.colour[p] = o.diverging ? diverging_colour(t) : sequential_colour(t);
+    }
+  }
+  pc.categories.assign(used.begin(), used.end());
+  return pc;
+}
+
+// The traced view: the first drawable face of every sub-pixel, and its edge kinds.
+struct View {
+  Camera cam;
+  std::vector<Sample> samples;
+  std::vector<std::uint8_t> edge;
+  const Sample& at(int i, int j) const {
+    return samples[std::size_t(j) * std::size_t(cam.columns) + std::size_t(i)];
+  }
+};
+
+// Edge kinds of sub-pixel row j. Each boundary between two sub-pixels is drawn on the nearer
+// one, so a silhouette darkens the object and not the background. Patch edges are drawn only
+// between patches large enough on screen (about 12 x 12 pixels) for the lines not to crowd.
+void find_edges(const Scene& scene, const PatchSet& patches, View& view, int j,
+                const std::vector<std::uint32_t>& coverage, std::uint32_t min_coverage) {
+  const Camera& cam = view.cam;
+  auto surface_of = [&](const Sample& s) {
+    return s.patch == kBackground ? kBackground : patches.patches[s.patch].surface;
+  };
+  for (int i = 0; i < cam.columns; ++i) {
+    const Sample& s = view.at(i, j);
+    if (s.patch == kBackground) continue;
+    const Vec3 normal = scene.normal(s.triangle);
+    const Vec3 p = cam.direction(i, j) * double(s.t);
+    const double footprint = 2.0 * double(s.t) * cam.step;
+    std::uint8_t kind = 0;
+    static constexpr int kDi[4] = {1, -1, 0, 0}, kDj[4] = {0, 0, 1, -1};
+    for (int k = 0; k < 4; ++k) {
+      const int ni = i + kDi[k], nj = j + kDj[k];
+      if (ni < 0 || nj < 0 || ni >= cam.columns || nj >= cam.rows) continue;
+      const Sample& n = view.at(ni, nj);
+      if (n.patch == s.patch && n.triangle == s.triangle) continue;
+      const bool nearer = s.t < n.t || (s.t == n.t && k % 2 == 0);
+      if (!nearer) continue;
+      if (surface_of(n) != surface_of(s)) {
+        kind |= kSurfaceEdge;
+      } else if (std::fabs(dot(normal, cam.direction(ni, nj) * double(n.t) - p)) > footprint) {
+        kind |= kDepthEdge;
+      } else if (n.patch != s.patch && coverage[s.patch] >= min_coverage &&
+                 coverage[n.patch] >= min_coverage) {
+        kind |= kPatchEdge;
+      }
+    }
+    view.edge[std::size_t(j) * std::size_t(cam.columns) + std::size_t(i)] = kind;
+  }
+}
+
+View trace_view(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
+                const RenderOptions& o, const std::vector<char>& hidden, int view_w, int view_h,
+                tbb::task_arena& arena) {
+  const int ss = o.supersampling;
+  const Vec3 away =
+      o.camera ? Vec3{} : default_direction(scene, patches, tracer, o, hidden, view_w, view_h);
+  View view;
+  view.cam = make_camera(scene, o, view_w, view_h, away, view_w * ss, view_h * ss);
+  const std::size_t columns = std::size_t(view.cam.columns);
+  view.samples.resize(columns * std::size_t(view.cam.rows));
+  view.edge.assign(view.samples.size(), 0);
+  arena.execute([&] {  // one pixel row (ss sub-pixel rows) per task
+    tbb::parallel_for(0, view_h, [&](int y) {
+      trace_rows(scene, patches, tracer, view.cam, hidden, y * ss, (y + 1) * ss,
+                 &view.samples[std::size_t(y * ss) * columns]);
+    });
+  });
+  std::vector<std::uint32_t> coverage(patches.size(), 0);  // sub-pixels of each patch
+  for (const Sample& s : view.samples)
+    if (s.patch != kBackground) ++coverage[s.patch];
+  const auto min_coverage = std::uint32_t(150 * ss * ss);
+  arena.execute([&] {
+    tbb::parallel_for(0, view.cam.rows,
+                      [&](int j) { find_edges(scene, patches, view, j, coverage, min_coverage); });
+  });
+  return view;
+}
+
+// The model's raster: colours averaged over each pixel's sub-pixels. Sets *no_data when a
+// patch without a value shows.
+Image shade(const Scene& scene, const View& view, const PatchColours& pc, const RenderOptions& o,
+            tbb::task_arena& arena, bool* no_data) {
+  const int ss = o.supersampling;
+  Image image;
+  image.width = view.cam.columns / ss;
+  image.height = view.cam.rows / ss;
+  image.rgb.resize(3 * std::size_t(image.width) * std::size_t(image.height));
+  std::vector<std::uint8_t> row_no_data(std::size_t(image.height), 0);
+  const Colour bg{o.background.r / 255.0, o.background.g / 255.0, o.background.b / 255.0};
+  auto sub_pixel = [&](int i, int j, int y) {
+    const Sample& s = view.at(i, j);
+    if (s.patch == kBackground) return bg;
+    if (!pc.has_value[s.patch]) row_no_data[std::size_t(y)] = 1;
+    const double cosine = std::fabs(dot(scene.normal(s.triangle), view.cam.direction(i, j)));
+    double f = 1 - o.shading * (1 - cosine);
+    const std::uint8_t e = o.edges ? view.edge[std::size_t(j) * view.cam.columns + i] : 0;
+    if (e & (kSurfaceEdge | kDepthEdge))
+      f *= 0.3;
+    else if (e & kPatchEdge)
+      f *= 0.7;
+    const Colour& c = pc.colour[s.patch];
+    return Colour{f * c.r, f * c.g, f * c.b};
+  };
+  arena.execute([&] {
+    tbb::parallel_for(0, image.height, [&](int y) {
+      for (int x = 0; x < image.width; ++x) {
+        Colour sum;
+        for (int j = y * ss; j < (y + 1) * ss; ++j) {
+          for (int i = x * ss; i < (x + 1) * ss; ++i) {
+            const Colour c = sub_pixel(i, j, y);
+            sum.r += c.r, sum.g += c.g, sum.b += c.b;
+          }
+        }
+        const double w = 255.0 / double(ss * ss);
+        std::uint8_t* px = &image.rgb[3 * (std::size_t(y) * image.width + std::size_t(x))];
+        px[0] = std::uint8_t(std::lround(std::clamp(sum.r * w, 0.0, 255.0)));
+        px[1] = std::uint8_t(std::lround(std::clamp(sum.g * w, 0.0, 255.0)));
+        px[2] = std::uint8_t(std::lround(std::clamp(sum.b * w, 0.0, 255.0)));
+      }
+    });
+  });
+  *no_data = std::any_of(row_no_data.begin(), row_no_data.end(), [](std::uint8_t v) { return v; });
+  return image;
+}
+
+}  // namespace
+
+Picture render(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
+               const PatchField& field, const RenderOptions& options) {
+  std::string problem;
+  if (!options.IsValid(&problem)) throw InputError("picture options: " + problem);
+  check_field(field, patches);
+  const std::vector<char> hidden = hidden_surfaces(scene, options);
   if (options.camera && !options.target &&
       norm(*options.camera - (scene.bounds.lo + scene.bounds.hi) * 0.5) == 0)
     throw InputError(
         "picture options: the camera is at the centre of the model, the point it "
         "looks at by default; give a target");
 
-  // Colour of each patch.
-  const bool categorical = !options.categories.empty();
   const ColourRange range = colour_range(field, options);
-  std::vector<Colour> patch_colour(patches.size());
-  std::vector<char> patch_has_value(patches.size());
-  std::set<std::size_t> used_categories;
-  for (std::size_t p = 0; p < patches.size(); ++p) {
-    const double v = field.values[p];
-    patch_has_value[p] = std::isfinite(v) && (!categorical || (v >= 0 && v < 1e9));
-    if (!patch_has_value[p]) {
-      patch_colour[p] = kNoDataColour;
-    } else if (categorical) {
-      const auto k = std::size_t(std::llround(v));
-      used_categories.insert(k);
-      patch_colour[p] = category_colour(k);
-    } else {
-      patch_colour[p] = sequential_colour((v - range.lo) / (range.hi - range.lo));
-    }
-  }
-  const std::vector<std::size_t> categories(used_categories.begin(), used_categories.end());
+  const PatchColours pc = patch_colours(field, options, range);
+  render_detail::Panel panel;
+  panel.field = &field;
+  panel.bar = {range.lo, range.hi, options.diverging ? diverging_colour : sequential_colour,
+               options.diverging};
+  panel.categorical = !options.categories.empty();
+  panel.categories = pc.categories;
 
-  const render_detail::Overlay overlay =
-      render_detail::plan_overlay(options, field, range.lo, range.hi, categories);
-  const int view_w = options.width - overlay.panel_width;
-  const int view_h = options.height - overlay.title_height;
-  const int ss = options.supersampling;
-  const Vec3 away =
-      options.camera ? Vec3{}
-                     : default_direction(scene, patches, tracer, options, hidden, view_w, view_h);
-  const Camera cam = make_camera(scene, options, view_w, view_h, away, view_w * ss, view_h * ss);
-  const std::size_t columns = std::size_t(cam.columns);
-
-  std::vector<Sample> samples(columns * std::size_t(cam.rows));
-  std::vector<std::uint8_t> edge(samples.size(), 0);
-  std::vector<std::uint8_t> row_no_data(std::size_t(view_h), 0);
-  // Sub-pixels each patch covers: patch edges are drawn only between patches large enough on
-  // screen (about 12 x 12 pixels) for the lines not to crowd them.
-  std::vector<std::uint32_t> coverage(patches.size(), 0);
-  const std::uint32_t min_coverage = std::uint32_t(150 * ss * ss);
-  Image image;
-  image.width = options.width;
-  image.height = options.height;
-  image.rgb.resize(3 * std::size_t(image.width) * std::size_t(image.height));
-
-  auto surface_of = [&](const Sample& s) {
-    return s.patch == kBackground ? kBackground : patches.patches[s.patch].surface;
-  };
-  // Hit point of sub-pixel (i, j) relative to the eye.
-  auto hit_point = [&](int i, int j, const Sample& s) { return cam.direction(i, j) * double(s.t); };
-
+  pictures::Canvas canvas(options.width, options.height);
+  const render_detail::Layout layout = render_detail::plan_layout(canvas, options, panel);
+  const int view_w = options.width - layout.panel_width;
+  const int view_h = options.height - layout.title_height;
   tbb::task_arena arena(options.threads > 0 ? options.threads : tbb::task_arena::automatic);
-  arena.execute([&] {
-    // 1. Camera rays, one pixel row (ss sub-pixel rows) per task.
-    tbb::parallel_for(0, view_h, [&](int y) {
-      trace_rows(scene, patches, tracer, cam, hidden, y * ss, (y + 1) * ss,
-                 &samples[std::size_t(y * ss) * columns]);
-    });
-  });
-  for (const Sample& s : samples)
-    if (s.patch != kBackground) ++coverage[s.patch];
+  const View view = trace_view(scene, patches, tracer, options, hidden, view_w, view_h, arena);
+  bool no_data = false;
+  const Image model = shade(scene, view, pc, options, arena, &no_data);
 
-  arena.execute([&] {
-    // 2. Edges: each boundary between two sub-pixels is drawn on the nearer one, so a
-    // silhouette darkens the object and not the background.
-    tbb::parallel_for(0, view_h, [&](int y) {
-      for (int j = y * ss; j < (y + 1) * ss; ++j) {
-        for (int i = 0; i < cam.columns; ++i) {
-          const Sample& s = samples[std::size_t(j) * columns + std::size_t(i)];
-          if (s.patch == kBackground) continue;
-          const Vec3 normal = scene.normal(s.triangle);
-          const Vec3 p = hit_point(i, j, s);
-          const double footprint = 2.0 * double(s.t) * cam.step;
-          std::uint8_t kind = 0;
-          static constexpr int kDi[4] = {1, -1, 0, 0}, kDj[4] = {0, 0, 1, -1};
-          for (int k = 0; k < 4; ++k) {
-            const int ni = i + kDi[k], nj = j + kDj[k];
-            if (ni < 0 || nj < 0 || ni >= cam.columns || nj >= cam.rows) continue;
-            const Sample& n = samples[std::size_t(nj) * columns + std::size_t(ni)];
-            if (n.patch == s.patch && n.triangle == s.triangle) continue;
-            const bool nearer = s.t < n.t || (s.t == n.t && k % 2 == 0);
-            if (!nearer) continue;
-            if (surface_of(n) != surface_of(s)) {
-              kind |= kSurfaceEdge;
-            } else if (std::fabs(dot(normal, hit_point(ni, nj, n) - p)) > footprint) {
-              kind |= kDepthEdge;
-            } else if (n.patch != s.patch && coverage[s.patch] >= min_coverage &&
-                       coverage[n.patch] >= min_coverage) {
-              kind |= kPatchEdge;
-            }
-          }
-          edge[std::size_t(j) * columns + std::size_t(i)] = kind;
-        }
-      }
-    });
-  });
-
-  const Colour bg{options.background.r / 255.0, options.background.g / 255.0,
-                  options.background.b / 255.0};
-  arena.execute([&] {
-    // 3. Colours, averaged over each pixel's sub-pixels.
-    tbb::parallel_for(0, view_h, [&](int y) {
-      for (int x = 0; x < view_w; ++x) {
-        double r = 0, g = 0, b = 0;
-        for (int j = y * ss; j < (y + 1) * ss; ++j) {
-          for (int i = x * ss; i < (x + 1) * ss; ++i) {
-            const std::size_t k = std::size_t(j) * columns + std::size_t(i);
-            const Sample& s = samples[k];
-            if (s.patch == kBackground) {
-              r += bg.r, g += bg.g, b += bg.b;
-              continue;
-            }
-            if (!patch_has_value[s.patch]) row_no_data[std::size_t(y)] = 1;
-            const double cosine = std::fabs(dot(scene.normal(s.triangle), cam.direction(i, j)));
-            double f = 1 - options.shading * (1 - cosine);
-            if (options.edges) {
-              const std::uint8_t e = edge[k];
-              if (e & (kSurfaceEdge | kDepthEdge))
-                f *= 0.3;
-              else if (e & kPatchEdge)
-                f *= 0.7;
-            }
-            const Colour& c = patch_colour[s.patch];
-            r += f * c.r, g += f * c.g, b += f * c.b;
-          }
-        }
-        const double w = 255.0 / double(ss * ss);
-        std::uint8_t* px =
-            &image.rgb[3 * (std::size_t(y + overlay.title_height) * image.width + std::size_t(x))];
-        px[0] = std::uint8_t(std::lround(std::clamp(r * w, 0.0, 255.0)));
-        px[1] = std::uint8_t(std::lround(std::clamp(g * w, 0.0, 255.0)));
-        px[2] = std::uint8_t(std::lround(std::clamp(b * w, 0.0, 255.0)));
-      }
-    });
-  });
-
-  // 4. Title band and right panel on the background colour.
-  for (int y = 0; y < image.height; ++y) {
-    for (int x = 0; x < image.width; ++x) {
-      if (y >= overlay.title_height && x < view_w) continue;
-      std::uint8_t* px = &image.rgb[3 * (std::size_t(y) * image.width + std::size_t(x))];
-      px[0] = options.background.r;
-      px[1] = options.background.g;
-      px[2] = options.background.b;
-    }
-  }
-  const bool no_data =
-      std::any_of(row_no_data.begin(), row_no_data.end(), [](std::uint8_t v) { return v; });
-  render_detail::draw_overlay(image, overlay, options, field, range.lo, range.hi, categories,
-                              no_data);
-  return image;
+  canvas.image(model, 0, layout.title_height);
+  render_detail::draw_overlay(canvas, layout, options, panel, no_data);
+  return canvas.finish();
 }
 
 }  // namespace hearthray
