@@ -8,8 +8,8 @@
 
 #include <algorithm>
 #include <cmath>
-#include <cstdio>
 
+#include "core/text.hpp"
 #include "factors/hit_counter.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/sampling.hpp"
@@ -43,9 +43,8 @@ BodyShape shape(ComfortBody body) {
 }
 
 std::string metres(const Vec3& p) {
-  char buf[96];
-  std::snprintf(buf, sizeof buf, "(%.3g, %.3g, %.3g) m", p.x, p.y, p.z);
-  return buf;
+  return "(" + rounded("%.3g", p.x) + ", " + rounded("%.3g", p.y) + ", " + rounded("%.3g", p.z) +
+         ") m";
 }
 
 Vec3 uniform_sphere(double u1, double u2) {

@@ -6,6 +6,7 @@
 #include <cstdio>
 #include <ostream>
 
+#include "core/text.hpp"
 #include "hearthray/units.hpp"
 
 namespace hearthray {
@@ -22,12 +23,6 @@ constexpr double kTouchLimit_C = 43;
 constexpr double kHot_C = 40;
 constexpr double kNearGlass_m = 0.6;
 
-std::string fmt(const char* spec, double v) {
-  char b[64];
-  std::snprintf(b, sizeof b, spec, v);
-  return b;
-}
-
 std::string pad(const std::string& s, std::size_t w) {
   return s.size() >= w ? s : std::string(w - s.size(), ' ') + s;
 }
@@ -37,7 +32,7 @@ std::string name_pad(const std::string& s, std::size_t w) {
 }
 
 std::string celsius(double K) {
-  return fmt("%.1f", K - kZeroCelsius);
+  return rounded("%.1f", K - kZeroCelsius);
 }
 
 Range range(const std::vector<PointComfort>& points, double (*get)(const PointComfort&)) {
@@ -77,10 +72,10 @@ std::string verdict(const PointComfort& p) {
   if (p.within_limits()) return "within limits";
   std::string v;
   if (!p.vertical.within())
-    v += to_string(p.vertical.kind) + " over " + fmt("%.0f K", p.vertical.limit_K);
+    v += to_string(p.vertical.kind) + " over " + rounded("%.0f K", p.vertical.limit_K);
   if (!p.horizontal.within()) {
     v += (v.empty() ? "" : "; ") + to_string(p.horizontal.kind) + " over " +
-         fmt("%.0f K", p.horizontal.limit_K);
+         rounded("%.0f K", p.horizontal.limit_K);
   }
   return v;
 }
@@ -120,35 +115,36 @@ void print_comfort_table(std::ostream& out, const std::vector<PointComfort>& poi
       << pad("horiz K", 9) << "  " << name_pad("case", 10) << pad("PD %", 6) << "  verdict\n";
   for (const PointComfort& p : points) {
     out << name_pad(p.point.name, w) << "  " << name_pad(to_string(p.point.body), 8)
-        << pad(celsius(p.mean_radiant.kelvin), 8) << pad(fmt("%.2f", p.mean_radiant.se_K), 6)
-        << pad(celsius(p.operative_K), 8) << pad(fmt("%.1f", p.vertical.delta_K), 8) << "  "
-        << name_pad(to_string(p.vertical.kind), 12) << pad(fmt("%.1f", p.vertical.pd_percent), 6)
-        << pad(fmt("%.1f", p.horizontal.delta_K), 9) << "  "
+        << pad(celsius(p.mean_radiant.kelvin), 8) << pad(rounded("%.2f", p.mean_radiant.se_K), 6)
+        << pad(celsius(p.operative_K), 8) << pad(rounded("%.1f", p.vertical.delta_K), 8) << "  "
+        << name_pad(to_string(p.vertical.kind), 12)
+        << pad(rounded("%.1f", p.vertical.pd_percent), 6)
+        << pad(rounded("%.1f", p.horizontal.delta_K), 9) << "  "
         << name_pad(to_string(p.horizontal.kind), 10)
-        << pad(fmt("%.1f", p.horizontal.pd_percent), 6) << "  " << verdict(p) << "\n";
+        << pad(rounded("%.1f", p.horizontal.pd_percent), 6) << "  " << verdict(p) << "\n";
   }
   if (points.empty()) return;
   auto line = [&](const char* what, const Range& r, bool temperature) {
     const double shift = temperature ? kZeroCelsius : 0;
-    out << "  " << name_pad(what, 34) << fmt("%7.1f", r.min - shift) << fmt("%7.1f", r.mean - shift)
-        << fmt("%7.1f", r.max - shift) << "\n";
+    out << "  " << name_pad(what, 34) << rounded("%7.1f", r.min - shift)
+        << rounded("%7.1f", r.mean - shift) << rounded("%7.1f", r.max - shift) << "\n";
   };
   out << "\nsummary over " << s.points << " points" << name_pad("", 9) << "    min   mean    max\n";
   line("mean radiant temperature (C)", s.mean_radiant_K, true);
   line("operative temperature (C)", s.operative_K, true);
   line("vertical asymmetry (K)", s.vertical_K, false);
   line("horizontal asymmetry (K)", s.horizontal_K, false);
-  out << "  within the vertical limit: " << fmt("%.0f %%", 100 * s.within_vertical)
-      << "; horizontal: " << fmt("%.0f %%", 100 * s.within_horizontal)
-      << "; both: " << fmt("%.0f %%", 100 * s.within_both) << " of points\n";
+  out << "  within the vertical limit: " << rounded("%.0f %%", 100 * s.within_vertical)
+      << "; horizontal: " << rounded("%.0f %%", 100 * s.within_horizontal)
+      << "; both: " << rounded("%.0f %%", 100 * s.within_both) << " of points\n";
   if (s.worst) {
     const PointComfort& p = *s.worst;
     const Asymmetry& a =
         p.vertical.delta_K / p.vertical.limit_K >= p.horizontal.delta_K / p.horizontal.limit_K
             ? p.vertical
             : p.horizontal;
-    out << "  worst asymmetry: " << fmt("%.1f K", a.delta_K) << " (" << to_string(a.kind)
-        << ", limit " << fmt("%.0f K", a.limit_K) << ", PD " << fmt("%.1f %%", a.pd_percent)
+    out << "  worst asymmetry: " << rounded("%.1f K", a.delta_K) << " (" << to_string(a.kind)
+        << ", limit " << rounded("%.0f K", a.limit_K) << ", PD " << rounded("%.1f %%", a.pd_percent)
         << ") at " << p.point.name << "\n";
   }
   out << "limits (PD about 5 %): warm ceiling 5 K, cool wall 10 K, cool ceiling 14 K, warm wall "
@@ -164,18 +160,17 @@ void write_comfort_csv(std::ostream& out, const std::vector<PointComfort>& point
   out << ",vertical_asymmetry_K,vertical_se_K,vertical_case,vertical_pd_percent"
          ",horizontal_asymmetry_K,horizontal_se_K,horizontal_axis,horizontal_case,"
          "horizontal_pd_percent,lost_fraction,within_limits\n";
-  auto num = [](double v) { return fmt("%.6g", v); };
   for (const PointComfort& p : points) {
-    out << p.point.name << "," << to_string(p.point.body) << "," << num(p.point.position.x) << ","
-        << num(p.point.position.y) << "," << num(p.point.position.z) << ","
-        << num(p.mean_radiant.kelvin - kZeroCelsius) << "," << num(p.mean_radiant.se_K) << ","
-        << num(p.operative_K - kZeroCelsius);
-    for (const RadiantTemperature& t : p.plane) out << "," << num(t.kelvin - kZeroCelsius);
-    out << "," << num(p.vertical.delta_K) << "," << num(p.vertical.se_K) << ","
-        << to_string(p.vertical.kind) << "," << num(p.vertical.pd_percent) << ","
-        << num(p.horizontal.delta_K) << "," << num(p.horizontal.se_K) << ","
+    out << p.point.name << "," << to_string(p.point.body) << "," << shortest(p.point.position.x)
+        << "," << shortest(p.point.position.y) << "," << shortest(p.point.position.z) << ","
+        << shortest(p.mean_radiant.kelvin - kZeroCelsius) << "," << shortest(p.mean_radiant.se_K)
+        << "," << shortest(p.operative_K - kZeroCelsius);
+    for (const RadiantTemperature& t : p.plane) out << "," << shortest(t.kelvin - kZeroCelsius);
+    out << "," << shortest(p.vertical.delta_K) << "," << shortest(p.vertical.se_K) << ","
+        << to_string(p.vertical.kind) << "," << shortest(p.vertical.pd_percent) << ","
+        << shortest(p.horizontal.delta_K) << "," << shortest(p.horizontal.se_K) << ","
         << (p.horizontal.axis == 0 ? "x" : "y") << "," << to_string(p.horizontal.kind) << ","
-        << num(p.horizontal.pd_percent) << "," << num(p.lost_fraction) << ","
+        << shortest(p.horizontal.pd_percent) << "," << shortest(p.lost_fraction) << ","
         << (p.within_limits() ? "yes" : "no") << "\n";
   }
 }
@@ -191,8 +186,8 @@ std::vector<std::string> comfort_cautions(const Scene& scene,
     const Box3 box = surface_box(scene, std::uint32_t(s));
     const double low = box.lo.z - floor;
     if (t_C > kTouchLimit_C && low < kReachHeight_m) {
-      out.push_back(hot.name + " reaches " + fmt("%.0f C", t_C) + " and comes down to " +
-                    fmt("%.1f m", low) +
+      out.push_back(hot.name + " reaches " + rounded("%.0f C", t_C) + " and comes down to " +
+                    rounded("%.1f m", low) +
                     " above the floor, within reach: surfaces above about 43 C can burn on "
                     "longer contact; guard it or place it out of reach, as the maker says.");
     }
@@ -203,8 +198,8 @@ std::vector<std::string> comfort_cautions(const Scene& scene,
         continue;
       const double gap = box_gap(box, surface_box(scene, std::uint32_t(g)));
       if (gap <= kNearGlass_m) {
-        out.push_back(scene.surfaces[g].name + " (glass) is " + fmt("%.2f m", gap) + " from " +
-                      hot.name + " at " + fmt("%.0f C", t_C) +
+        out.push_back(scene.surfaces[g].name + " (glass) is " + rounded("%.2f m", gap) + " from " +
+                      hot.name + " at " + rounded("%.0f C", t_C) +
                       ": uneven heating can crack glass; keep the clearance the panel maker "
                       "gives.");
       }

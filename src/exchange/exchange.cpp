@@ -26,7 +26,6 @@
 
 namespace hearthray {
 
-using exchange_detail::format_number;
 using exchange_detail::Setup;
 
 namespace {
@@ -50,7 +49,7 @@ bool solve_radiosity(const Setup& s, const Eigen::MatrixXd& B, Eigen::MatrixXd* 
   if (!(lu.rcond() > kSingularRcond)) {
     *status = ExchangeStatus::singular;
     *message = "the radiosity matrix I - (1 - eps) F is singular (reciprocal condition " +
-               format_number(lu.rcond()) +
+               rounded("%.6g", lu.rcond()) +
                "); check the view factors (rows must sum to 1 or less, none negative)";
     return false;
   }
@@ -149,8 +148,9 @@ bool starting_temperatures(const Setup& s, const Reduced& r, Eigen::VectorXd* T,
         (*T)[j] = std::pow(E[j] / kSigma, 0.25);
       } else if (!any_conduction) {
         *message = "no solution with positive temperatures: surface '" +
-                   s.node_names[r.unknown[j]] + "' would need sigma T^4 = " + format_number(E[j]) +
-                   " W/m^2 to balance its heat input " + format_number(s.input_W[r.unknown[j]]) +
+                   s.node_names[r.unknown[j]] +
+                   "' would need sigma T^4 = " + rounded("%.6g", E[j]) +
+                   " W/m^2 to balance its heat input " + rounded("%.6g", s.input_W[r.unknown[j]]) +
                    " W (more heat is taken out than radiation can bring to it)";
         return false;
       }
@@ -211,8 +211,8 @@ void newton(const Setup& s, const Reduced& r, const ExchangeOptions& options, Ei
       result->status = ExchangeStatus::not_converged;
       result->message = "Newton's method did not converge in " +
                         std::to_string(result->iterations) + " iterations: largest residual " +
-                        format_number(largest) + " W on surface '" + s.node_names[k] + "' at " +
-                        format_number((*T)[worst]) + " K (tolerance " + format_number(allowed) +
+                        rounded("%.6g", largest) + " W on surface '" + s.node_names[k] + "' at " +
+                        rounded("%.6g", (*T)[worst]) + " K (tolerance " + rounded("%.6g", allowed) +
                         " W)";
       if ((*T)[worst] < 1) {
         result->message +=
@@ -237,7 +237,7 @@ void newton(const Setup& s, const Reduced& r, const ExchangeOptions& options, Ei
     if (!(lu.rcond() > kSingularRcond)) {
       result->status = ExchangeStatus::singular;
       result->message = "the Jacobian of the node balances is singular (reciprocal condition " +
-                        format_number(lu.rcond()) + ") at Newton iteration " +
+                        rounded("%.6g", lu.rcond()) + ") at Newton iteration " +
                         std::to_string(result->iterations);
       return;
     }
@@ -360,13 +360,13 @@ void fill_results(const Setup& s, const Eigen::VectorXd& J, const Eigen::VectorX
 bool ExchangeOptions::IsValid(std::string* error) const {
   std::string problem;
   if (!(std::isfinite(tolerance) && tolerance > 0 && tolerance < 1)) {
-    problem = "tolerance is " + format_number(tolerance) + "; it must be above 0 and below 1";
+    problem = "tolerance is " + rounded("%.6g", tolerance) + "; it must be above 0 and below 1";
   } else if (max_iterations < 1) {
     problem = "max_iterations is " + std::to_string(max_iterations) + "; it must be at least 1";
   } else if (dense_face_limit < 0) {
     problem = "dense_face_limit is " + std::to_string(dense_face_limit) + "; it must be >= 0";
   } else if (!(std::isfinite(linear_tolerance) && linear_tolerance > 0 && linear_tolerance < 1)) {
-    problem = "linear_tolerance is " + format_number(linear_tolerance) +
+    problem = "linear_tolerance is " + rounded("%.6g", linear_tolerance) +
               "; it must be above 0 and below 1";
   } else if (max_linear_iterations < 1) {
     problem = "max_linear_iterations is " + std::to_string(max_linear_iterations) +
@@ -392,13 +392,13 @@ std::string ExchangeResult::BriefReport() const {
       break;
   }
   text += " after " + std::to_string(iterations) + " Newton iteration(s); largest node residual " +
-          format_number(final_residual_W) + " W; " + std::to_string(faces.size()) + " faces on " +
+          rounded("%.6g", final_residual_W) + " W; " + std::to_string(faces.size()) + " faces on " +
           std::to_string(nodes.size()) + " surfaces; surroundings receive " +
-          format_number(surroundings_W) + " W; balance " + format_number(balance_W) + " W";
+          rounded("%.6g", surroundings_W) + " W; balance " + rounded("%.6g", balance_W) + " W";
   if (iterative) {
     text += "; sparse Newton-Krylov path: " + std::to_string(linear_iterations) +
-            " GMRES iteration(s), last relative residual " + format_number(linear_residual) +
-            "; largest radiosity residual " + format_number(radiosity_residual) + " W/m^2";
+            " GMRES iteration(s), last relative residual " + rounded("%.6g", linear_residual) +
+            "; largest radiosity residual " + rounded("%.6g", radiosity_residual) + " W/m^2";
   }
   if (!message.empty()) text += "\n  " + message;
   return text;

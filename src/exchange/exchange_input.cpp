@@ -11,12 +11,6 @@
 namespace hearthray {
 namespace exchange_detail {
 
-std::string format_number(double value) {
-  char buffer[32];
-  std::snprintf(buffer, sizeof buffer, "%.6g", value);
-  return buffer;
-}
-
 namespace {
 
 std::string quoted(const std::string& name) {
@@ -34,7 +28,7 @@ std::string face_label(const ExchangeProblem& problem, std::size_t i) {
 
 void require_kelvin(double kelvin, const std::string& what) {
   if (!(std::isfinite(kelvin) && kelvin > 0)) {
-    throw InputError(what + " is " + format_number(kelvin) +
+    throw InputError(what + " is " + rounded("%.6g", kelvin) +
                      " K; an absolute temperature must be above 0 K (write e.g. \"20 C\" or "
                      "\"293.15 K\")");
   }
@@ -118,9 +112,9 @@ void check_surroundings(const ExchangeProblem& problem, const Setup& s) {
   const double escaped = vf.to_surroundings.empty() ? 0 : vf.to_surroundings[worst];
   const double back = vf.to_back_faces.empty() ? 0 : vf.to_back_faces[worst];
   std::string what;
-  if (escaped > 0) what = format_number(100 * escaped) + " % escapes the scene";
+  if (escaped > 0) what = rounded("%.6g", 100 * escaped) + " % escapes the scene";
   if (back > 0) {
-    what += (what.empty() ? "" : " and ") + format_number(100 * back) +
+    what += (what.empty() ? "" : " and ") + rounded("%.6g", 100 * back) +
             " % lands on back faces of one-sided surfaces (treated as surroundings; many such "
             "hits mean flipped normals)";
   }
@@ -168,11 +162,11 @@ Setup check_and_set_up(const ExchangeProblem& problem) {
     }
     if (!(face.emissivity > 0 && face.emissivity <= 1)) {
       throw InputError(face_label(problem, i) + " has emissivity " +
-                       format_number(face.emissivity) +
+                       rounded("%.6g", face.emissivity) +
                        "; a gray surface needs an emissivity above 0 and at most 1");
     }
     if (!(std::isfinite(vf.areas[i]) && vf.areas[i] > 0)) {
-      throw InputError(face_label(problem, i) + " has area " + format_number(vf.areas[i]) +
+      throw InputError(face_label(problem, i) + " has area " + rounded("%.6g", vf.areas[i]) +
                        " m^2; every face needs a positive area");
     }
     const double escaped = vf.to_surroundings.empty() ? 0 : vf.to_surroundings[i];
@@ -192,7 +186,7 @@ Setup check_and_set_up(const ExchangeProblem& problem) {
     for (SparseMatrix::InnerIterator it(vf.F, i); it; ++it) {
       if (!(std::isfinite(it.value()) && it.value() >= 0)) {
         throw InputError("the view factor from " + face_label(problem, i) + " to " +
-                         face_label(problem, it.col()) + " is " + format_number(it.value()) +
+                         face_label(problem, it.col()) + " is " + rounded("%.6g", it.value()) +
                          "; view factors must be finite and not negative");
       }
     }
@@ -230,7 +224,7 @@ Setup check_and_set_up(const ExchangeProblem& problem) {
     if (c.convection) {
       if (!(std::isfinite(c.convection->h) && c.convection->h >= 0)) {
         throw InputError(label + " has a convection coefficient h = " +
-                         format_number(c.convection->h) + " W/(m^2 K); it must be 0 or more");
+                         rounded("%.6g", c.convection->h) + " W/(m^2 K); it must be 0 or more");
       }
       require_kelvin(c.convection->fluid_K, "the fluid temperature of " + label);
       s.hA[k] = c.convection->h * s.node_area[k];
@@ -238,7 +232,7 @@ Setup check_and_set_up(const ExchangeProblem& problem) {
     }
     if (c.wall_loss) {
       if (!(std::isfinite(c.wall_loss->U) && c.wall_loss->U >= 0)) {
-        throw InputError(label + " has a wall coefficient U = " + format_number(c.wall_loss->U) +
+        throw InputError(label + " has a wall coefficient U = " + rounded("%.6g", c.wall_loss->U) +
                          " W/(m^2 K); it must be 0 or more");
       }
       require_kelvin(c.wall_loss->outside_K, "the outside temperature of " + label);

@@ -201,22 +201,23 @@ std::string LargeSolver::not_converged_message(const Residuals& res, const Itera
                      " iterations: largest residual ";
   if (res.node_ratio >= std::max(res.face_ratio, res.energy_ratio)) {
     const Eigen::Index k = res.worst_node;
-    text += format_number(std::abs(res.node[k])) + " W on surface '" + s_.node_names[k] + "' at " +
-            format_number(it.T[k]) + " K (tolerance " + format_number(res.node_allowed) + " W)";
+    text += rounded("%.6g", std::abs(res.node[k])) + " W on surface '" + s_.node_names[k] +
+            "' at " + rounded("%.6g", it.T[k]) + " K (tolerance " +
+            rounded("%.6g", res.node_allowed) + " W)";
     if (it.T[k] < 1) {
       text +=
           "; its temperature heads to 0 K: the heat taken out of it may be more than it can "
           "receive";
     }
   } else if (res.energy_ratio >= res.face_ratio) {
-    text += format_number(std::abs(res.energy)) +
+    text += rounded("%.6g", std::abs(res.energy)) +
             " W in the net power of the radiosity residuals over all faces (tolerance " +
-            format_number(res.energy_allowed) + " W)";
+            rounded("%.6g", res.energy_allowed) + " W)";
   } else {
     const Eigen::Index i = res.worst_face;
-    text += format_number(std::abs(res.face[i])) + " W/m^2 in the radiosity of face " +
+    text += rounded("%.6g", std::abs(res.face[i])) + " W/m^2 in the radiosity of face " +
             std::to_string(i) + " (surface '" + s_.node_names[s_.node_of_face[i]] +
-            "'; tolerance " + format_number(res.face_allowed) + " W/m^2)";
+            "'; tolerance " + rounded("%.6g", res.face_allowed) + " W/m^2)";
   }
   return text;
 }
@@ -287,8 +288,8 @@ void LargeSolver::solve(ExchangeResult* result, Iterate* it) {
       result->message =
           "the linear solve of Newton step " + std::to_string(result->iterations + 1) + " (GMRES(" +
           std::to_string(krylov.restart) + ")) reached relative residual " +
-          format_number(linear.relative_residual) + ", not the " + format_number(krylov.tolerance) +
-          " asked, after " + std::to_string(linear.iterations) +
+          rounded("%.6g", linear.relative_residual) + ", not the " +
+          rounded("%.6g", krylov.tolerance) + " asked, after " + std::to_string(linear.iterations) +
           " iterations; raise max_linear_iterations, or check the view factors (rows must sum "
           "to 1 or less)";
       return;
@@ -303,8 +304,8 @@ void LargeSolver::solve(ExchangeResult* result, Iterate* it) {
         // Radiation only: the problem is linear and this step went to its exact answer.
         result->status = ExchangeStatus::not_converged;
         result->message = "no solution with positive temperatures: surface '" + s_.node_names[k] +
-                          "' would need sigma T^4 = " + format_number(it->E[k] + dE) +
-                          " W/m^2 to balance its heat input " + format_number(s_.input_W[k]) +
+                          "' would need sigma T^4 = " + rounded("%.6g", it->E[k] + dE) +
+                          " W/m^2 to balance its heat input " + rounded("%.6g", s_.input_W[k]) +
                           " W (more heat is taken out than radiation can bring to it)";
         return;
       }

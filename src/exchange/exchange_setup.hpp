@@ -6,6 +6,7 @@
 #include <string>
 #include <vector>
 
+#include "core/text.hpp"
 #include "hearthray/exchange.hpp"
 
 namespace hearthray {
@@ -35,8 +36,6 @@ struct Setup {
 // out. Also refuses a problem where a group of nodes has nothing fixing its temperature level.
 Setup check_and_set_up(const ExchangeProblem& problem);
 
-std::string format_number(double value);
-
 // A temperature level to start Newton's method from: the mean of the given temperatures
 // (fixed nodes, fluids, outside, surroundings seen by some face).
 double reference_temperature(const Setup& s);
@@ -46,9 +45,9 @@ double reference_temperature(const Setup& s);
 void fill_results(const Setup& s, const Eigen::VectorXd& J, const Eigen::VectorXd& node_K,
                   ExchangeResult* result);
 
-// The large path (src/exchange/exchange_large.cpp): Newton-Krylov on radiosities and node temperatures
-// together. Fills status, message, iterations and the linear-solve fields of `result`, and
-// leaves the last iterate in J and node_K (also when it did not converge).
+// The large path (src/exchange/exchange_large.cpp): Newton-Krylov on radiosities and node
+// temperatures together. Fills status, message, iterations and the linear-solve fields of `result`,
+// and leaves the last iterate in J and node_K (also when it did not converge).
 void solve_large(const Setup& s, const ExchangeOptions& options, ExchangeResult* result,
                  Eigen::VectorXd* J, Eigen::VectorXd* node_K);
 

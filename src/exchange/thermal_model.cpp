@@ -6,16 +6,11 @@
 #include <cmath>
 #include <cstdio>
 
+#include "core/text.hpp"
 #include "hearthray/error.hpp"
 
 namespace hearthray {
 namespace {
-
-std::string percent(double fraction) {
-  char buffer[32];
-  std::snprintf(buffer, sizeof buffer, fraction >= 0.001 ? "%.1f %%" : "%.2g %%", 100 * fraction);
-  return buffer;
-}
 
 std::string scene_name(const SceneFile& file) {
   return file.path.empty() ? file.mesh_path : file.path;
@@ -172,9 +167,7 @@ ThermalModel build_thermal_model(const SceneFile& file, const Scene& scene, cons
   if (m.mesh_closed && m.lost_fraction > 0 && m.lost_fraction < options.leak_limit) {
     fold_leaks(&m.factors);
     m.leaks_folded = true;
-    char buffer[64];
-    std::snprintf(buffer, sizeof buffer, "%.2g", m.lost_fraction);
-    m.notes.push_back("the mesh is closed, and " + std::string(buffer) +
+    m.notes.push_back("the mesh is closed, and " + rounded("%.2g", m.lost_fraction) +
                       " of all rays left it or were absorbed on back faces: taken for leaks "
                       "through shared edges and returned to the faces that sent them, not "
                       "sent to the surroundings");

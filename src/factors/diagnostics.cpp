@@ -1,21 +1,8 @@
 #include "hearthray/diagnostics.hpp"
 
-#include <cstdio>
+#include "core/text.hpp"
 
 namespace hearthray {
-
-namespace {
-
-std::string percent(double fraction) {
-  char buffer[32];
-  if (fraction >= 0.001)
-    std::snprintf(buffer, sizeof buffer, "%.1f %%", 100 * fraction);
-  else
-    std::snprintf(buffer, sizeof buffer, "%.2g %%", 100 * fraction);
-  return buffer;
-}
-
-}  // namespace
 
 RayDiagnostics diagnose_rays(const Scene& scene, const PatchSet& patches, const Tallies& tallies,
                              const MeshTopology& topology) {

@@ -11,6 +11,7 @@
 #include <sstream>
 
 #include "comfort/comfort_input_toml.hpp"
+#include "core/text.hpp"
 #include "hearthray/error.hpp"
 
 namespace hearthray {
@@ -72,7 +73,7 @@ std::string type_name(const toml::node& node) {
 std::string number_text(const toml::node& node) {
   std::ostringstream out;
   if (auto i = node.as_integer()) out << i->get();
-  if (auto f = node.as_floating_point()) out << f->get();
+  if (auto f = node.as_floating_point()) return rounded("%.6g", f->get());
   return out.str();
 }
 

@@ -1,6 +1,6 @@
 // Writers for the view-factor matrix: CSV, Matrix Market, NumPy .npy, JSON, and the terminal
 // table. Every file holds N rows (emitters) by N + 1 columns (receivers, then surroundings),
-// with numbers in full double precision so that a reader gets back the same doubles.
+// with numbers as the shortest text that reads back as the same double (core/text.hpp).
 #include "hearthray/io.hpp"
 
 #include <algorithm>
@@ -13,6 +13,7 @@
 #include <string>
 #include <vector>
 
+#include "core/text.hpp"
 #include "hearthray/error.hpp"
 
 namespace hearthray {
@@ -41,12 +42,6 @@ void check_factors(const ViewFactors& vf) {
                      std::to_string(vf.F.rows()) + " x " + std::to_string(vf.F.cols()) +
                      " matrix (merge shards before writing)");
   }
-}
-
-std::string number(double v) {
-  char buffer[32];
-  std::snprintf(buffer, sizeof buffer, "%.17g", v);
-  return buffer;
 }
 
 // Row i as N + 1 dense values, surroundings last.
@@ -79,7 +74,7 @@ void write_factors_csv(std::ostream& out, const ViewFactors& vf) {
   out << ",surroundings\n";
   for (std::size_t i = 0; i < vf.size(); ++i) {
     out << csv_field(vf.names[i]);
-    for (double v : dense_row(vf, i)) out << ',' << number(v);
+    for (double v : dense_row(vf, i)) out << ',' << shortest(v);
     out << '\n';
   }
 }
@@ -99,10 +94,10 @@ void write_factors_mtx(std::ostream& out, const ViewFactors& vf) {
   out << n << ' ' << n + 1 << ' ' << entries << '\n';
   for (std::size_t i = 0; i < n; ++i) {
     for (SparseMatrix::InnerIterator it(vf.F, static_cast<Eigen::Index>(i)); it; ++it) {
-      out << i + 1 << ' ' << it.col() + 1 << ' ' << number(it.value()) << '\n';
+      out << i + 1 << ' ' << it.col() + 1 << ' ' << shortest(it.value()) << '\n';
     }
     if (vf.to_surroundings[i] != 0) {
-      out << i + 1 << ' ' << n + 1 << ' ' << number(vf.to_surroundings[i]) << '\n';
+      out << i + 1 << ' ' << n + 1 << ' ' << shortest(vf.to_surroundings[i]) << '\n';
     }
   }
 }
@@ -241,12 +236,6 @@ std::string fit(const std::string& s, std::size_t width, bool right_align = fals
   return right_align ? pad + text : text + pad;
 }
 
-std::string fixed(double v, int decimals, const char* prefix = "") {
-  char buffer[48];
-  std::snprintf(buffer, sizeof buffer, "%s%.*f", prefix, decimals, v);
-  return buffer;
-}
-
 constexpr std::size_t kMatrixLimit = 12;  // more patches than this: a list of non-zeros
 constexpr std::size_t kCell = 10;
 
@@ -273,11 +262,12 @@ void print_matrix(std::ostream& out, const ViewFactors& vf, bool show_back) {
     if (show_back) row.push_back(vf.to_back_faces[i]);
     std::string values = fit(vf.names[i], label), errors(label, ' ');
     for (double f : row) {
-      values += fit(f == 0 ? "0" : fixed(f, 5), kCell - 1, true) + ' ';
+      values += fit(f == 0 ? "0" : rounded("%.5f", f), kCell - 1, true) + ' ';
       errors +=
-          fit(f == 0 ? "" : fixed(vf.standard_error(i, f), 5, "\u00b1"), kCell - 1, true) + ' ';
+          fit(f == 0 ? "" : "\u00b1" + rounded("%.5f", vf.standard_error(i, f)), kCell - 1, true) +
+          ' ';
     }
-    values += fit(fixed(row_total(vf, i), 5), kCell - 1, true);
+    values += fit(rounded("%.5f", row_total(vf, i)), kCell - 1, true);
     errors.erase(errors.find_last_not_of(' ') + 1);
     out << values << '\n' << errors << '\n';
   }
@@ -291,8 +281,8 @@ void print_list(std::ostream& out, const ViewFactors& vf) {
   for (std::size_t i = 0; i < n; ++i) {
     const std::string emitter = fit(vf.names[i], width);
     auto line = [&](const std::string& receiver, double f) {
-      out << emitter << ' ' << fit(receiver, width) << ' ' << fit(fixed(f, 6), 9, true) << ' '
-          << fit(fixed(vf.standard_error(i, f), 6), 9, true) << '\n';
+      out << emitter << ' ' << fit(receiver, width) << ' ' << fit(rounded("%.6f", f), 9, true)
+          << ' ' << fit(rounded("%.6f", vf.standard_error(i, f)), 9, true) << '\n';
     };
     for (SparseMatrix::InnerIterator it(vf.F, static_cast<Eigen::Index>(i)); it; ++it) {
       if (it.value() != 0) line(vf.names[static_cast<std::size_t>(it.col())], it.value());
@@ -300,7 +290,7 @@ void print_list(std::ostream& out, const ViewFactors& vf) {
     if (vf.to_surroundings[i] != 0) line("(surroundings)", vf.to_surroundings[i]);
     if (vf.to_back_faces[i] != 0) line("(back faces)", vf.to_back_faces[i]);
     out << emitter << ' ' << fit("(row sum)", width) << ' '
-        << fit(fixed(row_total(vf, i), 6), 9, true) << '\n';
+        << fit(rounded("%.6f", row_total(vf, i)), 9, true) << '\n';
   }
 }
 
@@ -325,7 +315,7 @@ void print_factors_table(std::ostream& out, const ViewFactors& vf) {
                           : std::to_string(*least) + " to " + std::to_string(*most))
       << ")";
   if (vf.smoothed) {
-    out << "; largest smoothing correction " << fixed(vf.max_correction_sigma, 2)
+    out << "; largest smoothing correction " << rounded("%.2f", vf.max_correction_sigma)
         << " standard errors";
   }
   out << '\n';

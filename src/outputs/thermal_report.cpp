@@ -1,14 +1,14 @@
-// Solve outputs: terminal table, per-face CSV and report.json. Files carry full double
-// precision; the table rounds for reading.
+// Solve outputs: terminal table, per-face CSV and report.json. Files carry every double as
+// the shortest text that reads back the same; the table rounds for reading.
 #include "hearthray/thermal_report.hpp"
 
 #include <algorithm>
-#include <charconv>
 #include <cmath>
 #include <cstdio>
 #include <nlohmann/json.hpp>
 #include <ostream>
 
+#include "core/text.hpp"
 #include "hearthray/io.hpp"
 #include "hearthray/units.hpp"
 
@@ -19,31 +19,17 @@ using json = nlohmann::ordered_json;  // keys in the order written
 
 constexpr int kWidth = 12;
 
-std::string format(const char* spec, double v) {
-  char buffer[48];
-  std::snprintf(buffer, sizeof buffer, spec, v);
-  return buffer;
-}
-
 // Watts and W/m^2 with one decimal, large values in exponent form; never "-0.0".
 std::string watts(double v) {
   if (!std::isfinite(v)) return "n/a";
   if (std::abs(v) < 0.05) v = 0;
-  return format(std::abs(v) >= 1e8 ? "%.4g" : "%.1f", v);
+  return rounded(std::abs(v) >= 1e8 ? "%.4g" : "%.1f", v);
 }
 
 std::string pad(const std::string& s, std::size_t width, bool right) {
   if (s.size() >= width) return s;
   const std::string fill(width - s.size(), ' ');
   return right ? fill + s : s + fill;
-}
-
-// Shortest text that reads back as the same double.
-std::string number(double v) {
-  if (!std::isfinite(v)) return "nan";
-  char buffer[32];
-  const auto end = std::to_chars(buffer, buffer + sizeof buffer, v).ptr;
-  return std::string(buffer, end);
 }
 
 json condition_json(const NodeCondition& c) {
@@ -115,10 +101,10 @@ void print_solve_table(std::ostream& out, const std::vector<SurfaceHeat>& surfac
   out << titles << "\n" << units << "\n";
   for (const SurfaceHeat& s : surfaces) {
     std::string line = pad(s.name + (s.two_sided ? " *" : ""), name_width, false);
-    const std::string cells[] = {format("%.4g", s.area_m2),
-                                 format("%.3g", s.emissivity),
-                                 format("%.1f", s.temperature_K - kZeroCelsius),
-                                 format("%.1f", s.temperature_K),
+    const std::string cells[] = {rounded("%.4g", s.area_m2),
+                                 rounded("%.3g", s.emissivity),
+                                 rounded("%.1f", s.temperature_K - kZeroCelsius),
+                                 rounded("%.1f", s.temperature_K),
                                  watts(s.radiosity_W_m2),
                                  watts(s.irradiation_W_m2),
                                  watts(s.net_flux_W_m2),
@@ -132,8 +118,8 @@ void print_solve_table(std::ostream& out, const std::vector<SurfaceHeat>& surfac
   for (const SurfaceHeat& s : surfaces) {
     if (s.pieces <= 1) continue;
     out << "  " << s.name << ": " << s.pieces << " patches; T above is their area-weighted mean, "
-        << "they range from " << format("%.1f", s.temperature_min_K - kZeroCelsius) << " to "
-        << format("%.1f", s.temperature_max_K - kZeroCelsius) << " C (each in surfaces.csv)\n";
+        << "they range from " << rounded("%.1f", s.temperature_min_K - kZeroCelsius) << " to "
+        << rounded("%.1f", s.temperature_max_K - kZeroCelsius) << " C (each in surfaces.csv)\n";
   }
   if (any_two_sided) {
     out << "* two-sided: both faces on one line (W/m2 averaged over them, W summed); each face "
@@ -151,8 +137,8 @@ void print_solve_table(std::ostream& out, const std::vector<SurfaceHeat>& surfac
       << "  through the walls               " << pad(watts(balance.wall_loss_W), 14, true) << " W\n"
       << "  radiation to the surroundings   " << pad(watts(balance.to_surroundings_W), 14, true)
       << " W\n"
-      << "  residual                        " << pad(format("%.3g", balance.residual_W), 14, true)
-      << " W (" << format("%.2g", std::abs(relative)) << " of the largest flow)\n\n";
+      << "  residual                        " << pad(rounded("%.3g", balance.residual_W), 14, true)
+      << " W (" << rounded("%.2g", std::abs(relative)) << " of the largest flow)\n\n";
 
   out << "solver: ";
   if (result.status == ExchangeStatus::converged) {
@@ -162,7 +148,7 @@ void print_solve_table(std::ostream& out, const std::vector<SurfaceHeat>& surfac
         << " after " << result.iterations << " Newton iteration(s): the values above are not "
         << "an answer";
   }
-  out << "; largest node residual " << format("%.3g", result.final_residual_W) << " W\n";
+  out << "; largest node residual " << rounded("%.3g", result.final_residual_W) << " W\n";
   if (!result.message.empty()) out << "  " << result.message << "\n";
   out << "\ncaution: " << kEngineeringCaution << "\n";
 }
@@ -183,11 +169,11 @@ void write_surfaces_csv(std::ostream& out, const ThermalModel& model,
     const double convection = n.convection_W * share, wall = n.wall_loss_W * share;
     out << csv_field(model.surface_names[model.node_surface[k]]) << ","
         << csv_field(model.factors.names[f]) << "," << side_name(model.face_side[f]) << ","
-        << number(model.factors.areas[f]) << "," << number(model.faces[f].emissivity) << ","
-        << number(n.temperature_K) << "," << number(n.temperature_K - kZeroCelsius) << ","
-        << number(face.radiosity) << "," << number(face.irradiation) << "," << number(face.net_flux)
-        << "," << number(face.net_power) << "," << number(convection) << "," << number(wall) << ","
-        << number(face.net_power + convection + wall) << "\n";
+        << shortest(model.factors.areas[f]) << "," << shortest(model.faces[f].emissivity) << ","
+        << shortest(n.temperature_K) << "," << shortest(n.temperature_K - kZeroCelsius) << ","
+        << shortest(face.radiosity) << "," << shortest(face.irradiation) << ","
+        << shortest(face.net_flux) << "," << shortest(face.net_power) << "," << shortest(convection)
+        << "," << shortest(wall) << "," << shortest(face.net_power + convection + wall) << "\n";
   }
 }
 

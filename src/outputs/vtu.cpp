@@ -9,6 +9,7 @@
 #include <memory>
 #include <set>
 
+#include "core/text.hpp"
 #include "hearthray/error.hpp"
 
 namespace hearthray {
@@ -61,12 +62,7 @@ void write_values(std::FILE* f, std::size_t count, F value) {
 }
 
 void write_double(std::FILE* f, double v) {
-  if (std::isnan(v))
-    std::fputs("nan", f);
-  else if (std::isinf(v))
-    std::fputs(v > 0 ? "inf" : "-inf", f);
-  else
-    std::fprintf(f, "%.17g", v);
+  std::fputs(shortest(v).c_str(), f);
 }
 
 }  // namespace

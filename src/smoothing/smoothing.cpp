@@ -33,9 +33,10 @@
 #include <cstdio>
 #include <string>
 
+#include "core/text.hpp"
+#include "factors/view_factors_check.hpp"
 #include "hearthray/error.hpp"
 #include "smoothing/smoothing_problem.hpp"
-#include "factors/view_factors_check.hpp"
 
 namespace hearthray {
 
@@ -140,12 +141,6 @@ int conjugate_gradients(Problem& p, const VectorXd& H_diag, const VectorXd& g, d
     rz = rz_next;
   }
   return iterations;
-}
-
-std::string format(const char* fmt, double a, double b = 0, double c = 0) {
-  char buffer[256];
-  std::snprintf(buffer, sizeof buffer, fmt, a, b, c);
-  return buffer;
 }
 
 }  // namespace
@@ -266,9 +261,10 @@ ViewFactors smooth_view_factors(const PatchSet& patches, const Tallies& tallies,
   const std::string method =
       direct ? "dense LDL^T"
              : std::to_string(s.linear_iterations) + " conjugate-gradient iterations";
-  const std::string figures = format(
-      "max row error %.3g, max reciprocity error %.3g, largest correction %.3g standard errors",
-      s.max_row_error, s.max_reciprocity_error, s.max_correction_sigma);
+  const std::string figures = "max row error " + rounded("%.3g", s.max_row_error) +
+                              ", max reciprocity error " +
+                              rounded("%.3g", s.max_reciprocity_error) + ", largest correction " +
+                              rounded("%.3g", s.max_correction_sigma) + " standard errors";
   if (s.converged) {
     s.message = "converged in " + std::to_string(s.iterations) + " Newton iterations (" + method +
                 "); " + figures;
@@ -276,9 +272,9 @@ ViewFactors smooth_view_factors(const PatchSet& patches, const Tallies& tallies,
     if (failure.empty()) {
       failure = "no convergence in " + std::to_string(options.max_iterations) + " iterations";
     }
-    s.message = "smoothing did not converge (" + failure +
-                format(", row error %.3g above tolerance %.3g; ", error.max, options.tolerance) +
-                method + "); " + figures;
+    s.message = "smoothing did not converge (" + failure + ", row error " +
+                rounded("%.3g", error.max) + " above tolerance " +
+                rounded("%.3g", options.tolerance) + "; " + method + "); " + figures;
   }
   return vf;
 }

@@ -1,0 +1,28 @@
+#include "core/text.hpp"
+
+#include <charconv>
+#include <cmath>
+#include <cstdio>
+
+namespace hearthray {
+
+std::string shortest(double v) {
+  if (std::isnan(v)) return "nan";  // never "-nan"
+  char buffer[32];                  // the longest double, "-2.2250738585072014e-308", is 24
+  const auto end = std::to_chars(buffer, buffer + sizeof buffer, v).ptr;
+  return std::string(buffer, end);
+}
+
+std::string rounded(const char* spec, double v) {
+  const int length = std::snprintf(nullptr, 0, spec, v);
+  if (length <= 0) return {};
+  std::string out(std::size_t(length), '\0');
+  std::snprintf(out.data(), out.size() + 1, spec, v);
+  return out;
+}
+
+std::string percent(double fraction) {
+  return rounded(fraction >= 0.001 ? "%.1f %%" : "%.2g %%", 100 * fraction);
+}
+
+}  // namespace hearthray

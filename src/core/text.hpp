@@ -1,0 +1,24 @@
+// Text of numbers, one policy, for every stage of the library.
+//
+// Machine files (CSV, Matrix Market, VTU, and text the library writes into JSON or NPY
+// headers by hand) print a double as the shortest text that reads back as the same double
+// (std::to_chars): no digits of noise, nothing lost. Human tables and messages round to what a
+// reader needs, through `rounded`, and say percentages through `percent`.
+#pragma once
+
+#include <string>
+
+namespace hearthray {
+
+// Shortest round-trip text: "0.1", "1e-05", "123456". Not finite: "nan", "inf", "-inf".
+std::string shortest(double v);
+
+// One printf conversion of one double, for human text: rounded("%.3g", v), rounded("%.1f", v).
+// `spec` may carry text around the conversion ("%.1f %%") but exactly one conversion.
+std::string rounded(const char* spec, double v);
+
+// A fraction as a percentage for messages: "12.3 %"; below 0.1 % two significant digits
+// ("0.0042 %") so a small share does not read as zero.
+std::string percent(double fraction);
+
+}  // namespace hearthray
