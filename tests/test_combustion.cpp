@@ -8,13 +8,13 @@
 
 using namespace hearthray;
 
-TEST_CASE("NASA polynomials are continuous at 1000 K and match JANAF at 298.15 K",
-          "[combustion]") {
+TEST_CASE("NASA polynomials are continuous at 1000 K and match JANAF at 298.15 K", "[combustion]") {
   // The two ranges of a NASA 7-coefficient fit meet at 1000 K (McBride, Gordon & Reno 1993):
   // coefficients recalled from memory would almost surely break this.
-  for (Species s : {Species::N2, Species::O2, Species::CO2, Species::H2O, Species::CH4,
-                    Species::C3H8}) {
-    CHECK(molar_heat_capacity(s, 1000 - 1e-9) == Approx(molar_heat_capacity(s, 1000)).epsilon(1e-4));
+  for (Species s :
+       {Species::N2, Species::O2, Species::CO2, Species::H2O, Species::CH4, Species::C3H8}) {
+    CHECK(molar_heat_capacity(s, 1000 - 1e-9) ==
+          Approx(molar_heat_capacity(s, 1000)).epsilon(1e-4));
     CHECK(molar_enthalpy(s, 1000 - 1e-9) == Approx(molar_enthalpy(s, 1000)).margin(0.2));
   }
   // JANAF Thermochemical Tables (Chase, 4th ed., 1998) at 298.15 K: enthalpy of formation

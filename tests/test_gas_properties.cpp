@@ -19,8 +19,7 @@ TEST_CASE("a gray gas has one weight of one and the Beer-Lambert emissivity", "[
   CHECK_THROWS_AS(GrayGasSet::gray(NAN), InputError);
 }
 
-TEST_CASE("WSGG weights stay positive and below one over the fit's temperature range",
-          "[gas]") {
+TEST_CASE("WSGG weights stay positive and below one over the fit's temperature range", "[gas]") {
   // Smith, Shen & Friedman (1982) fit 600..2400 K: a_i > 0 and sum a_i < 1 there, so the
   // clear gas keeps a positive share. The two water-vapour sets are the exception: as
   // transcribed, their third weight dips to -5.5e-4 above about 2050 K (checked by hand from the
@@ -56,10 +55,14 @@ TEST_CASE("WSGG emissivity of a uniform path matches the published formula", "[g
     double T, pL, eps;
   };
   const Case cases[] = {
-      {WsggSet::mixture_ratio_2, 1000, 0.1, 0.206212}, {WsggSet::mixture_ratio_2, 1500, 0.3, 0.267036},
-      {WsggSet::mixture_ratio_2, 1200, 1.0, 0.420049}, {WsggSet::mixture_ratio_2, 2000, 0.05, 0.060742},
-      {WsggSet::mixture_ratio_1, 1000, 0.1, 0.188817}, {WsggSet::mixture_ratio_1, 1500, 0.3, 0.240999},
-      {WsggSet::co2_only, 1000, 0.1, 0.115825},        {WsggSet::co2_only, 1500, 0.3, 0.123805},
+      {WsggSet::mixture_ratio_2, 1000, 0.1, 0.206212},
+      {WsggSet::mixture_ratio_2, 1500, 0.3, 0.267036},
+      {WsggSet::mixture_ratio_2, 1200, 1.0, 0.420049},
+      {WsggSet::mixture_ratio_2, 2000, 0.05, 0.060742},
+      {WsggSet::mixture_ratio_1, 1000, 0.1, 0.188817},
+      {WsggSet::mixture_ratio_1, 1500, 0.3, 0.240999},
+      {WsggSet::co2_only, 1000, 0.1, 0.115825},
+      {WsggSet::co2_only, 1500, 0.3, 0.123805},
   };
   for (const Case& c : cases) {
     // pL in atm m: a path of L = pL / p at p_w + p_c = 0.3 atm (ratio 2), or CO2 alone.

@@ -141,8 +141,7 @@ TEST_CASE("smoothing makes gas exchange areas reciprocal and closed", "[gas]") {
   CHECK(s.max_row_error < 1e-12);
   CHECK(s.max_reciprocity_error < 1e-14);
   CHECK(s.max_correction_sigma < 5);  // corrections of the order of the statistical error
-  for (std::size_t g = 0; g < 3; ++g)
-    CHECK((t.x.S[g].array() >= 0).all());
+  for (std::size_t g = 0; g < 3; ++g) CHECK((t.x.S[g].array() >= 0).all());
 }
 
 TEST_CASE("zones inside a solid load are dropped and volumes add up", "[gas]") {
@@ -179,8 +178,7 @@ TEST_CASE("gas exchange input is checked", "[gas]") {
   GasTraceOptions options;
   CHECK_THROWS_AS(trace_gas_exchange(cube, patches, tracer, {1, 1, 1}, {-1.0}, options),
                   InputError);
-  CHECK_THROWS_AS(trace_gas_exchange(cube, patches, tracer, {0, 1, 1}, {1.0}, options),
-                  InputError);
+  CHECK_THROWS_AS(trace_gas_exchange(cube, patches, tracer, {0, 1, 1}, {1.0}, options), InputError);
   options.max_rows = 10;
   CHECK_THROWS_WITH(trace_gas_exchange(cube, patches, tracer, {2, 2, 2}, {1.0}, options),
                     Catch::Contains("dense limit"));

@@ -31,9 +31,9 @@ inline constexpr double kReferenceTemperature = 298.15;  // K, 25 C
 
 struct Fuel {
   std::string name;
-  double carbon = 1, hydrogen = 4;    // atoms per molecule (per carbon atom for an oil)
-  double molar_mass = 0;              // kg/mol of that unit
-  double lower_heating_value = 0;     // J/kg
+  double carbon = 1, hydrogen = 4;  // atoms per molecule (per carbon atom for an oil)
+  double molar_mass = 0;            // kg/mol of that unit
+  double lower_heating_value = 0;   // J/kg
 };
 
 // Natural gas taken as methane; LHV from the enthalpies of formation above (50.0 MJ/kg).
@@ -59,20 +59,20 @@ struct CombustionInput {
 
 struct Combustion {
   Fuel fuel;
-  double firing_rate = 0;         // W
-  double excess_air = 0;          // fraction
-  double flue_o2_dry = 0;         // volume fraction of O2 in the dry products
-  double air_temperature = 0;     // K
-  double fuel_mass_flow = 0;      // kg/s
-  double air_mass_flow = 0;       // kg/s
-  double products_mass_flow = 0;  // kg/s (fuel + air)
+  double firing_rate = 0;                    // W
+  double excess_air = 0;                     // fraction
+  double flue_o2_dry = 0;                    // volume fraction of O2 in the dry products
+  double air_temperature = 0;                // K
+  double fuel_mass_flow = 0;                 // kg/s
+  double air_mass_flow = 0;                  // kg/s
+  double products_mass_flow = 0;             // kg/s (fuel + air)
   double stoichiometric_air_fuel_ratio = 0;  // kg air / kg fuel
   // Molar flows of the products, mol/s, and of the air, mol/s.
   double n_co2 = 0, n_h2o = 0, n_o2 = 0, n_n2 = 0;
   double n_air_o2 = 0, n_air_n2 = 0;
   // Partial pressures of the products at 1 atm total, atm (= mole fractions).
   double p_co2 = 0, p_h2o = 0, p_o2 = 0, p_n2 = 0;
-  double air_enthalpy_in = 0;  // W: sensible enthalpy of the air above 25 C
+  double air_enthalpy_in = 0;              // W: sensible enthalpy of the air above 25 C
   double adiabatic_flame_temperature = 0;  // K, all heat released, no losses, no dissociation
 
   // Sensible enthalpy flow of the products at T above 25 C, W, and its derivative, W/K.

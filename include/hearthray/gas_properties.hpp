@@ -27,8 +27,8 @@ enum class WsggSet {
 std::string to_string(WsggSet set);
 
 // Range of the fit (Smith, Shen & Friedman 1982): 600 <= T <= 2400 K, 0.001 <= pL <= 10 atm m.
-inline constexpr double kWsggMinTemperature = 600;   // K
-inline constexpr double kWsggMaxTemperature = 2400;  // K
+inline constexpr double kWsggMinTemperature = 600;     // K
+inline constexpr double kWsggMaxTemperature = 2400;    // K
 inline constexpr double kWsggMinPathPressure = 0.001;  // atm m
 inline constexpr double kWsggMaxPathPressure = 10;     // atm m
 

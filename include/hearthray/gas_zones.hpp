@@ -101,14 +101,14 @@ struct GasTraceOptions {
 struct GasExchange {
   ZoneGrid grid;
   std::size_t patch_count = 0;
-  std::vector<double> areas;           // per patch, m^2
+  std::vector<double> areas;             // per patch, m^2
   std::vector<std::uint32_t> zone_cell;  // per zone: its grid cell
-  std::vector<double> volume;          // per zone, m^3 (Monte Carlo)
-  std::vector<double> volume_error;    // per zone: standard error, m^3
-  std::vector<std::uint64_t> rays;     // per row: rays traced
-  std::vector<double> k;               // per gray gas: absorption coefficient, 1/m
-  std::vector<Eigen::MatrixXd> S;      // per gray gas: exchange areas, m^2
-  std::vector<Eigen::MatrixXd> sigma;  // per gray gas: standard error of the raw S, m^2
+  std::vector<double> volume;            // per zone, m^3 (Monte Carlo)
+  std::vector<double> volume_error;      // per zone: standard error, m^3
+  std::vector<std::uint64_t> rays;       // per row: rays traced
+  std::vector<double> k;                 // per gray gas: absorption coefficient, 1/m
+  std::vector<Eigen::MatrixXd> S;        // per gray gas: exchange areas, m^2
+  std::vector<Eigen::MatrixXd> sigma;    // per gray gas: standard error of the raw S, m^2
   // Per gray gas and row: exchange area of rays that escaped or ended on the back of a
   // one-sided surface (0 in a closed enclosure with fronts facing the gas), m^2.
   std::vector<Eigen::VectorXd> lost;

@@ -47,12 +47,18 @@ const Nasa7& coefficients(Species s) {
                              {9.33553810e-01, 2.64245790e-02, 6.10597270e-06, -2.19774990e-08,
                               9.51492530e-12, -1.39585200e+04, 1.92016910e+01}};
   switch (s) {
-    case Species::N2: return n2;
-    case Species::O2: return o2;
-    case Species::CO2: return co2;
-    case Species::H2O: return h2o;
-    case Species::CH4: return ch4;
-    case Species::C3H8: return c3h8;
+    case Species::N2:
+      return n2;
+    case Species::O2:
+      return o2;
+    case Species::CO2:
+      return co2;
+    case Species::H2O:
+      return h2o;
+    case Species::CH4:
+      return ch4;
+    case Species::C3H8:
+      return c3h8;
   }
   throw std::logic_error("unknown species");
 }
@@ -94,12 +100,18 @@ double molar_heat_capacity(Species s, double T) {
 
 double molar_mass(Species s) {
   switch (s) {
-    case Species::N2: return 2 * kNitrogen;
-    case Species::O2: return 2 * kOxygen;
-    case Species::CO2: return kCarbon + 2 * kOxygen;
-    case Species::H2O: return 2 * kHydrogen + kOxygen;
-    case Species::CH4: return kCarbon + 4 * kHydrogen;
-    case Species::C3H8: return 3 * kCarbon + 8 * kHydrogen;
+    case Species::N2:
+      return 2 * kNitrogen;
+    case Species::O2:
+      return 2 * kOxygen;
+    case Species::CO2:
+      return kCarbon + 2 * kOxygen;
+    case Species::H2O:
+      return 2 * kHydrogen + kOxygen;
+    case Species::CH4:
+      return kCarbon + 4 * kHydrogen;
+    case Species::C3H8:
+      return 3 * kCarbon + 8 * kHydrogen;
   }
   throw std::logic_error("unknown species");
 }
@@ -202,8 +214,8 @@ double Combustion::products_enthalpy(double T) const {
 
 double Combustion::products_heat_capacity(double T) const {
   return n_co2 * molar_heat_capacity(Species::CO2, T) +
-         n_h2o * molar_heat_capacity(Species::H2O, T) +
-         n_o2 * molar_heat_capacity(Species::O2, T) + n_n2 * molar_heat_capacity(Species::N2, T);
+         n_h2o * molar_heat_capacity(Species::H2O, T) + n_o2 * molar_heat_capacity(Species::O2, T) +
+         n_n2 * molar_heat_capacity(Species::N2, T);
 }
 
 double Combustion::products_temperature(double H) const {

@@ -18,37 +18,37 @@ struct WsggCoefficients {
 // Smith, Shen & Friedman (1982), Table 2, as transcribed (scaled from the printed b1 x 10,
 // b2 x 10^4, b3 x 10^7, b4 x 10^11) in shared/refs/gas-radiation-data.md.
 const WsggCoefficients& coefficients(WsggSet set) {
-  static const WsggCoefficients ratio_1 = {
-      {0.4303, 7.055, 178.1},
-      {{5.150e-1, -2.303e-4, 0.9779e-7, -1.494e-11},
-       {0.7749e-1, 3.399e-4, -2.297e-7, 3.770e-11},
-       {1.907e-1, -1.824e-4, 0.5608e-7, -0.5122e-11}}};
-  static const WsggCoefficients ratio_2 = {
-      {0.4201, 6.516, 131.9},
-      {{6.508e-1, -5.551e-4, 3.029e-7, -5.353e-11},
-       {-0.2504e-1, 6.112e-4, -3.882e-7, 6.528e-11},
-       {2.718e-1, -3.118e-4, 1.221e-7, -1.612e-11}}};
-  static const WsggCoefficients co2 = {
-      {0.3966, 15.64, 394.3},
-      {{0.4334e-1, 2.620e-4, -1.560e-7, 2.565e-11},
-       {-0.4814e-1, 2.822e-4, -1.794e-7, 3.274e-11},
-       {0.5492e-1, 0.1087e-4, -0.3500e-7, 0.9123e-11}}};
-  static const WsggCoefficients h2o_dilute = {
-      {0.4098, 6.325, 120.5},
-      {{5.977e-1, -5.119e-4, 3.042e-7, -5.564e-11},
-       {0.5677e-1, 3.333e-4, -1.967e-7, 2.718e-11},
-       {1.800e-1, -2.334e-4, 1.008e-7, -1.454e-11}}};
-  static const WsggCoefficients h2o_one_atm = {
-      {0.4496, 7.113, 119.7},
-      {{6.324e-1, -8.358e-4, 6.135e-7, -13.03e-11},
-       {-0.2016e-1, 7.145e-4, -5.212e-7, 9.868e-11},
-       {3.500e-1, -5.040e-4, 2.425e-7, -3.888e-11}}};
+  static const WsggCoefficients ratio_1 = {{0.4303, 7.055, 178.1},
+                                           {{5.150e-1, -2.303e-4, 0.9779e-7, -1.494e-11},
+                                            {0.7749e-1, 3.399e-4, -2.297e-7, 3.770e-11},
+                                            {1.907e-1, -1.824e-4, 0.5608e-7, -0.5122e-11}}};
+  static const WsggCoefficients ratio_2 = {{0.4201, 6.516, 131.9},
+                                           {{6.508e-1, -5.551e-4, 3.029e-7, -5.353e-11},
+                                            {-0.2504e-1, 6.112e-4, -3.882e-7, 6.528e-11},
+                                            {2.718e-1, -3.118e-4, 1.221e-7, -1.612e-11}}};
+  static const WsggCoefficients co2 = {{0.3966, 15.64, 394.3},
+                                       {{0.4334e-1, 2.620e-4, -1.560e-7, 2.565e-11},
+                                        {-0.4814e-1, 2.822e-4, -1.794e-7, 3.274e-11},
+                                        {0.5492e-1, 0.1087e-4, -0.3500e-7, 0.9123e-11}}};
+  static const WsggCoefficients h2o_dilute = {{0.4098, 6.325, 120.5},
+                                              {{5.977e-1, -5.119e-4, 3.042e-7, -5.564e-11},
+                                               {0.5677e-1, 3.333e-4, -1.967e-7, 2.718e-11},
+                                               {1.800e-1, -2.334e-4, 1.008e-7, -1.454e-11}}};
+  static const WsggCoefficients h2o_one_atm = {{0.4496, 7.113, 119.7},
+                                               {{6.324e-1, -8.358e-4, 6.135e-7, -13.03e-11},
+                                                {-0.2016e-1, 7.145e-4, -5.212e-7, 9.868e-11},
+                                                {3.500e-1, -5.040e-4, 2.425e-7, -3.888e-11}}};
   switch (set) {
-    case WsggSet::mixture_ratio_1: return ratio_1;
-    case WsggSet::mixture_ratio_2: return ratio_2;
-    case WsggSet::co2_only: return co2;
-    case WsggSet::h2o_dilute: return h2o_dilute;
-    case WsggSet::h2o_one_atm: return h2o_one_atm;
+    case WsggSet::mixture_ratio_1:
+      return ratio_1;
+    case WsggSet::mixture_ratio_2:
+      return ratio_2;
+    case WsggSet::co2_only:
+      return co2;
+    case WsggSet::h2o_dilute:
+      return h2o_dilute;
+    case WsggSet::h2o_one_atm:
+      return h2o_one_atm;
   }
   throw std::logic_error("unknown WSGG set");
 }
@@ -82,11 +82,16 @@ void check_composition(const GasComposition& c) {
 
 std::string to_string(WsggSet set) {
   switch (set) {
-    case WsggSet::mixture_ratio_1: return "Smith-Shen-Friedman 1982, p_w/p_c = 1";
-    case WsggSet::mixture_ratio_2: return "Smith-Shen-Friedman 1982, p_w/p_c = 2";
-    case WsggSet::co2_only: return "Smith-Shen-Friedman 1982, CO2 (p_c -> 0)";
-    case WsggSet::h2o_dilute: return "Smith-Shen-Friedman 1982, H2O (p_w -> 0)";
-    case WsggSet::h2o_one_atm: return "Smith-Shen-Friedman 1982, H2O (p_w = 1 atm)";
+    case WsggSet::mixture_ratio_1:
+      return "Smith-Shen-Friedman 1982, p_w/p_c = 1";
+    case WsggSet::mixture_ratio_2:
+      return "Smith-Shen-Friedman 1982, p_w/p_c = 2";
+    case WsggSet::co2_only:
+      return "Smith-Shen-Friedman 1982, CO2 (p_c -> 0)";
+    case WsggSet::h2o_dilute:
+      return "Smith-Shen-Friedman 1982, H2O (p_w -> 0)";
+    case WsggSet::h2o_one_atm:
+      return "Smith-Shen-Friedman 1982, H2O (p_w = 1 atm)";
   }
   return "?";
 }
@@ -146,9 +151,9 @@ GrayGasSet GrayGasSet::wsgg(WsggSet set, const GasComposition& c) {
   result.set_ = set;
   result.p_h2o_ = c.p_h2o;
   result.p_co2_ = c.p_co2;
-  result.k_soot_ = c.soot_volume_fraction > 0
-                       ? hearthray::soot_absorption_coefficient(c.soot_volume_fraction, c.soot_temperature)
-                       : 0.0;
+  result.k_soot_ = c.soot_volume_fraction > 0 ? hearthray::soot_absorption_coefficient(
+                                                    c.soot_volume_fraction, c.soot_temperature)
+                                              : 0.0;
   result.k_ = {result.k_soot_};
   for (int i = 0; i < 3; ++i) {
     result.k_.push_back(w.kappa[i] * p + result.k_soot_);

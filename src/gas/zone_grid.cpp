@@ -65,8 +65,8 @@ void ZoneGrid::walk(const Vec3& o, const Vec3& d, double t_max, std::vector<Stre
   for (;;) {
     const std::uint32_t cell =
         std::uint32_t(idx[0] + std::size_t(n_[0]) * (idx[1] + std::size_t(n_[1]) * idx[2]));
-    const int a = t_next[0] < t_next[1] ? (t_next[0] < t_next[2] ? 0 : 2)
-                                        : (t_next[1] < t_next[2] ? 1 : 2);
+    const int a =
+        t_next[0] < t_next[1] ? (t_next[0] < t_next[2] ? 0 : 2) : (t_next[1] < t_next[2] ? 1 : 2);
     const double end = std::min(t_next[a], t_max);
     if (!out->empty() && out->back().cell == cell)
       out->back().end = std::max(out->back().end, end);

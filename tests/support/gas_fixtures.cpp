@@ -53,9 +53,8 @@ std::string box_with_load_obj(double a, double b, double c, double x0, double y0
                            {2, 6, 7, 3}, {0, 4, 6, 2}, {1, 3, 7, 5}};
   text += "g load\n";
   for (const auto& f : faces) {
-    std::snprintf(line, sizeof line, "f %d %d %d\nf %d %d %d\n", count + 1 + f[0],
-                  count + 1 + f[1], count + 1 + f[2], count + 1 + f[0], count + 1 + f[2],
-                  count + 1 + f[3]);
+    std::snprintf(line, sizeof line, "f %d %d %d\nf %d %d %d\n", count + 1 + f[0], count + 1 + f[1],
+                  count + 1 + f[2], count + 1 + f[0], count + 1 + f[2], count + 1 + f[3]);
     text += line;
   }
   return text;

@@ -1,0 +1,99 @@
+// The zone solve: gray diffuse surfaces and radiating gas zones together (the zone method of
+// Hottel & Sarofim, Radiative Transfer, 1967; Modest, Radiative Heat Transfer, zonal method),
+// with the gas as a weighted sum of gray gases.
+//
+// For each gray gas g, with direct exchange areas S^g (gas_zones.hpp) and emission shares
+// a_g(T) taken at the emitter's temperature, E^g(T) = a_g(T) sigma T^4:
+//   radiosity of patch i:  A_i J_i = eps_i A_i E_i + rho_i A_i H_i,
+//   irradiation:           A_i H_i = sum_j S_ij J_j + sum_z S_iz E_z + L_i E_sur,
+// L_i the exchange area lost to the surroundings (0 in a closed enclosure). Net radiation
+// leaving patch i: Q_i = sum_g eps_i (A_i E_i - A_i H_i). Zone z absorbs
+// sum_g (sum_j S_zj J_j + sum_y S_zy E_y + L_z E_sur) and emits sum_g 4 k_g V_z E_z.
+// Zone energy: release + enthalpy in - enthalpy out + absorbed - emitted = 0, where products
+// flow zone to zone in a given order (plug flow; one zone is a well-stirred furnace), the first
+// zone receiving the combustion air.
+//
+// Unknown temperatures (patches with a given power, zones with a given release) are found by
+// Newton's method with the exact Jacobian: for each gray gas the radiosity matrix
+// diag(A) - diag(rho) S_ss is factored once; dJ/dT follows from the same factors, and
+// d a_g/dT and the products' heat capacity enter exactly. Dense: for a few thousand patches.
+#pragma once
+
+#include <string>
+#include <vector>
+
+#include "hearthray/combustion.hpp"
+#include "hearthray/gas_properties.hpp"
+#include "hearthray/gas_zones.hpp"
+
+namespace hearthray {
+
+struct ZonePatchCondition {
+  double emissivity = 0.8;  // (0, 1]
+  bool known_temperature = true;
+  double temperature = 293.15;  // K, when known (>= 0); the start value otherwise
+  double power = 0;             // W put in when the temperature is unknown (0: adiabatic)
+};
+
+struct ZoneGasCondition {
+  bool known_temperature = false;
+  double temperature = 1500;  // K, when known (> 0); the start value otherwise
+  double heat_release = 0;    // W released in the zone (unknown temperature only)
+};
+
+struct ZoneSolveInput {
+  const GasExchange* exchange = nullptr;     // smoothed exchange areas
+  const GrayGasSet* gases = nullptr;         // its absorption coefficients must match
+  std::vector<ZonePatchCondition> patches;   // one per patch
+  std::vector<ZoneGasCondition> zones;       // one per zone
+  double surroundings_temperature = 293.15;  // K, seen through lost exchange area
+  // Flow of combustion products: zones in flow order, the first receiving the air, the last
+  // leaving to the flue. Empty: no flow (zones exchange by radiation only).
+  std::vector<std::size_t> flow_order;
+  const Combustion* combustion = nullptr;  // needed when flow_order is not empty
+  double tolerance = 1e-11;                // on the largest residual / heat scale
+  int max_iterations = 100;
+
+  bool IsValid(std::string* error) const;
+};
+
+struct ZonePatchResult {
+  double temperature = 0;  // K
+  double emitted = 0;      // W: eps A sigma T^4 summed over gray gases
+  double absorbed = 0;     // W
+  double net_out = 0;      // W: emitted - absorbed (negative: the patch takes heat)
+};
+
+struct ZoneGasResult {
+  double temperature = 0;   // K
+  double heat_release = 0;  // W
+  double emitted = 0;       // W: sum_g 4 k_g V a_g sigma T^4
+  double absorbed = 0;      // W
+  double enthalpy_in = 0;   // W above 25 C (air or the upstream zone's products)
+  double enthalpy_out = 0;  // W above 25 C
+  // Heat the zone needs to hold a known temperature (release + in - out + absorbed -
+  // emitted, negated): 0 for zones whose temperature was solved.
+  double imbalance = 0;
+};
+
+struct ZoneSolveResult {
+  bool converged = false;
+  int iterations = 0;
+  double max_residual = 0;  // W, largest energy-equation residual at the end
+  std::string message;
+  std::vector<ZonePatchResult> patches;
+  std::vector<ZoneGasResult> zones;
+  double to_surroundings = 0;   // W: net radiation lost through the lost exchange area
+  double heat_released = 0;     // W: sum of the zones' releases
+  double air_enthalpy_in = 0;   // W above 25 C, into the first zone of the flow
+  double flue_enthalpy = 0;     // W above 25 C, out of the last zone
+  double flue_temperature = 0;  // K
+  // Energy balance: release + air in + held zones' imbalance = patches' absorbed net +
+  // surroundings + flue; the difference, W (round-off when converged).
+  double balance_error = 0;
+};
+
+// Throws InputError for invalid input; numerical non-convergence is reported in the result.
+ZoneSolveResult solve_zones(const ZoneSolveInput& input);
+
+}  // namespace hearthray
