@@ -33,6 +33,10 @@ struct ZonePatchCondition {
   bool known_temperature = true;
   double temperature = 293.15;  // K, when known (>= 0); the start value otherwise
   double power = 0;             // W put in when the temperature is unknown (0: adiabatic)
+  // Conduction through the wall to the outside, as U A (T - T_outside) lost (unknown
+  // temperature only; U = 0: none).
+  double wall_U = 0;               // W/(m^2 K)
+  double outside_temperature = 0;  // K
 };
 
 struct ZoneGasCondition {
@@ -62,6 +66,7 @@ struct ZonePatchResult {
   double emitted = 0;      // W: eps A sigma T^4 summed over gray gases
   double absorbed = 0;     // W
   double net_out = 0;      // W: emitted - absorbed (negative: the patch takes heat)
+  double wall_loss = 0;    // W through the wall to the outside
 };
 
 struct ZoneGasResult {
@@ -88,8 +93,10 @@ struct ZoneSolveResult {
   double air_enthalpy_in = 0;   // W above 25 C, into the first zone of the flow
   double flue_enthalpy = 0;     // W above 25 C, out of the last zone
   double flue_temperature = 0;  // K
-  // Energy balance: release + air in + held zones' imbalance = patches' absorbed net +
-  // surroundings + flue; the difference, W (round-off when converged).
+  // Energy balance, the difference of release + air enthalpy in + what held zones need
+  // = heat the patches take (-sum of net_out: for patches of unknown temperature the wall
+  // loss less the power put in) + surroundings + flue enthalpy, W (round-off when
+  // converged).
   double balance_error = 0;
 };
 

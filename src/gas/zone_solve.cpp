@@ -32,6 +32,9 @@ bool ZoneSolveInput::IsValid(std::string* error) const {
         (!c.known_temperature && c.temperature <= 0))
       return fail(at + "temperature must be finite and >= 0 K (> 0 as a start value)");
     if (!std::isfinite(c.power)) return fail(at + "power must be finite");
+    if (!std::isfinite(c.wall_U) || c.wall_U < 0 || !std::isfinite(c.outside_temperature) ||
+        c.outside_temperature < 0)
+      return fail(at + "wall U must be >= 0 and the outside temperature >= 0 K");
   }
   for (std::size_t z = 0; z < zones.size(); ++z) {
     const ZoneGasCondition& c = zones[z];
@@ -164,9 +167,13 @@ class ZoneSystem {
     for (std::size_t u = 0; u < U; ++u) {
       const std::size_t r = unknown_[u];
       if (r < P_) {
-        // Net radiation out equals the power put in.
-        s.residual(u) = s.emitted(r) - s.absorbed(r) - in_.patches[r].power;
-        if (jacobian) jacobian->row(u) = d_net.row(r);
+        // Net radiation out plus the wall loss equals the power put in.
+        const ZonePatchCondition& c = in_.patches[r];
+        s.residual(u) = s.emitted(r) - s.absorbed(r) + wall_loss(r, T(r)) - c.power;
+        if (jacobian) {
+          jacobian->row(u) = d_net.row(r);
+          (*jacobian)(u, u) += c.wall_U * x_.areas[r];
+        }
       } else {
         const std::size_t z = r - P_;
         s.residual(u) = gas_balance(z, T, s);
@@ -184,6 +191,10 @@ class ZoneSystem {
     return s;
   }
 
+  double wall_loss(std::size_t patch, double T) const {
+    const ZonePatchCondition& c = in_.patches[patch];
+    return c.wall_U * x_.areas[patch] * (T - c.outside_temperature);
+  }
   double enthalpy_in(std::size_t z, const Eigen::VectorXd& T) const {
     if (!in_flow_[z]) return 0;
     if (int(z) == first_) return in_.combustion->air_enthalpy_in;
@@ -271,6 +282,7 @@ ZoneSolveResult solve_zones(const ZoneSolveInput& in) {
     r.emitted = state.emitted(i);
     r.absorbed = state.absorbed(i);
     r.net_out = r.emitted - r.absorbed;
+    if (!in.patches[i].known_temperature) r.wall_loss = system.wall_loss(i, T(i));
   }
   result.zones.resize(Z);
   double held = 0;

@@ -1,0 +1,58 @@
+// A scene with a [gas] table through the gas stages: the products of the firing, the gray
+// gases, the zones and their exchange areas, smoothing, and the zone solve; with the figures
+// a furnace designer reads (heat to the load, flue loss, efficiency, balance).
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "hearthray/combustion.hpp"
+#include "hearthray/gas_input.hpp"
+#include "hearthray/gas_properties.hpp"
+#include "hearthray/gas_zones.hpp"
+#include "hearthray/patches.hpp"
+#include "hearthray/scene.hpp"
+#include "hearthray/scene_file.hpp"
+#include "hearthray/tracer.hpp"
+#include "hearthray/zone_solve.hpp"
+
+namespace hearthray {
+
+struct GasRunOptions {
+  std::uint64_t seed = 1;
+  std::vector<std::uint64_t> rays_for_patch;  // one per patch
+  int threads = 0;
+  double surroundings_temperature = 293.15;  // K
+};
+
+struct GasRun {
+  GasInput input;
+  std::optional<Combustion> combustion;
+  GrayGasSet gases;
+  GasExchange exchange;
+  GasSmoothingSummary smoothing;
+  std::vector<std::size_t> flow_order;      // zones from the burner end to the flue
+  std::vector<ZonePatchCondition> patches;  // as solved
+  ZoneSolveResult solve;
+  std::vector<std::string> warnings;  // gas properties out of their fit's range, ...
+
+  // Heat into the patches of known temperature (the load and held walls), W.
+  double heat_to_held_patches() const;
+  // Heat lost through walls of unknown temperature less the power put into them, W.
+  double heat_through_walls() const;
+  double firing_rate() const { return combustion ? combustion->firing_rate : 0.0; }
+};
+
+// Per-patch conditions from the surfaces' thermal description: temperature, heat flux and
+// power (a surface's power shared among its patches by area), adiabatic, wall loss.
+// Convection is refused with a gas (not yet modelled: the gas would be its fluid).
+std::vector<ZonePatchCondition> gas_patch_conditions(const std::vector<SurfaceThermal>& surfaces,
+                                                     const Scene& scene, const PatchSet& patches);
+
+// Runs the gas stages. Throws InputError for bad input; non-convergence is in run.solve.
+GasRun run_gas(const GasInput& input, const Scene& scene, const PatchSet& patches,
+               const Tracer& tracer, std::vector<ZonePatchCondition> conditions,
+               const GasRunOptions& options);
+
+}  // namespace hearthray

@@ -1,0 +1,147 @@
+#include "hearthray/gas_run.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <sstream>
+
+#include "hearthray/error.hpp"
+
+namespace hearthray {
+
+double GasRun::heat_to_held_patches() const {
+  double q = 0;
+  for (std::size_t p = 0; p < patches.size(); ++p)
+    if (patches[p].known_temperature) q -= solve.patches[p].net_out;
+  return q;
+}
+
+double GasRun::heat_through_walls() const {
+  double q = 0;
+  for (std::size_t p = 0; p < patches.size(); ++p)
+    if (!patches[p].known_temperature) q -= solve.patches[p].net_out;
+  return q;
+}
+
+std::vector<ZonePatchCondition> gas_patch_conditions(const std::vector<SurfaceThermal>& surfaces,
+                                                     const Scene& scene, const PatchSet& patches) {
+  std::vector<double> surface_area(scene.surfaces.size(), 0.0);
+  for (const Patch& p : patches.patches) surface_area[p.surface] += p.area;
+  std::vector<ZonePatchCondition> out;
+  for (const Patch& p : patches.patches) {
+    const SurfaceThermal& s = surfaces[p.surface];
+    const std::string& name = scene.surfaces[p.surface].name;
+    if (s.condition.convection)
+      throw InputError("surface " + name +
+                       ": convection is not modelled together with [gas] yet (the gas would "
+                       "be its fluid); remove it or leave [gas] out");
+    ZonePatchCondition c;
+    c.emissivity = s.emissivity;
+    switch (s.condition.kind) {
+      case ConditionKind::temperature:
+        c.known_temperature = true;
+        c.temperature = s.condition.value;
+        break;
+      case ConditionKind::heat_flux:
+        c.known_temperature = false;
+        c.power = s.condition.value * p.area;
+        break;
+      case ConditionKind::power:
+        c.known_temperature = false;
+        c.power = s.condition.value * p.area / surface_area[p.surface];
+        break;
+      case ConditionKind::adiabatic:
+        c.known_temperature = false;
+        break;
+    }
+    if (s.condition.wall_loss) {
+      if (c.known_temperature)
+        throw InputError("surface " + name + ": a wall loss needs an unknown temperature");
+      c.wall_U = s.condition.wall_loss->U;
+      c.outside_temperature = s.condition.wall_loss->outside_K;
+    }
+    if (!c.known_temperature) c.temperature = 1000;  // start value
+    out.push_back(c);
+  }
+  return out;
+}
+
+namespace {
+
+// Zones in flow order: by their cell's position along the axis.
+std::vector<std::size_t> flow_order(const GasInput& in, const GasExchange& x) {
+  std::vector<std::size_t> order(x.zone_count());
+  for (std::size_t z = 0; z < order.size(); ++z) order[z] = z;
+  if (in.flow == GasInput::Flow::none) return {};
+  const int axis = in.flow_axis;
+  std::stable_sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) {
+    const int ia = x.grid.cell_index(x.zone_cell[a])[std::size_t(axis)];
+    const int ib = x.grid.cell_index(x.zone_cell[b])[std::size_t(axis)];
+    return in.flow_direction > 0 ? ia < ib : ia > ib;
+  });
+  return order;
+}
+
+}  // namespace
+
+GasRun run_gas(const GasInput& input, const Scene& scene, const PatchSet& patches,
+               const Tracer& tracer, std::vector<ZonePatchCondition> conditions,
+               const GasRunOptions& options) {
+  GasRun run;
+  run.input = input;
+  if (input.firing) run.combustion = burn(*input.firing);
+  run.gases = gas_properties(input, run.combustion ? &*run.combustion : nullptr);
+  run.warnings = run.gases.warnings();
+
+  GasTraceOptions trace;
+  trace.rays_for_patch = options.rays_for_patch;
+  trace.rays_per_cell = input.rays_per_cell;
+  trace.seed = options.seed;
+  trace.threads = options.threads;
+  run.exchange = trace_gas_exchange(scene, patches, tracer, input.cells,
+                                    run.gases.absorption_coefficients(), trace);
+  run.smoothing = smooth_gas_exchange(run.exchange);
+  if (!run.smoothing.converged)
+    run.warnings.push_back("gas: smoothing the exchange areas did not converge (row error " +
+                           std::to_string(run.smoothing.max_row_error) + ")");
+  const GasExchange& x = run.exchange;
+  double lost = 0, total = 0;
+  for (std::size_t i = 0; i < x.rows(); ++i)
+    lost += x.lost.back()(i), total += x.row_target(x.gas_count() - 1, i);
+  if (lost > 1e-4 * total)
+    run.warnings.push_back("gas: " + std::to_string(100 * lost / total) +
+                           " % of the radiation escapes or lands on back faces: the gas "
+                           "needs a closed enclosure whose fronts face it");
+
+  run.flow_order = flow_order(input, x);
+  run.patches = std::move(conditions);
+  ZoneSolveInput in;
+  in.exchange = &x;
+  in.gases = &run.gases;
+  in.patches = run.patches;
+  in.surroundings_temperature = options.surroundings_temperature;
+  in.zones.resize(x.zone_count());
+  if (input.temperature) {
+    for (ZoneGasCondition& z : in.zones) z = {true, *input.temperature, 0.0};
+  } else {
+    const double start = run.combustion->adiabatic_flame_temperature * 0.7;
+    for (ZoneGasCondition& z : in.zones) z = {false, start, 0.0};
+    for (std::size_t m = 0; m < input.release.size() && m < run.flow_order.size(); ++m)
+      in.zones[run.flow_order[m]].heat_release = input.release[m] * run.combustion->firing_rate;
+    in.flow_order = run.flow_order;
+    in.combustion = &*run.combustion;
+  }
+  for (std::size_t z = 0; z < x.zone_count(); ++z)
+    if (!run.gases.temperature_in_range(in.zones[z].temperature) && input.temperature)
+      run.warnings.push_back("gas: zone temperature outside the WSGG fit's 600..2400 K");
+  run.solve = solve_zones(in);
+  bool out_of_range = false;
+  for (const ZoneGasResult& z : run.solve.zones)
+    out_of_range = out_of_range || !run.gases.temperature_in_range(z.temperature);
+  if (out_of_range && !input.temperature)
+    run.warnings.push_back(
+        "gas: a zone's solved temperature lies outside the WSGG fit's 600..2400 K; its "
+        "weights were held at the end of the range");
+  return run;
+}
+
+}  // namespace hearthray
