@@ -1,12 +1,16 @@
 // The [gas] table, and a scene through the gas stages to its report.
 #include <algorithm>
 #include <catch2/catch.hpp>
+#include <cstdlib>
+#include <fstream>
+#include <iterator>
 #include <sstream>
 
 #include "hearthray/error.hpp"
 #include "hearthray/gas_input.hpp"
 #include "hearthray/gas_report.hpp"
 #include "hearthray/gas_run.hpp"
+#include "support/cli_run.hpp"
 #include "support/gas_fixtures.hpp"
 #include "support/meshes.hpp"
 
@@ -156,6 +160,17 @@ excess_air = "15 %"
   CHECK(std::count(zone_rows.begin(), zone_rows.end(), '\n') == 1 + 3);
   CHECK(std::count(patch_rows.begin(), patch_rows.end(), '\n') == 1 + 7);
   CHECK_THAT(json, Catch::Contains("\"efficiency\""));
+  // zones.vtu holds one hexahedron per zone; the cut picture has the zones' colours.
+  const ScratchDir dir("gas-report");
+  write_zones_vtu((dir / "zones.vtu").string(), run);
+  std::ifstream vtu(dir / "zones.vtu");
+  const std::string text((std::istreambuf_iterator<char>(vtu)), std::istreambuf_iterator<char>());
+  CHECK_THAT(text, Catch::Contains("NumberOfCells=\"3\""));
+  CHECK_THAT(text, Catch::Contains("Name=\"temperature [K]\""));
+  const Picture picture = zone_cut_picture(run, scene);
+  CHECK(picture.width() > 700);
+  if (const char* keep = std::getenv("HEARTHRAY_KEEP_PICTURES"))
+    write_picture(std::string(keep) + "/gas-zone-cut.png", picture);
   // Convection with a gas is refused for now, naming the surface.
   thermal[0].condition.convection = Convection{10, 300};
   CHECK_THROWS_WITH(gas_patch_conditions(thermal, scene, patches), Catch::Contains("floor"));

@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "hearthray/gas_run.hpp"
+#include "hearthray/picture.hpp"
 
 namespace hearthray {
 
@@ -28,6 +29,17 @@ void write_zones_csv(std::ostream& out, const GasRun& run);
 // patch, temperature, emitted, absorbed, net radiation out, wall loss (W).
 void write_gas_patches_csv(std::ostream& out, const GasRun& run,
                            const std::vector<std::string>& patch_names);
+
+// zones.vtu: each zone as a VTK_HEXAHEDRON (type 12) cell, its grid cell's box, with cell data
+// "zone", "temperature [K]", "volume [m3]", "heat release [W]", "emitted [W]",
+// "absorbed [W]". The file appears whole or not at all; throws InputError when it cannot be
+// written.
+void write_zones_vtu(const std::string& path, const GasRun& run);
+
+// A cut through the zones: the plane through the middle of the grid across `across` (0, 1, 2
+// for x, y, z; the other two axes are drawn), cells coloured by gas temperature in C, cells
+// with no gas left blank, and the scene's surfaces where the plane cuts them.
+Picture zone_cut_picture(const GasRun& run, const Scene& scene, int across = 1);
 
 // The "gas" block of report.json as JSON text (an object).
 std::string gas_report_json(const GasRun& run, const std::vector<std::string>& patch_names);
