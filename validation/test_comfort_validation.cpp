@@ -209,13 +209,10 @@ TEST_CASE("worked room: mean radiant temperature and asymmetry computed by hand"
   // The spread of each traced figure at the rays the scene asks for (200 000 per estimator),
   // from the same exact factors (see the top of the file).
   const double rays = 200000;
-  const double sd_mrt = radiant_sd({{Fs_floor, Tf},
-                                    {Fs_floor, Tc},
-                                    {Fs_south, Ts},
-                                    {Fs_south, Tw},
-                                    {2 * Fs_west, Tw}},
-                                   rays);
-  const std::vector<Seen> up = {{Fu_ceiling, Tc}, {Fu_south, Ts}, {Fu_south, Tw}, {2 * Fu_west, Tw}};
+  const double sd_mrt = radiant_sd(
+      {{Fs_floor, Tf}, {Fs_floor, Tc}, {Fs_south, Ts}, {Fs_south, Tw}, {2 * Fs_west, Tw}}, rays);
+  const std::vector<Seen> up = {
+      {Fu_ceiling, Tc}, {Fu_south, Ts}, {Fu_south, Tw}, {2 * Fu_west, Tw}};
   const std::vector<Seen> down = {
       {Fu_ceiling, Tf}, {Fu_south, Ts}, {Fu_south, Tw}, {2 * Fu_west, Tw}};
   const std::vector<Seen> north = {
@@ -268,8 +265,7 @@ position = ["2 m", "1.5 m", "1.25 m"]
   CHECK(row.at("horizontal_case") == "cool wall");
   INFO("horizontal asymmetry " << number(row, "horizontal_asymmetry_K") << " K, hand "
                                << t_north - t_south << " K, sd " << sd_horizontal << " K");
-  CHECK(std::abs(number(row, "horizontal_asymmetry_K") - (t_north - t_south)) <
-        4 * sd_horizontal);
+  CHECK(std::abs(number(row, "horizontal_asymmetry_K") - (t_north - t_south)) < 4 * sd_horizontal);
   check_reported_se(row, "horizontal_se_K", sd_horizontal);
   // Operative temperature, air below 0.2 m/s: the mean of air and mean radiant temperature.
   CHECK(number(row, "operative_C") ==

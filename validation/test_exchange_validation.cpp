@@ -63,21 +63,22 @@ void check_two_surface(double A1, double A2, double eps1, double eps2, double T1
 
 }  // namespace
 
-TEST_CASE("concentric spheres match the two-surface enclosure formula", "[exchange]") {
+TEST_CASE("concentric spheres match the two-surface enclosure formula", "[validation][exchange]") {
   // The case of the project's issue: inner eps 0.5 at 900 K, outer eps 0.4 at 400 K. Radii
   // 0.5 m and 1 m (our choice): F12 = 1, F21 = A1/A2 = 0.25, F22 = 0.75 exactly.
   const double A1 = 4 * kPi * 0.25, A2 = 4 * kPi * 1.0;
   check_two_surface(A1, A2, 0.5, 0.4, 900, 400);
 }
 
-TEST_CASE("long concentric cylinders match the two-surface enclosure formula", "[exchange]") {
+TEST_CASE("long concentric cylinders match the two-surface enclosure formula",
+          "[validation][exchange]") {
   // Per metre of length, radii 0.2 m and 0.5 m (our choice): A1/A2 = r1/r2 = 0.4; end effects
   // are absent by the model (infinitely long cylinders).
   const double A1 = 2 * kPi * 0.2, A2 = 2 * kPi * 0.5;
   check_two_surface(A1, A2, 0.7, 0.9, 1100, 350);
 }
 
-TEST_CASE("a radiation shield between parallel plates", "[exchange]") {
+TEST_CASE("a radiation shield between parallel plates", "[validation][exchange]") {
   // Large parallel plates 1 and 2 with a thin shield 3 between them, each gap a closed
   // two-surface enclosure (F = 1). Series network of the shield's two sides:
   //   q = sigma (T1^4 - T2^4) / (1/eps1 + 1/eps2 + 1/eps3a + 1/eps3b - 2)   per unit area
@@ -109,7 +110,7 @@ TEST_CASE("a radiation shield between parallel plates", "[exchange]") {
   CHECK(q < kSigma * (std::pow(T1, 4) - std::pow(T2, 4)) / (1 / eps1 + 1 / eps2 - 1));
 }
 
-TEST_CASE("three-surface enclosure with a reradiating surface", "[exchange]") {
+TEST_CASE("three-surface enclosure with a reradiating surface", "[validation][exchange]") {
   // A long duct whose cross-section is an equilateral triangle of side 1 m, per metre of
   // length: F = 0.5 between any two sides, exact by Hottel's crossed-strings rule
   // F12 = (L1 + L2 - L3) / (2 L1) (Hottel & Sarofim, Radiative Transfer, 1967; Modest ch. 4).
@@ -155,7 +156,7 @@ double bisect(Fn f, double lo, double hi) {
 
 }  // namespace
 
-TEST_CASE("radiation with convection and wall loss: hand calculation", "[exchange]") {
+TEST_CASE("radiation with convection and wall loss: hand calculation", "[validation][exchange]") {
   // A small surface seen only by large surroundings (black to it), with convection to air and
   // conduction through its wall. Surface energy balance (Incropera et al., 6th ed., sec. 1.2
   // and 1.3: radiation exchange with large surroundings eps sigma A (T^4 - Tsur^4), eq. 1.7;
@@ -186,7 +187,7 @@ TEST_CASE("radiation with convection and wall loss: hand calculation", "[exchang
   CHECK(r.iterations <= 10);
 }
 
-TEST_CASE("two-sided heated plate with convection: hand calculation", "[exchange]") {
+TEST_CASE("two-sided heated plate with convection: hand calculation", "[validation][exchange]") {
   // A thin plate, 1 m^2 per side, heated by a flux over both sides (2 m^2), sides of
   // different emissivity, both seeing only the surroundings; convection from both sides.
   // Same balance as above (same source), summed over the two sides:
@@ -212,7 +213,8 @@ TEST_CASE("two-sided heated plate with convection: hand calculation", "[exchange
         Approx(epsf * kSigma * A * (std::pow(T, 4) - std::pow(Ts, 4))).epsilon(1e-8));
 }
 
-TEST_CASE("cube with a hot floor, a cold roof and four reradiating walls", "[exchange]") {
+TEST_CASE("cube with a hot floor, a cold roof and four reradiating walls",
+          "[validation][exchange]") {
   // Exact cube factors from the closed forms of Howell's catalog (C-11 parallel aligned
   // squares, C-14 perpendicular squares with a common edge), checked against the printed
   // five-digit values quoted in the project's issue: opposite 0.19982, adjacent 0.20004.

@@ -110,17 +110,6 @@ CubePatches cube_patches(double size) {
   return c;
 }
 
-// Area average of f over triangle (a, b, c): the triangle split 4^depth times, f at each
-// piece's centroid.
-double triangle_average(const Vec3& a, const Vec3& b, const Vec3& c, int depth,
-                        const std::function<double(const Vec3&)>& f) {
-  if (depth == 0) return f((a + b + c) / 3.0);
-  const Vec3 ab = (a + b) * 0.5, bc = (b + c) * 0.5, ca = (c + a) * 0.5;
-  return 0.25 *
-         (triangle_average(a, ab, ca, depth - 1, f) + triangle_average(ab, b, bc, depth - 1, f) +
-          triangle_average(ca, bc, c, depth - 1, f) + triangle_average(ab, bc, ca, depth - 1, f));
-}
-
 // Exact factors F(p, q) between the patches (zero between patches of one face), each row
 // scaled to sum to one (it does to the centroid rule's error already: the cube is closed).
 Eigen::MatrixXd exact_patch_factors(const CubePatches& c) {

@@ -20,17 +20,6 @@ using namespace hearthray::testing;
 
 namespace {
 
-// Area average of f over triangle (a, b, c), by splitting it 4^depth times and taking the
-// value at each piece's centroid.
-double triangle_average(const Vec3& a, const Vec3& b, const Vec3& c, int depth,
-                        const std::function<double(const Vec3&)>& f) {
-  if (depth == 0) return f((a + b + c) / 3.0);
-  const Vec3 ab = (a + b) * 0.5, bc = (b + c) * 0.5, ca = (c + a) * 0.5;
-  return 0.25 *
-         (triangle_average(a, ab, ca, depth - 1, f) + triangle_average(ab, b, bc, depth - 1, f) +
-          triangle_average(ca, bc, c, depth - 1, f) + triangle_average(ab, bc, ca, depth - 1, f));
-}
-
 double patch_average(const Scene& scene, const PatchSet& patches, std::size_t p, int depth,
                      const std::function<double(const Vec3&)>& f) {
   double sum = 0, area = 0;

@@ -179,4 +179,13 @@ std::vector<std::array<double, 2>> gauss_legendre_01(int n) {
   return nodes;
 }
 
+double triangle_average(const Vec3& a, const Vec3& b, const Vec3& c, int depth,
+                        const std::function<double(const Vec3&)>& f) {
+  if (depth == 0) return f((a + b + c) / 3.0);
+  const Vec3 ab = (a + b) * 0.5, bc = (b + c) * 0.5, ca = (c + a) * 0.5;
+  return 0.25 *
+         (triangle_average(a, ab, ca, depth - 1, f) + triangle_average(ab, b, bc, depth - 1, f) +
+          triangle_average(ca, bc, c, depth - 1, f) + triangle_average(ab, bc, ca, depth - 1, f));
+}
+
 }  // namespace hearthray::testing

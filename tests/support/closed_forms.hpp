@@ -10,6 +10,7 @@
 #pragma once
 
 #include <array>
+#include <functional>
 #include <vector>
 
 #include "hearthray/geometry.hpp"
@@ -80,5 +81,11 @@ double inscribed_polygon_area(double r, int segments);
 // three-term recurrence; Davis & Rabinowitz, "Methods of Numerical Integration", ch. 2).
 // Used by the quadrature self-checks.
 std::vector<std::array<double, 2>> gauss_legendre_01(int n);
+
+// Area average of f over triangle (a, b, c): the triangle split into 4^depth similar pieces
+// (midpoint subdivision), f taken at each piece's centroid. Used to average an element factor
+// over a patch.
+double triangle_average(const Vec3& a, const Vec3& b, const Vec3& c, int depth,
+                        const std::function<double(const Vec3&)>& f);
 
 }  // namespace hearthray::testing
