@@ -13,16 +13,12 @@
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
+#include <sstream>
 #include <string>
 
 #include "furnace_mesh.hpp"
-#include "hearthray/exchange.hpp"
-#include "hearthray/scene_file.hpp"
-#include "hearthray/smoothing.hpp"
-#include "hearthray/thermal_model.hpp"
+#include "hearthray/pipeline.hpp"
 #include "hearthray/thermal_report.hpp"
-#include "hearthray/tracer.hpp"
-#include "hearthray/view_factors.hpp"
 #include "hearthray/vtu.hpp"
 
 using namespace hearthray;
@@ -36,12 +32,13 @@ double peak_gib() {
   return double(usage.ru_maxrss) / (1024.0 * 1024.0);  // ru_maxrss is in KiB on Linux
 }
 
+// Stage lines: the time since the previous line and the peak memory so far.
 class Stages {
  public:
   Stages() : start_(now()), last_(start_) {}
-  void done(const char* stage, const std::string& detail = "") {
+  void done(const std::string& stage, const std::string& detail = "") {
     const auto t = now();
-    std::printf("  %-22s %9.2f s   peak %6.2f GiB   %s\n", stage,
+    std::printf("  %-22s %9.2f s   peak %6.2f GiB   %s\n", stage.c_str(),
                 std::chrono::duration<double>(t - last_).count(), peak_gib(), detail.c_str());
     std::fflush(stdout);
     last_ = t;
@@ -52,6 +49,22 @@ class Stages {
   static std::chrono::steady_clock::time_point now() { return std::chrono::steady_clock::now(); }
   std::chrono::steady_clock::time_point start_, last_;
 };
+
+// The scene file of the benchmark furnace: patches of `size` (or "triangles"), `rays` per
+// patch, invented conditions.
+std::string furnace_toml(const std::string& size, std::uint64_t rays) {
+  const std::string patches = size == "triangles" ? "\"triangles\"" : "\"" + size + " m\"";
+  std::ostringstream out;
+  out << "[mesh]\nfile = \"furnace.obj\"\n"
+      << "[rays]\nper_patch = " << rays << "\nseed = 1\n"
+      << "[defaults]\nemissivity = 0.85\nadiabatic = true\npatches = " << patches << "\n"
+      << "[surface.roof]\ntemperature = \"1250 C\"\n"
+      << "[surface.hearth]\nwall = { U = \"1.2 W/m2K\", outside = \"30 C\" }\n";
+  for (const char* wall : {"wall_south", "wall_north", "wall_east", "wall_west"})
+    out << "[surface." << wall << "]\nwall = { U = \"1.5 W/m2K\", outside = \"30 C\" }\n";
+  for (int k = 0; k < 6; ++k) out << "[surface.tile_" << k << "]\npower = \"4 kW\"\n";
+  return out.str();
+}
 
 }  // namespace
 
@@ -64,20 +77,7 @@ int main(int argc, char** argv) {
       fs::temp_directory_path() / ("hearthray-bench-pipeline-" + std::to_string(::getpid()));
   fs::create_directories(dir);
   std::ofstream(dir / "furnace.obj") << bench::furnace_obj(true);
-  const std::string patches = size == "triangles" ? "\"triangles\"" : "\"" + size + " m\"";
-  std::ofstream(dir / "furnace.toml")
-      << "[mesh]\nfile = \"furnace.obj\"\n"
-      << "[rays]\nper_patch = " << rays << "\nseed = 1\n"
-      << "[defaults]\nemissivity = 0.85\nadiabatic = true\npatches = " << patches << "\n"
-      << "[surface.roof]\ntemperature = \"1250 C\"\n"
-      << "[surface.hearth]\nwall = { U = \"1.2 W/m2K\", outside = \"30 C\" }\n"
-      << "[surface.wall_south]\nwall = { U = \"1.5 W/m2K\", outside = \"30 C\" }\n"
-      << "[surface.wall_north]\nwall = { U = \"1.5 W/m2K\", outside = \"30 C\" }\n"
-      << "[surface.wall_east]\nwall = { U = \"1.5 W/m2K\", outside = \"30 C\" }\n"
-      << "[surface.wall_west]\nwall = { U = \"1.5 W/m2K\", outside = \"30 C\" }\n"
-      << "[surface.tile_0]\npower = \"4 kW\"\n[surface.tile_1]\npower = \"4 kW\"\n"
-      << "[surface.tile_2]\npower = \"4 kW\"\n[surface.tile_3]\npower = \"4 kW\"\n"
-      << "[surface.tile_4]\npower = \"4 kW\"\n[surface.tile_5]\npower = \"4 kW\"\n";
+  std::ofstream(dir / "furnace.toml") << furnace_toml(size, rays);
 
   std::printf("pipeline benchmark: furnace, patches %s, %llu rays per patch, %d threads\n",
               size.c_str(), static_cast<unsigned long long>(rays), threads);
@@ -85,32 +85,34 @@ int main(int argc, char** argv) {
   const SceneFile file = read_scene_file((dir / "furnace.toml").string());
   const Scene base = load_scene(file);
   stages.done("load mesh", std::to_string(base.triangles.size()) + " triangles");
-  Discretised d = discretise(file, base);
-  stages.done("patches", std::to_string(d.patches.size()) + " patches, " +
-                             std::to_string(d.scene.triangles.size()) + " triangles");
-  const Tracer tracer(d.scene);
-  stages.done("tracer (Embree BVH)");
-  ViewFactorOptions options;
-  options.rays_for_patch = d.rays;
+  // Each stage's line is printed when the next one starts (the pipeline's progress reports).
+  PipelineOptions options;
   options.threads = threads;
-  TraceStats stats;
-  Tallies tallies = trace_tallies(d.scene, d.patches, tracer, options, &stats);
-  stages.done("trace", std::to_string(stats.rays) + " rays, " +
-                           std::to_string(stats.rays_per_second / 1e6).substr(0, 5) + " Mrays/s, " +
-                           std::to_string(tallies.hit_patch.size()) + " non-zeros");
-  SmoothingSummary smoothing;
-  const ViewFactors factors =
-      smooth_view_factors(d.patches, tallies, SmoothingOptions{}, &smoothing);
-  stages.done("smoothing", std::to_string(smoothing.iterations) + " iterations, row error " +
-                               std::to_string(smoothing.max_row_error));
-  const ThermalModel model = build_thermal_model(file, d.scene, d.patches, std::move(factors));
-  stages.done("thermal model", std::to_string(model.nodes.size()) + " nodes, " +
-                                   std::to_string(model.faces.size()) + " faces");
-  const ExchangeResult result = solve_exchange(model.problem(), ExchangeOptions{});
-  stages.done("exchange solve", to_string(result.status) + ", " +
-                                    std::to_string(result.iterations) + " Newton iterations, " +
-                                    "residual " + std::to_string(result.final_residual_W) + " W");
-  write_vtu((dir / "patches.vtu").string(), d.scene, d.patches, solve_fields(model, result));
+  std::string stage = "patches";
+  options.progress = [&](const PipelineProgress& p) {
+    const std::string name = to_string(p.stage);
+    if (name == stage) return;
+    stages.done(stage);
+    stage = name;
+  };
+  SolvedScene solved = model_scene(file, base, options);
+  const FactorRun& run = solved.run;
+  const ThermalModel& model = solved.model;
+  stages.done(stage, std::to_string(model.nodes.size()) + " nodes, " +
+                         std::to_string(model.faces.size()) + " faces");
+  stage = to_string(PipelineStage::exchange);
+  std::printf(
+      "  (%zu patches, %zu triangles; %llu rays, %.2f Mrays/s; smoothing %d iterations, "
+      "row error %g)\n",
+      run.patches.size(), run.scene.triangles.size(),
+      static_cast<unsigned long long>(run.stats.rays), run.stats.rays_per_second / 1e6,
+      run.smoothing.iterations, run.smoothing.max_row_error);
+  solve_model_exchange(&solved, options);
+  const ExchangeResult& result = solved.result;
+  stages.done(stage, to_string(result.status) + ", " + std::to_string(result.iterations) +
+                         " Newton iterations, residual " + std::to_string(result.final_residual_W) +
+                         " W");
+  write_vtu((dir / "patches.vtu").string(), run.scene, run.patches, solve_fields(model, result));
   stages.done("write patches.vtu",
               std::to_string(fs::file_size(dir / "patches.vtu") / (1024 * 1024)) + " MiB");
   std::printf("  total %.1f s, peak memory %.2f GiB\n", stages.total(), peak_gib());

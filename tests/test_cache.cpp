@@ -23,7 +23,7 @@ TallyCacheKey key_of(const LoadedScene& l, std::uint64_t rays = 1000, std::uint6
   settings.rays.assign(l.patches.size(), rays);
   settings.seed = seed;
   settings.smoothed = smoothed;
-  return tally_cache_key(l.file, l.scene, settings);
+  return tally_cache_key(slurp(l.file.mesh_path), l.file.mesh, l.scene, settings);
 }
 
 Tallies trace(const LoadedScene& l, std::uint64_t rays) {

@@ -12,10 +12,10 @@
 
 #include <cstdint>
 #include <string>
+#include <vector>
 
 #include "hearthray/patches.hpp"
 #include "hearthray/scene.hpp"
-#include "hearthray/scene_file.hpp"
 #include "hearthray/view_factors.hpp"
 
 namespace hearthray {
@@ -42,12 +42,12 @@ struct TallyCacheSettings {
   bool smoothed = true;  // the factors are smoothed after loading
 };
 
-// Hashes the mesh file's bytes, the mesh unit, surfaces_from, the degenerate-triangle
-// threshold, the number of surfaces and the two-sided flag and patch spec of each, the rays
-// of every patch, seed, smoothing and kTallyCacheFormat. Throws InputError when the mesh file
-// cannot be read.
-TallyCacheKey tally_cache_key(const SceneFile& file, const Scene& scene,
-                              const TallyCacheSettings& settings);
+// Hashes the mesh file's bytes (`mesh_bytes`, as read from the file the scene was loaded
+// from), the mesh options it was loaded with (unit, surfaces_from, the degenerate-triangle
+// threshold), the number of surfaces and the two-sided flag and patch spec of each, the rays
+// of every patch, seed, smoothing and kTallyCacheFormat.
+TallyCacheKey tally_cache_key(const std::string& mesh_bytes, const MeshOptions& mesh,
+                              const Scene& scene, const TallyCacheSettings& settings);
 
 // $HEARTHRAY_CACHE, else $XDG_CACHE_HOME/hearthray, else $HOME/.cache/hearthray; "" when none of
 // these variables is set.

@@ -77,8 +77,8 @@ struct PointFactors {
 };
 
 struct AngleFactorOptions {
-  std::uint64_t rays = 50000;  // per point, for the body and for each plane
-  std::uint64_t seed = 1;
+  std::uint64_t rays = kDefaultComfortRays;  // per point, for the body and for each plane
+  std::uint64_t seed = kDefaultSeed;
   int threads = 0;  // 0 = all cores; results do not depend on it
   bool IsValid(std::string* error) const;
 };

@@ -23,6 +23,7 @@
 #include <string>
 #include <vector>
 
+#include "hearthray/defaults.hpp"
 #include "hearthray/geometry.hpp"
 
 namespace hearthray {
@@ -49,8 +50,9 @@ struct ComfortGridSpec {
 
 struct ComfortInput {
   double air_K = 293.15;
-  double air_speed = 0.1;                // m/s
-  std::uint64_t rays = 50000;            // per point, for the body and for each of the six planes
+  double air_speed = 0.1;  // m/s
+  std::uint64_t rays =
+      kDefaultComfortRays;               // per point, for the body and for each of the six planes
   std::vector<ComfortPointSpec> points;  // in file order
   std::optional<ComfortGridSpec> grid;
   int line = 0;

@@ -8,6 +8,7 @@
 #include "hearthray/patches.hpp"
 #include "hearthray/scene.hpp"
 #include "hearthray/view_factors.hpp"
+#include "hearthray/warning.hpp"
 
 namespace hearthray {
 
@@ -25,8 +26,8 @@ struct RayDiagnostics {
   std::uint64_t escaped = 0;
   std::uint64_t back_face_hits = 0;
   bool mesh_closed = false;
-  std::vector<std::string> warnings;  // flipped normals, leaks, open enclosure
-  std::vector<std::string> notes;     // informative (e.g. how much leaves an open scene)
+  std::vector<Warning> warnings;   // back_faces, leak, normals_out
+  std::vector<std::string> notes;  // informative (e.g. how much leaves an open scene)
 };
 
 // Needs tallies of all emitters.

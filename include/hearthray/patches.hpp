@@ -9,6 +9,7 @@
 #include <string>
 #include <vector>
 
+#include "hearthray/defaults.hpp"
 #include "hearthray/scene.hpp"
 
 namespace hearthray {
@@ -63,5 +64,22 @@ PatchSet make_patches(const Scene& scene, const std::vector<PatchSpec>& specs);
 // Rays per patch from a total budget spread in proportion to area, with a floor per patch.
 std::vector<std::uint64_t> rays_by_area(const PatchSet& patches, std::uint64_t total,
                                         std::uint64_t floor);
+
+// How many rays each patch emits.
+struct RayBudget {
+  std::uint64_t per_patch = kDefaultRaysPerPatch;  // every patch, unless `total` is given
+  std::uint64_t total = 0;  // when not 0: spread over the patches by area (rays_by_area)
+  std::uint64_t min_per_patch = kDefaultMinRaysPerPatch;  // floor per patch with `total`
+};
+
+// The scene as it is traced: surfaces cut into patches by `specs` (one per surface; triangles
+// longer than a surface's patch size split first), and the rays of every patch.
+struct PatchPlan {
+  Scene scene;  // the input scene, or its subdivision when a spec has a size
+  PatchSet patches;
+  std::vector<PatchSpec> specs;     // per surface
+  std::vector<std::uint64_t> rays;  // per patch
+};
+PatchPlan plan_patches(const Scene& scene, std::vector<PatchSpec> specs, const RayBudget& budget);
 
 }  // namespace hearthray

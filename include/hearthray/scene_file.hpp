@@ -68,26 +68,12 @@ SceneFile open_scene(const std::string& path);
 // but absent from the mesh is an error listing the names that exist.
 Scene load_scene(const SceneFile& file);
 
-// Patch spec of every surface of the scene (surface spec over defaults; whole by default).
+// Patch spec of every surface of the scene (surface spec over defaults; whole by default),
+// for plan_patches (patches.hpp).
 std::vector<PatchSpec> patch_specs(const SceneFile& file, const Scene& scene);
 
-// Rays per patch when neither the command line nor the scene file says.
-inline constexpr std::uint64_t kDefaultRaysPerPatch = 100000;
-// Floor per patch with [rays] total when min_per_patch is not given.
-inline constexpr std::uint64_t kDefaultMinRaysPerPatch = 1000;
-
-// The scene as it is traced: surfaces cut into patches as the file says (triangles longer
-// than a surface's patch size split first), and the rays of every patch: `rays_per_patch`
-// when given (the command line), else [rays] total spread by area, else [rays] per_patch,
-// else kDefaultRaysPerPatch.
-struct Discretised {
-  Scene scene;
-  PatchSet patches;
-  std::vector<PatchSpec> specs;     // per surface
-  std::vector<std::uint64_t> rays;  // per patch
-};
-Discretised discretise(const SceneFile& file, const Scene& scene,
-                       std::optional<std::uint64_t> rays_per_patch = std::nullopt);
+// The scene file's [rays] table as a budget (defaults where it says nothing).
+RayBudget ray_budget(const SceneFile& file);
 
 // Resolved thermal description of every surface (surface spec over defaults). Throws
 // InputError naming the surface when it has no emissivity or no condition.

@@ -11,6 +11,7 @@
 #include <string>
 #include <vector>
 
+#include "hearthray/defaults.hpp"
 #include "hearthray/patches.hpp"
 #include "hearthray/scene.hpp"
 #include "hearthray/tracer.hpp"
@@ -24,11 +25,11 @@ struct TraceProgress {
 };
 
 struct ViewFactorOptions {
-  std::uint64_t rays_per_patch = 100000;      // rays emitted by every patch...
-  std::vector<std::uint64_t> rays_for_patch;  // ...unless given here, one count per patch
-  std::uint64_t seed = 1;                     // results depend on seed and rays only
-  int threads = 0;                            // worker threads; 0 = all cores
-  std::uint32_t emitter_begin = 0;            // emitting patches [begin, end); end 0 = all
+  std::uint64_t rays_per_patch = kDefaultRaysPerPatch;  // rays emitted by every patch...
+  std::vector<std::uint64_t> rays_for_patch;            // ...unless given here, one count per patch
+  std::uint64_t seed = kDefaultSeed;                    // results depend on seed and rays only
+  int threads = 0;                                      // worker threads; 0 = all cores
+  std::uint32_t emitter_begin = 0;  // emitting patches [begin, end); end 0 = all
   std::uint32_t emitter_end = 0;
   TracerOptions tracer;
   // Called now and then from worker threads (serialised); must be cheap. May be empty.

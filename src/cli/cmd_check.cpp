@@ -39,15 +39,9 @@ int run_check_command(const CheckArgs& args) {
         "triangles\n",
         topology.boundary_edges, topology.nonmanifold_edges);
 
-  // Quick ray estimate, raw counts only.
-  const PatchSet patches = make_surface_patches(scene);
-  ViewFactorOptions options;
-  options.rays_per_patch = args.rays;
-  options.seed = args.seed;
-  options.threads = args.threads;
-  const Tracer tracer(scene, options.tracer);
-  const Tallies tallies = trace_tallies(scene, patches, tracer, options);
-  const RayDiagnostics d = diagnose_rays(scene, patches, tallies, topology);
+  // Quick ray estimate on whole surfaces, raw counts only.
+  const FactorRun run = quick_view_factors(scene, args.rays, args.seed, args.threads);
+  const RayDiagnostics& d = run.diagnostics;
 
   std::printf("\n%-24s %9s %12s %9s %12s %10s\n", "surface", "triangles", "area m2", "sides",
               "back hits", "escaped");
@@ -63,8 +57,9 @@ int run_check_command(const CheckArgs& args) {
       "share of the surface's own rays that hit nothing; %llu rays per side)\n",
       static_cast<unsigned long long>(args.rays));
   std::cout.flush();
-  print_warnings(scene, d, true);
-  if (d.warnings.empty() && scene.warnings.empty()) std::printf("no warnings\n");
+  print_warnings(run.warnings);
+  print_notes(run.notes);
+  if (run.warnings.empty()) std::printf("no warnings\n");
   return 0;
 }
 

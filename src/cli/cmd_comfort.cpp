@@ -20,9 +20,6 @@ namespace {
 
 namespace fs = std::filesystem;
 
-// A point whose rays leave the room more often than this is probably outside it.
-constexpr double kLostWarning = 1e-3;
-
 struct ComfortRun {
   SolvedScene solved;
   std::vector<PointComfort> points;
@@ -41,50 +38,19 @@ CacheChoice cache_choice(const ComfortArgs& args) {
 
 // Solves `input` and computes its comfort figures. Returns an exit code (0 when all went well).
 int run_comfort(const std::string& input, const ComfortArgs& args, ComfortRun* out) {
-  {
-    // The [comfort] table and its points are checked before any ray is traced.
-    const SceneFile file = open_scene(input);
-    if (!file.comfort) {
-      throw InputError(input +
-                       ": no [comfort] table: add one with air_temperature = \"20 C\" and "
-                       "[comfort.point.NAME] position = [\"1.2 m\", \"2.0 m\", \"0.6 m\"] or "
-                       "[comfort.grid] height = \"0.6 m\"");
-    }
-    comfort_points(load_scene(file), *file.comfort);
-  }
   SolvedScene& s = out->solved;
-  if (const int status = solve_scene(input, args.rays, cache_choice(args), &s)) return status;
+  if (const int status = solve_scene_printing(input, args.rays, cache_choice(args), true, &s))
+    return status;
   if (s.result.status != ExchangeStatus::converged) {
     std::cerr << "error: " << input << ": the exchange solve did not converge ("
               << to_string(s.result.status) << "): " << s.result.message
               << "; no comfort figures without surface temperatures\n";
     return kExitNotConverged;
   }
-  const ComfortInput& in = *s.file.comfort;
-  const std::vector<ComfortPoint> points = comfort_points(s.run.scene, in);
-  const Tracer tracer(s.run.scene);
-  AngleFactorOptions options;
-  options.rays = in.rays;
-  options.seed = s.run.seed;
-  options.threads = args.rays.threads;
-  const std::vector<PointFactors> factors =
-      trace_angle_factors(s.run.scene, s.run.patches, tracer, points, options);
-
-  RadiantField field;
-  for (const FaceResult& f : s.result.faces) field.radiosity.push_back(f.radiosity);
-  field.surroundings_K = s.model.surroundings_K.value_or(0.0);
-  ComfortConditions air{in.air_K, in.air_speed};
-  for (std::size_t k = 0; k < points.size(); ++k) {
-    out->points.push_back(evaluate_comfort(points[k], factors[k], field, air));
-    const double lost = out->points.back().lost_fraction;
-    if (lost > kLostWarning) {
-      std::cerr << "warning: " << input << ": " << std::to_string(100 * lost).substr(0, 5)
-                << " % of the rays from point " << points[k].name
-                << " leave the room or meet the back of a wall: is the point inside?"
-                << (s.model.surroundings_K ? "" : " (they are counted at 0 K: no [surroundings])")
-                << "\n";
-    }
-  }
+  SceneComfort comfort = scene_comfort(s, pipeline_options(args.rays));
+  end_progress_line();
+  print_warnings(comfort.warnings);
+  out->points = std::move(comfort.points);
   out->surfaces = surface_heat(s.model, s.result);
   out->heaters = summarise_heaters(s.model, out->surfaces);
   out->cautions = comfort_cautions(s.run.scene, out->surfaces);
@@ -126,7 +92,7 @@ int run_comfort_command(const ComfortArgs& args) {
   if (const int status = run_comfort(input, args, &r)) return status;
   if (!args.rays.quiet) {
     std::cout << "hearthray comfort " << input << "\n";
-    for (const std::string& line : r.solved.log) std::cout << line << "\n";
+    std::cout << cache_log_line(r.solved.run) << "\n";
   }
   print_report(std::cout, r);
   if (args.output_dir.empty()) return 0;

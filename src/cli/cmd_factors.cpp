@@ -1,3 +1,4 @@
+// `hearthray factors`: the view-factor matrix of a scene, to the terminal or to files.
 #include <iostream>
 
 #include "commands.hpp"
@@ -7,8 +8,10 @@ namespace hearthray::cli {
 int run_factors_command(const FactorsArgs& args) {
   const SceneFile file = open_scene(args.input);
   const Scene scene = load_scene(file);
-  const FactorRun run = run_view_factors(file, scene, args.rays);
-  print_warnings(scene, run.diagnostics, !args.rays.quiet);
+  const FactorRun run = run_view_factors(file, scene, pipeline_options(args.rays));
+  end_progress_line();
+  print_warnings(run.warnings);
+  if (!args.rays.quiet) print_notes(run.notes);
 
   if (args.outputs.empty()) {
     print_factors_table(std::cout, run.factors);

@@ -54,13 +54,9 @@ int run_render_command(const RenderArgs& args) {
     if (target < 0)
       throw InputError("--field " + args.field + ": no surface named '" + name +
                        "'; the model has " + known_surfaces(scene));
-    ViewFactorOptions vf;
-    vf.rays_per_patch = args.rays;
-    vf.seed = args.seed;
-    vf.threads = args.threads;
-    const Tallies tallies = trace_tallies(scene, patches, tracer, vf);
-    field = view_factor_to_surface_field(scene, patches, raw_view_factors(patches, tallies),
-                                         std::uint32_t(target));
+    // A quick raw estimate on whole surfaces (the patches of the picture).
+    const FactorRun run = quick_view_factors(scene, args.rays, args.seed, args.threads);
+    field = view_factor_to_surface_field(scene, patches, run.factors, std::uint32_t(target));
   } else {
     throw InputError("unknown --field '" + args.field +
                      "': use surface, area or view-factor-to=<surface name>");

@@ -24,7 +24,7 @@ namespace fs = std::filesystem;
 constexpr std::size_t kDenseFactorFileLimit = 200;
 
 SolveReportInfo solve_info(const SceneFile& file, const FactorRun& run, const ThermalModel& model,
-                           const std::vector<std::string>& warnings) {
+                           const std::vector<Warning>& warnings) {
   SolveReportInfo info;
   info.version = kToolVersion;
   info.scene = file.path;
@@ -34,7 +34,7 @@ SolveReportInfo solve_info(const SceneFile& file, const FactorRun& run, const Th
   info.rays_per_patch = run.rays_per_patch;
   info.seed = run.seed;
   info.rays_total = run.diagnostics.emitted;
-  if (!run.from_cache) info.trace_seconds = run.stats.seconds;
+  if (!run.from_cache()) info.trace_seconds = run.stats.seconds;
   info.cache_file = run.cache_path;
   const FactorReportInfo factor_info = report_info(file, run);
   info.smoothing = factor_info.smoothing;
@@ -43,7 +43,9 @@ SolveReportInfo solve_info(const SceneFile& file, const FactorRun& run, const Th
   const double emitted = double(std::max<std::uint64_t>(run.diagnostics.emitted, 1));
   info.escaped_fraction = double(run.diagnostics.escaped) / emitted;
   info.back_face_fraction = double(run.diagnostics.back_face_hits) / emitted;
-  info.warnings = warnings;
+  // The scene's and the rays' warnings: a cache that could not be used is no property of it.
+  for (const Warning& w : warnings)
+    if (w.kind != WarningKind::cache) info.warnings.push_back(w.text);
   info.notes = model.notes;
   return info;
 }
@@ -55,17 +57,17 @@ int run_solve_command(const SolveArgs& args) {
   cache.use = !args.no_cache;
   cache.dir = args.cache_dir;
   SolvedScene solved;
-  if (const int status = solve_scene(args.input, args.rays, cache, &solved)) return status;
+  if (const int status = solve_scene_printing(args.input, args.rays, cache, false, &solved))
+    return status;
   const SceneFile& file = solved.file;
   const FactorRun& run = solved.run;
   const ThermalModel& model = solved.model;
   const ExchangeResult& result = solved.result;
-  const std::vector<std::string>& log = solved.log;
-  const std::vector<std::string>& warnings = solved.warnings;
+  const std::vector<Warning>& warnings = solved.warnings;
 
   if (!args.rays.quiet) {
     std::cout << "hearthray solve " << file.path << "\n";
-    for (const std::string& line : log) std::cout << line << "\n";
+    std::cout << cache_log_line(run) << "\n";
     std::cout << smoothing_line(run) << "\n\n";
   }
   if (!args.rays.quiet || args.output_dir.empty()) {
@@ -97,6 +99,7 @@ int run_solve_command(const SolveArgs& args) {
       for (const PatchField& field : fields) {
         if (field.name != field_name) continue;
         RenderOptions options;
+        options.threads = args.rays.threads;
         options.title = scene_name + ": " + field.name;
         options.diverging = field_name == "net radiative flux";
         const Picture drawn = render(run.scene, run.patches, tracer, field, options);

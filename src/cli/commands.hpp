@@ -16,8 +16,8 @@ int run_factors_command(const FactorsArgs& args);
 
 struct CheckArgs {
   std::string input;
-  std::uint64_t rays = 20000;  // quick estimate
-  std::uint64_t seed = 1;
+  std::uint64_t rays = kQuickRaysPerPatch;  // quick estimate
+  std::uint64_t seed = kDefaultSeed;
   int threads = 0;
 };
 int run_check_command(const CheckArgs& args);
@@ -55,9 +55,9 @@ struct RenderArgs {
   std::vector<std::string> hide;           // surfaces cut away
   std::string title;                       // "" = file name and field
   bool no_title = false;
-  std::vector<double> range;   // low,high of the colour bar
-  std::uint64_t rays = 20000;  // per patch, for view-factor-to
-  std::uint64_t seed = 1;
+  std::vector<double> range;                // low,high of the colour bar
+  std::uint64_t rays = kQuickRaysPerPatch;  // per patch, for view-factor-to
+  std::uint64_t seed = kDefaultSeed;
   int threads = 0;
   bool quiet = false;
 };

@@ -1,28 +1,21 @@
-// Shared pieces of the command-line tool: running the view-factor stages with a progress
-// line (or taking their tallies from the cache), and printing warnings. The tool only parses
-// arguments, calls library stages and writes outputs.
+// Shared pieces of the command-line tool: pipeline options from the command line, a progress
+// line, and printing warnings and notes. The tool only parses arguments, calls the library's
+// pipeline (hearthray/pipeline.hpp) and writes outputs.
 #pragma once
 
 #include <cstdint>
 #include <filesystem>
 #include <fstream>
+#include <memory>
 #include <optional>
 #include <string>
 #include <vector>
 
-#include "hearthray/diagnostics.hpp"
-#include "hearthray/exchange.hpp"
 #include "hearthray/io.hpp"
-#include "hearthray/patches.hpp"
-#include "hearthray/scene.hpp"
-#include "hearthray/scene_file.hpp"
-#include "hearthray/smoothing.hpp"
-#include "hearthray/thermal_model.hpp"
-#include "hearthray/view_factors.hpp"
+#include "hearthray/pipeline.hpp"
 
 namespace hearthray::cli {
 
-inline constexpr std::uint64_t kDefaultSeed = 1;
 inline constexpr const char* kToolVersion = "0.1.0";
 
 struct RaySettings {
@@ -33,46 +26,35 @@ struct RaySettings {
   bool quiet = false;  // no progress line, no summary
 };
 
-struct FactorRun {
-  Scene scene;  // as traced: surfaces cut into patches where asked
-  PatchSet patches;
-  std::vector<PatchSpec> specs;     // per surface
-  std::vector<std::uint64_t> rays;  // per patch
-  Tallies tallies;
-  ViewFactors factors;
-  TraceStats stats;
-  SmoothingSummary smoothing;
-  RayDiagnostics diagnostics;
-  std::uint64_t rays_per_patch = 0;  // when every patch has the same rays, else 0
-  std::uint64_t seed = 0;
-  bool from_cache = false;  // tallies read from the cache: no ray was traced
-  std::string cache_path;   // the cache file read or written ("" when none)
-};
-
-// Seed: command line over scene file over default.
-std::uint64_t ray_seed(const SceneFile& file, const RaySettings& settings);
-
-// Traces, diagnoses and (unless raw) smooths.
-FactorRun run_view_factors(const SceneFile& file, const Scene& scene, const RaySettings& settings);
-
 struct CacheChoice {
   bool use = true;
   std::string dir;  // "" = default_cache_dir()
 };
 
-// Tallies from the cache when a valid file has the key of (mesh bytes, mesh settings, sides,
-// rays, seed), else traced and stored. Appends what happened to `log` ("view factors: from
-// cache ...") and problems with the cache (a rejected file, a folder that cannot be written)
-// to `warnings`.
-FactorRun cached_view_factors(const SceneFile& file, const Scene& scene,
-                              const RaySettings& settings, const CacheChoice& cache,
-                              std::vector<std::string>* log, std::vector<std::string>* warnings);
+// Pipeline options from the command line; the cache only when `cache` is given and used.
+// Unless quiet, a progress line on a terminal while tracing.
+PipelineOptions pipeline_options(const RaySettings& settings, const CacheChoice* cache = nullptr);
+
+// A quick raw estimate on whole surfaces (`check`, `render --field view-factor-to=`): no
+// smoothing, no cache, no progress line.
+FactorRun quick_view_factors(const Scene& scene, std::uint64_t rays, std::uint64_t seed,
+                             int threads);
+
+// Clears the progress line if one is shown (call after a pipeline call).
+void end_progress_line();
+
+// What happened to the view factors, e.g. "view factors: from cache PATH".
+std::string cache_log_line(const FactorRun& run);
 
 // The report fields for the JSON output.
 FactorReportInfo report_info(const SceneFile& file, const FactorRun& run);
 
-// Warnings and scene warnings to stderr, prefixed "warning: ".
-void print_warnings(const Scene& scene, const RayDiagnostics& diagnostics, bool notes);
+// The texts of warnings.
+std::vector<std::string> warning_texts(const std::vector<Warning>& warnings);
+
+// To stderr: "warning: ..." per warning, then (when `notes`) "note: ..." per note.
+void print_warnings(const std::vector<Warning>& warnings);
+void print_notes(const std::vector<std::string>& notes);
 
 // One line about the smoothing, e.g. for the terminal.
 std::string smoothing_line(const FactorRun& run);
@@ -82,22 +64,11 @@ std::filesystem::path make_output_dir(const std::string& dir);
 // Opens `path` for writing or throws InputError naming it.
 std::ofstream open_output(const std::filesystem::path& path);
 
-// A scene solved as `solve` does it: scene file -> view factors (cache) -> thermal model ->
-// exchange. The model points into itself (its problem into its factors): keep it in place.
-struct SolvedScene {
-  SceneFile file;
-  Scene scene;
-  FactorRun run;
-  ThermalModel model;
-  ExchangeResult result;
-  std::vector<std::string> log;       // what happened to the view factors
-  std::vector<std::string> warnings;  // scene and ray warnings (a folded leak left out)
-};
-
-// Runs the stages and prints warnings (and, unless quiet, notes) to stderr. Returns 0, or 2
-// after printing `error: ...` when the thermal model or the exchange refuses the input.
-// Throws InputError for other bad input. The result may be unconverged: check its status.
-int solve_scene(const std::string& input, const RaySettings& settings, const CacheChoice& cache,
-                SolvedScene* out);
+// A scene solved as `solve` does it (hearthray::solve_scene), printing its warnings (and,
+// unless quiet, its notes) to stderr. Returns 0, or 2 after printing `error: ...` and the ray
+// warnings when the thermal model or the exchange refuses the input. `comfort`: the [comfort]
+// table is checked before anything is traced. The result may be unconverged: check its status.
+int solve_scene_printing(const std::string& input, const RaySettings& settings,
+                         const CacheChoice& cache, bool comfort, SolvedScene* out);
 
 }  // namespace hearthray::cli

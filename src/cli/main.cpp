@@ -20,9 +20,13 @@ int main(int argc, char** argv) {
   CLI::App* cmd_factors = app.add_subcommand(
       "factors", "View factors between every pair of surfaces, with standard errors");
   cmd_factors->add_option("scene", factors.input, "Scene file (.toml) or mesh (.obj)")->required();
-  cmd_factors->add_option("--rays", factors.rays.rays, "Rays per surface (default 100000)")
+  cmd_factors
+      ->add_option(
+          "--rays", factors.rays.rays,
+          "Rays per surface (default " + std::to_string(hearthray::kDefaultRaysPerPatch) + ")")
       ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 40));
-  cmd_factors->add_option("--seed", factors.rays.seed, "Random seed (default 1)");
+  cmd_factors->add_option("--seed", factors.rays.seed,
+                          "Random seed (default " + std::to_string(hearthray::kDefaultSeed) + ")");
   cmd_factors->add_option("--threads", factors.rays.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
   cmd_factors->add_flag("--raw", factors.rays.raw, "Skip the reciprocity and closure correction");
@@ -48,9 +52,14 @@ int main(int argc, char** argv) {
   cmd_solve->add_option("-o,--output", solve.output_dir,
                         "Folder for surfaces.csv, report.json and view_factors.csv/.json");
   cmd_solve->add_flag("-q,--quiet", solve.rays.quiet, "No progress, notes or summary lines");
-  cmd_solve->add_option("--rays", solve.rays.rays, "Rays per surface (default: scene, 100000)")
+  cmd_solve
+      ->add_option("--rays", solve.rays.rays,
+                   "Rays per surface (default: scene, " +
+                       std::to_string(hearthray::kDefaultRaysPerPatch) + ")")
       ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 40));
-  cmd_solve->add_option("--seed", solve.rays.seed, "Random seed (default: scene, 1)");
+  cmd_solve->add_option(
+      "--seed", solve.rays.seed,
+      "Random seed (default: scene, " + std::to_string(hearthray::kDefaultSeed) + ")");
   cmd_solve->add_option("--threads", solve.rays.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
   CLI::Option* cache_dir =
@@ -111,9 +120,12 @@ int main(int argc, char** argv) {
       ->delimiter(',')
       ->expected(2);
   cmd_render
-      ->add_option("--rays", render.rays, "Rays per surface for view-factor-to (default 20000)")
+      ->add_option("--rays", render.rays,
+                   "Rays per surface for view-factor-to (default " +
+                       std::to_string(hearthray::kQuickRaysPerPatch) + ")")
       ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 32));
-  cmd_render->add_option("--seed", render.seed, "Random seed (default 1)");
+  cmd_render->add_option("--seed", render.seed,
+                         "Random seed (default " + std::to_string(hearthray::kDefaultSeed) + ")");
   cmd_render->add_option("--threads", render.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
   cmd_render->add_flag("-q,--quiet", render.quiet, "No summary line");

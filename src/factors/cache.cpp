@@ -192,26 +192,15 @@ std::string TallyCacheKey::hex() const {
   return hex64(fnv) + hex64(mix);
 }
 
-TallyCacheKey tally_cache_key(const SceneFile& file, const Scene& scene,
-                              const TallyCacheSettings& settings) {
+TallyCacheKey tally_cache_key(const std::string& mesh_bytes, const MeshOptions& mesh,
+                              const Scene& scene, const TallyCacheSettings& settings) {
   Hasher h;
   h.text(kTallyCacheFormat);
-  std::ifstream in(file.mesh_path, std::ios::binary);
-  if (!in) throw InputError("cannot read the mesh file '" + file.mesh_path + "' to hash it");
-  std::vector<char> buffer(1 << 20);
-  std::uint64_t mesh_bytes = 0;
-  while (in) {
-    in.read(buffer.data(), static_cast<std::streamsize>(buffer.size()));
-    const std::streamsize got = in.gcount();
-    if (got <= 0) break;
-    h.bytes(buffer.data(), static_cast<std::size_t>(got));
-    mesh_bytes += static_cast<std::uint64_t>(got);
-  }
-  if (in.bad()) throw InputError("error reading the mesh file '" + file.mesh_path + "'");
-  h.u64(mesh_bytes);
-  h.text(to_string(file.mesh.unit));
-  h.u64(file.mesh.surfaces_from == SurfacesFrom::groups ? 0 : 1);
-  h.real(file.mesh.degenerate_relative_area);
+  h.bytes(mesh_bytes.data(), mesh_bytes.size());
+  h.u64(mesh_bytes.size());
+  h.text(to_string(mesh.unit));
+  h.u64(mesh.surfaces_from == SurfacesFrom::groups ? 0 : 1);
+  h.real(mesh.degenerate_relative_area);
   h.u64(scene.surfaces.size());
   for (std::size_t i = 0; i < scene.surfaces.size(); ++i) {
     const Surface& s = scene.surfaces[i];

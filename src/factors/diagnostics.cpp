@@ -27,25 +27,29 @@ RayDiagnostics diagnose_rays(const Scene& scene, const PatchSet& patches, const 
     if (s.back_face_hits == 0) continue;
     const double share = double(s.back_face_hits) / double(s.arrivals);
     if (share >= 0.1)
-      d.warnings.push_back("surface '" + s.name + "': " + percent(share) +
-                           " of the rays reaching it arrive on its back side: its normals "
-                           "probably point the wrong way (the front is the side from which "
-                           "the vertices run counter-clockwise). Flip its faces, or declare "
-                           "it two_sided if it is a thin sheet seen from both sides.");
+      d.warnings.push_back({WarningKind::back_faces,
+                            "surface '" + s.name + "': " + percent(share) +
+                                " of the rays reaching it arrive on its back side: its normals "
+                                "probably point the wrong way (the front is the side from which "
+                                "the vertices run counter-clockwise). Flip its faces, or declare "
+                                "it two_sided if it is a thin sheet seen from both sides."});
     else
-      d.warnings.push_back("surface '" + s.name + "': " + std::to_string(s.back_face_hits) +
-                           " rays (" + percent(share) +
-                           " of its arrivals) hit its back side and were absorbed there; "
-                           "declare it two_sided if both sides should take part.");
+      d.warnings.push_back({WarningKind::back_faces,
+                            "surface '" + s.name + "': " + std::to_string(s.back_face_hits) +
+                                " rays (" + percent(share) +
+                                " of its arrivals) hit its back side and were absorbed there; "
+                                "declare it two_sided if both sides should take part."});
   }
   if (d.escaped > 0) {
     const double share = double(d.escaped) / double(d.emitted);
     if (d.mesh_closed) {
-      d.warnings.push_back("leak: the mesh is closed, yet " + std::to_string(d.escaped) +
-                           " rays (" + percent(share) +
-                           ") escaped through it; they are counted as radiation to the "
-                           "surroundings. Check for gaps, or for a surface whose normals point "
-                           "out of the enclosure.");
+      d.warnings.push_back(
+          {WarningKind::leak,
+           "leak: the mesh is closed, yet " + std::to_string(d.escaped) + " rays (" +
+               percent(share) +
+               ") escaped through it; they are counted as radiation to the "
+               "surroundings. Check for gaps, or for a surface whose normals point "
+               "out of the enclosure."});
     } else {
       std::size_t worst = 0;
       for (std::size_t s = 1; s < d.surfaces.size(); ++s) {
@@ -63,8 +67,9 @@ RayDiagnostics diagnose_rays(const Scene& scene, const PatchSet& patches, const 
   }
   for (const SurfaceRayReport& s : d.surfaces) {
     if (s.emitted > 0 && d.mesh_closed && s.escaped * 2 > s.emitted)
-      d.warnings.push_back("surface '" + s.name + "': most of its rays leave a closed mesh: " +
-                           "its normals probably point out of the enclosure.");
+      d.warnings.push_back({WarningKind::normals_out,
+                            "surface '" + s.name + "': most of its rays leave a closed mesh: " +
+                                "its normals probably point out of the enclosure."});
   }
   return d;
 }

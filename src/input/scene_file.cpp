@@ -488,23 +488,12 @@ std::vector<PatchSpec> patch_specs(const SceneFile& file, const Scene& scene) {
   return specs;
 }
 
-Discretised discretise(const SceneFile& file, const Scene& scene,
-                       std::optional<std::uint64_t> rays_per_patch) {
-  Discretised d;
-  d.specs = patch_specs(file, scene);
-  const bool split = std::any_of(d.specs.begin(), d.specs.end(), [](const PatchSpec& p) {
-    return p.mode == PatchSpec::Mode::size;
-  });
-  d.scene = split ? subdivide(scene, d.specs) : scene;
-  d.patches = make_patches(d.scene, d.specs);
-  if (!rays_per_patch && file.rays_total) {
-    d.rays = rays_by_area(d.patches, *file.rays_total,
-                          file.rays_min_per_patch.value_or(kDefaultMinRaysPerPatch));
-  } else {
-    d.rays.assign(d.patches.size(),
-                  rays_per_patch.value_or(file.rays_per_patch.value_or(kDefaultRaysPerPatch)));
-  }
-  return d;
+RayBudget ray_budget(const SceneFile& file) {
+  RayBudget budget;
+  if (file.rays_per_patch) budget.per_patch = *file.rays_per_patch;
+  if (file.rays_total) budget.total = *file.rays_total;
+  if (file.rays_min_per_patch) budget.min_per_patch = *file.rays_min_per_patch;
+  return budget;
 }
 
 std::vector<SurfaceThermal> resolve_thermal(const SceneFile& file, const Scene& scene) {

@@ -2,22 +2,23 @@
 
 #include <stdexcept>
 
-#include "hearthray/tracer.hpp"
+#include "hearthray/pipeline.hpp"
 
 namespace hearthray::testing {
 
 TracedCase trace_case(Scene scene, std::uint64_t rays, std::uint64_t seed, int threads) {
-  TracedCase c;
-  c.scene = std::move(scene);
-  c.patches = make_surface_patches(c.scene);
-  const Tracer tracer(c.scene);
-  ViewFactorOptions options;
+  PipelineOptions options;
   options.rays_per_patch = rays;
   options.seed = seed;
   options.threads = threads;
-  c.tallies = trace_tallies(c.scene, c.patches, tracer, options);
+  FactorRun run = run_view_factors(scene, options);
+  TracedCase c;
+  c.scene = std::move(scene);
+  c.patches = std::move(run.patches);
+  c.tallies = std::move(run.tallies);
   c.raw = raw_view_factors(c.patches, c.tallies);
-  c.smoothed = smooth_view_factors(c.patches, c.tallies, SmoothingOptions{}, &c.smoothing);
+  c.smoothed = std::move(run.factors);
+  c.smoothing = run.smoothing;
   return c;
 }
 

@@ -1,0 +1,164 @@
+// The pipeline: the stages run in order for one scene, as the command-line tool runs them and
+// as a library user calls them.
+//
+//   scene file (or a Scene)  -> planned patches and rays  (plan_patches)
+//                            -> view factors               (traced, or tallies from the cache;
+//                                                           diagnosed; smoothed unless raw)
+//                            -> thermal model and exchange (solve_scene)
+//                            -> comfort at points          (scene_comfort)
+//
+// One PipelineOptions in, a result struct out. Every call runs its stages in a TBB task arena
+// of `threads` threads, so `threads = 1` keeps the whole run (tracer build, tracing,
+// smoothing, exchange solve, angle factors) on one thread. Nothing here prints: progress goes
+// to a callback, problems come back as Warning values, bad input throws InputError.
+#pragma once
+
+#include <cstdint>
+#include <functional>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "hearthray/comfort.hpp"
+#include "hearthray/defaults.hpp"
+#include "hearthray/diagnostics.hpp"
+#include "hearthray/error.hpp"
+#include "hearthray/exchange.hpp"
+#include "hearthray/patches.hpp"
+#include "hearthray/scene.hpp"
+#include "hearthray/scene_file.hpp"
+#include "hearthray/smoothing.hpp"
+#include "hearthray/thermal_model.hpp"
+#include "hearthray/tracer.hpp"
+#include "hearthray/view_factors.hpp"
+#include "hearthray/warning.hpp"
+
+namespace hearthray {
+
+enum class PipelineStage {
+  build_tracer,
+  trace,
+  read_cache,
+  smooth,
+  thermal_model,
+  exchange,
+  comfort
+};
+std::string to_string(PipelineStage stage);
+
+// Reported once when a stage starts (done = 0) and, while tracing, now and then with the rays
+// done so far.
+struct PipelineProgress {
+  PipelineStage stage = PipelineStage::trace;
+  std::uint64_t done = 0;   // rays traced (trace); 0 otherwise
+  std::uint64_t total = 0;  // rays to trace (trace); 0 otherwise
+  double seconds = 0;       // since the stage started
+};
+
+struct PipelineOptions {
+  // Rays of every patch, over the scene file's [rays]; empty: the file's, else
+  // kDefaultRaysPerPatch.
+  std::optional<std::uint64_t> rays_per_patch;
+  std::optional<std::uint64_t> seed;  // over the scene file's seed; empty: its, else kDefaultSeed
+  int threads = 0;                    // threads of every stage; 0 = all cores
+  bool smooth = true;                 // enforce reciprocity and closure (false: raw factors)
+  bool use_cache = false;             // tallies from the view-factor cache, traced ones stored
+  std::string cache_dir;              // "" = default_cache_dir() (cache.hpp)
+  TracerOptions tracer;
+  SmoothingOptions smoothing;
+  ThermalModelOptions thermal_model;
+  ExchangeOptions exchange;
+  // Called on stage starts and during tracing (from worker threads, one call at a time); must
+  // be cheap. May be empty.
+  std::function<void(const PipelineProgress&)> progress;
+
+  bool IsValid(std::string* error) const;
+};
+
+// What happened with the view-factor cache.
+enum class CacheOutcome {
+  not_used,    // use_cache was false
+  no_folder,   // no cache folder known (no HEARTHRAY_CACHE, XDG_CACHE_HOME or HOME): traced
+  hit,         // tallies read from the cache: no ray was traced
+  stored,      // traced, and the tallies stored in the cache
+  not_stored,  // traced; storing failed (a warning says why)
+};
+
+// View factors of a scene, with everything needed to use and report them.
+struct FactorRun {
+  Scene scene;  // as traced: surfaces cut into patches where asked
+  PatchSet patches;
+  std::vector<PatchSpec> specs;      // per surface
+  std::vector<std::uint64_t> rays;   // per patch
+  std::uint64_t rays_per_patch = 0;  // when every patch has the same rays, else 0
+  std::uint64_t seed = 0;
+  Tallies tallies;  // the ray counts (emptied by solve_scene once the factors are made)
+  ViewFactors factors;
+  TraceStats stats;  // rays: those traced or read from the cache
+  SmoothingSummary smoothing;
+  RayDiagnostics diagnostics;
+  CacheOutcome cache = CacheOutcome::not_used;
+  std::string cache_path;          // the cache file read or written ("" when none)
+  std::vector<Warning> warnings;   // mesh, then ray diagnostics, then cache
+  std::vector<std::string> notes;  // from the ray diagnostics
+
+  bool from_cache() const { return cache == CacheOutcome::hit; }
+};
+
+// The scene file's patches and rays (rays_per_patch of the options over its [rays]).
+PatchPlan plan_scene(const SceneFile& file, const Scene& scene, const PipelineOptions& options);
+
+// Plans, traces (or reads the cache when options.use_cache), diagnoses and smooths (unless
+// !options.smooth). `scene` is load_scene(file).
+FactorRun run_view_factors(const SceneFile& file, const Scene& scene,
+                           const PipelineOptions& options);
+// The same for a scene without a scene file: one patch per surface side, never cached.
+FactorRun run_view_factors(const Scene& scene, const PipelineOptions& options);
+
+// A scene through the exchange solve. The model points into its own factors only while its
+// problem() is in use; the struct may be moved.
+struct SolvedScene {
+  SceneFile file;
+  FactorRun run;  // its tallies emptied, its factors moved into the model (sizes kept)
+  ThermalModel model;
+  ExchangeResult result;           // empty until solve_model_exchange; check its status
+  std::vector<Warning> warnings;   // as run.warnings, without a leak the model folded back
+  std::vector<std::string> notes;  // ray diagnostics, then the thermal model
+};
+
+// Bad input found once the view factors exist: the thermal model or the exchange refused the
+// scene. Carries the ray warnings that may explain it (flipped normals, a leak).
+class RefusedInput : public InputError {
+ public:
+  RefusedInput(const std::string& message, std::vector<Warning> ray_warnings)
+      : InputError(message), ray_warnings_(std::move(ray_warnings)) {}
+  const std::vector<Warning>& ray_warnings() const { return ray_warnings_; }
+
+ private:
+  std::vector<Warning> ray_warnings_;
+};
+
+// Checks the thermal input (before any ray is traced), computes the view factors (through
+// the cache when asked) and builds the thermal model. Throws InputError for bad input,
+// RefusedInput when the model refuses the scene.
+SolvedScene model_scene(SceneFile file, Scene scene, const PipelineOptions& options);
+// Solves the exchange of a modelled scene into scene->result. Throws RefusedInput when the
+// exchange refuses it; non-convergence is the result's status.
+void solve_model_exchange(SolvedScene* scene, const PipelineOptions& options);
+// open_scene + load_scene + model_scene + solve_model_exchange.
+SolvedScene solve_scene(const std::string& path, const PipelineOptions& options);
+
+// Comfort figures at the points of the scene file's [comfort] table.
+struct SceneComfort {
+  std::vector<PointComfort> points;
+  std::vector<Warning> warnings;  // comfort_point: rays of a point leaving the room
+};
+
+// Throws InputError when the scene file has no [comfort] table or a point is not usable.
+// Call before model_scene: a typo costs no tracing time.
+void check_comfort_input(const SceneFile& file, const Scene& scene);
+// Angle factors from every point, radiant temperatures from the solved radiosities. Throws
+// std::logic_error when the exchange has not converged.
+SceneComfort scene_comfort(const SolvedScene& solved, const PipelineOptions& options);
+
+}  // namespace hearthray

@@ -1,0 +1,131 @@
+// The pipeline from the view factors on: the thermal model, the exchange solve and the
+// comfort figures.
+#include <stdexcept>
+
+#include "pipeline/pipeline_run.hpp"
+
+namespace hearthray {
+
+using pipeline_detail::in_arena;
+using pipeline_detail::Reporter;
+
+namespace {
+
+// A point whose rays leave the room more often than this is probably outside it.
+constexpr double kLostWarning = 1e-3;
+
+std::string scene_name(const SceneFile& file) {
+  return file.path.empty() ? file.mesh_path : file.path;
+}
+
+// The run's factors move into the model (at 100k patches they are gigabytes); the run keeps
+// what the reports read of them.
+void build_model(const PipelineOptions& options, SolvedScene* s) {
+  ViewFactors& factors = s->run.factors;
+  const bool smoothed = factors.smoothed;
+  const double correction = factors.max_correction_sigma;
+  try {
+    s->model = build_thermal_model(s->file, s->run.scene, s->run.patches, std::move(factors),
+                                   options.thermal_model);
+  } catch (const InputError& e) {
+    throw RefusedInput(e.what(), s->run.diagnostics.warnings);
+  }
+  factors = ViewFactors{};
+  factors.smoothed = smoothed;
+  factors.max_correction_sigma = correction;
+}
+
+}  // namespace
+
+SolvedScene model_scene(SceneFile file, Scene scene, const PipelineOptions& options) {
+  pipeline_detail::check_options(options);
+  return in_arena(options.threads, [&] {
+    SolvedScene s;
+    s.file = std::move(file);
+    // Thermal input checked before any ray is traced: a typo costs no tracing time.
+    check_thermal_input(s.file, scene);
+    s.run = pipeline_detail::factor_run(s.file, scene, options);
+    s.run.tallies = Tallies{};  // smoothed (and cached): the counts are no longer needed
+    Reporter(options).start(PipelineStage::thermal_model);
+    build_model(options, &s);
+    // A leak folded back into a closed enclosure is reported by the model's note, not as
+    // radiation to the surroundings.
+    for (const Warning& w : s.run.warnings) {
+      if (!(s.model.leaks_folded && w.kind == WarningKind::leak)) s.warnings.push_back(w);
+    }
+    s.notes = s.run.notes;
+    s.notes.insert(s.notes.end(), s.model.notes.begin(), s.model.notes.end());
+    return s;
+  });
+}
+
+void solve_model_exchange(SolvedScene* s, const PipelineOptions& options) {
+  pipeline_detail::check_options(options);
+  in_arena(options.threads, [&] {
+    Reporter(options).start(PipelineStage::exchange);
+    try {
+      s->result = solve_exchange(s->model.problem(), options.exchange);
+    } catch (const InputError& e) {
+      throw RefusedInput(e.what(), s->run.diagnostics.warnings);
+    }
+  });
+}
+
+SolvedScene solve_scene(const std::string& path, const PipelineOptions& options) {
+  SceneFile file = open_scene(path);
+  Scene scene = load_scene(file);
+  SolvedScene s = model_scene(std::move(file), std::move(scene), options);
+  solve_model_exchange(&s, options);
+  return s;
+}
+
+void check_comfort_input(const SceneFile& file, const Scene& scene) {
+  if (!file.comfort) {
+    throw InputError(scene_name(file) +
+                     ": no [comfort] table: add one with air_temperature = \"20 C\" and "
+                     "[comfort.point.NAME] position = [\"1.2 m\", \"2.0 m\", \"0.6 m\"] or "
+                     "[comfort.grid] height = \"0.6 m\"");
+  }
+  comfort_points(scene, *file.comfort);
+}
+
+SceneComfort scene_comfort(const SolvedScene& s, const PipelineOptions& options) {
+  pipeline_detail::check_options(options);
+  if (!s.file.comfort) throw std::logic_error("scene_comfort: the scene has no [comfort] table");
+  if (s.result.status != ExchangeStatus::converged)
+    throw std::logic_error("scene_comfort: the exchange solve has not converged");
+  return in_arena(options.threads, [&] {
+    const Reporter reporter(options);
+    const ComfortInput& in = *s.file.comfort;
+    const std::vector<ComfortPoint> points = comfort_points(s.run.scene, in);
+    reporter.start(PipelineStage::build_tracer);
+    const Tracer tracer(s.run.scene, options.tracer);
+    reporter.start(PipelineStage::comfort);
+    AngleFactorOptions angle;
+    angle.rays = in.rays;
+    angle.seed = s.run.seed;
+    angle.threads = options.threads;
+    const std::vector<PointFactors> factors =
+        trace_angle_factors(s.run.scene, s.run.patches, tracer, points, angle);
+
+    RadiantField field;
+    for (const FaceResult& f : s.result.faces) field.radiosity.push_back(f.radiosity);
+    field.surroundings_K = s.model.surroundings_K.value_or(0.0);
+    const ComfortConditions air{in.air_K, in.air_speed};
+    SceneComfort out;
+    for (std::size_t k = 0; k < points.size(); ++k) {
+      out.points.push_back(evaluate_comfort(points[k], factors[k], field, air));
+      const double lost = out.points.back().lost_fraction;
+      if (lost <= kLostWarning) continue;
+      out.warnings.push_back(
+          {WarningKind::comfort_point,
+           scene_name(s.file) + ": " + std::to_string(100 * lost).substr(0, 5) +
+               " % of the rays from point " + points[k].name +
+               " leave the room or meet the back of a wall: is the point inside?" +
+               (s.model.surroundings_K ? "" : " (they are counted at 0 K: no [surroundings])")});
+    }
+    return out;
+  });
+}
+
+}  // namespace hearthray
