@@ -6,6 +6,7 @@
 #include <catch2/catch.hpp>
 #include <cmath>
 #include <filesystem>
+#include <sstream>
 #include <string>
 
 #include "hearthray/comfort.hpp"
@@ -255,4 +256,28 @@ TEST_CASE("comfort and compare commands run end to end", "[comfort]") {
   r = run_cli("comfort " + (dir / "none.toml").string(), dir);
   CHECK(r.status == 2);
   CHECK_THAT(r.err, Catch::Contains("no [comfort] table"));
+}
+
+TEST_CASE("comfort cautions say by their kind which are general", "[comfort]") {
+  // Unit cube: every surface comes down to 1 m or lower, within the 2 m reach of the
+  // cautions. The roof at 80 C is hot to touch; nothing is glass. (Own case, no source.)
+  std::istringstream obj(unit_cube_obj());
+  const Scene scene = load_obj(obj, "cube");
+  std::vector<SurfaceHeat> surfaces(scene.surfaces.size());
+  for (std::size_t s = 0; s < surfaces.size(); ++s) {
+    surfaces[s].name = scene.surfaces[s].name;
+    surfaces[s].temperature_max_K = kZeroCelsius + 20;
+  }
+  const int roof = scene.find_surface("roof");
+  REQUIRE(roof >= 0);
+  surfaces[std::size_t(roof)].temperature_max_K = kZeroCelsius + 80;
+  const std::vector<Caution> cautions = comfort_cautions(scene, surfaces);
+  REQUIRE(cautions.size() == 3);
+  CHECK(cautions[0].kind == CautionKind::hot_in_reach);
+  CHECK_FALSE(cautions[0].general());
+  CHECK_THAT(cautions[0].text, Catch::StartsWith("roof reaches 80 C"));
+  CHECK(cautions[1].kind == CautionKind::clearances);
+  CHECK(cautions[2].kind == CautionKind::estimates);
+  CHECK(cautions[1].general());
+  CHECK(cautions[2].text == kComfortCaution);
 }

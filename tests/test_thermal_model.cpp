@@ -3,10 +3,12 @@
 // surroundings temperature, the per-surface summary and the energy balance.
 #include <catch2/catch.hpp>
 #include <cmath>
+#include <stdexcept>
 #include <string>
 #include <vector>
 
 #include "hearthray/error.hpp"
+#include "hearthray/scene_file.hpp"
 #include "hearthray/thermal_model.hpp"
 #include "support/cli_run.hpp"
 #include "support/closed_forms.hpp"
@@ -75,7 +77,8 @@ TEST_CASE("one node per surface and one face per patch with two faces for a two-
   const LoadedScene with =
       load_scene_text(dir, unit_cube_obj(), "[surroundings]\ntemperature = \"20 C\"\n" + body);
   const ViewFactors vf = cube_factors(with.patches, true);
-  const ThermalModel m = build_thermal_model(with.file, with.scene, with.patches, vf);
+  const ThermalModel m =
+      build_thermal_model(thermal_input(with.file, with.scene), with.scene, with.patches, vf);
   REQUIRE(m.nodes.size() == 6);
   REQUIRE(m.faces.size() == 7);
   CHECK(m.nodes[0].name == "floor");
@@ -100,7 +103,8 @@ TEST_CASE("one node per surface and one face per patch with two faces for a two-
   // The same scene without a surroundings temperature: refused, naming the sheet.
   const LoadedScene without = load_scene_text(dir, unit_cube_obj(), body);
   CHECK_THROWS_WITH(
-      build_thermal_model(without.file, without.scene, without.patches, vf),
+      build_thermal_model(thermal_input(without.file, without.scene), without.scene,
+                          without.patches, vf),
       Contains("the scene is open") && Contains("'east' 50.0 %") && Contains("[surroundings]"));
 }
 
@@ -112,7 +116,8 @@ TEST_CASE("per-surface summary and energy balance", "[thermal_model]") {
                           "[surface.east]\ntwo_sided = true\npower = \"50 W\"\n"
                           "convection = { h = \"5 W/m2K\", fluid = \"30 C\" }\n");
   const ViewFactors vf = cube_factors(l.patches, true);
-  const ThermalModel m = build_thermal_model(l.file, l.scene, l.patches, vf);
+  const ThermalModel m =
+      build_thermal_model(thermal_input(l.file, l.scene), l.scene, l.patches, vf);
   const ExchangeResult r = solve_exchange(m.problem(), ExchangeOptions{});
   REQUIRE(r.status == ExchangeStatus::converged);
   const std::vector<SurfaceHeat> heat = surface_heat(m, r);
@@ -143,7 +148,8 @@ TEST_CASE("a tiny leak of a closed mesh is folded back and a large one refused",
   const ScratchDir dir("thermal-leak");
   const LoadedScene l = load_scene_text(dir, unit_cube_obj(), kHotFloorColdRoof);
   const ViewFactors exact = cube_factors(l.patches);
-  const ThermalModel reference = build_thermal_model(l.file, l.scene, l.patches, exact);
+  const ThermalModel reference =
+      build_thermal_model(thermal_input(l.file, l.scene), l.scene, l.patches, exact);
   CHECK(reference.mesh_closed);
   CHECK(reference.lost_fraction == 0);
   CHECK_FALSE(reference.leaks_folded);
@@ -153,7 +159,8 @@ TEST_CASE("a tiny leak of a closed mesh is folded back and a large one refused",
   // 3e-7 of the floor's and the roof's radiation: 1e-7 of all rays, below the 1e-6 limit.
   ViewFactors leaky = exact;
   leak(&leaky, 3e-7);
-  const ThermalModel m = build_thermal_model(l.file, l.scene, l.patches, leaky);
+  const ThermalModel m =
+      build_thermal_model(thermal_input(l.file, l.scene), l.scene, l.patches, leaky);
   CHECK(m.leaks_folded);
   CHECK(m.lost_fraction == Approx(1e-7));
   REQUIRE(m.notes.size() == 1);
@@ -175,19 +182,21 @@ TEST_CASE("a tiny leak of a closed mesh is folded back and a large one refused",
   // With folding turned off the same leak needs a surroundings temperature.
   ThermalModelOptions strict;
   strict.leak_limit = 0;
-  CHECK_THROWS_WITH(build_thermal_model(l.file, l.scene, l.patches, leaky, strict),
-                    Contains("is closed, yet") && Contains("'floor'"));
+  CHECK_THROWS_WITH(
+      build_thermal_model(thermal_input(l.file, l.scene), l.scene, l.patches, leaky, strict),
+      Contains("is closed, yet") && Contains("'floor'"));
 
   // 1e-3 of the floor's and roof's radiation is no crack: refused without surroundings...
   ViewFactors gap = exact;
   leak(&gap, 1e-3);
-  CHECK_THROWS_WITH(build_thermal_model(l.file, l.scene, l.patches, gap),
+  CHECK_THROWS_WITH(build_thermal_model(thermal_input(l.file, l.scene), l.scene, l.patches, gap),
                     Contains("is closed, yet") && Contains("gaps") && Contains("normals"));
   // ...and sent to the surroundings when they have a temperature.
   const LoadedScene open =
       load_scene_text(dir, unit_cube_obj(),
                       std::string("[surroundings]\ntemperature = \"300 K\"\n") + kHotFloorColdRoof);
-  const ThermalModel g = build_thermal_model(open.file, open.scene, open.patches, gap);
+  const ThermalModel g =
+      build_thermal_model(thermal_input(open.file, open.scene), open.scene, open.patches, gap);
   CHECK_FALSE(g.leaks_folded);
   CHECK(g.factors.to_surroundings[0] == Approx(1e-3));
   CHECK(g.surroundings_K == 300);
@@ -201,28 +210,34 @@ TEST_CASE("the thermal model refuses what it cannot build", "[thermal_model]") {
   // A bare mesh: no thermal input at all.
   const SceneFile bare = scene_file_for_mesh((dir / "mesh.obj").string());
   const Scene bare_scene = load_scene(bare);
-  CHECK_THROWS_WITH(build_thermal_model(bare, bare_scene, l.patches, vf),
+  CHECK_THROWS_WITH(thermal_input(bare, bare_scene),
                     Contains("is a mesh") && Contains("emissivity"));
-  CHECK_THROWS_WITH(check_thermal_input(bare, bare_scene), Contains("is a mesh"));
+
+  // Thermal input of another scene: a programming mistake, not bad input.
+  ThermalInput short_input = thermal_input(l.file, l.scene);
+  short_input.surfaces.pop_back();
+  CHECK_THROWS_AS(build_thermal_model(short_input, l.scene, l.patches, vf), std::invalid_argument);
 
   // View factors of another scene.
   ViewFactors small = vf;
   small.names.pop_back();
   small.areas.pop_back();
-  CHECK_THROWS_AS(build_thermal_model(l.file, l.scene, l.patches, small), InputError);
+  CHECK_THROWS_AS(build_thermal_model(thermal_input(l.file, l.scene), l.scene, l.patches, small),
+                  InputError);
 
   ThermalModelOptions bad;
   bad.leak_limit = -1;
   std::string error;
   CHECK_FALSE(bad.IsValid(&error));
   CHECK_THAT(error, Contains("leak_limit"));
-  CHECK_THROWS_AS(build_thermal_model(l.file, l.scene, l.patches, vf, bad), InputError);
+  CHECK_THROWS_AS(build_thermal_model(thermal_input(l.file, l.scene), l.scene, l.patches, vf, bad),
+                  InputError);
 
   // A surface with no condition (no default either).
   const LoadedScene none =
       load_scene_text(dir, unit_cube_obj(),
                       "[defaults]\nemissivity = 0.5\n[surface.floor]\ntemperature = "
                       "\"900 K\"\n");
-  CHECK_THROWS_WITH(check_thermal_input(none.file, none.scene),
+  CHECK_THROWS_WITH(thermal_input(none.file, none.scene),
                     Contains("surface 'roof' has no condition"));
 }

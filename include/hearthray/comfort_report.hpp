@@ -42,10 +42,24 @@ void print_comfort_table(std::ostream& out, const std::vector<PointComfort>& poi
 // errors, lost fraction, verdict.
 void write_comfort_csv(std::ostream& out, const std::vector<PointComfort>& points);
 
+// A caution for the comfort report. The first two kinds are about one surface of one scene;
+// the last two are general and the same for every scene.
+enum class CautionKind {
+  hot_in_reach,     // a hot surface comes down within reach
+  glass_near_heat,  // glass close to a hot surface
+  clearances,       // keep the maker's clearances (general)
+  estimates,        // kComfortCaution: the figures are estimates (general)
+};
+struct Caution {
+  CautionKind kind = CautionKind::estimates;
+  std::string text;
+
+  bool general() const { return kind == CautionKind::clearances || kind == CautionKind::estimates; }
+};
+
 // Plain warnings: hot surfaces within reach, glass close to hot surfaces, and the general
-// caution (clearances from anything that burns; local codes; the maker's instructions).
-std::vector<std::string> comfort_cautions(const Scene& scene,
-                                          const std::vector<SurfaceHeat>& surfaces);
+// cautions (clearances from anything that burns; local codes; the maker's instructions).
+std::vector<Caution> comfort_cautions(const Scene& scene, const std::vector<SurfaceHeat>& surfaces);
 
 // Heated surfaces: those given a positive power or heat flux.
 struct HeaterSummary {
@@ -67,6 +81,6 @@ struct MapOptions {
 };
 // Throws InputError when no point belongs to a grid.
 Picture comfort_map(const Scene& scene, const std::vector<PointComfort>& points, MapQuantity q,
-                  const MapOptions& options);
+                    const MapOptions& options);
 
 }  // namespace hearthray

@@ -19,36 +19,10 @@
 #include <string>
 #include <vector>
 
+#include "hearthray/conditions.hpp"
 #include "hearthray/view_factors.hpp"
 
 namespace hearthray {
-
-enum class ConditionKind {
-  temperature,  // value: K
-  heat_flux,    // value: W/m^2 put in, per m^2 of all faces of the node (both sides of a
-                //   two-sided sheet), so the power put in is value * sum of its faces' areas
-  power,        // value: W put in
-  adiabatic     // no heat put in (a reradiating surface when it has no convection/wall loss)
-};
-
-struct Convection {
-  double h = 0;        // W/(m^2 K)
-  double fluid_K = 0;  // K
-};
-
-// Conduction through the wall to an outside temperature, as an overall coefficient
-// (U = k / thickness for a plain wall).
-struct WallLoss {
-  double U = 0;          // W/(m^2 K)
-  double outside_K = 0;  // K
-};
-
-struct NodeCondition {
-  ConditionKind kind = ConditionKind::adiabatic;
-  double value = 0;
-  std::optional<Convection> convection;
-  std::optional<WallLoss> wall_loss;
-};
 
 struct ExchangeNode {
   std::string name;

@@ -23,7 +23,7 @@
 #include <vector>
 
 #include "hearthray/comfort_input.hpp"
-#include "hearthray/exchange.hpp"
+#include "hearthray/conditions.hpp"
 #include "hearthray/patches.hpp"
 #include "hearthray/scene.hpp"
 
@@ -77,11 +77,12 @@ RayBudget ray_budget(const SceneFile& file);
 
 // Resolved thermal description of every surface (surface spec over defaults). Throws
 // InputError naming the surface when it has no emissivity or no condition.
-struct SurfaceThermal {
-  double emissivity = 1;
-  NodeCondition condition;
-};
 std::vector<SurfaceThermal> resolve_thermal(const SceneFile& file, const Scene& scene);
+
+// The thermal input of a scene, checked before any ray is traced: throws InputError when the
+// file has no thermal input at all (a bare mesh) or a surface lacks an emissivity or a
+// condition (resolve_thermal).
+ThermalInput thermal_input(const SceneFile& file, const Scene& scene);
 
 // Quantities with units, as written in scene files. Each throws InputError naming `what` and
 // the units it accepts when the text has no unit or the wrong one.
@@ -91,5 +92,19 @@ double parse_heat_flux(const std::string& text, const std::string& what);    // 
 double parse_heat_transfer_coefficient(const std::string& text, const std::string& what);
 double parse_length(const std::string& text, const std::string& what);        // mm..ft -> m
 double parse_conductivity(const std::string& text, const std::string& what);  // W/mK
+
+// The same by kind, for readers that handle several quantities alike.
+enum class Quantity {
+  temperature,
+  power,
+  heat_flux,
+  heat_transfer_coefficient,
+  length,
+  conductivity
+};
+double parse_quantity(Quantity quantity, const std::string& text, const std::string& what);
+// What to write instead of `text` when it is a number without a unit:
+// 'write WHAT = "NUMBER UNIT" (units: ...)' (the quantity's example number when `text` has none).
+std::string unit_advice(Quantity quantity, const std::string& text, const std::string& what);
 
 }  // namespace hearthray

@@ -1,12 +1,12 @@
 // Thermal model: a scene's exchange problem. One node per piece of a surface (a whole surface
 // is one piece; a surface cut into patches has one piece per patch), carrying its temperature
 // and condition; one face per view-factor patch (a two-sided surface is a thin sheet: the front
-// and back faces of a piece sit on one node). Emissivity and condition come from the scene file
-// (resolve_thermal), the surroundings temperature from [surroundings]. A surface's condition
-// applies to each of its pieces: a temperature or heat flux as given, adiabatic as given, and
-// a power spread as a uniform flux, each piece taking power x (piece area / surface area).
-// After the solve, the per-surface summary (sums over pieces; temperatures area-weighted, with
-// their range) and the energy balance that every report shows.
+// and back faces of a piece sit on one node). Emissivity, condition and the surroundings
+// temperature come in a ThermalInput (conditions.hpp; from a scene file: thermal_input). A
+// surface's condition applies to each of its pieces: a temperature or heat flux as given, adiabatic
+// as given, and a power spread as a uniform flux, each piece taking power x (piece area / surface
+// area). After the solve, the per-surface summary (sums over pieces; temperatures area-weighted,
+// with their range) and the energy balance that every report shows.
 //
 // Leaks. Rays that escape a closed mesh went through a crack between triangles, not through an
 // opening. When they are fewer than ThermalModelOptions::leak_limit of all rays, their share
@@ -23,10 +23,10 @@
 #include <string>
 #include <vector>
 
+#include "hearthray/conditions.hpp"
 #include "hearthray/exchange.hpp"
 #include "hearthray/patches.hpp"
 #include "hearthray/scene.hpp"
-#include "hearthray/scene_file.hpp"
 #include "hearthray/view_factors.hpp"
 
 namespace hearthray {
@@ -61,17 +61,14 @@ struct ThermalModel {
   ExchangeProblem problem() const;
 };
 
-// Checks the thermal part of a scene file against its scene, before any ray is traced: throws
-// InputError when the file has no thermal input at all (a bare mesh) or a surface lacks an
-// emissivity or a condition (resolve_thermal). Returns the resolved surfaces.
-std::vector<SurfaceThermal> check_thermal_input(const SceneFile& file, const Scene& scene);
-
-// Throws InputError for what check_thermal_input refuses, or when radiation leaves the scene
-// (escapes, or lands on back faces of one-sided surfaces) and no [surroundings] temperature is
-// given: the message names the surfaces and how much of their radiation leaves.
+// Throws InputError when radiation leaves the scene (escapes, or lands on back faces of
+// one-sided surfaces) and no surroundings temperature is given: the message names the
+// surfaces and how much of their radiation leaves. `input` has one entry per surface of
+// `scene`, the factors one row per patch (std::invalid_argument otherwise).
 // The factors are taken by value: move them in to avoid a copy of a large matrix.
-ThermalModel build_thermal_model(const SceneFile& file, const Scene& scene, const PatchSet& patches,
-                                 ViewFactors factors, const ThermalModelOptions& options = {});
+ThermalModel build_thermal_model(const ThermalInput& input, const Scene& scene,
+                                 const PatchSet& patches, ViewFactors factors,
+                                 const ThermalModelOptions& options = {});
 
 // One surface after the solve: powers are summed over its faces; W/m^2 values are averaged
 // over its faces, weighted by area (for a one-sided surface: its face's values).

@@ -25,7 +25,7 @@ struct ComfortRun {
   std::vector<PointComfort> points;
   std::vector<SurfaceHeat> surfaces;
   HeaterSummary heaters;
-  std::vector<std::string> cautions;
+  std::vector<Caution> cautions;
   std::vector<std::string> heater_names;
 };
 
@@ -81,7 +81,7 @@ void print_report(std::ostream& out, const ComfortRun& r) {
   out << "\n";
   print_comfort_table(out, r.points, summarise_comfort(r.points));
   out << "\ncautions:\n";
-  for (const std::string& c : r.cautions) out << "  - " << c << "\n";
+  for (const Caution& c : r.cautions) out << "  - " << c.text << "\n";
 }
 
 }  // namespace
@@ -189,17 +189,18 @@ int run_compare_command(const ComfortArgs& args) {
                "warm wall 23 K (ISO 7730 Table A.4, ASHRAE 55; recalled from memory).\n"
                "\ncautions:\n";
   // Cautions about one scene first, named; then the general ones, once.
-  std::vector<std::string> general;
+  std::vector<Caution> general;
   for (std::size_t k = 0; k < runs.size(); ++k) {
-    for (const std::string& c : runs[k].cautions) {
-      if (c == kComfortCaution || c.rfind("Keep the clearances", 0) == 0) {
-        if (std::find(general.begin(), general.end(), c) == general.end()) general.push_back(c);
-      } else {
-        std::cout << "  - " << head[k + 1] << ": " << c << "\n";
+    for (const Caution& c : runs[k].cautions) {
+      if (!c.general()) {
+        std::cout << "  - " << head[k + 1] << ": " << c.text << "\n";
+      } else if (std::none_of(general.begin(), general.end(),
+                              [&](const Caution& g) { return g.kind == c.kind; })) {
+        general.push_back(c);
       }
     }
   }
-  for (const std::string& c : general) std::cout << "  - " << c << "\n";
+  for (const Caution& c : general) std::cout << "  - " << c.text << "\n";
   return 0;
 }
 

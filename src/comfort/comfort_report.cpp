@@ -175,9 +175,9 @@ void write_comfort_csv(std::ostream& out, const std::vector<PointComfort>& point
   }
 }
 
-std::vector<std::string> comfort_cautions(const Scene& scene,
-                                          const std::vector<SurfaceHeat>& surfaces) {
-  std::vector<std::string> out;
+std::vector<Caution> comfort_cautions(const Scene& scene,
+                                      const std::vector<SurfaceHeat>& surfaces) {
+  std::vector<Caution> out;
   const double floor = scene.bounds.lo.z;
   for (std::size_t s = 0; s < surfaces.size() && s < scene.surfaces.size(); ++s) {
     const SurfaceHeat& hot = surfaces[s];
@@ -186,10 +186,11 @@ std::vector<std::string> comfort_cautions(const Scene& scene,
     const Box3 box = surface_box(scene, std::uint32_t(s));
     const double low = box.lo.z - floor;
     if (t_C > kTouchLimit_C && low < kReachHeight_m) {
-      out.push_back(hot.name + " reaches " + rounded("%.0f C", t_C) + " and comes down to " +
-                    rounded("%.1f m", low) +
-                    " above the floor, within reach: surfaces above about 43 C can burn on "
-                    "longer contact; guard it or place it out of reach, as the maker says.");
+      out.push_back({CautionKind::hot_in_reach,
+                     hot.name + " reaches " + rounded("%.0f C", t_C) + " and comes down to " +
+                         rounded("%.1f m", low) +
+                         " above the floor, within reach: surfaces above about 43 C can burn on "
+                         "longer contact; guard it or place it out of reach, as the maker says."});
     }
     for (std::size_t g = 0; g < scene.surfaces.size(); ++g) {
       const std::string n = lower(scene.surfaces[g].name);
@@ -198,17 +199,19 @@ std::vector<std::string> comfort_cautions(const Scene& scene,
         continue;
       const double gap = box_gap(box, surface_box(scene, std::uint32_t(g)));
       if (gap <= kNearGlass_m) {
-        out.push_back(scene.surfaces[g].name + " (glass) is " + rounded("%.2f m", gap) + " from " +
-                      hot.name + " at " + rounded("%.0f C", t_C) +
-                      ": uneven heating can crack glass; keep the clearance the panel maker "
-                      "gives.");
+        out.push_back({CautionKind::glass_near_heat,
+                       scene.surfaces[g].name + " (glass) is " + rounded("%.2f m", gap) + " from " +
+                           hot.name + " at " + rounded("%.0f C", t_C) +
+                           ": uneven heating can crack glass; keep the clearance the panel maker "
+                           "gives."});
       }
     }
   }
   out.push_back(
-      "Keep the clearances the heater maker gives from curtains, furniture, glass and anything "
-      "that burns; follow local codes and the maker's instructions.");
-  out.push_back(kComfortCaution);
+      {CautionKind::clearances,
+       "Keep the clearances the heater maker gives from curtains, furniture, glass and anything "
+       "that burns; follow local codes and the maker's instructions."});
+  out.push_back({CautionKind::estimates, kComfortCaution});
   return out;
 }
 

@@ -5,16 +5,13 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <stdexcept>
 
 #include "core/text.hpp"
 #include "hearthray/error.hpp"
 
 namespace hearthray {
 namespace {
-
-std::string scene_name(const SceneFile& file) {
-  return file.path.empty() ? file.mesh_path : file.path;
-}
 
 // Share of each face's radiation that leaves the enclosure: escaped, or absorbed on the back
 // of a one-sided surface (the exchange sends both to the surroundings).
@@ -81,36 +78,26 @@ ExchangeProblem ThermalModel::problem() const {
   return p;
 }
 
-std::vector<SurfaceThermal> check_thermal_input(const SceneFile& file, const Scene& scene) {
-  if (!file.has_thermal_input()) {
-    throw InputError(
-        file.path.empty()
-            ? "'" + file.mesh_path +
-                  "' is a mesh: a solve needs a scene file (.toml) that gives every surface an "
-                  "emissivity and a condition (temperature, heat_flux, power or adiabatic = "
-                  "true), per surface in [surface.NAME] or for all in [defaults]"
-            : file.path +
-                  ": no surface has an emissivity or a condition: give them per surface in "
-                  "[surface.NAME] (emissivity = 0.85, temperature = \"1250 C\") or for all in "
-                  "[defaults]");
-  }
-  return resolve_thermal(file, scene);
-}
-
-ThermalModel build_thermal_model(const SceneFile& file, const Scene& scene, const PatchSet& patches,
-                                 ViewFactors factors, const ThermalModelOptions& options) {
+ThermalModel build_thermal_model(const ThermalInput& input, const Scene& scene,
+                                 const PatchSet& patches, ViewFactors factors,
+                                 const ThermalModelOptions& options) {
   std::string error;
   if (!options.IsValid(&error)) throw InputError("thermal model options: " + error);
-  const std::vector<SurfaceThermal> thermal = check_thermal_input(file, scene);
+  if (input.surfaces.size() != scene.surfaces.size()) {
+    throw std::invalid_argument("build_thermal_model: " + std::to_string(input.surfaces.size()) +
+                                " thermal surfaces for a scene of " +
+                                std::to_string(scene.surfaces.size()));
+  }
   if (factors.size() != patches.size() || factors.areas.size() != patches.size()) {
     throw InputError("the view factors have " + std::to_string(factors.size()) +
                      " rows but the scene has " + std::to_string(patches.size()) +
                      " patches: compute them for this scene");
   }
+  const std::vector<SurfaceThermal>& thermal = input.surfaces;
 
   ThermalModel m;
   m.factors = std::move(factors);
-  m.surroundings_K = file.surroundings_K;
+  m.surroundings_K = input.surroundings_K;
   for (std::size_t s = 0; s < scene.surfaces.size(); ++s) {
     m.surface_names.push_back(scene.surfaces[s].name);
     m.surface_conditions.push_back(thermal[s].condition);
@@ -176,10 +163,10 @@ ThermalModel build_thermal_model(const SceneFile& file, const Scene& scene, cons
   std::size_t leaving = 0;
   const std::string list = leaving_list(m, &leaving);
   if (leaving > 0 && !m.surroundings_K) {
-    const std::string fix = "add\n  [surroundings]\n  temperature = \"20 C\"\nto " +
-                            scene_name(file) + " (the temperature of what the openings see)";
+    const std::string fix = "add\n  [surroundings]\n  temperature = \"20 C\"\nto " + input.source +
+                            " (the temperature of what the openings see)";
     if (m.mesh_closed) {
-      throw InputError("the mesh '" + file.mesh_path + "' is closed, yet " +
+      throw InputError("the mesh '" + scene.source + "' is closed, yet " +
                        percent(m.lost_fraction) +
                        " of all rays left it or were absorbed on back faces (by surface: " + list +
                        "): too many for leaks through shared edges. Look for gaps or for "

@@ -114,28 +114,19 @@ class Reader {
                             ": write " + key + " = " + example);
   }
 
-  // A quantity with its unit: a string parsed by `parse`, or an error that says what to write.
-  template <typename Parse>
+  // A quantity with its unit: a string, or an error that says what to write.
   double quantity(const toml::node& node, const std::string& key, const std::string& table_name,
-                  Parse parse, const char* unit_example) const {
+                  Quantity kind, const char* unit_example) const {
     if (node.is_number()) {
-      // Reuse the parser's own "has no unit" message: it says which units to write.
-      try {
-        parse(number_text(node), key);
-      } catch (const InputError& e) {
-        const std::string message = e.what();
-        const std::size_t write = message.find("write ");
-        fail(node.source(),
-             "in " + table_name + ", " + key + " = " + number_text(node) +
-                 " has no unit: " + (write == std::string::npos ? message : message.substr(write)));
-      }
+      fail(node.source(), "in " + table_name + ", " + key + " = " + number_text(node) +
+                              " has no unit: " + unit_advice(kind, number_text(node), key));
     }
     if (!node.is_string()) {
       fail(node.source(), key + " in " + table_name + " must be a string with a unit, like " + key +
                               " = \"" + unit_example + "\", not " + type_name(node));
     }
     try {
-      return parse(node.as_string()->get(), key);
+      return parse_quantity(kind, node.as_string()->get(), key);
     } catch (const InputError& e) {
       fail(node.source(), "in " + table_name + ", " + e.what());
     }
@@ -165,8 +156,8 @@ class Reader {
                               "fluid = \"20 C\" }");
     }
     Convection c;
-    c.h = quantity(*h, "h", name, parse_heat_transfer_coefficient, "8 W/m2K");
-    c.fluid_K = quantity(*fluid, "fluid", name, parse_temperature, "20 C");
+    c.h = quantity(*h, "h", name, Quantity::heat_transfer_coefficient, "8 W/m2K");
+    c.fluid_K = quantity(*fluid, "fluid", name, Quantity::temperature, "20 C");
     return c;
   }
 
@@ -187,14 +178,14 @@ class Reader {
       fail(node.source(), name + " must be " + forms);
     }
     WallLoss w;
-    w.outside_K = quantity(*outside, "outside", name, parse_temperature, "20 C");
+    w.outside_K = quantity(*outside, "outside", name, Quantity::temperature, "20 C");
     if (by_u) {
-      w.U = quantity(*U, "U", name, parse_heat_transfer_coefficient, "0.9 W/m2K");
+      w.U = quantity(*U, "U", name, Quantity::heat_transfer_coefficient, "0.9 W/m2K");
     } else {
-      const double d = quantity(*thickness, "thickness", name, parse_length, "230 mm");
+      const double d = quantity(*thickness, "thickness", name, Quantity::length, "230 mm");
       if (!(d > 0)) fail(thickness->source(), "thickness in " + name + " must be positive");
       const double k =
-          quantity(*conductivity, "conductivity", name, parse_conductivity, "0.3 W/mK");
+          quantity(*conductivity, "conductivity", name, Quantity::conductivity, "0.3 W/mK");
       w.U = k / d;  // plain wall: U = k / thickness
     }
     return w;
@@ -262,13 +253,13 @@ class Reader {
         spec.emissivity = *e;
       } else if (key == "temperature") {
         set_condition(*node, key, ConditionKind::temperature,
-                      quantity(*node, key, table_name, parse_temperature, "1250 C"));
+                      quantity(*node, key, table_name, Quantity::temperature, "1250 C"));
       } else if (key == "heat_flux") {
         set_condition(*node, key, ConditionKind::heat_flux,
-                      quantity(*node, key, table_name, parse_heat_flux, "350 W/m2"));
+                      quantity(*node, key, table_name, Quantity::heat_flux, "350 W/m2"));
       } else if (key == "power") {
         set_condition(*node, key, ConditionKind::power,
-                      quantity(*node, key, table_name, parse_power, "1200 W"));
+                      quantity(*node, key, table_name, Quantity::power, "1200 W"));
       } else if (key == "adiabatic") {
         const auto* b = node->as_boolean();
         if (!b || !b->get()) {
@@ -375,7 +366,7 @@ class Reader {
       check_keys(sur, kSurroundingsKeys, "[surroundings]");
       if (const toml::node* t = sur.get("temperature")) {
         file.surroundings_K =
-            quantity(*t, "temperature", "[surroundings]", parse_temperature, "20 C");
+            quantity(*t, "temperature", "[surroundings]", Quantity::temperature, "20 C");
       }
     }
 
@@ -540,6 +531,26 @@ std::vector<SurfaceThermal> resolve_thermal(const SceneFile& file, const Scene& 
     out.push_back(std::move(thermal));
   }
   return out;
+}
+
+ThermalInput thermal_input(const SceneFile& file, const Scene& scene) {
+  if (!file.has_thermal_input()) {
+    throw InputError(
+        file.path.empty()
+            ? "'" + file.mesh_path +
+                  "' is a mesh: a solve needs a scene file (.toml) that gives every surface an "
+                  "emissivity and a condition (temperature, heat_flux, power or adiabatic = "
+                  "true), per surface in [surface.NAME] or for all in [defaults]"
+            : file.path +
+                  ": no surface has an emissivity or a condition: give them per surface in "
+                  "[surface.NAME] (emissivity = 0.85, temperature = \"1250 C\") or for all in "
+                  "[defaults]");
+  }
+  ThermalInput input;
+  input.surfaces = resolve_thermal(file, scene);
+  input.surroundings_K = file.surroundings_K;
+  input.source = file.path.empty() ? file.mesh_path : file.path;
+  return input;
 }
 
 }  // namespace hearthray

@@ -80,20 +80,26 @@ std::string trim(const std::string& s) {
   return s.substr(first, s.find_last_not_of(" \t") - first + 1);
 }
 
-double parse_quantity(const std::string& raw, const std::string& what, const QuantityDef& q) {
+// 'write WHAT = "NUMBER UNIT" (units: ...)', with the number of `text` (or the example when
+// it has none).
+std::string advice(const QuantityDef& q, const std::string& text, const std::string& what) {
+  const std::string trimmed = trim(text);
+  const std::size_t n = number_prefix(trimmed);
+  const std::string number = n > 0 ? trimmed.substr(0, n) : std::string(q.example);
+  return "write " + what + " = \"" + number + " " + q.example_unit + "\" (units: " + q.listed + ")";
+}
+
+double parse_with(const QuantityDef& q, const std::string& raw, const std::string& what) {
   const std::string text = trim(raw);
   const std::size_t n = number_prefix(text);
-  const std::string units_hint = std::string(" (units: ") + q.listed + ")";
   if (n == 0) {
-    throw InputError(what + " \"" + raw + "\" does not start with a number: write " + what +
-                     " = \"" + q.example + " " + q.example_unit + "\"" + units_hint);
+    throw InputError(what + " \"" + raw +
+                     "\" does not start with a number: " + advice(q, raw, what));
   }
   const std::string number = text.substr(0, n);
   const std::string unit = trim(text.substr(n));
-  if (unit.empty()) {
-    throw InputError(what + " \"" + raw + "\" has no unit: write " + what + " = \"" + number + " " +
-                     q.example_unit + "\"" + units_hint);
-  }
+  if (unit.empty())
+    throw InputError(what + " \"" + raw + "\" has no unit: " + advice(q, raw, what));
   const double value = std::strtod(number.c_str(), nullptr);
   if (!std::isfinite(value)) {
     throw InputError(what + " \"" + raw + "\" is not a finite number");
@@ -107,20 +113,77 @@ double parse_quantity(const std::string& raw, const std::string& what, const Qua
                    " " + q.example_unit + "\"");
 }
 
-const QuantityDef& temperature_def() {
-  static const QuantityDef def{
+const QuantityDef& definition(Quantity quantity) {
+  static const QuantityDef temperature{
       "temperature",
       "1250",
       "C",
       "C, K, F",
       {{"C", 1.0, 0.0, kZeroCelsius}, {"K", 1.0}, {"F", 5.0 / 9.0, -32.0, kZeroCelsius}}};
-  return def;
+  static const QuantityDef power{
+      "power", "1200", "W", "W, kW, MW", {{"W", 1.0}, {"kW", 1e3}, {"MW", 1e6}}};
+  static const QuantityDef heat_flux{
+      "heat flux", "350", "W/m2", "W/m2, kW/m2", {{"W/m2", 1.0}, {"kW/m2", 1e3}}};
+  static const QuantityDef heat_transfer_coefficient{
+      "heat transfer coefficient",
+      "6",
+      "W/m2K",
+      "W/m2K, also written W/(m2 K) or W/m2/K",
+      {{"W/m2K", 1.0}, {"W/m2/K", 1.0}, {"W/Km2", 1.0}}};
+  static const QuantityDef length{
+      "length",
+      "230",
+      "mm",
+      "mm, cm, m, in, ft",
+      {{"mm", 1e-3}, {"cm", 1e-2}, {"m", 1.0}, {"in", 0.0254}, {"ft", 0.3048}}};
+  static const QuantityDef conductivity{"thermal conductivity",
+                                        "0.3",
+                                        "W/mK",
+                                        "W/mK, also written W/(m K) or W/m/K",
+                                        {{"W/mK", 1.0}, {"W/m/K", 1.0}, {"W/Km", 1.0}}};
+  switch (quantity) {
+    case Quantity::temperature:
+      return temperature;
+    case Quantity::power:
+      return power;
+    case Quantity::heat_flux:
+      return heat_flux;
+    case Quantity::heat_transfer_coefficient:
+      return heat_transfer_coefficient;
+    case Quantity::length:
+      return length;
+    case Quantity::conductivity:
+      return conductivity;
+  }
+  return temperature;
 }
 
 }  // namespace
 
+std::string unit_advice(Quantity quantity, const std::string& text, const std::string& what) {
+  return advice(definition(quantity), text, what);
+}
+
+double parse_quantity(Quantity quantity, const std::string& text, const std::string& what) {
+  switch (quantity) {
+    case Quantity::temperature:
+      return parse_temperature(text, what);
+    case Quantity::power:
+      return parse_power(text, what);
+    case Quantity::heat_flux:
+      return parse_heat_flux(text, what);
+    case Quantity::heat_transfer_coefficient:
+      return parse_heat_transfer_coefficient(text, what);
+    case Quantity::length:
+      return parse_length(text, what);
+    case Quantity::conductivity:
+      return parse_conductivity(text, what);
+  }
+  return parse_temperature(text, what);
+}
+
 double parse_temperature(const std::string& text, const std::string& what) {
-  const double kelvin = parse_quantity(text, what, temperature_def());
+  const double kelvin = parse_with(definition(Quantity::temperature), text, what);
   if (kelvin < 0) {
     throw InputError(what + " \"" + text +
                      "\" is below absolute zero (0 K = -273.15 C = -459.67 F)");
@@ -129,47 +192,27 @@ double parse_temperature(const std::string& text, const std::string& what) {
 }
 
 double parse_power(const std::string& text, const std::string& what) {
-  static const QuantityDef def{
-      "power", "1200", "W", "W, kW, MW", {{"W", 1.0}, {"kW", 1e3}, {"MW", 1e6}}};
-  return parse_quantity(text, what, def);
+  return parse_with(definition(Quantity::power), text, what);
 }
 
 double parse_heat_flux(const std::string& text, const std::string& what) {
-  static const QuantityDef def{
-      "heat flux", "350", "W/m2", "W/m2, kW/m2", {{"W/m2", 1.0}, {"kW/m2", 1e3}}};
-  return parse_quantity(text, what, def);
+  return parse_with(definition(Quantity::heat_flux), text, what);
 }
 
 double parse_heat_transfer_coefficient(const std::string& text, const std::string& what) {
-  static const QuantityDef def{"heat transfer coefficient",
-                               "6",
-                               "W/m2K",
-                               "W/m2K, also written W/(m2 K) or W/m2/K",
-                               {{"W/m2K", 1.0}, {"W/m2/K", 1.0}, {"W/Km2", 1.0}}};
-  const double h = parse_quantity(text, what, def);
+  const double h = parse_with(definition(Quantity::heat_transfer_coefficient), text, what);
   if (h < 0) throw InputError(what + " \"" + text + "\" is negative; it must be >= 0");
   return h;
 }
 
 double parse_length(const std::string& text, const std::string& what) {
-  static const QuantityDef def{
-      "length",
-      "230",
-      "mm",
-      "mm, cm, m, in, ft",
-      {{"mm", 1e-3}, {"cm", 1e-2}, {"m", 1.0}, {"in", 0.0254}, {"ft", 0.3048}}};
-  const double metres = parse_quantity(text, what, def);
+  const double metres = parse_with(definition(Quantity::length), text, what);
   if (metres < 0) throw InputError(what + " \"" + text + "\" is negative; it must be >= 0");
   return metres;
 }
 
 double parse_conductivity(const std::string& text, const std::string& what) {
-  static const QuantityDef def{"thermal conductivity",
-                               "0.3",
-                               "W/mK",
-                               "W/mK, also written W/(m K) or W/m/K",
-                               {{"W/mK", 1.0}, {"W/m/K", 1.0}, {"W/Km", 1.0}}};
-  const double k = parse_quantity(text, what, def);
+  const double k = parse_with(definition(Quantity::conductivity), text, what);
   if (!(k > 0)) throw InputError(what + " \"" + text + "\" must be positive");
   return k;
 }

@@ -20,12 +20,12 @@ std::string scene_name(const SceneFile& file) {
 
 // The run's factors move into the model (at 100k patches they are gigabytes); the run keeps
 // what the reports read of them.
-void build_model(const PipelineOptions& options, SolvedScene* s) {
+void build_model(const ThermalInput& thermal, const PipelineOptions& options, SolvedScene* s) {
   ViewFactors& factors = s->run.factors;
   const bool smoothed = factors.smoothed;
   const double correction = factors.max_correction_sigma;
   try {
-    s->model = build_thermal_model(s->file, s->run.scene, s->run.patches, std::move(factors),
+    s->model = build_thermal_model(thermal, s->run.scene, s->run.patches, std::move(factors),
                                    options.thermal_model);
   } catch (const InputError& e) {
     throw RefusedInput(e.what(), s->run.diagnostics.warnings);
@@ -43,11 +43,11 @@ SolvedScene model_scene(SceneFile file, Scene scene, const PipelineOptions& opti
     SolvedScene s;
     s.file = std::move(file);
     // Thermal input checked before any ray is traced: a typo costs no tracing time.
-    check_thermal_input(s.file, scene);
+    const ThermalInput thermal = thermal_input(s.file, scene);
     s.run = pipeline_detail::factor_run(s.file, scene, options);
     s.run.tallies = Tallies{};  // smoothed (and cached): the counts are no longer needed
     Reporter(options).start(PipelineStage::thermal_model);
-    build_model(options, &s);
+    build_model(thermal, options, &s);
     // A leak folded back into a closed enclosure is reported by the model's note, not as
     // radiation to the surroundings.
     for (const Warning& w : s.run.warnings) {
