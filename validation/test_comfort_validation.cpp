@@ -72,11 +72,6 @@ double number(const std::map<std::string, std::string>& row, const std::string& 
   return std::stod(row.at(key));
 }
 
-// Standard deviation of a binomial proportion p estimated from n rays.
-double binomial_sd(double p, double n) {
-  return std::sqrt(p * (1 - p) / n);
-}
-
 // One surface seen from a point: its exact angle factor and its (black) temperature.
 struct Seen {
   double factor, kelvin;

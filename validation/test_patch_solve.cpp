@@ -19,6 +19,7 @@
 // of a factor) changes the standard deviation by less than that. Every check is at 4 standard
 // deviations.
 #include <Eigen/Dense>
+#include <algorithm>
 #include <catch2/catch.hpp>
 #include <cmath>
 #include <fstream>
@@ -284,6 +285,7 @@ TEST_CASE("solve with patches: sums over patches agree with whole surfaces and t
   std::getline(csv, line);  // header: surface,face,side,area_m2,...,net_W,...
   std::map<std::string, double> sum;
   std::map<std::string, int> rows;
+  std::map<std::string, std::vector<double>> areas;
   while (std::getline(csv, line)) {
     std::vector<std::string> cells;
     std::stringstream ss(line);
@@ -291,9 +293,21 @@ TEST_CASE("solve with patches: sums over patches agree with whole surfaces and t
     REQUIRE(cells.size() >= 11);
     sum[cells[0]] += std::stod(cells[10]);  // net_W
     ++rows[cells[0]];
+    areas[cells[0]].push_back(std::stod(cells[3]));  // area_m2
   }
+  // The patches the variances above were computed on are the ones the solve used.
+  const CubePatches planned = cube_patches(0.25);
+  std::map<std::string, std::vector<double>> planned_areas;
+  for (const Patch& p : planned.patches.patches)
+    planned_areas[planned.scene.surfaces[p.surface].name].push_back(p.area);
   for (const auto& [name, t] : kTemperature) {
     CHECK(rows[name] == 16);
     CHECK(sum[name] == Approx(net_of(patched, name)).epsilon(1e-12).margin(1e-9));
+    std::vector<double>& solved = areas[name];
+    std::vector<double>& mine = planned_areas[name];
+    std::sort(solved.begin(), solved.end());
+    std::sort(mine.begin(), mine.end());
+    REQUIRE(solved.size() == mine.size());
+    for (std::size_t k = 0; k < mine.size(); ++k) CHECK(solved[k] == Approx(mine[k]).epsilon(1e-9));
   }
 }

@@ -76,7 +76,7 @@ void check_patches(const PatchCase& c, std::uint32_t from, std::size_t to,
     const double coarse = patch_average(c.scene, c.patches, p, 3, element_factor);
     const double quadrature_error = std::fabs(fine - coarse);  // bounds the finer one's error
     const double f = c.raw.F.coeff(static_cast<Eigen::Index>(p), static_cast<Eigen::Index>(to));
-    const double se = c.raw.standard_error(p, fine);
+    const double se = binomial_sd(fine, double(c.raw.rays[p]));
     INFO(c.patches.patches[p].name << ": traced " << f << ", reference " << fine << " +- "
                                    << quadrature_error << ", se " << se);
     CHECK(std::fabs(f - fine) <= 4 * se + quadrature_error);
@@ -151,5 +151,5 @@ TEST_CASE("patch results sum to the surface-level factors", "[validation][patche
   CHECK(std::fabs(exchange / area - f_whole) < 4 * std::sqrt(variance));
   // And both match Howell C-11 (aligned parallel rectangles).
   const double exact = parallel_rectangles_aligned(1, 1, 0.5);
-  CHECK(std::fabs(f_whole - exact) < 4 * whole.raw.standard_error(lower, exact));
+  CHECK(std::fabs(f_whole - exact) < 4 * binomial_sd(exact, double(whole.raw.rays[lower])));
 }

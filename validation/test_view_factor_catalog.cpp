@@ -31,7 +31,7 @@ constexpr std::uint64_t kSeed = 20240611;
 void check_factor(const ViewFactors& vf, const std::string& from, const std::string& to,
                   double expected, double mesh_tolerance = 0) {
   const double f = factor(vf, from, to);
-  const double sigma = vf.standard_error(patch_index(vf, from), expected);
+  const double sigma = binomial_sd(expected, double(vf.rays[patch_index(vf, from)]));
   INFO((vf.smoothed ? "smoothed " : "raw ")
        << from << " -> " << to << ": F = " << f << ", reference = " << expected
        << ", difference = " << (f - expected) / sigma << " sigma (sigma = " << sigma
@@ -43,7 +43,7 @@ void check_factor(const ViewFactors& vf, const std::string& from, const std::str
 void check_factor_in(const ViewFactors& vf, const std::string& from, const std::string& to,
                      const Bounds& bounds, double reference) {
   const double f = factor(vf, from, to);
-  const double sigma = vf.standard_error(patch_index(vf, from), reference);
+  const double sigma = binomial_sd(reference, double(vf.rays[patch_index(vf, from)]));
   INFO((vf.smoothed ? "smoothed " : "raw ")
        << from << " -> " << to << ": F = " << f << ", disk closed form = " << reference
        << ", polygon bounds = [" << bounds.lower << ", " << bounds.upper

@@ -179,6 +179,12 @@ std::vector<std::array<double, 2>> gauss_legendre_01(int n) {
   return nodes;
 }
 
+double binomial_sd(double p, double n) {
+  if (!(n > 0) || !(p >= 0 && p <= 1))
+    throw std::invalid_argument("binomial_sd: need n > 0, 0 <= p <= 1");
+  return std::sqrt(p * (1 - p) / n);
+}
+
 double triangle_average(const Vec3& a, const Vec3& b, const Vec3& c, int depth,
                         const std::function<double(const Vec3&)>& f) {
   if (depth == 0) return f((a + b + c) / 3.0);

@@ -82,6 +82,11 @@ double inscribed_polygon_area(double r, int segments);
 // Used by the quadrature self-checks.
 std::vector<std::array<double, 2>> gauss_legendre_01(int n);
 
+// Standard deviation of a binomial proportion p estimated from n trials, sqrt(p (1 - p) / n):
+// the spread of a factor estimated from n rays at its exact value p. Validation cases take
+// their tolerances from this, not from the standard errors the tool reports.
+double binomial_sd(double p, double n);
+
 // Area average of f over triangle (a, b, c): the triangle split into 4^depth similar pieces
 // (midpoint subdivision), f taken at each piece's centroid. Used to average an element factor
 // over a patch.
