@@ -150,6 +150,7 @@ excess_air = "15 %"
   std::vector<std::string> names;
   for (const Patch& p : patches.patches) names.push_back(p.name);
   std::ostringstream table, zones, pcsv;
+  print_gas_surfaces(table, run, scene, patches);
   print_gas_table(table, run);
   write_zones_csv(zones, run);
   write_gas_patches_csv(pcsv, run, names);
@@ -160,6 +161,11 @@ excess_air = "15 %"
   CHECK(std::count(zone_rows.begin(), zone_rows.end(), '\n') == 1 + 3);
   CHECK(std::count(patch_rows.begin(), patch_rows.end(), '\n') == 1 + 7);
   CHECK_THAT(json, Catch::Contains("\"efficiency\""));
+  CHECK_THAT(table.str(), Catch::Contains("load"));
+  std::ostringstream report;
+  write_gas_report(report, {"0", "scene.toml", "box.obj", 1, {"zones.csv"}}, run, names);
+  CHECK_THAT(report.str(), Catch::Contains("carbon monoxide"));
+  CHECK_THAT(report.str(), Catch::Contains("\"to_held_surfaces_W\""));
   // zones.vtu holds one hexahedron per zone; the cut picture has the zones' colours.
   const ScratchDir dir("gas-report");
   write_zones_vtu((dir / "zones.vtu").string(), run);

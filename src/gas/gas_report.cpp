@@ -43,6 +43,32 @@ std::string kw(double W) {
 
 }  // namespace
 
+void print_gas_surfaces(std::ostream& out, const GasRun& run, const Scene& scene,
+                        const PatchSet& patches) {
+  const std::size_t S = scene.surfaces.size();
+  std::vector<double> area(S, 0), weighted_T(S, 0), takes(S, 0), loss(S, 0);
+  for (std::size_t p = 0; p < patches.size(); ++p) {
+    const std::uint32_t s = patches.patches[p].surface;
+    const double a = patches.patches[p].area;
+    const ZonePatchResult& r = run.solve.patches[p];
+    area[s] += a;
+    weighted_T[s] += r.temperature * a;
+    takes[s] -= r.net_out;
+    loss[s] += r.wall_loss;
+  }
+  char line[200];
+  std::snprintf(line, sizeof line, "%-20s %10s %10s %14s %14s\n", "surface", "area m2", "T C",
+                "takes kW", "wall loss kW");
+  out << line;
+  for (std::size_t s = 0; s < S; ++s) {
+    if (area[s] == 0) continue;
+    std::snprintf(line, sizeof line, "%-20s %10.3f %10.1f %14.2f %14.2f\n",
+                  scene.surfaces[s].name.c_str(), area[s], celsius(weighted_T[s] / area[s]),
+                  takes[s] / 1e3, loss[s] / 1e3);
+    out << line;
+  }
+}
+
 void print_gas_table(std::ostream& out, const GasRun& run) {
   const ZoneSolveResult& s = run.solve;
   out << "gas: " << run.gases.describe() << "\n";
@@ -180,8 +206,21 @@ std::string gas_report_json(const GasRun& run, const std::vector<std::string>& n
                  {"max_residual_W", s.max_residual},
                  {"message", s.message}};
   j["warnings"] = run.warnings;
-  j["cautions"] = {kEngineeringCaution, kFiredEquipmentCaution};
   return j.dump(2);
+}
+
+void write_gas_report(std::ostream& out, const GasReportInfo& info, const GasRun& run,
+                      const std::vector<std::string>& patch_names) {
+  using nlohmann::json;
+  json j;
+  j["tool"] = "hearthray " + info.version;
+  j["scene"] = info.scene;
+  j["mesh"] = info.mesh;
+  j["seed"] = info.seed;
+  j["files"] = info.files;
+  j["gas"] = json::parse(gas_report_json(run, patch_names));
+  j["cautions"] = {kEngineeringCaution, kFiredEquipmentCaution};
+  out << j.dump(2) << '\n';
 }
 
 }  // namespace hearthray

@@ -53,9 +53,9 @@ std::vector<ZonePatchCondition> gas_patch_conditions(const std::vector<SurfaceTh
         c.known_temperature = false;
         break;
     }
-    if (s.condition.wall_loss) {
-      if (c.known_temperature)
-        throw InputError("surface " + name + ": a wall loss needs an unknown temperature");
+    // A wall loss matters for the balance of a surface whose temperature is solved; a surface
+    // held at its temperature is fed from outside the model, loss and all.
+    if (s.condition.wall_loss && !c.known_temperature) {
       c.wall_U = s.condition.wall_loss->U;
       c.outside_temperature = s.condition.wall_loss->outside_K;
     }
