@@ -19,8 +19,9 @@ double celsius(double K) {
 
 // Figures a furnace designer reads first, from the run.
 struct FurnaceFigures {
-  double firing = 0, air = 0, held = 0, walls = 0, surroundings = 0, flue = 0, balance = 0;
-  double efficiency = 0;  // heat to held patches / firing rate
+  double firing = 0, air = 0, load = 0, held = 0, walls = 0, surroundings = 0, flue = 0;
+  double balance = 0;
+  double efficiency = 0;  // heat to the load / firing rate
 };
 
 FurnaceFigures figures(const GasRun& run) {
@@ -28,12 +29,13 @@ FurnaceFigures figures(const GasRun& run) {
   const ZoneSolveResult& s = run.solve;
   f.firing = s.heat_released;
   f.air = s.air_enthalpy_in;
+  f.load = run.heat_to_load();
   f.held = run.heat_to_held_patches();
   f.walls = run.heat_through_walls();
   f.surroundings = s.to_surroundings;
   f.flue = s.flue_enthalpy;
   f.balance = s.balance_error;
-  f.efficiency = f.firing > 0 ? f.held / f.firing : 0;
+  f.efficiency = f.firing > 0 ? f.load / f.firing : 0;
   return f;
 }
 
@@ -93,15 +95,17 @@ void print_gas_table(std::ostream& out, const GasRun& run) {
   }
   const FurnaceFigures f = figures(run);
   if (run.combustion) {
-    out << "heat to the held surfaces (load and walls of given temperature): " << kw(f.held)
+    if (!run.input.load.empty()) out << "heat to the load: " << kw(f.load) << "\n";
+    out << "heat to other surfaces of given temperature (openings, held walls): " << kw(f.held)
         << "\n";
     out << "through walls of solved temperature: " << kw(f.walls)
         << "; to the surroundings: " << kw(f.surroundings) << "\n";
     out << "flue gas: " << rounded("%.0f C", celsius(s.flue_temperature)) << ", carrying "
         << kw(f.flue) << " above 25 C (" << percent(f.flue / f.firing) << " of the firing rate)\n";
-    out << "efficiency (held surfaces / firing rate): " << percent(f.efficiency) << "\n";
+    if (!run.input.load.empty())
+      out << "efficiency (heat to the load / firing rate): " << percent(f.efficiency) << "\n";
   }
-  out << "energy balance: release + air - held - walls - surroundings - flue = "
+  out << "energy balance: release + air - load - other held - walls - surroundings - flue = "
       << rounded("%.3g W", f.balance) << "\n";
   out << "zone solve: " << (s.converged ? "converged" : "NOT converged: " + s.message) << " in "
       << s.iterations << " Newton iterations\n";
@@ -192,15 +196,11 @@ std::string gas_report_json(const GasRun& run, const std::vector<std::string>& n
   }
   j["patches"] = patches;
   const FurnaceFigures f = figures(run);
-  j["balance"] = {{"heat_released_W", f.firing},
-                  {"air_enthalpy_in_W", f.air},
-                  {"to_held_surfaces_W", f.held},
-                  {"through_walls_W", f.walls},
-                  {"to_surroundings_W", f.surroundings},
-                  {"flue_enthalpy_W", f.flue},
-                  {"flue_temperature_K", s.flue_temperature},
-                  {"efficiency", f.efficiency},
-                  {"error_W", f.balance}};
+  j["balance"] = {{"heat_released_W", f.firing}, {"air_enthalpy_in_W", f.air},
+                  {"to_load_W", f.load},         {"to_other_held_surfaces_W", f.held},
+                  {"through_walls_W", f.walls},  {"to_surroundings_W", f.surroundings},
+                  {"flue_enthalpy_W", f.flue},   {"flue_temperature_K", s.flue_temperature},
+                  {"efficiency", f.efficiency},  {"error_W", f.balance}};
   j["solver"] = {{"converged", s.converged},
                  {"iterations", s.iterations},
                  {"max_residual_W", s.max_residual},
