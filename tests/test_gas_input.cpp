@@ -118,6 +118,7 @@ TEST_CASE("a fired box through the gas stages to its report", "[gas]") {
 cells = [3, 1, 1]
 rays_per_cell = 20000
 flow = "+x"
+load = ["load"]
 [gas.firing]
 fuel = "natural gas"
 rate = "250 kW"
@@ -144,12 +145,14 @@ excess_air = "15 %"
   // Firing rate + air = load + walls + flue (+ surroundings, none here), to 1e-9.
   const double firing = 250e3;
   CHECK(run.solve.heat_released == firing);
-  CHECK(std::fabs(run.heat_to_held_patches() + run.heat_through_walls() +
-                  run.solve.to_surroundings + run.solve.flue_enthalpy - firing -
-                  run.solve.air_enthalpy_in) < 1e-9 * firing);
+  CHECK(run.heat_to_held_patches() == 0.0);  // the load is the only held surface
+  CHECK(run.heat_to_load() > 0.0);
+  CHECK(std::fabs(run.heat_to_load() + run.heat_through_walls() + run.solve.to_surroundings +
+                  run.solve.flue_enthalpy - firing - run.solve.air_enthalpy_in) < 1e-9 * firing);
   std::vector<std::string> names;
   for (const Patch& p : patches.patches) names.push_back(p.name);
   std::ostringstream table, zones, pcsv;
+  print_gas_surfaces(table, run, scene, patches);
   print_gas_table(table, run);
   write_zones_csv(zones, run);
   write_gas_patches_csv(pcsv, run, names);
@@ -160,6 +163,11 @@ excess_air = "15 %"
   CHECK(std::count(zone_rows.begin(), zone_rows.end(), '\n') == 1 + 3);
   CHECK(std::count(patch_rows.begin(), patch_rows.end(), '\n') == 1 + 7);
   CHECK_THAT(json, Catch::Contains("\"efficiency\""));
+  CHECK_THAT(table.str(), Catch::Contains("load"));
+  std::ostringstream report;
+  write_gas_report(report, {"0", "scene.toml", "box.obj", 1, {"zones.csv"}}, run, names);
+  CHECK_THAT(report.str(), Catch::Contains("carbon monoxide"));
+  CHECK_THAT(report.str(), Catch::Contains("\"to_load_W\""));
   // zones.vtu holds one hexahedron per zone; the cut picture has the zones' colours.
   const ScratchDir dir("gas-report");
   write_zones_vtu((dir / "zones.vtu").string(), run);
@@ -171,6 +179,12 @@ excess_air = "15 %"
   CHECK(picture.width() > 700);
   if (const char* keep = std::getenv("HEARTHRAY_KEEP_PICTURES"))
     write_picture(std::string(keep) + "/gas-zone-cut.png", picture);
+  // A load the mesh does not have is refused before anything is traced.
+  GasInput wrong = input;
+  wrong.load = {"ingot"};
+  CHECK_THROWS_WITH(run_gas(wrong, scene, patches, tracer,
+                            gas_patch_conditions(thermal, scene, patches), options),
+                    Catch::Contains("'ingot'"));
   // Convection with a gas is refused for now, naming the surface.
   thermal[0].condition.convection = Convection{10, 300};
   CHECK_THROWS_WITH(gas_patch_conditions(thermal, scene, patches), Catch::Contains("floor"));

@@ -15,6 +15,8 @@
 //                                      # ...) zone to zone to the flue; "stirred": one zone
 //   release = [0.7, 0.3]               # shares of the firing rate released in the first zones
 //                                      # along the flow (default: all in the first)
+//   load = ["billet_1", "billet_2"]    # optional: the surfaces that are the load (for the
+//                                      # heat to the load and the efficiency)
 //   [gas.firing]
 //   fuel = "natural gas"               # natural gas (as methane) | methane | propane | fuel oil
 //   carbon_hydrogen_ratio = 6.5        # fuel oil: C/H by mass
@@ -50,6 +52,7 @@ struct GasInput {
   int flow_direction = 1;       // +1 or -1 along the axis
   std::vector<double> release;  // shares of the firing rate along the flow
   std::optional<CombustionInput> firing;
+  std::vector<std::string> load;  // surfaces that are the load
   int line = 0;
 };
 

@@ -4,6 +4,7 @@
 // cautions for fired equipment.
 #pragma once
 
+#include <cstdint>
 #include <iosfwd>
 #include <string>
 #include <vector>
@@ -18,6 +19,10 @@ inline constexpr const char* kFiredEquipmentCaution =
     "must leave safely; burners need flame-failure protection and a purge before ignition; "
     "hot surfaces burn. Follow the gas and fuel codes, the burner maker's instructions and "
     "licensed practice.";
+
+// Per surface: area, area-weighted mean temperature, heat it takes by radiation, wall loss.
+void print_gas_surfaces(std::ostream& out, const GasRun& run, const Scene& scene,
+                        const PatchSet& patches);
 
 // Zone table, furnace figures, balance, solver status and the cautions.
 void print_gas_table(std::ostream& out, const GasRun& run);
@@ -43,5 +48,15 @@ Picture zone_cut_picture(const GasRun& run, const Scene& scene, int across = 1);
 
 // The "gas" block of report.json as JSON text (an object).
 std::string gas_report_json(const GasRun& run, const std::vector<std::string>& patch_names);
+
+// What report.json of a gas run echoes besides the run.
+struct GasReportInfo {
+  std::string version, scene, mesh;
+  std::uint64_t seed = 0;
+  std::vector<std::string> files;  // other files written with the report
+};
+// report.json of a gas run: the echo, the "gas" block and the cautions.
+void write_gas_report(std::ostream& out, const GasReportInfo& info, const GasRun& run,
+                      const std::vector<std::string>& patch_names);
 
 }  // namespace hearthray

@@ -34,10 +34,13 @@ struct GasRun {
   GasSmoothingSummary smoothing;
   std::vector<std::size_t> flow_order;      // zones from the burner end to the flue
   std::vector<ZonePatchCondition> patches;  // as solved
+  std::vector<bool> load_patch;             // per patch: part of the load ([gas] load)
   ZoneSolveResult solve;
   std::vector<std::string> warnings;  // gas properties out of their fit's range, ...
 
-  // Heat into the patches of known temperature (the load and held walls), W.
+  // Heat into the load's patches, W (0 when [gas] names no load).
+  double heat_to_load() const;
+  // Heat into the other patches of known temperature (openings, held walls), W.
   double heat_to_held_patches() const;
   // Heat lost through walls of unknown temperature less the power put into them, W.
   double heat_through_walls() const;
@@ -45,7 +48,8 @@ struct GasRun {
 };
 
 // Per-patch conditions from the surfaces' thermal description: temperature, heat flux and
-// power (a surface's power shared among its patches by area), adiabatic, wall loss.
+// power (a surface's power shared among its patches by area), adiabatic, wall loss (for
+// surfaces of solved temperature; one held at its temperature is fed from outside the model).
 // Convection is refused with a gas (not yet modelled: the gas would be its fluid).
 std::vector<ZonePatchCondition> gas_patch_conditions(const std::vector<SurfaceThermal>& surfaces,
                                                      const Scene& scene, const PatchSet& patches);

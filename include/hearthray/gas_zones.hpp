@@ -133,11 +133,13 @@ struct GasSmoothingSummary {
   int iterations = 0;                // largest over the gray gases
   double max_row_error = 0;          // max |row sum - target| / target after smoothing
   double max_reciprocity_error = 0;  // max |S_ij - S_ji| / max S after smoothing
-  double max_correction_sigma = 0;   // max |S - S_raw| / sigma over entries with sigma > 0
+  // max |S - S_raw| / sigma over entries with sigma > 0, sigma at least 1e-9 of the row's
+  // target (negligible entries do not count)
+  double max_correction_sigma = 0;
 };
 
-// Reciprocity and closure: each pair's two estimates are combined by inverse variance into a
-// symmetric matrix, then scaled S = D S~ D (symmetric matrix balancing; Knight, "The
+// Reciprocity and closure: each pair's two estimates are pooled, weighted by each row's rays
+// over its scale (A_i or 4 k V_cell), into a symmetric matrix, then scaled S = D S~ D (symmetric matrix balancing; Knight, "The
 // Sinkhorn-Knopp algorithm: convergence and applications", SIAM J. Matrix Anal. Appl. 30,
 // 2008, symmetric variant) so that every row sums to its target less its lost part. Zeros
 // stay zero and nothing turns negative.

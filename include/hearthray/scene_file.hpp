@@ -14,6 +14,8 @@
 //               patches = "0.25 m" (pieces of about that size) | "triangles" | "whole"
 //   [comfort]   air_temperature, air_speed, rays, [comfort.point.NAME], [comfort.grid]
 //               (see comfort_input.hpp)
+//   [gas]       a radiating combustion gas in zones: cells, properties, temperature or flow,
+//               [gas.firing] (see gas_input.hpp)
 #pragma once
 
 #include <cstdint>
@@ -24,6 +26,7 @@
 
 #include "hearthray/comfort_input.hpp"
 #include "hearthray/conditions.hpp"
+#include "hearthray/gas_input.hpp"
 #include "hearthray/patches.hpp"
 #include "hearthray/scene.hpp"
 
@@ -52,6 +55,7 @@ struct SceneFile {
   SurfaceSpec defaults;
   std::vector<std::pair<std::string, SurfaceSpec>> surfaces;  // in file order
   std::optional<ComfortInput> comfort;  // [comfort]: points and air for the comfort figures
+  std::optional<GasInput> gas;          // [gas]: the radiating gas filling the enclosure
 
   const SurfaceSpec* find(const std::string& name) const;
   bool has_thermal_input() const;  // any emissivity or condition given

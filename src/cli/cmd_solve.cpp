@@ -53,6 +53,8 @@ SolveReportInfo solve_info(const SceneFile& file, const FactorRun& run, const Th
 }  // namespace
 
 int run_solve_command(const SolveArgs& args) {
+  // A scene with a radiating gas goes through the zone method instead (cmd_solve_gas.cpp).
+  if (const SceneFile file = open_scene(args.input); file.gas) return run_gas_solve(args, file);
   CacheChoice cache;
   cache.use = !args.no_cache;
   cache.dir = args.cache_dir;

@@ -32,6 +32,8 @@ struct SolveArgs {
 // Exit codes: 0 solved, 2 bad input, 4 the solver did not converge (outputs still written).
 inline constexpr int kExitNotConverged = 4;
 int run_solve_command(const SolveArgs& args);
+// The same for a scene with a [gas] table (the zone method).
+int run_gas_solve(const SolveArgs& args, const SceneFile& file);
 
 struct ComfortArgs {
   std::vector<std::string> inputs;  // comfort: one scene; compare: two or more

@@ -95,7 +95,7 @@ class GasReader {
     if (!t) fail(node, "[gas] must be a table");
     only(*t,
          {"cells", "rays_per_cell", "absorption_coefficient", "partial_pressures", "soot",
-          "temperature", "flow", "release", "firing"},
+          "temperature", "flow", "release", "firing", "load"},
          "[gas]");
     GasInput in;
     in.line = int(node.source().begin.line);
@@ -125,6 +125,7 @@ class GasReader {
       in.temperature = temperature(*n, "temperature", "[gas]");
     if (const toml::node* n = t->get("flow")) flow(*n, &in);
     if (const toml::node* n = t->get("release")) in.release = release(*n);
+    if (const toml::node* n = t->get("load")) in.load = names(*n);
     check_zones(node, &in);
     return in;
   }
@@ -267,6 +268,17 @@ class GasReader {
     }
     if (std::fabs(sum - 1) > 1e-9) fail(node, "release in [gas]: the shares must add up to 1");
     return shares;
+  }
+
+  std::vector<std::string> names(const toml::node& node) const {
+    const toml::array* a = node.as_array();
+    std::vector<std::string> out;
+    if (a)
+      for (const toml::node& e : *a)
+        if (const auto* s = e.as_string()) out.push_back(s->get());
+    if (!a || out.empty() || out.size() != a->size())
+      fail(node, "load in [gas] must be a list of surface names, like [\"billet_1\"]");
+    return out;
   }
 
   void check_zones(const toml::node& node, GasInput* in) const {

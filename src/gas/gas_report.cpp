@@ -19,8 +19,9 @@ double celsius(double K) {
 
 // Figures a furnace designer reads first, from the run.
 struct FurnaceFigures {
-  double firing = 0, air = 0, held = 0, walls = 0, surroundings = 0, flue = 0, balance = 0;
-  double efficiency = 0;  // heat to held patches / firing rate
+  double firing = 0, air = 0, load = 0, held = 0, walls = 0, surroundings = 0, flue = 0;
+  double balance = 0;
+  double efficiency = 0;  // heat to the load / firing rate
 };
 
 FurnaceFigures figures(const GasRun& run) {
@@ -28,12 +29,13 @@ FurnaceFigures figures(const GasRun& run) {
   const ZoneSolveResult& s = run.solve;
   f.firing = s.heat_released;
   f.air = s.air_enthalpy_in;
+  f.load = run.heat_to_load();
   f.held = run.heat_to_held_patches();
   f.walls = run.heat_through_walls();
   f.surroundings = s.to_surroundings;
   f.flue = s.flue_enthalpy;
   f.balance = s.balance_error;
-  f.efficiency = f.firing > 0 ? f.held / f.firing : 0;
+  f.efficiency = f.firing > 0 ? f.load / f.firing : 0;
   return f;
 }
 
@@ -42,6 +44,32 @@ std::string kw(double W) {
 }
 
 }  // namespace
+
+void print_gas_surfaces(std::ostream& out, const GasRun& run, const Scene& scene,
+                        const PatchSet& patches) {
+  const std::size_t S = scene.surfaces.size();
+  std::vector<double> area(S, 0), weighted_T(S, 0), takes(S, 0), loss(S, 0);
+  for (std::size_t p = 0; p < patches.size(); ++p) {
+    const std::uint32_t s = patches.patches[p].surface;
+    const double a = patches.patches[p].area;
+    const ZonePatchResult& r = run.solve.patches[p];
+    area[s] += a;
+    weighted_T[s] += r.temperature * a;
+    takes[s] -= r.net_out;
+    loss[s] += r.wall_loss;
+  }
+  char line[200];
+  std::snprintf(line, sizeof line, "%-20s %10s %10s %14s %14s\n", "surface", "area m2", "T C",
+                "takes kW", "wall loss kW");
+  out << line;
+  for (std::size_t s = 0; s < S; ++s) {
+    if (area[s] == 0) continue;
+    std::snprintf(line, sizeof line, "%-20s %10.3f %10.1f %14.2f %14.2f\n",
+                  scene.surfaces[s].name.c_str(), area[s], celsius(weighted_T[s] / area[s]),
+                  takes[s] / 1e3, loss[s] / 1e3);
+    out << line;
+  }
+}
 
 void print_gas_table(std::ostream& out, const GasRun& run) {
   const ZoneSolveResult& s = run.solve;
@@ -67,15 +95,17 @@ void print_gas_table(std::ostream& out, const GasRun& run) {
   }
   const FurnaceFigures f = figures(run);
   if (run.combustion) {
-    out << "heat to the held surfaces (load and walls of given temperature): " << kw(f.held)
+    if (!run.input.load.empty()) out << "heat to the load: " << kw(f.load) << "\n";
+    out << "heat to other surfaces of given temperature (openings, held walls): " << kw(f.held)
         << "\n";
     out << "through walls of solved temperature: " << kw(f.walls)
         << "; to the surroundings: " << kw(f.surroundings) << "\n";
     out << "flue gas: " << rounded("%.0f C", celsius(s.flue_temperature)) << ", carrying "
         << kw(f.flue) << " above 25 C (" << percent(f.flue / f.firing) << " of the firing rate)\n";
-    out << "efficiency (held surfaces / firing rate): " << percent(f.efficiency) << "\n";
+    if (!run.input.load.empty())
+      out << "efficiency (heat to the load / firing rate): " << percent(f.efficiency) << "\n";
   }
-  out << "energy balance: release + air - held - walls - surroundings - flue = "
+  out << "energy balance: release + air - load - other held - walls - surroundings - flue = "
       << rounded("%.3g W", f.balance) << "\n";
   out << "zone solve: " << (s.converged ? "converged" : "NOT converged: " + s.message) << " in "
       << s.iterations << " Newton iterations\n";
@@ -166,22 +196,31 @@ std::string gas_report_json(const GasRun& run, const std::vector<std::string>& n
   }
   j["patches"] = patches;
   const FurnaceFigures f = figures(run);
-  j["balance"] = {{"heat_released_W", f.firing},
-                  {"air_enthalpy_in_W", f.air},
-                  {"to_held_surfaces_W", f.held},
-                  {"through_walls_W", f.walls},
-                  {"to_surroundings_W", f.surroundings},
-                  {"flue_enthalpy_W", f.flue},
-                  {"flue_temperature_K", s.flue_temperature},
-                  {"efficiency", f.efficiency},
-                  {"error_W", f.balance}};
+  j["balance"] = {{"heat_released_W", f.firing}, {"air_enthalpy_in_W", f.air},
+                  {"to_load_W", f.load},         {"to_other_held_surfaces_W", f.held},
+                  {"through_walls_W", f.walls},  {"to_surroundings_W", f.surroundings},
+                  {"flue_enthalpy_W", f.flue},   {"flue_temperature_K", s.flue_temperature},
+                  {"efficiency", f.efficiency},  {"error_W", f.balance}};
   j["solver"] = {{"converged", s.converged},
                  {"iterations", s.iterations},
                  {"max_residual_W", s.max_residual},
                  {"message", s.message}};
   j["warnings"] = run.warnings;
-  j["cautions"] = {kEngineeringCaution, kFiredEquipmentCaution};
   return j.dump(2);
+}
+
+void write_gas_report(std::ostream& out, const GasReportInfo& info, const GasRun& run,
+                      const std::vector<std::string>& patch_names) {
+  using nlohmann::json;
+  json j;
+  j["tool"] = "hearthray " + info.version;
+  j["scene"] = info.scene;
+  j["mesh"] = info.mesh;
+  j["seed"] = info.seed;
+  j["files"] = info.files;
+  j["gas"] = json::parse(gas_report_json(run, patch_names));
+  j["cautions"] = {kEngineeringCaution, kFiredEquipmentCaution};
+  out << j.dump(2) << '\n';
 }
 
 }  // namespace hearthray

@@ -8,17 +8,24 @@
 
 namespace hearthray {
 
+double GasRun::heat_to_load() const {
+  double q = 0;
+  for (std::size_t p = 0; p < patches.size(); ++p)
+    if (load_patch[p]) q -= solve.patches[p].net_out;
+  return q;
+}
+
 double GasRun::heat_to_held_patches() const {
   double q = 0;
   for (std::size_t p = 0; p < patches.size(); ++p)
-    if (patches[p].known_temperature) q -= solve.patches[p].net_out;
+    if (patches[p].known_temperature && !load_patch[p]) q -= solve.patches[p].net_out;
   return q;
 }
 
 double GasRun::heat_through_walls() const {
   double q = 0;
   for (std::size_t p = 0; p < patches.size(); ++p)
-    if (!patches[p].known_temperature) q -= solve.patches[p].net_out;
+    if (!patches[p].known_temperature && !load_patch[p]) q -= solve.patches[p].net_out;
   return q;
 }
 
@@ -53,9 +60,9 @@ std::vector<ZonePatchCondition> gas_patch_conditions(const std::vector<SurfaceTh
         c.known_temperature = false;
         break;
     }
-    if (s.condition.wall_loss) {
-      if (c.known_temperature)
-        throw InputError("surface " + name + ": a wall loss needs an unknown temperature");
+    // A wall loss matters for the balance of a surface whose temperature is solved; a surface
+    // held at its temperature is fed from outside the model, loss and all.
+    if (s.condition.wall_loss && !c.known_temperature) {
       c.wall_U = s.condition.wall_loss->U;
       c.outside_temperature = s.condition.wall_loss->outside_K;
     }
@@ -88,6 +95,20 @@ GasRun run_gas(const GasInput& input, const Scene& scene, const PatchSet& patche
                const GasRunOptions& options) {
   GasRun run;
   run.input = input;
+  run.load_patch.assign(patches.size(), false);
+  for (const std::string& name : input.load) {
+    const int s = scene.find_surface(name);
+    if (s < 0) {
+      std::string known;
+      for (const std::string& n : scene.surface_names()) known += (known.empty() ? "" : ", ") + n;
+      throw InputError("[gas] load names surface '" + name +
+                       "', which the mesh does not have; "
+                       "it has " +
+                       known);
+    }
+    for (std::size_t p = 0; p < patches.size(); ++p)
+      if (patches.patches[p].surface == std::uint32_t(s)) run.load_patch[p] = true;
+  }
   if (input.firing) run.combustion = burn(*input.firing);
   run.gases = gas_properties(input, run.combustion ? &*run.combustion : nullptr);
   run.warnings = run.gases.warnings();

@@ -9,16 +9,26 @@ namespace hearthray {
 namespace {
 
 // The two estimates S_ij (from row i's rays) and S_ji (from row j's) of one symmetric exchange
-// area, combined by inverse variance; the plain mean where a variance is zero.
-Eigen::MatrixXd symmetric_estimate(const Eigen::MatrixXd& S, const Eigen::MatrixXd& sigma) {
+// area, pooled with weights N_i / s_i: each of row i's N_i rays scores s_i x with x in [0, 1]
+// (s_i = A_i for a patch, 4 k V_cell for a zone), so the variance of its estimate of a small
+// exchange area m is about s_i m / N_i. The weights come from the ray counts, not from sample
+// variances, which are unreliable for the rare hits of small exchange areas (pooling as the
+// maximum-likelihood smoothing of Daun, Morton & Howell 2005 pools hit counts).
+Eigen::MatrixXd symmetric_estimate(const GasExchange& x, std::size_t g) {
+  const Eigen::MatrixXd& S = x.S[g];
   const Eigen::Index n = S.rows();
+  Eigen::VectorXd w(n);
+  for (Eigen::Index i = 0; i < n; ++i) {
+    const double scale = std::size_t(i) < x.patch_count ? x.areas[std::size_t(i)]
+                                                         : 4 * x.k[g] * x.grid.cell_volume();
+    w(i) = scale > 0 ? double(x.rays[std::size_t(i)]) / scale : 0.0;
+  }
   Eigen::MatrixXd M = Eigen::MatrixXd::Zero(n, n);
   for (Eigen::Index i = 0; i < n; ++i) {
     M(i, i) = S(i, i);
     for (Eigen::Index j = i + 1; j < n; ++j) {
-      const double a = S(i, j), b = S(j, i);
-      const double va = sigma(i, j) * sigma(i, j), vb = sigma(j, i) * sigma(j, i);
-      const double m = (va > 0 && vb > 0) ? (a / va + b / vb) / (1 / va + 1 / vb) : 0.5 * (a + b);
+      const double sum = w(i) + w(j);
+      const double m = sum > 0 ? (w(i) * S(i, j) + w(j) * S(j, i)) / sum : 0.0;
       M(i, j) = M(j, i) = m;
     }
   }
@@ -33,7 +43,7 @@ GasSmoothingSummary smooth_gas_exchange(GasExchange& x, double tolerance, int ma
   const Eigen::Index n = Eigen::Index(x.rows());
   for (std::size_t g = 0; g < x.gas_count(); ++g) {
     const Eigen::MatrixXd raw = x.S[g];
-    Eigen::MatrixXd M = symmetric_estimate(raw, x.sigma[g]);
+    Eigen::MatrixXd M = symmetric_estimate(x, g);
     Eigen::VectorXd target(n);
     for (Eigen::Index i = 0; i < n; ++i)
       target(i) = std::max(0.0, x.row_target(g, std::size_t(i)) - x.lost[g](i));
@@ -70,9 +80,12 @@ GasSmoothingSummary smooth_gas_exchange(GasExchange& x, double tolerance, int ma
         if (scale > 0)
           summary.max_reciprocity_error =
               std::max(summary.max_reciprocity_error, std::fabs(S(i, j) - S(j, i)) / scale);
+        // Standard errors below 1e-9 of the row's target are taken as 1e-9 of it: entries that
+        // small (a single ray through an opaque gray gas, 1e-40 m^2) carry no weight.
+        const double sigma = std::max(x.sigma[g](i, j), 1e-9 * t);
         if (x.sigma[g](i, j) > 0)
-          summary.max_correction_sigma = std::max(
-              summary.max_correction_sigma, std::fabs(S(i, j) - raw(i, j)) / x.sigma[g](i, j));
+          summary.max_correction_sigma =
+              std::max(summary.max_correction_sigma, std::fabs(S(i, j) - raw(i, j)) / sigma);
       }
     }
     x.S[g] = std::move(S);

@@ -11,6 +11,7 @@
 #include <sstream>
 
 #include "comfort/comfort_input_toml.hpp"
+#include "gas/gas_input_toml.hpp"
 #include "core/text.hpp"
 #include "hearthray/error.hpp"
 
@@ -20,7 +21,7 @@ namespace {
 namespace fs = std::filesystem;
 
 const std::vector<std::string> kTopKeys = {"mesh",     "rays",    "surroundings",
-                                           "defaults", "surface", "comfort"};
+                                           "defaults", "surface", "comfort", "gas"};
 const std::vector<std::string> kMeshKeys = {"file", "unit", "surfaces_from"};
 const std::vector<std::string> kRaysKeys = {"per_patch", "total", "min_per_patch", "seed"};
 const std::vector<std::string> kSurroundingsKeys = {"temperature"};
@@ -383,6 +384,7 @@ class Reader {
       std::stable_sort(file.surfaces.begin(), file.surfaces.end(),
                        [](const auto& a, const auto& b) { return a.second.line < b.second.line; });
     }
+    if (const toml::node* gas = root.get("gas")) file.gas = read_gas_table(*gas, path_);
     if (const toml::node* comfort = root.get("comfort")) {
       file.comfort = read_comfort_table(*comfort, path_);
     }

@@ -1,0 +1,84 @@
+// `hearthray solve` on a scene with a [gas] table: tables, files, a balance that closes, and
+// bad gas input refused with `error:` and exit 2.
+#include <catch2/catch.hpp>
+#include <cmath>
+#include <nlohmann/json.hpp>
+
+#include "support/cli_run.hpp"
+#include "support/gas_fixtures.hpp"
+
+using namespace hearthray::testing;
+
+namespace {
+
+// An invented fired box (3 x 1.2 x 1.2 m, metres) with a solid load held at 700 C.
+const char* kScene = R"([mesh]
+file = "box.obj"
+unit = "m"
+
+[rays]
+per_patch = 20_000
+seed = 3
+
+[defaults]
+emissivity = 0.75
+adiabatic = true
+wall = { U = "1.2 W/m2K", outside = "20 C" }
+
+[surface.load]
+emissivity = 0.85
+temperature = "700 C"
+
+[gas]
+cells = [3, 1, 1]
+rays_per_cell = 20_000
+flow = "+x"
+release = [0.8, 0.2]
+load = ["load"]
+
+[gas.firing]
+fuel = "propane"
+rate = "200 kW"
+flue_o2 = "3 %"
+air_temperature = "150 C"
+)";
+
+}  // namespace
+
+TEST_CASE("hearthray solve runs a fired scene through the gas zones", "[gas][cli]") {
+  const ScratchDir dir("gas-cli");
+  write_text(dir / "box.obj", box_with_load_obj(3, 1.2, 1.2, 1.25, 0.35, 0.05, 0.5));
+  write_text(dir / "scene.toml", kScene);
+  const CliResult r = run_cli("solve '" + (dir / "scene.toml").string() + "' -o '" +
+                                  (dir / "out").string() + "' --quiet",
+                              dir);
+  INFO(r.err);
+  REQUIRE(r.status == 0);
+  for (const char* f : {"report.json", "zones.csv", "gas_patches.csv", "zones.vtu", "patches.vtu",
+                        "gas_zones.png"})
+    CHECK(std::filesystem::exists(dir / "out" / f));
+  const auto report = nlohmann::json::parse(slurp(dir / "out" / "report.json"));
+  const auto& b = report["gas"]["balance"];
+  const double firing = b["heat_released_W"].get<double>();
+  CHECK(firing == 200e3);
+  // Firing rate + air = load + other held + walls + surroundings + flue, to 1e-9.
+  const double out = b["to_load_W"].get<double>() + b["to_other_held_surfaces_W"].get<double>() +
+                     b["through_walls_W"].get<double>() + b["to_surroundings_W"].get<double>() +
+                     b["flue_enthalpy_W"].get<double>();
+  CHECK(std::fabs(firing + b["air_enthalpy_in_W"].get<double>() - out) < 1e-9 * firing);
+  CHECK(report["gas"]["solver"]["converged"].get<bool>());
+  CHECK(report["gas"]["zones"].size() == 3);
+  CHECK(report["cautions"].dump().find("carbon monoxide") != std::string::npos);
+}
+
+TEST_CASE("hearthray solve refuses bad gas input with error and exit 2", "[gas][cli]") {
+  const ScratchDir dir("gas-cli-bad");
+  write_text(dir / "box.obj", box_with_load_obj(3, 1.2, 1.2, 1.25, 0.35, 0.05, 0.5));
+  std::string scene = kScene;
+  scene.replace(scene.find("fuel = \"propane\""), 16, "fuel = \"wood\"");
+  write_text(dir / "scene.toml", scene);
+  const CliResult r = run_cli("solve '" + (dir / "scene.toml").string() + "'", dir);
+  CHECK(r.status == 2);
+  CHECK(r.err.find("error:") != std::string::npos);
+  CHECK(r.err.find("wood") != std::string::npos);
+}
