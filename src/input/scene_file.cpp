@@ -11,8 +11,8 @@
 #include <sstream>
 
 #include "comfort/comfort_input_toml.hpp"
-#include "gas/gas_input_toml.hpp"
 #include "core/text.hpp"
+#include "gas/gas_input_toml.hpp"
 #include "hearthray/error.hpp"
 
 namespace hearthray {
@@ -20,8 +20,8 @@ namespace {
 
 namespace fs = std::filesystem;
 
-const std::vector<std::string> kTopKeys = {"mesh",     "rays",    "surroundings",
-                                           "defaults", "surface", "comfort", "gas"};
+const std::vector<std::string> kTopKeys = {"mesh",    "rays",    "surroundings", "defaults",
+                                           "surface", "comfort", "gas"};
 const std::vector<std::string> kMeshKeys = {"file", "unit", "surfaces_from"};
 const std::vector<std::string> kRaysKeys = {"per_patch", "total", "min_per_patch", "seed"};
 const std::vector<std::string> kSurroundingsKeys = {"temperature"};
@@ -87,9 +87,12 @@ class Reader {
     for (auto&& [key, node] : table) {
       const std::string k(key.str());
       if (std::find(allowed.begin(), allowed.end(), k) != allowed.end()) continue;
+      // The nearest allowed key within two edits (the first of equally near ones).
       std::string hint;
+      std::size_t best = 3;
       for (const std::string& a : allowed) {
-        if (edit_distance(k, a) <= 2) hint = " (did you mean '" + a + "'?)";
+        const std::size_t d = std::size_t(edit_distance(k, a));
+        if (d < best) best = d, hint = " (did you mean '" + a + "'?)";
       }
       const auto& src = key.source().begin.line > 0 ? key.source() : node.source();
       fail(src, "unknown key '" + k + "' in " + table_name + hint + "; expected one of " +
