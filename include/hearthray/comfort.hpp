@@ -35,6 +35,7 @@
 #include "hearthray/geometry.hpp"
 #include "hearthray/patches.hpp"
 #include "hearthray/scene.hpp"
+#include "hearthray/statistics.hpp"  // factor_standard_error
 #include "hearthray/tracer.hpp"
 
 namespace hearthray {
@@ -62,8 +63,6 @@ struct DirectionTally {
   double factor(std::uint32_t p) const;  // hits / rays (0 when not hit)
   double lost() const;                   // (escaped + back_face) / rays
 };
-// Standard error of a factor estimated from n rays: sqrt(F(1-F)/n).
-double factor_standard_error(double f, std::uint64_t n);
 // Sum of the factors to the patches of surface `surface` (both sides of a two-sided one).
 double factor_to_surface(const DirectionTally& t, const PatchSet& patches, std::uint32_t surface);
 

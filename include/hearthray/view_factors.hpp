@@ -86,7 +86,8 @@ struct ViewFactors {
   double max_correction_sigma = 0;      // largest smoothing change, in standard errors
 
   std::size_t size() const { return names.size(); }
-  // Standard error of a factor estimated from `rays[i]` rays: sqrt(F(1-F)/N_i).
+  // Standard error of a factor estimated from `rays[i]` rays: sqrt(F(1-F)/N_i)
+  // (factor_standard_error in statistics.hpp).
   double standard_error(std::size_t i, double f) const;
 
   // Eigen 3.4's SparseMatrix has no move operations: a "move" would copy a matrix that holds

@@ -141,10 +141,6 @@ double DirectionTally::lost() const {
   return rays ? double(escaped + back_face) / double(rays) : 0;
 }
 
-double factor_standard_error(double f, std::uint64_t n) {
-  return n ? std::sqrt(std::max(0.0, f * (1 - f)) / double(n)) : 0;
-}
-
 double factor_to_surface(const DirectionTally& t, const PatchSet& patches, std::uint32_t surface) {
   std::uint64_t hits = 0;
   for (std::size_t k = 0; k < t.patch.size(); ++k) {

@@ -7,6 +7,7 @@
 #include <string>
 
 #include "hearthray/error.hpp"
+#include "hearthray/statistics.hpp"
 #include "hearthray/view_factors.hpp"
 #include "factors/view_factors_check.hpp"
 
@@ -72,11 +73,7 @@ void check_tallies(const PatchSet& patches, const Tallies& t) {
 }  // namespace tallies_detail
 
 double ViewFactors::standard_error(std::size_t i, double f) const {
-  const std::uint64_t n = rays.at(i);
-  if (n == 0) return std::numeric_limits<double>::infinity();
-  // Binomial proportion: each ray lands on the receiver or not.
-  const double p = std::clamp(f, 0.0, 1.0);
-  return std::sqrt(p * (1 - p) / static_cast<double>(n));
+  return factor_standard_error(f, rays.at(i));
 }
 
 ViewFactors raw_view_factors(const PatchSet& patches, const Tallies& tallies) {

@@ -12,6 +12,7 @@
 #include <string>
 
 #include "hearthray/error.hpp"
+#include "hearthray/statistics.hpp"
 
 namespace hearthray {
 namespace smoothing_detail {
@@ -213,10 +214,8 @@ struct ProductKernel {
 // Standard error used to express a correction, with the proportion kept at least one ray away
 // from 0 and 1: a zero count still carries an uncertainty of about one ray.
 double correction_sigma(double f, std::uint64_t rays) {
-  const double n = static_cast<double>(rays);
-  const double lo = std::min(0.5, 1 / n);
-  const double q = std::clamp(f, lo, 1 - lo);
-  return std::sqrt(q * (1 - q) / n);
+  const double lo = std::min(0.5, 1 / static_cast<double>(rays));
+  return factor_standard_error(std::clamp(f, lo, 1 - lo), rays);
 }
 
 }  // namespace
