@@ -10,18 +10,11 @@
 #include <cstdint>
 
 #include "hearthray/geometry.hpp"
+#include "hearthray/hash.hpp"
 
 namespace hearthray {
 
 inline constexpr double kPi = 3.14159265358979323846;
-
-// SplitMix64 finalizer (Steele, Lea & Flood, "Fast splittable pseudorandom number
-// generators", OOPSLA 2014): a bijective 64-bit mix with good avalanche.
-constexpr std::uint64_t mix64(std::uint64_t z) {
-  z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ull;
-  z = (z ^ (z >> 27)) * 0x94d049bb133111ebull;
-  return z ^ (z >> 31);
-}
 
 // Key of the random stream of one patch.
 constexpr std::uint64_t patch_stream_key(std::uint64_t seed, std::uint64_t patch) {

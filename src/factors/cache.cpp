@@ -13,6 +13,7 @@
 #include <sstream>
 
 #include "hearthray/error.hpp"
+#include "hearthray/hash.hpp"
 
 namespace hearthray {
 namespace {
@@ -24,16 +25,6 @@ constexpr std::uint32_t kLayoutVersion = 1;
 // magic, layout version + spare, key (2), patches, surfaces, rows, emitter_begin, hits,
 // trace seconds, payload hash (2).
 constexpr std::size_t kHeaderBytes = 8 + 8 + 16 + 5 * 8 + 8 + 16;
-
-// The finaliser of SplitMix64 (Steele, Lea & Flood, "Fast splittable pseudorandom number
-// generators", OOPSLA 2014): a bijection that mixes every input bit into every output bit.
-std::uint64_t fmix(std::uint64_t x) {
-  x ^= x >> 30;
-  x *= 0xbf58476d1ce4e5b9ull;
-  x ^= x >> 27;
-  x *= 0x94d049bb133111ebull;
-  return x ^ (x >> 31);
-}
 
 std::uint64_t rotl(std::uint64_t x, int r) {
   return (x << r) | (x >> (64 - r));
@@ -68,13 +59,13 @@ class Hasher {
   }
   TallyCacheKey finish() {
     if (fill_ > 0) absorb();
-    mix_ = rotl(mix_ ^ fmix(length_), 27) * 0x9e3779b97f4a7c15ull + 0x632be59bd9b14b3bull;
-    return {fnv_, fmix(mix_)};
+    mix_ = rotl(mix_ ^ mix64(length_), 27) * 0x9e3779b97f4a7c15ull + 0x632be59bd9b14b3bull;
+    return {fnv_, mix64(mix_)};
   }
 
  private:
   void absorb() {
-    mix_ = rotl(mix_ ^ fmix(block_), 27) * 0x9e3779b97f4a7c15ull + 0x632be59bd9b14b3bull;
+    mix_ = rotl(mix_ ^ mix64(block_), 27) * 0x9e3779b97f4a7c15ull + 0x632be59bd9b14b3bull;
     block_ = 0;
     fill_ = 0;
   }
