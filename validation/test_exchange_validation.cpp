@@ -20,7 +20,6 @@ using namespace hearthray::testing;
 namespace {
 
 constexpr double kSigma = kStefanBoltzmann;
-constexpr double kPi = 3.14159265358979323846;
 
 double Eb(double kelvin) {
   return kSigma * std::pow(kelvin, 4);

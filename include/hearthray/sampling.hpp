@@ -11,10 +11,9 @@
 
 #include "hearthray/geometry.hpp"
 #include "hearthray/hash.hpp"
+#include "hearthray/units.hpp"  // kPi
 
 namespace hearthray {
-
-inline constexpr double kPi = 3.14159265358979323846;
 
 // Key of the random stream of one patch.
 constexpr std::uint64_t patch_stream_key(std::uint64_t seed, std::uint64_t patch) {

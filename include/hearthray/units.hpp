@@ -9,6 +9,9 @@ namespace hearthray {
 // Stefan-Boltzmann constant, CODATA 2018 (exact in the 2019 SI), W m^-2 K^-4.
 inline constexpr double kStefanBoltzmann = 5.670374419e-8;
 
+// pi, to the precision of a double.
+inline constexpr double kPi = 3.14159265358979323846;
+
 // 0 degrees Celsius in kelvin (exact, by the definition of the Celsius scale).
 inline constexpr double kZeroCelsius = 273.15;
 

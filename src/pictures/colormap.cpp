@@ -10,11 +10,10 @@
 #include <cmath>
 
 #include "hearthray/render.hpp"
+#include "hearthray/units.hpp"
 
 namespace hearthray {
 namespace {
-
-constexpr double kPi = 3.14159265358979323846;
 
 struct Lab {
   double L, a, b;

@@ -3,10 +3,10 @@
 #include <cmath>
 #include <stdexcept>
 
+#include "hearthray/units.hpp"  // kPi
+
 namespace hearthray::testing {
 namespace {
-
-constexpr double kPi = 3.14159265358979323846;
 
 void require_positive(double v, const char* what) {
   if (!(v > 0) || !std::isfinite(v)) {

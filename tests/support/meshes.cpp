@@ -9,10 +9,10 @@
 #include <utility>
 #include <vector>
 
+#include "hearthray/units.hpp"  // kPi
+
 namespace hearthray::testing {
 namespace {
-
-constexpr double kPi = 3.14159265358979323846;
 
 // Accumulates vertices and grouped faces and writes them as OBJ text (1-based indices).
 class ObjWriter {
