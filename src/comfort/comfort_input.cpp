@@ -6,6 +6,7 @@
 #include <cstdlib>
 
 #include "comfort/comfort_input_toml.hpp"
+#include "core/text.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/scene_file.hpp"
 
@@ -19,12 +20,6 @@ const std::vector<std::string> kGridKeys = {"height", "spacing", "margin", "kind
 
 // The simple operative-temperature form of ISO 7726 / ASHRAE 55 is stated up to 1 m/s.
 constexpr double kMaxAirSpeed = 1.0;
-
-std::string join(const std::vector<std::string>& items) {
-  std::string out;
-  for (std::size_t i = 0; i < items.size(); ++i) out += (i ? ", " : "") + items[i];
-  return out;
-}
 
 class ComfortReader {
  public:

@@ -1,5 +1,6 @@
 #include "core/text.hpp"
 
+#include <algorithm>
 #include <charconv>
 #include <cmath>
 #include <cstdio>
@@ -23,6 +24,20 @@ std::string rounded(const char* spec, double v) {
 
 std::string percent(double fraction) {
   return rounded(fraction >= 0.001 ? "%.1f %%" : "%.2g %%", 100 * fraction);
+}
+
+std::string join(const std::vector<std::string>& items, const std::string& separator) {
+  std::string out;
+  for (std::size_t i = 0; i < items.size(); ++i) out += (i ? separator : "") + items[i];
+  return out;
+}
+
+std::string join_at_most(const std::vector<std::string>& items, std::size_t most) {
+  const std::vector<std::string> shown(items.begin(),
+                                       items.begin() + std::ptrdiff_t(std::min(most, items.size())));
+  std::string out = join(shown);
+  if (items.size() > most) out += " and " + std::to_string(items.size() - most) + " more";
+  return out;
 }
 
 }  // namespace hearthray

@@ -1,4 +1,4 @@
-// Text of numbers, one policy, for every stage of the library.
+// Text of numbers and of lists, one policy each, for every stage of the library.
 //
 // Machine files (CSV, Matrix Market, VTU, and text the library writes into JSON or NPY
 // headers by hand) print a double as the shortest text that reads back as the same double
@@ -6,7 +6,9 @@
 // reader needs, through `rounded`, and say percentages through `percent`.
 #pragma once
 
+#include <cstddef>
 #include <string>
+#include <vector>
 
 namespace hearthray {
 
@@ -20,5 +22,11 @@ std::string rounded(const char* spec, double v);
 // A fraction as a percentage for messages: "12.3 %"; below 0.1 % two significant digits
 // ("0.0042 %") so a small share does not read as zero.
 std::string percent(double fraction);
+
+// "a, b, c": the items with `separator` between them.
+std::string join(const std::vector<std::string>& items, const std::string& separator = ", ");
+
+// "a, b, c, d, e and 3 more": the first `most` items, then how many were left out.
+std::string join_at_most(const std::vector<std::string>& items, std::size_t most);
 
 }  // namespace hearthray

@@ -88,10 +88,7 @@ void check_temperature_level(const ExchangeProblem& problem, const Setup& s) {
           "cannot say how hot the enclosure is; " +
           advice("at least one surface"));
     }
-    std::string list;
-    for (std::size_t j = 0; j < names.size() && j < 5; ++j) list += (j ? ", " : "") + names[j];
-    if (names.size() > 5) list += " and " + std::to_string(names.size() - 5) + " more";
-    throw InputError("surfaces " + list +
+    throw InputError("surfaces " + join_at_most(names, 5) +
                      " exchange radiation only among themselves and nothing fixes their "
                      "temperature level; " +
                      advice("at least one of them"));

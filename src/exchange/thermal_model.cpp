@@ -51,12 +51,10 @@ std::string leaving_list(const ThermalModel& m, std::size_t* count) {
     return a.first > b.first || (a.first == b.first && a.second < b.second);
   });
   *count = shares.size();
-  std::string list;
-  for (std::size_t j = 0; j < shares.size() && j < 5; ++j) {
-    list += (j ? ", '" : "'") + m.nodes[shares[j].second].name + "' " + percent(shares[j].first);
-  }
-  if (shares.size() > 5) list += " and " + std::to_string(shares.size() - 5) + " more";
-  return list;
+  std::vector<std::string> items;
+  for (const auto& [share, k] : shares)
+    items.push_back("'" + m.nodes[k].name + "' " + percent(share));
+  return join_at_most(items, 5);
 }
 
 }  // namespace

@@ -31,12 +31,6 @@ const std::vector<std::string> kSurfaceKeys = {"two_sided",  "emissivity", "temp
 const std::vector<std::string> kConvectionKeys = {"h", "fluid"};
 const std::vector<std::string> kWallKeys = {"U", "outside", "thickness", "conductivity"};
 
-std::string join(const std::vector<std::string>& items) {
-  std::string out;
-  for (std::size_t i = 0; i < items.size(); ++i) out += (i ? ", " : "") + items[i];
-  return out;
-}
-
 std::size_t edit_distance(const std::string& a, const std::string& b) {
   std::vector<std::size_t> row(b.size() + 1);
   for (std::size_t j = 0; j <= b.size(); ++j) row[j] = j;

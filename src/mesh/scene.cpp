@@ -18,6 +18,7 @@
 #include <unordered_map>
 #include <unordered_set>
 
+#include "core/text.hpp"
 #include "hearthray/error.hpp"
 
 namespace hearthray {
@@ -176,12 +177,6 @@ PreScan prescan(const std::string& text, const std::string& name) {
     }
   }
   return scan;
-}
-
-std::string join(const std::vector<std::string>& items, const std::string& sep) {
-  std::string out;
-  for (std::size_t i = 0; i < items.size(); ++i) out += (i ? sep : "") + items[i];
-  return out;
 }
 
 // tinyobjloader warnings we have not already turned into errors: keep the ones that tell the
