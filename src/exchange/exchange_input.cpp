@@ -122,6 +122,101 @@ void check_surroundings(const ExchangeProblem& problem, const Setup& s) {
                    "; add a [surroundings] temperature, or close the geometry");
 }
 
+// The faces: node, emissivity, area and fractions lost, each checked; and the view factors.
+void set_up_faces(const ExchangeProblem& problem, Setup* s) {
+  const ViewFactors& vf = *problem.view_factors;
+  s->eps.resize(s->faces);
+  s->area.resize(s->faces);
+  s->to_surroundings.resize(s->faces);
+  s->node_of_face.resize(s->faces);
+  s->node_area = Eigen::VectorXd::Zero(s->nodes);
+  for (std::size_t i = 0; i < s->faces; ++i) {
+    const ExchangeFace& face = problem.faces[i];
+    if (face.node >= s->nodes) {
+      throw InputError(face_label(problem, i) + " belongs to node " + std::to_string(face.node) +
+                       " but there are only " + std::to_string(s->nodes) + " nodes");
+    }
+    if (!(face.emissivity > 0 && face.emissivity <= 1)) {
+      throw InputError(face_label(problem, i) + " has emissivity " +
+                       rounded("%.6g", face.emissivity) +
+                       "; a gray surface needs an emissivity above 0 and at most 1");
+    }
+    if (!(std::isfinite(vf.areas[i]) && vf.areas[i] > 0)) {
+      throw InputError(face_label(problem, i) + " has area " + rounded("%.6g", vf.areas[i]) +
+                       " m^2; every face needs a positive area");
+    }
+    const double escaped = vf.to_surroundings.empty() ? 0 : vf.to_surroundings[i];
+    const double back = vf.to_back_faces.empty() ? 0 : vf.to_back_faces[i];
+    if (!(escaped >= 0 && back >= 0 && std::isfinite(escaped + back))) {
+      throw InputError(face_label(problem, i) +
+                       " has a negative or invalid fraction to the "
+                       "surroundings or to back faces");
+    }
+    s->eps[i] = face.emissivity;
+    s->area[i] = vf.areas[i];
+    s->to_surroundings[i] = escaped + back;
+    s->node_of_face[i] = face.node;
+    s->node_area[face.node] += vf.areas[i];
+  }
+  for (int i = 0; i < vf.F.outerSize(); ++i) {
+    for (SparseMatrix::InnerIterator it(vf.F, i); it; ++it) {
+      if (!(std::isfinite(it.value()) && it.value() >= 0)) {
+        throw InputError("the view factor from " + face_label(problem, i) + " to " +
+                         face_label(problem, it.col()) + " is " + rounded("%.6g", it.value()) +
+                         "; view factors must be finite and not negative");
+      }
+    }
+  }
+}
+
+// Node k's condition (given temperature, heat flux, power or none) and its convection and
+// wall loss, each checked.
+void set_up_node(const ExchangeProblem& problem, std::size_t k, Setup* s) {
+  const ExchangeNode& node = problem.nodes[k];
+  const std::string label = "surface " + quoted(node.name);
+  if (s->node_area[k] == 0) {
+    throw InputError(label + " has no face: every node needs at least one face to radiate");
+  }
+  const NodeCondition& c = node.condition;
+  if (!std::isfinite(c.value)) {
+    throw InputError(label + " has a condition value that is not a finite number");
+  }
+  switch (c.kind) {
+    case ConditionKind::temperature:
+      require_kelvin(c.value, "the temperature of " + label);
+      s->fixed[k] = true;
+      s->fixed_K[k] = c.value;
+      break;
+    case ConditionKind::heat_flux:
+      s->input_W[k] = c.value * s->node_area[k];
+      break;
+    case ConditionKind::power:
+      s->input_W[k] = c.value;
+      break;
+    case ConditionKind::adiabatic:
+      s->input_W[k] = 0;
+      break;
+  }
+  if (c.convection) {
+    if (!(std::isfinite(c.convection->h) && c.convection->h >= 0)) {
+      throw InputError(label + " has a convection coefficient h = " +
+                       rounded("%.6g", c.convection->h) + " W/(m^2 K); it must be 0 or more");
+    }
+    require_kelvin(c.convection->fluid_K, "the fluid temperature of " + label);
+    s->hA[k] = c.convection->h * s->node_area[k];
+    s->fluid_K[k] = c.convection->fluid_K;
+  }
+  if (c.wall_loss) {
+    if (!(std::isfinite(c.wall_loss->U) && c.wall_loss->U >= 0)) {
+      throw InputError(label + " has a wall coefficient U = " + rounded("%.6g", c.wall_loss->U) +
+                       " W/(m^2 K); it must be 0 or more");
+    }
+    require_kelvin(c.wall_loss->outside_K, "the outside temperature of " + label);
+    s->UA[k] = c.wall_loss->U * s->node_area[k];
+    s->outside_K[k] = c.wall_loss->outside_K;
+  }
+}
+
 }  // namespace
 
 Setup check_and_set_up(const ExchangeProblem& problem) {
@@ -145,98 +240,12 @@ Setup check_and_set_up(const ExchangeProblem& problem) {
   require_size(vf.names.size(), s.faces, "patch names", true);
   require_size(vf.to_surroundings.size(), s.faces, "escaped fractions", true);
   require_size(vf.to_back_faces.size(), s.faces, "back-face fractions", true);
-
-  s.eps.resize(s.faces);
-  s.area.resize(s.faces);
-  s.to_surroundings.resize(s.faces);
-  s.node_of_face.resize(s.faces);
-  s.node_area = Eigen::VectorXd::Zero(s.nodes);
-  for (std::size_t i = 0; i < s.faces; ++i) {
-    const ExchangeFace& face = problem.faces[i];
-    if (face.node >= s.nodes) {
-      throw InputError(face_label(problem, i) + " belongs to node " + std::to_string(face.node) +
-                       " but there are only " + std::to_string(s.nodes) + " nodes");
-    }
-    if (!(face.emissivity > 0 && face.emissivity <= 1)) {
-      throw InputError(face_label(problem, i) + " has emissivity " +
-                       rounded("%.6g", face.emissivity) +
-                       "; a gray surface needs an emissivity above 0 and at most 1");
-    }
-    if (!(std::isfinite(vf.areas[i]) && vf.areas[i] > 0)) {
-      throw InputError(face_label(problem, i) + " has area " + rounded("%.6g", vf.areas[i]) +
-                       " m^2; every face needs a positive area");
-    }
-    const double escaped = vf.to_surroundings.empty() ? 0 : vf.to_surroundings[i];
-    const double back = vf.to_back_faces.empty() ? 0 : vf.to_back_faces[i];
-    if (!(escaped >= 0 && back >= 0 && std::isfinite(escaped + back))) {
-      throw InputError(face_label(problem, i) +
-                       " has a negative or invalid fraction to the "
-                       "surroundings or to back faces");
-    }
-    s.eps[i] = face.emissivity;
-    s.area[i] = vf.areas[i];
-    s.to_surroundings[i] = escaped + back;
-    s.node_of_face[i] = face.node;
-    s.node_area[face.node] += vf.areas[i];
-  }
-  for (int i = 0; i < vf.F.outerSize(); ++i) {
-    for (SparseMatrix::InnerIterator it(vf.F, i); it; ++it) {
-      if (!(std::isfinite(it.value()) && it.value() >= 0)) {
-        throw InputError("the view factor from " + face_label(problem, i) + " to " +
-                         face_label(problem, it.col()) + " is " + rounded("%.6g", it.value()) +
-                         "; view factors must be finite and not negative");
-      }
-    }
-  }
+  set_up_faces(problem, &s);
 
   s.hA = s.fluid_K = s.UA = s.outside_K = s.input_W = s.fixed_K = Eigen::VectorXd::Zero(s.nodes);
   s.fixed.assign(s.nodes, false);
   for (const ExchangeNode& node : problem.nodes) s.node_names.push_back(node.name);
-  for (std::size_t k = 0; k < s.nodes; ++k) {
-    const ExchangeNode& node = problem.nodes[k];
-    const std::string label = "surface " + quoted(node.name);
-    if (s.node_area[k] == 0) {
-      throw InputError(label + " has no face: every node needs at least one face to radiate");
-    }
-    const NodeCondition& c = node.condition;
-    if (!std::isfinite(c.value)) {
-      throw InputError(label + " has a condition value that is not a finite number");
-    }
-    switch (c.kind) {
-      case ConditionKind::temperature:
-        require_kelvin(c.value, "the temperature of " + label);
-        s.fixed[k] = true;
-        s.fixed_K[k] = c.value;
-        break;
-      case ConditionKind::heat_flux:
-        s.input_W[k] = c.value * s.node_area[k];
-        break;
-      case ConditionKind::power:
-        s.input_W[k] = c.value;
-        break;
-      case ConditionKind::adiabatic:
-        s.input_W[k] = 0;
-        break;
-    }
-    if (c.convection) {
-      if (!(std::isfinite(c.convection->h) && c.convection->h >= 0)) {
-        throw InputError(label + " has a convection coefficient h = " +
-                         rounded("%.6g", c.convection->h) + " W/(m^2 K); it must be 0 or more");
-      }
-      require_kelvin(c.convection->fluid_K, "the fluid temperature of " + label);
-      s.hA[k] = c.convection->h * s.node_area[k];
-      s.fluid_K[k] = c.convection->fluid_K;
-    }
-    if (c.wall_loss) {
-      if (!(std::isfinite(c.wall_loss->U) && c.wall_loss->U >= 0)) {
-        throw InputError(label + " has a wall coefficient U = " + rounded("%.6g", c.wall_loss->U) +
-                         " W/(m^2 K); it must be 0 or more");
-      }
-      require_kelvin(c.wall_loss->outside_K, "the outside temperature of " + label);
-      s.UA[k] = c.wall_loss->U * s.node_area[k];
-      s.outside_K[k] = c.wall_loss->outside_K;
-    }
-  }
+  for (std::size_t k = 0; k < s.nodes; ++k) set_up_node(problem, k, &s);
   if (problem.surroundings_K) {
     require_kelvin(*problem.surroundings_K, "the surroundings temperature");
     s.surroundings_Eb = kStefanBoltzmann * std::pow(*problem.surroundings_K, 4);

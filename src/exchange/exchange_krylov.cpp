@@ -28,6 +28,43 @@ void multiply(const SparseMatrix& F, const Eigen::VectorXd& x, Eigen::VectorXd* 
                     });
 }
 
+namespace {
+
+// Column j of the Hessenberg matrix from w = A M^-1 v_j: w orthogonalised against the basis
+// v_0 .. v_j by classical Gram-Schmidt, twice ("twice is enough": Giraud, Langou & Rozloznik
+// 2005); then the earlier Givens rotations, and a new one that keeps H upper triangular and
+// g the rotated residual. *h_next is |w| after orthogonalisation. Returns false on breakdown
+// (A z = 0 for a non-zero z: the operator is singular here).
+bool arnoldi_column(const Eigen::MatrixXd& V, Eigen::Index j, Eigen::VectorXd* w,
+                    Eigen::MatrixXd* H, Eigen::VectorXd* cs, Eigen::VectorXd* sn,
+                    Eigen::VectorXd* g, double* h_next) {
+  const auto basis = V.leftCols(j + 1);
+  Eigen::VectorXd h = basis.transpose() * *w;
+  w->noalias() -= basis * h;
+  const Eigen::VectorXd h2 = basis.transpose() * *w;
+  w->noalias() -= basis * h2;
+  h += h2;
+  H->col(j).head(j + 1) = h;
+  *h_next = w->norm();
+  (*H)(j + 1, j) = *h_next;
+  for (Eigen::Index i = 0; i < j; ++i) {
+    const double a = (*H)(i, j), c = (*H)(i + 1, j);
+    (*H)(i, j) = (*cs)[i] * a + (*sn)[i] * c;
+    (*H)(i + 1, j) = -(*sn)[i] * a + (*cs)[i] * c;
+  }
+  const double d = std::hypot((*H)(j, j), *h_next);
+  if (!(d > 0)) return false;
+  (*cs)[j] = (*H)(j, j) / d;
+  (*sn)[j] = *h_next / d;
+  (*H)(j, j) = d;
+  (*H)(j + 1, j) = 0;
+  (*g)[j + 1] = -(*sn)[j] * (*g)[j];
+  (*g)[j] *= (*cs)[j];
+  return true;
+}
+
+}  // namespace
+
 KrylovSummary gmres(const LinearOperator& A, const LinearOperator& precondition,
                     const Eigen::VectorXd& b, const KrylovOptions& options, Eigen::VectorXd* x) {
   using Eigen::Index;
@@ -65,33 +102,11 @@ KrylovSummary gmres(const LinearOperator& A, const LinearOperator& precondition,
       apply_preconditioner(V.col(j), &z);
       A(z, &w);
       ++summary.iterations;
-      // Classical Gram-Schmidt, twice ("twice is enough": Giraud, Langou & Rozloznik 2005).
-      const auto basis = V.leftCols(j + 1);
-      Eigen::VectorXd h = basis.transpose() * w;
-      w.noalias() -= basis * h;
-      const Eigen::VectorXd h2 = basis.transpose() * w;
-      w.noalias() -= basis * h2;
-      h += h2;
-      H.col(j).head(j + 1) = h;
-      const double h_next = w.norm();
-      H(j + 1, j) = h_next;
-      // Givens rotations keep H upper triangular and g the rotated residual.
-      for (Index i = 0; i < j; ++i) {
-        const double a = H(i, j), c = H(i + 1, j);
-        H(i, j) = cs[i] * a + sn[i] * c;
-        H(i + 1, j) = -sn[i] * a + cs[i] * c;
-      }
-      const double d = std::hypot(H(j, j), h_next);
-      if (!(d > 0)) {  // A z = 0 for a non-zero z: the operator is singular here
+      double h_next = 0;
+      if (!arnoldi_column(V, j, &w, &H, &cs, &sn, &g, &h_next)) {
         broke_down = true;
         break;
       }
-      cs[j] = H(j, j) / d;
-      sn[j] = h_next / d;
-      H(j, j) = d;
-      H(j + 1, j) = 0;
-      g[j + 1] = -sn[j] * g[j];
-      g[j] *= cs[j];
       ++j;
       if (!(h_next > 0) || std::abs(g[j]) <= target) break;
       V.col(j) = w / h_next;

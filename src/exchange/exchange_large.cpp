@@ -109,6 +109,12 @@ class LargeSolver {
   void apply_schur(const Eigen::VectorXd& x, Eigen::VectorXd* out) const;
   std::string not_converged_message(const Residuals& res, const Iterate& it, int steps) const;
   double forcing_term(double ratio);
+  void start(Iterate* it) const;
+  Eigen::VectorXd newton_rhs(const Residuals& res, const Iterate& it);
+  bool linear_solve_failed(const KrylovSummary& linear, const KrylovOptions& krylov,
+                           ExchangeResult* result) const;
+  bool update_nodes(const Residuals& res, const Eigen::VectorXd& dJ, Iterate* it,
+                    ExchangeResult* result) const;
 
   const Setup& s_;
   const ExchangeOptions& options_;
@@ -222,9 +228,9 @@ std::string LargeSolver::not_converged_message(const Residuals& res, const Itera
   return text;
 }
 
-void LargeSolver::solve(ExchangeResult* result, Iterate* it) {
-  // Start: unknown nodes at the mean known level; every face at its node's black-body
-  // radiosity. The radiosity equations are linear, so the first step puts J in line anyway.
+// Start: unknown nodes at the mean known level; every face at its node's black-body
+// radiosity. The radiosity equations are linear, so the first step puts J in line anyway.
+void LargeSolver::start(Iterate* it) const {
   const double start_E = kSigma * std::pow(reference_temperature(s_), 4);
   it->E.resize(s_.nodes);
   it->T.resize(s_.nodes);
@@ -234,7 +240,76 @@ void LargeSolver::solve(ExchangeResult* result, Iterate* it) {
   }
   it->J.resize(s_.faces);
   for (std::size_t i = 0; i < s_.faces; ++i) it->J[i] = it->E[s_.node_of_face[i]];
+}
 
+// The right-hand side of the Newton system in dJ, with dE eliminated node by node (sets a_).
+Eigen::VectorXd LargeSolver::newton_rhs(const Residuals& res, const Iterate& it) {
+  const Eigen::VectorXd weight_sums = node_sums(Eigen::VectorXd::Ones(s_.faces));
+  for (std::size_t k = 0; k < s_.nodes; ++k) {
+    if (s_.fixed[k]) continue;
+    const double dT_dE = 1 / (4 * kSigma * std::pow(it.T[k], 3));
+    a_[k] = weight_sums[k] + (s_.hA[k] + s_.UA[k]) * dT_dE;
+  }
+  Eigen::VectorXd b(s_.faces);
+  for (std::size_t i = 0; i < s_.faces; ++i) {
+    const std::uint32_t k = s_.node_of_face[i];
+    b[i] = -res.face[i] - (s_.fixed[k] ? 0.0 : s_.eps[i] * res.node[k] / a_[k]);
+  }
+  return b;
+}
+
+// A linear solve that broke down or did not reach its tolerance ends the solve with a status.
+bool LargeSolver::linear_solve_failed(const KrylovSummary& linear, const KrylovOptions& krylov,
+                                      ExchangeResult* result) const {
+  if (linear.breakdown) {
+    result->status = ExchangeStatus::singular;
+    result->message = "the Newton system of step " + std::to_string(result->iterations + 1) +
+                      " is singular (GMRES broke down); check the view factors (rows must sum "
+                      "to 1 or less, none negative)";
+    return true;
+  }
+  if (!linear.converged) {
+    result->status = ExchangeStatus::not_converged;
+    result->message =
+        "the linear solve of Newton step " + std::to_string(result->iterations + 1) + " (GMRES(" +
+        std::to_string(krylov.restart) + ")) reached relative residual " +
+        rounded("%.6g", linear.relative_residual) + ", not the " +
+        rounded("%.6g", krylov.tolerance) + " asked, after " + std::to_string(linear.iterations) +
+        " iterations; raise max_linear_iterations, or check the view factors (rows must sum "
+        "to 1 or less)";
+    return true;
+  }
+  return false;
+}
+
+// Moves the node levels by the dE that dJ implies, each limited to a factor kStepFactor in
+// temperature. Returns false (with a status) when radiation alone cannot balance a node.
+bool LargeSolver::update_nodes(const Residuals& res, const Eigen::VectorXd& dJ, Iterate* it,
+                               ExchangeResult* result) const {
+  Eigen::VectorXd FdJ;
+  multiply(*s_.F, dJ, &FdJ);
+  const Eigen::VectorXd received = node_sums(FdJ);
+  for (std::size_t k = 0; k < s_.nodes; ++k) {
+    if (s_.fixed[k]) continue;
+    const double dE = (-res.node[k] + received[k]) / a_[k];
+    if (!nonlinear_ && !(it->E[k] + dE > 0)) {
+      // Radiation only: the problem is linear and this step went to its exact answer.
+      result->status = ExchangeStatus::not_converged;
+      result->message = "no solution with positive temperatures: surface '" + s_.node_names[k] +
+                        "' would need sigma T^4 = " + rounded("%.6g", it->E[k] + dE) +
+                        " W/m^2 to balance its heat input " + rounded("%.6g", s_.input_W[k]) +
+                        " W (more heat is taken out than radiation can bring to it)";
+      return false;
+    }
+    const double factor4 = std::pow(kStepFactor, 4);
+    it->E[k] = std::clamp(it->E[k] + dE, it->E[k] / factor4, it->E[k] * factor4);
+    it->T[k] = kelvin_of(it->E[k]);
+  }
+  return true;
+}
+
+void LargeSolver::solve(ExchangeResult* result, Iterate* it) {
+  start(it);
   const LinearOperator schur = [this](const Eigen::VectorXd& x, Eigen::VectorXd* out) {
     apply_schur(x, out);
   };
@@ -259,60 +334,14 @@ void LargeSolver::solve(ExchangeResult* result, Iterate* it) {
       result->message = not_converged_message(res, *it, result->iterations);
       return;
     }
-    // The Newton system, with dE eliminated node by node.
-    const Eigen::VectorXd weight_sums = node_sums(Eigen::VectorXd::Ones(s_.faces));
-    for (std::size_t k = 0; k < s_.nodes; ++k) {
-      if (s_.fixed[k]) continue;
-      const double dT_dE = 1 / (4 * kSigma * std::pow(it->T[k], 3));
-      a_[k] = weight_sums[k] + (s_.hA[k] + s_.UA[k]) * dT_dE;
-    }
-    Eigen::VectorXd b(s_.faces);
-    for (std::size_t i = 0; i < s_.faces; ++i) {
-      const std::uint32_t k = s_.node_of_face[i];
-      b[i] = -res.face[i] - (s_.fixed[k] ? 0.0 : s_.eps[i] * res.node[k] / a_[k]);
-    }
+    const Eigen::VectorXd b = newton_rhs(res, *it);
     krylov.tolerance = forcing_term(res.ratio());
     Eigen::VectorXd dJ;
     const KrylovSummary linear = gmres(schur, LinearOperator(), b, krylov, &dJ);
     result->linear_iterations += linear.iterations;
     result->linear_residual = linear.relative_residual;
-    if (linear.breakdown) {
-      result->status = ExchangeStatus::singular;
-      result->message = "the Newton system of step " + std::to_string(result->iterations + 1) +
-                        " is singular (GMRES broke down); check the view factors (rows must sum "
-                        "to 1 or less, none negative)";
-      return;
-    }
-    if (!linear.converged) {
-      result->status = ExchangeStatus::not_converged;
-      result->message =
-          "the linear solve of Newton step " + std::to_string(result->iterations + 1) + " (GMRES(" +
-          std::to_string(krylov.restart) + ")) reached relative residual " +
-          rounded("%.6g", linear.relative_residual) + ", not the " +
-          rounded("%.6g", krylov.tolerance) + " asked, after " + std::to_string(linear.iterations) +
-          " iterations; raise max_linear_iterations, or check the view factors (rows must sum "
-          "to 1 or less)";
-      return;
-    }
-    Eigen::VectorXd FdJ;
-    multiply(*s_.F, dJ, &FdJ);
-    const Eigen::VectorXd received = node_sums(FdJ);
-    for (std::size_t k = 0; k < s_.nodes; ++k) {
-      if (s_.fixed[k]) continue;
-      const double dE = (-res.node[k] + received[k]) / a_[k];
-      if (!nonlinear_ && !(it->E[k] + dE > 0)) {
-        // Radiation only: the problem is linear and this step went to its exact answer.
-        result->status = ExchangeStatus::not_converged;
-        result->message = "no solution with positive temperatures: surface '" + s_.node_names[k] +
-                          "' would need sigma T^4 = " + rounded("%.6g", it->E[k] + dE) +
-                          " W/m^2 to balance its heat input " + rounded("%.6g", s_.input_W[k]) +
-                          " W (more heat is taken out than radiation can bring to it)";
-        return;
-      }
-      const double factor4 = std::pow(kStepFactor, 4);
-      it->E[k] = std::clamp(it->E[k] + dE, it->E[k] / factor4, it->E[k] * factor4);
-      it->T[k] = kelvin_of(it->E[k]);
-    }
+    if (linear_solve_failed(linear, krylov, result)) return;
+    if (!update_nodes(res, dJ, it, result)) return;
     it->J += dJ;
     ++result->iterations;
   }

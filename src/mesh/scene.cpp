@@ -90,73 +90,88 @@ std::vector<std::string> split_lines(const std::string& text) {
   return lines;
 }
 
+// "mesh.obj:12: ", the start of a message about one line.
+std::string at_line(const std::string& name, std::size_t line_no) {
+  return name + ":" + std::to_string(line_no) + ": ";
+}
+
+// A 'v x y z' line (without its "v "): three finite numbers.
+Vec3 parse_vertex(const std::string& rest, const std::string& name, std::size_t line_no) {
+  const std::vector<std::string> t = split_blanks(rest);
+  if (t.size() < 3) {
+    throw InputError(at_line(name, line_no) + "vertex line has " + std::to_string(t.size()) +
+                     " coordinate(s); a 'v' line needs three numbers: v x y z");
+  }
+  double c[3];
+  for (int k = 0; k < 3; ++k) {
+    if (!parse_number(t[k], &c[k]) || !std::isfinite(c[k])) {
+      throw InputError(at_line(name, line_no) + "vertex coordinate '" + t[k] +
+                       "' is not a finite number; write v x y z as decimal numbers");
+    }
+  }
+  return {c[0], c[1], c[2]};
+}
+
+// A face index past the vertices read so far: checked once the whole file is read.
+struct ForwardRef {
+  std::size_t line;
+  long index;
+};
+
+// An 'f ...' line (without its "f "): at least three corners, each v, v/vt, v//vn or
+// v/vt/vn with non-zero integer indices; a vertex counted back must exist already.
+void check_face(const std::string& rest, long vertices_so_far, const std::string& name,
+                std::size_t line_no, std::vector<ForwardRef>* forward) {
+  const std::vector<std::string> t = split_blanks(rest);
+  if (t.size() < 3) {
+    throw InputError(at_line(name, line_no) + "face has " + std::to_string(t.size()) +
+                     " vertex index(es); a face needs at least 3");
+  }
+  for (const std::string& corner : t) {
+    std::vector<std::string> parts;
+    std::stringstream ss(corner);
+    for (std::string part; std::getline(ss, part, '/');) parts.push_back(part);
+    long v = 0;
+    if (parts.empty() || !parse_integer(parts[0], &v)) {
+      throw InputError(at_line(name, line_no) + "face corner '" + corner +
+                       "' does not start with a vertex index (an integer)");
+    }
+    for (std::size_t k = 0; k < parts.size(); ++k) {
+      long index = 0;
+      if (k > 0 && parts[k].empty()) continue;
+      if (!parse_integer(parts[k], &index)) {
+        throw InputError(at_line(name, line_no) + "face corner '" + corner + "' has index '" +
+                         parts[k] + "' that is not an integer");
+      }
+      if (index == 0) {
+        throw InputError(at_line(name, line_no) + "face corner '" + corner +
+                         "' has index 0; OBJ indices start at 1 (or -1 for the last)");
+      }
+    }
+    if (v < 0 && -v > vertices_so_far) {
+      throw InputError(at_line(name, line_no) + "face refers to vertex " + std::to_string(v) +
+                       " (counted back from here), but only " + std::to_string(vertices_so_far) +
+                       " vertices come before it");
+    }
+    if (v > vertices_so_far) forward->push_back({line_no, v});
+  }
+}
+
 PreScan prescan(const std::string& text, const std::string& name) {
   PreScan scan;
-  struct ForwardRef {
-    std::size_t line;
-    long index;
-  };
   std::vector<ForwardRef> forward;  // positive indices past the vertices read so far
   std::unordered_set<std::string> seen_materials;
   const std::vector<std::string> lines = split_lines(text);
   for (std::size_t n = 0; n < lines.size(); ++n) {
-    const std::size_t line_no = n + 1;
     const std::string& raw = lines[n];
     const std::size_t begin = raw.find_first_not_of(" \t");
     if (begin == std::string::npos || raw[begin] == '#') continue;
     const std::string line = raw.substr(begin);
-    auto where = [&] { return name + ":" + std::to_string(line_no) + ": "; };
     const bool blank_after_1 = line.size() > 1 && (line[1] == ' ' || line[1] == '\t');
     if (line[0] == 'v' && blank_after_1) {
-      const std::vector<std::string> t = split_blanks(line.substr(2));
-      if (t.size() < 3) {
-        throw InputError(where() + "vertex line has " + std::to_string(t.size()) +
-                         " coordinate(s); a 'v' line needs three numbers: v x y z");
-      }
-      double c[3];
-      for (int k = 0; k < 3; ++k) {
-        if (!parse_number(t[k], &c[k]) || !std::isfinite(c[k])) {
-          throw InputError(where() + "vertex coordinate '" + t[k] +
-                           "' is not a finite number; write v x y z as decimal numbers");
-        }
-      }
-      scan.vertices.emplace_back(c[0], c[1], c[2]);
+      scan.vertices.push_back(parse_vertex(line.substr(2), name, n + 1));
     } else if (line[0] == 'f' && blank_after_1) {
-      const std::vector<std::string> t = split_blanks(line.substr(2));
-      if (t.size() < 3) {
-        throw InputError(where() + "face has " + std::to_string(t.size()) +
-                         " vertex index(es); a face needs at least 3");
-      }
-      const long count = static_cast<long>(scan.vertices.size());
-      for (const std::string& corner : t) {
-        // corner is v, v/vt, v//vn or v/vt/vn; every index given must be a non-zero integer.
-        std::vector<std::string> parts;
-        std::stringstream ss(corner);
-        for (std::string part; std::getline(ss, part, '/');) parts.push_back(part);
-        long v = 0;
-        if (parts.empty() || !parse_integer(parts[0], &v)) {
-          throw InputError(where() + "face corner '" + corner +
-                           "' does not start with a vertex index (an integer)");
-        }
-        for (std::size_t k = 0; k < parts.size(); ++k) {
-          long index = 0;
-          if (k > 0 && parts[k].empty()) continue;
-          if (!parse_integer(parts[k], &index)) {
-            throw InputError(where() + "face corner '" + corner + "' has index '" + parts[k] +
-                             "' that is not an integer");
-          }
-          if (index == 0) {
-            throw InputError(where() + "face corner '" + corner +
-                             "' has index 0; OBJ indices start at 1 (or -1 for the last)");
-          }
-        }
-        if (v < 0 && -v > count) {
-          throw InputError(where() + "face refers to vertex " + std::to_string(v) +
-                           " (counted back from here), but only " + std::to_string(count) +
-                           " vertices come before it");
-        }
-        if (v > count) forward.push_back({line_no, v});
-      }
+      check_face(line.substr(2), static_cast<long>(scan.vertices.size()), name, n + 1, &forward);
       ++scan.faces;
     } else if (line.compare(0, 6, "usemtl") == 0) {
       const std::string material = trim(line.substr(6));
@@ -171,7 +186,7 @@ PreScan prescan(const std::string& text, const std::string& name) {
   const long count = static_cast<long>(scan.vertices.size());
   for (const ForwardRef& ref : forward) {
     if (ref.index > count) {
-      throw InputError(name + ":" + std::to_string(ref.line) + ": face refers to vertex " +
+      throw InputError(at_line(name, ref.line) + "face refers to vertex " +
                        std::to_string(ref.index) + ", but the file has only " +
                        std::to_string(count) + " vertices ('v' lines)");
     }
@@ -196,6 +211,146 @@ void keep_loader_warnings(const std::string& warn, const std::string& name,
       continue;
     }
     warnings->push_back(name + ": " + line);
+  }
+}
+
+// Surfaces taken from materials need every material used to be defined in the .mtl file.
+void check_materials(const PreScan& scan, const std::vector<tinyobj::material_t>& materials,
+                     const std::string& name, const std::string& mtl_dir, bool from_file,
+                     std::vector<std::string>* warnings) {
+  std::unordered_set<std::string> defined;
+  for (const auto& m : materials) defined.insert(m.name);
+  std::vector<std::string> missing;
+  for (const auto& m : scan.used_materials) {
+    if (!defined.count(m)) missing.push_back("'" + m + "'");
+  }
+  if (!missing.empty()) {
+    std::string why;
+    if (!from_file) {
+      why = "a mesh read from a stream has no .mtl file";
+    } else if (scan.material_libraries.empty()) {
+      why = "the file has no 'mtllib' line naming its .mtl file";
+    } else {
+      why = "they are not defined in " + join(scan.material_libraries) + " (looked for in '" +
+            (mtl_dir.empty() ? std::string(".") : mtl_dir) + "'; is the .mtl file missing?)";
+    }
+    throw InputError(name + ": surfaces are taken from materials, but material(s) " +
+                     join(missing) + " used by 'usemtl' cannot be named: " + why +
+                     ". Put the .mtl file beside the mesh, or take surfaces from groups");
+  }
+  if (scan.used_materials.empty()) {
+    warnings->push_back(name +
+                        ": surfaces are taken from materials, but the file has no "
+                        "'usemtl' line: all faces are in one surface 'unnamed'");
+  }
+}
+
+// Triangles per surface name, surfaces in order of first appearance.
+struct GroupedTriangles {
+  std::vector<std::string> names;
+  std::vector<std::vector<std::array<std::uint32_t, 3>>> per_surface;
+  Box3 used_bounds;  // of the vertices the triangles use
+};
+
+GroupedTriangles group_triangles(const std::vector<tinyobj::shape_t>& shapes,
+                                 const std::vector<tinyobj::material_t>& materials,
+                                 const std::vector<Vec3>& vertices, const std::string& name,
+                                 const MeshOptions& options) {
+  GroupedTriangles g;
+  std::unordered_map<std::string, std::uint32_t> index_of;
+  const auto vertex_count = static_cast<int>(vertices.size());
+  for (const tinyobj::shape_t& shape : shapes) {
+    const auto& idx = shape.mesh.indices;
+    const std::size_t n_tri = idx.size() / 3;
+    for (std::size_t t = 0; t < n_tri; ++t) {
+      std::string surface;
+      if (options.surfaces_from == SurfacesFrom::groups) {
+        surface = trim(shape.name);
+      } else {
+        const int m = t < shape.mesh.material_ids.size() ? shape.mesh.material_ids[t] : -1;
+        if (m >= 0 && m < static_cast<int>(materials.size())) surface = trim(materials[m].name);
+      }
+      if (surface.empty()) surface = kUnnamed;
+      auto it = index_of.find(surface);
+      if (it == index_of.end()) {
+        it = index_of.emplace(surface, static_cast<std::uint32_t>(g.names.size())).first;
+        g.names.push_back(surface);
+        g.per_surface.emplace_back();
+      }
+      std::array<std::uint32_t, 3> tri{};
+      for (int k = 0; k < 3; ++k) {
+        const int v = idx[3 * t + k].vertex_index;
+        // Checked by the pre-scan already; kept so a library change cannot read out of range.
+        if (v < 0 || v >= vertex_count) {
+          throw InputError(name + ": a face refers to vertex " + std::to_string(v + 1) +
+                           ", outside the " + std::to_string(vertex_count) + " vertices");
+        }
+        tri[k] = static_cast<std::uint32_t>(v);
+        g.used_bounds.grow(vertices[static_cast<std::size_t>(v)]);
+      }
+      g.per_surface[it->second].push_back(tri);
+    }
+  }
+  if (g.names.empty()) {
+    throw InputError(name + ": the mesh has no triangles after reading its faces");
+  }
+  return g;
+}
+
+// Adds surface `s` of the grouped triangles to the scene, dropping triangles whose area is at
+// most `threshold`.
+void add_surface(const GroupedTriangles& g, std::uint32_t s, double threshold,
+                 const std::string& name, Scene* scene) {
+  Surface surface;
+  surface.name = g.names[s];
+  surface.first_triangle = static_cast<std::uint32_t>(scene->triangles.size());
+  for (const auto& tri : g.per_surface[s]) {
+    const Vec3& a = scene->vertices[tri[0]];
+    const Vec3& b = scene->vertices[tri[1]];
+    const Vec3& c = scene->vertices[tri[2]];
+    const double area = 0.5 * norm(cross(b - a, c - a));
+    if (!std::isfinite(area)) {
+      throw InputError(name + ": surface '" + surface.name +
+                       "': a triangle's area overflows; the coordinates are too large (check "
+                       "the mesh unit)");
+    }
+    if (area <= threshold) {
+      ++surface.dropped_degenerate;
+      continue;
+    }
+    Triangle triangle;
+    triangle.v = tri;
+    triangle.surface = s;
+    scene->triangles.push_back(triangle);
+    surface.area += area;
+    for (std::uint32_t v : tri) scene->bounds.grow(scene->vertices[v]);
+  }
+  surface.triangle_count =
+      static_cast<std::uint32_t>(scene->triangles.size()) - surface.first_triangle;
+  if (surface.dropped_degenerate > 0) {
+    scene->warnings.push_back(name + ": surface '" + surface.name + "': dropped " +
+                              std::to_string(surface.dropped_degenerate) +
+                              " degenerate (zero-area) triangle(s)");
+  }
+  scene->surfaces.push_back(std::move(surface));
+}
+
+// Every surface must keep a triangle after degenerate ones are dropped.
+void check_usable(const Scene& scene, const std::string& name) {
+  if (scene.triangles.empty()) {
+    std::size_t dropped = 0;
+    for (const Surface& surface : scene.surfaces) dropped += surface.dropped_degenerate;
+    throw InputError(name + ": the mesh has no usable triangle: all " + std::to_string(dropped) +
+                     " triangles have zero area (degenerate)");
+  }
+  for (const Surface& surface : scene.surfaces) {
+    if (surface.triangle_count == 0) {
+      throw InputError(name + ": surface '" + surface.name +
+                       "' has only degenerate (zero-area) "
+                       "triangles (" +
+                       std::to_string(surface.dropped_degenerate) +
+                       "); fix its faces or remove it");
+    }
   }
 }
 
@@ -231,134 +386,21 @@ Scene build_scene(const std::string& text, const std::string& name, const std::s
   scene.source = name;
   keep_loader_warnings(warn, name, options, &scene.warnings);
   if (!trim(err).empty()) scene.warnings.push_back(name + ": " + trim(err));
-
-  if (options.surfaces_from == SurfacesFrom::materials) {
-    std::unordered_set<std::string> defined;
-    for (const auto& m : materials) defined.insert(m.name);
-    std::vector<std::string> missing;
-    for (const auto& m : scan.used_materials) {
-      if (!defined.count(m)) missing.push_back("'" + m + "'");
-    }
-    if (!missing.empty()) {
-      std::string why;
-      if (!from_file) {
-        why = "a mesh read from a stream has no .mtl file";
-      } else if (scan.material_libraries.empty()) {
-        why = "the file has no 'mtllib' line naming its .mtl file";
-      } else {
-        why = "they are not defined in " + join(scan.material_libraries, ", ") +
-              " (looked for in '" + (mtl_dir.empty() ? std::string(".") : mtl_dir) +
-              "'; is the .mtl file missing?)";
-      }
-      throw InputError(name + ": surfaces are taken from materials, but material(s) " +
-                       join(missing, ", ") + " used by 'usemtl' cannot be named: " + why +
-                       ". Put the .mtl file beside the mesh, or take surfaces from groups");
-    }
-    if (scan.used_materials.empty()) {
-      scene.warnings.push_back(name +
-                               ": surfaces are taken from materials, but the file has no "
-                               "'usemtl' line: all faces are in one surface 'unnamed'");
-    }
-  }
+  if (options.surfaces_from == SurfacesFrom::materials)
+    check_materials(scan, materials, name, mtl_dir, from_file, &scene.warnings);
 
   const double scale = metres_per(options.unit);
   scene.vertices.reserve(scan.vertices.size());
   for (const Vec3& p : scan.vertices) scene.vertices.push_back(p * scale);
-  const auto vertex_count = static_cast<int>(scene.vertices.size());
-
-  // Triangles per surface name, surfaces in order of first appearance.
-  std::vector<std::string> names;
-  std::vector<std::vector<std::array<std::uint32_t, 3>>> per_surface;
-  std::unordered_map<std::string, std::uint32_t> index_of;
-  Box3 used_bounds;
-  for (const tinyobj::shape_t& shape : shapes) {
-    const auto& idx = shape.mesh.indices;
-    const std::size_t n_tri = idx.size() / 3;
-    for (std::size_t t = 0; t < n_tri; ++t) {
-      std::string surface;
-      if (options.surfaces_from == SurfacesFrom::groups) {
-        surface = trim(shape.name);
-      } else {
-        const int m = t < shape.mesh.material_ids.size() ? shape.mesh.material_ids[t] : -1;
-        if (m >= 0 && m < static_cast<int>(materials.size())) surface = trim(materials[m].name);
-      }
-      if (surface.empty()) surface = kUnnamed;
-      auto it = index_of.find(surface);
-      if (it == index_of.end()) {
-        it = index_of.emplace(surface, static_cast<std::uint32_t>(names.size())).first;
-        names.push_back(surface);
-        per_surface.emplace_back();
-      }
-      std::array<std::uint32_t, 3> tri{};
-      for (int k = 0; k < 3; ++k) {
-        const int v = idx[3 * t + k].vertex_index;
-        // Checked by the pre-scan already; kept so a library change cannot read out of range.
-        if (v < 0 || v >= vertex_count) {
-          throw InputError(name + ": a face refers to vertex " + std::to_string(v + 1) +
-                           ", outside the " + std::to_string(vertex_count) + " vertices");
-        }
-        tri[k] = static_cast<std::uint32_t>(v);
-        used_bounds.grow(scene.vertices[static_cast<std::size_t>(v)]);
-      }
-      per_surface[it->second].push_back(tri);
-    }
-  }
-  if (names.empty()) {
-    throw InputError(name + ": the mesh has no triangles after reading its faces");
-  }
+  const GroupedTriangles grouped =
+      group_triangles(shapes, materials, scene.vertices, name, options);
 
   // Scale-free threshold: the same mesh in any unit drops the same triangles.
-  const double diagonal = used_bounds.diagonal();
+  const double diagonal = grouped.used_bounds.diagonal();
   const double threshold = options.degenerate_relative_area * diagonal * diagonal;
-  for (std::uint32_t s = 0; s < names.size(); ++s) {
-    Surface surface;
-    surface.name = names[s];
-    surface.first_triangle = static_cast<std::uint32_t>(scene.triangles.size());
-    for (const auto& tri : per_surface[s]) {
-      const Vec3& a = scene.vertices[tri[0]];
-      const Vec3& b = scene.vertices[tri[1]];
-      const Vec3& c = scene.vertices[tri[2]];
-      const double area = 0.5 * norm(cross(b - a, c - a));
-      if (!std::isfinite(area)) {
-        throw InputError(name + ": surface '" + surface.name +
-                         "': a triangle's area overflows; the coordinates are too large (check "
-                         "the mesh unit)");
-      }
-      if (area <= threshold) {
-        ++surface.dropped_degenerate;
-        continue;
-      }
-      Triangle triangle;
-      triangle.v = tri;
-      triangle.surface = s;
-      scene.triangles.push_back(triangle);
-      surface.area += area;
-      for (std::uint32_t v : tri) scene.bounds.grow(scene.vertices[v]);
-    }
-    surface.triangle_count =
-        static_cast<std::uint32_t>(scene.triangles.size()) - surface.first_triangle;
-    if (surface.dropped_degenerate > 0) {
-      scene.warnings.push_back(name + ": surface '" + surface.name + "': dropped " +
-                               std::to_string(surface.dropped_degenerate) +
-                               " degenerate (zero-area) triangle(s)");
-    }
-    scene.surfaces.push_back(std::move(surface));
-  }
-  if (scene.triangles.empty()) {
-    std::size_t dropped = 0;
-    for (const Surface& surface : scene.surfaces) dropped += surface.dropped_degenerate;
-    throw InputError(name + ": the mesh has no usable triangle: all " + std::to_string(dropped) +
-                     " triangles have zero area (degenerate)");
-  }
-  for (const Surface& surface : scene.surfaces) {
-    if (surface.triangle_count == 0) {
-      throw InputError(name + ": surface '" + surface.name +
-                       "' has only degenerate (zero-area) "
-                       "triangles (" +
-                       std::to_string(surface.dropped_degenerate) +
-                       "); fix its faces or remove it");
-    }
-  }
+  for (std::uint32_t s = 0; s < grouped.names.size(); ++s)
+    add_surface(grouped, s, threshold, name, &scene);
+  check_usable(scene, name);
   return scene;
 }
 

@@ -177,13 +177,10 @@ void write_surfaces_csv(std::ostream& out, const ThermalModel& model,
   }
 }
 
-void write_solve_json(std::ostream& out, const SolveReportInfo& info, const ThermalModel& model,
-                      const ExchangeResult& result) {
-  json doc;
-  doc["tool"] = "hearthray";
-  doc["version"] = info.version;
-  doc["caution"] = kEngineeringCaution;
+namespace {
 
+// The inputs echoed: files, rays, surroundings, each surface's emissivity and condition.
+json scene_json(const SolveReportInfo& info, const ThermalModel& model) {
   json scene_surfaces = json::array();
   for (std::size_t k = 0; k < model.surface_names.size(); ++k) {
     json s;
@@ -199,8 +196,10 @@ void write_solve_json(std::ostream& out, const SolveReportInfo& info, const Ther
   scene["rays"] = {{"per_patch", info.rays_per_patch}, {"seed", info.seed}};
   scene["surroundings_K"] = model.surroundings_K ? json(*model.surroundings_K) : json(nullptr);
   scene["surfaces"] = scene_surfaces;
-  doc["scene"] = scene;
+  return scene;
+}
 
+json view_factors_json(const SolveReportInfo& info, const ThermalModel& model) {
   json vf;
   vf["rays_per_patch"] = info.rays_per_patch;
   vf["rays_total"] = info.rays_total;
@@ -216,14 +215,10 @@ void write_solve_json(std::ostream& out, const SolveReportInfo& info, const Ther
   vf["leaks_folded"] = model.leaks_folded;
   vf["warnings"] = info.warnings;
   vf["files"] = info.files;
-  doc["view_factors"] = vf;
+  return vf;
+}
 
-  doc["solver"] = {{"method", "net radiation (radiosity), Newton on surface temperatures"},
-                   {"status", to_string(result.status)},
-                   {"message", result.message},
-                   {"iterations", result.iterations},
-                   {"final_residual_W", result.final_residual_W}};
-
+json surfaces_json(const ThermalModel& model, const ExchangeResult& result) {
   json surfaces = json::array();
   for (const SurfaceHeat& s : surface_heat(model, result)) {
     // Faces listed for whole surfaces; a surface cut into patches has them in surfaces.csv.
@@ -256,8 +251,25 @@ void write_solve_json(std::ostream& out, const SolveReportInfo& info, const Ther
                         {"heat_input_W", s.heat_input_W},
                         {"faces", faces}});
   }
-  doc["surfaces"] = surfaces;
+  return surfaces;
+}
 
+}  // namespace
+
+void write_solve_json(std::ostream& out, const SolveReportInfo& info, const ThermalModel& model,
+                      const ExchangeResult& result) {
+  json doc;
+  doc["tool"] = "hearthray";
+  doc["version"] = info.version;
+  doc["caution"] = kEngineeringCaution;
+  doc["scene"] = scene_json(info, model);
+  doc["view_factors"] = view_factors_json(info, model);
+  doc["solver"] = {{"method", "net radiation (radiosity), Newton on surface temperatures"},
+                   {"status", to_string(result.status)},
+                   {"message", result.message},
+                   {"iterations", result.iterations},
+                   {"final_residual_W", result.final_residual_W}};
+  doc["surfaces"] = surfaces_json(model, result);
   const HeatBalance b = heat_balance(result);
   doc["balance"] = {{"heat_input_W", b.heat_input_W},
                     {"convection_W", b.convection_W},

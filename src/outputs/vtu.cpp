@@ -65,6 +65,93 @@ void write_double(std::FILE* f, double v) {
   std::fputs(shortest(v).c_str(), f);
 }
 
+// The points are the vertices the patches use, in mesh order; the cells are the patches'
+// triangles, in patch order.
+struct Layout {
+  std::vector<std::int64_t> point_of_vertex;  // per mesh vertex; -1 when unused
+  std::vector<std::uint32_t> points;          // mesh vertex of each point
+  std::vector<std::uint32_t> cell_patch;      // patch of each cell
+};
+
+Layout layout(const Scene& scene, const PatchSet& patches) {
+  Layout l;
+  l.point_of_vertex.assign(scene.vertices.size(), -1);
+  for (std::uint32_t t : patches.triangle_index)
+    for (std::uint32_t v : scene.triangles[t].v) l.point_of_vertex[v] = 0;
+  for (std::size_t v = 0; v < scene.vertices.size(); ++v) {
+    if (l.point_of_vertex[v] < 0) continue;
+    l.point_of_vertex[v] = std::int64_t(l.points.size());
+    l.points.push_back(std::uint32_t(v));
+  }
+  l.cell_patch.resize(patches.triangle_index.size());
+  for (std::size_t p = 0; p < patches.size(); ++p)
+    for (std::uint32_t k = patches.triangle_offset[p]; k < patches.triangle_offset[p + 1]; ++k)
+      l.cell_patch[k] = std::uint32_t(p);
+  return l;
+}
+
+void write_points(std::FILE* f, const Scene& scene, const Layout& l) {
+  std::fputs("      <Points>\n", f);
+  std::fputs(
+      "        <DataArray type=\"Float64\" Name=\"Points\" NumberOfComponents=\"3\" "
+      "format=\"ascii\">\n",
+      f);
+  write_values(f, 3 * l.points.size(), [&](std::FILE* out, std::size_t i) {
+    write_double(out, scene.vertices[l.points[i / 3]][int(i % 3)]);
+  });
+  std::fputs("        </DataArray>\n      </Points>\n", f);
+}
+
+// Triangles, wound so that a back-side patch faces the way it radiates.
+void write_cells(std::FILE* f, const Scene& scene, const PatchSet& patches, const Layout& l) {
+  const std::size_t n_cells = l.cell_patch.size();
+  std::fputs("      <Cells>\n", f);
+  std::fputs("        <DataArray type=\"Int64\" Name=\"connectivity\" format=\"ascii\">\n", f);
+  write_values(f, 3 * n_cells, [&](std::FILE* out, std::size_t i) {
+    const std::size_t cell = i / 3;
+    const Triangle& tri = scene.triangles[patches.triangle_index[cell]];
+    const bool back = patches.patches[l.cell_patch[cell]].side == Side::back;
+    static constexpr int kFront[3] = {0, 1, 2}, kBack[3] = {0, 2, 1};
+    const int corner = (back ? kBack : kFront)[i % 3];
+    std::fprintf(out, "%lld", static_cast<long long>(l.point_of_vertex[tri.v[corner]]));
+  });
+  std::fputs("        </DataArray>\n", f);
+  std::fputs("        <DataArray type=\"Int64\" Name=\"offsets\" format=\"ascii\">\n", f);
+  write_values(f, n_cells, [&](std::FILE* out, std::size_t i) {
+    std::fprintf(out, "%llu", static_cast<unsigned long long>(3 * (i + 1)));
+  });
+  std::fputs("        </DataArray>\n", f);
+  std::fputs("        <DataArray type=\"UInt8\" Name=\"types\" format=\"ascii\">\n", f);
+  write_values(f, n_cells, [&](std::FILE* out, std::size_t) { std::fputs("5", out); });
+  std::fputs("        </DataArray>\n      </Cells>\n", f);
+}
+
+// Surface, patch and side of every cell, then the fields.
+void write_cell_data(std::FILE* f, const PatchSet& patches, const std::vector<PatchField>& fields,
+                     const Layout& l) {
+  const std::size_t n_cells = l.cell_patch.size();
+  std::fputs("      <CellData Scalars=\"surface\">\n", f);
+  auto int_array = [&](const char* name, auto value) {
+    std::fprintf(f, "        <DataArray type=\"Int32\" Name=\"%s\" format=\"ascii\">\n", name);
+    write_values(f, n_cells, [&](std::FILE* out, std::size_t i) {
+      std::fprintf(out, "%ld", static_cast<long>(value(l.cell_patch[i])));
+    });
+    std::fputs("        </DataArray>\n", f);
+  };
+  int_array("surface", [&](std::uint32_t p) { return patches.patches[p].surface; });
+  int_array("patch", [&](std::uint32_t p) { return p; });
+  int_array("side", [&](std::uint32_t p) { return patches.patches[p].side == Side::back; });
+  for (const PatchField& field : fields) {
+    std::fprintf(f, "        <DataArray type=\"Float64\" Name=\"%s\" format=\"ascii\">\n",
+                 xml_escape(vtu_array_name(field)).c_str());
+    write_values(f, n_cells, [&](std::FILE* out, std::size_t i) {
+      write_double(out, field.values[l.cell_patch[i]]);
+    });
+    std::fputs("        </DataArray>\n", f);
+  }
+  std::fputs("      </CellData>\n", f);
+}
+
 }  // namespace
 
 std::string vtu_array_name(const PatchField& field) {
@@ -80,29 +167,11 @@ void write_vtu(const std::string& path, const Scene& scene, const PatchSet& patc
       throw InputError("cannot write '" + path + "': two cell arrays would be named '" +
                        vtu_array_name(field) + "'");
   }
-
-  // Points: the vertices the patches use, in mesh order.
-  const std::size_t n_patches = patches.size();
-  std::vector<std::int64_t> point_of_vertex(scene.vertices.size(), -1);
-  for (std::uint32_t t : patches.triangle_index)
-    for (std::uint32_t v : scene.triangles[t].v) point_of_vertex[v] = 0;
-  std::vector<std::uint32_t> points;
-  for (std::size_t v = 0; v < scene.vertices.size(); ++v) {
-    if (point_of_vertex[v] < 0) continue;
-    point_of_vertex[v] = std::int64_t(points.size());
-    points.push_back(std::uint32_t(v));
-  }
-  const std::size_t n_cells = patches.triangle_index.size();
-  // Patch of each cell, in cell order.
-  std::vector<std::uint32_t> cell_patch(n_cells);
-  for (std::size_t p = 0; p < n_patches; ++p)
-    for (std::uint32_t k = patches.triangle_offset[p]; k < patches.triangle_offset[p + 1]; ++k)
-      cell_patch[k] = std::uint32_t(p);
+  const Layout l = layout(scene, patches);
 
   File file(std::fopen(path.c_str(), "wb"));
   if (!file) throw InputError("cannot open '" + path + "' for writing");
   std::FILE* f = file.get();
-
   std::fputs("<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n", f);
   std::fputs("<VTKFile type=\"UnstructuredGrid\" version=\"1.0\" byte_order=\"LittleEndian\">\n",
              f);
@@ -112,59 +181,11 @@ void write_vtu(const std::string& path, const Scene& scene, const PatchSet& patc
                  s + 1 < scene.surfaces.size() ? "," : "");
   std::fputs(" -->\n", f);
   std::fputs("  <UnstructuredGrid>\n", f);
-  std::fprintf(f, "    <Piece NumberOfPoints=\"%zu\" NumberOfCells=\"%zu\">\n", points.size(),
-               n_cells);
-
-  std::fputs("      <Points>\n", f);
-  std::fputs(
-      "        <DataArray type=\"Float64\" Name=\"Points\" NumberOfComponents=\"3\" "
-      "format=\"ascii\">\n",
-      f);
-  write_values(f, 3 * points.size(), [&](std::FILE* out, std::size_t i) {
-    write_double(out, scene.vertices[points[i / 3]][int(i % 3)]);
-  });
-  std::fputs("        </DataArray>\n      </Points>\n", f);
-
-  std::fputs("      <Cells>\n", f);
-  std::fputs("        <DataArray type=\"Int64\" Name=\"connectivity\" format=\"ascii\">\n", f);
-  write_values(f, 3 * n_cells, [&](std::FILE* out, std::size_t i) {
-    const std::size_t cell = i / 3;
-    const Triangle& tri = scene.triangles[patches.triangle_index[cell]];
-    const bool back = patches.patches[cell_patch[cell]].side == Side::back;
-    static constexpr int kFront[3] = {0, 1, 2}, kBack[3] = {0, 2, 1};
-    const int corner = (back ? kBack : kFront)[i % 3];
-    std::fprintf(out, "%lld", static_cast<long long>(point_of_vertex[tri.v[corner]]));
-  });
-  std::fputs("        </DataArray>\n", f);
-  std::fputs("        <DataArray type=\"Int64\" Name=\"offsets\" format=\"ascii\">\n", f);
-  write_values(f, n_cells, [&](std::FILE* out, std::size_t i) {
-    std::fprintf(out, "%llu", static_cast<unsigned long long>(3 * (i + 1)));
-  });
-  std::fputs("        </DataArray>\n", f);
-  std::fputs("        <DataArray type=\"UInt8\" Name=\"types\" format=\"ascii\">\n", f);
-  write_values(f, n_cells, [&](std::FILE* out, std::size_t) { std::fputs("5", out); });
-  std::fputs("        </DataArray>\n      </Cells>\n", f);
-
-  std::fputs("      <CellData Scalars=\"surface\">\n", f);
-  auto int_array = [&](const char* name, auto value) {
-    std::fprintf(f, "        <DataArray type=\"Int32\" Name=\"%s\" format=\"ascii\">\n", name);
-    write_values(f, n_cells, [&](std::FILE* out, std::size_t i) {
-      std::fprintf(out, "%ld", static_cast<long>(value(cell_patch[i])));
-    });
-    std::fputs("        </DataArray>\n", f);
-  };
-  int_array("surface", [&](std::uint32_t p) { return patches.patches[p].surface; });
-  int_array("patch", [&](std::uint32_t p) { return p; });
-  int_array("side", [&](std::uint32_t p) { return patches.patches[p].side == Side::back; });
-  for (const PatchField& field : fields) {
-    std::fprintf(f, "        <DataArray type=\"Float64\" Name=\"%s\" format=\"ascii\">\n",
-                 xml_escape(vtu_array_name(field)).c_str());
-    write_values(f, n_cells, [&](std::FILE* out, std::size_t i) {
-      write_double(out, field.values[cell_patch[i]]);
-    });
-    std::fputs("        </DataArray>\n", f);
-  }
-  std::fputs("      </CellData>\n", f);
+  std::fprintf(f, "    <Piece NumberOfPoints=\"%zu\" NumberOfCells=\"%zu\">\n", l.points.size(),
+               l.cell_patch.size());
+  write_points(f, scene, l);
+  write_cells(f, scene, patches, l);
+  write_cell_data(f, patches, fields, l);
   std::fputs("    </Piece>\n  </UnstructuredGrid>\n</VTKFile>\n", f);
 
   const bool failed = std::ferror(f) != 0;

@@ -143,10 +143,10 @@ int conjugate_gradients(Problem& p, const VectorXd& H_diag, const VectorXd& g, d
   return iterations;
 }
 
-}  // namespace
-
-ViewFactors smooth_view_factors(const PatchSet& patches, const Tallies& tallies,
-                                const SmoothingOptions& options, SmoothingSummary* summary) {
+// Checks the input; returns whether the Newton steps are solved directly (dense) or by
+// conjugate gradients.
+bool check_and_choose_solver(const PatchSet& patches, const Tallies& tallies,
+                             const SmoothingOptions& options) {
   std::string invalid;
   if (!options.IsValid(&invalid)) throw InputError(invalid);
   const std::size_t n = patches.size();
@@ -172,92 +172,96 @@ ViewFactors smooth_view_factors(const PatchSet& patches, const Tallies& tallies,
                      std::to_string(n) + " patches, more than the " +
                      std::to_string(kDirectSolveMax) + " allowed; use automatic or iterative");
   }
+  return direct;
+}
 
-  Problem p = smoothing_detail::make_problem(patches, tallies);
+// Newton's method on the dual: the point mu and what the next step needs there.
+struct NewtonState {
+  VectorXd mu, R, H_diag, g;
+  RowErrors error;
+};
 
-  SmoothingSummary local;
-  SmoothingSummary& s = summary != nullptr ? *summary : local;
-  s = SmoothingSummary{};
-
-  // Start from the raw estimate: with symmetric counts mu_i = N_i / A_i is already the answer.
-  const auto size = static_cast<Eigen::Index>(n);
-  VectorXd mu(size), R, H_diag, g, trial, trial_g, delta;
-  for (Eigen::Index i = 0; i < size; ++i) {
-    mu[i] = static_cast<double>(tallies.rays[static_cast<std::size_t>(i)]) / p.area[i];
+// Start from the raw estimate: with symmetric counts mu_i = N_i / A_i is already the answer.
+NewtonState raw_start(Problem& p, const Tallies& tallies) {
+  NewtonState st;
+  st.mu.resize(p.area.size());
+  for (Eigen::Index i = 0; i < st.mu.size(); ++i) {
+    st.mu[i] = static_cast<double>(tallies.rays[static_cast<std::size_t>(i)]) / p.area[i];
   }
-  smoothing_detail::row_sums(p, mu, &R, &H_diag);
-  RowErrors error = row_errors(p, R, &g);
+  smoothing_detail::row_sums(p, st.mu, &st.R, &st.H_diag);
+  st.error = row_errors(p, st.R, &st.g);
+  return st;
+}
 
-  std::string failure;
+// Stays inside Phi's domain, then backtracks until the residual falls enough (by the factor
+// the attained linear residual `reached` allows). On success moves `st` (all but its error)
+// to the new point and returns its errors in `next`.
+bool line_search(Problem& p, const VectorXd& delta, double reached, NewtonState* st,
+                 VectorXd* trial, VectorXd* trial_g, RowErrors* next) {
+  double theta = smoothing_detail::step_to_boundary(p, st->mu, delta);
+  const double forcing = std::min(reached, 1.0);
+  bool accepted = false;
+  for (int halving = 0; halving < 40 && !accepted; ++halving) {
+    *trial = st->mu + theta * delta;
+    smoothing_detail::row_sums(p, *trial, &st->R, &st->H_diag);
+    *next = row_errors(p, st->R, trial_g);
+    accepted = next->norm <= (1 - 1e-4 * theta * (1 - forcing)) * st->error.norm;
+    if (!accepted) theta *= 0.5;
+  }
+  if (!accepted) return false;
+  st->mu.swap(*trial);
+  st->g.swap(*trial_g);
+  return true;
+}
+
+// Eisenstat-Walker choice 2 (gamma 0.9, alpha 2), safeguarded: the forcing term of the next
+// conjugate-gradient solve after the residual went from `before` to `after`.
+double next_forcing(double eta, const RowErrors& before, const RowErrors& after, double tolerance) {
+  const double ratio = after.norm / before.norm;
+  const double kept = 0.9 * eta * eta;
+  double forcing_next = 0.9 * ratio * ratio;
+  if (kept > 0.1) forcing_next = std::max(forcing_next, kept);
+  forcing_next = std::max(forcing_next, 0.5 * tolerance / after.norm);
+  return std::min(forcing_next, kForcingMax);
+}
+
+// Newton steps until the row error is below the tolerance. Returns why it stopped early
+// (empty when it did not).
+std::string newton(Problem& p, const SmoothingOptions& options, bool direct, NewtonState* st,
+                   SmoothingSummary* s) {
+  VectorXd trial, trial_g, delta;
   int slow_steps = 0;
   double eta = direct ? 0.0 : kForcingFirst;
-  while (error.max >= options.tolerance && s.iterations < options.max_iterations) {
+  std::string failure;
+  while (st->error.max >= options.tolerance && s->iterations < options.max_iterations) {
     double reached = 0;  // relative residual of the Newton system actually attained
     if (direct) {
-      if (!solve_directly(p, H_diag, g, &delta, &failure)) break;
+      if (!solve_directly(p, st->H_diag, st->g, &delta, &failure)) return failure;
     } else {
-      s.linear_iterations += conjugate_gradients(p, H_diag, g, eta, &delta, &reached);
+      s->linear_iterations += conjugate_gradients(p, st->H_diag, st->g, eta, &delta, &reached);
     }
-    if (!delta.allFinite()) {
-      failure = "the Newton step is not finite (the rays give no unique smoothed matrix)";
-      break;
-    }
-    if (!(g.dot(delta) < 0)) {  // directional derivative of Phi
-      failure = "the Newton step is not a descent direction";
-      break;
-    }
-    // Stay inside Phi's domain, then backtrack until the residual falls enough.
-    double theta = smoothing_detail::step_to_boundary(p, mu, delta);
-    const double forcing = std::min(reached, 1.0);
+    if (!delta.allFinite())
+      return "the Newton step is not finite (the rays give no unique smoothed matrix)";
+    if (!(st->g.dot(delta) < 0))  // directional derivative of Phi
+      return "the Newton step is not a descent direction";
     RowErrors next;
-    bool accepted = false;
-    for (int halving = 0; halving < 40 && !accepted; ++halving) {
-      trial = mu + theta * delta;
-      smoothing_detail::row_sums(p, trial, &R, &H_diag);
-      next = row_errors(p, R, &trial_g);
-      accepted = next.norm <= (1 - 1e-4 * theta * (1 - forcing)) * error.norm;
-      if (!accepted) theta *= 0.5;
+    if (!line_search(p, delta, reached, st, &trial, &trial_g, &next)) {
+      return st->error.max < 1e-9 ? "progress stalled at round-off level"
+                                  : "the line search found no decrease";
     }
-    if (!accepted) {
-      failure = error.max < 1e-9 ? "progress stalled at round-off level"
-                                 : "the line search found no decrease";
-      break;
-    }
-    mu.swap(trial);
-    g.swap(trial_g);
-    ++s.iterations;
-    if (!direct) {  // Eisenstat-Walker choice 2 (gamma 0.9, alpha 2), safeguarded
-      const double ratio = next.norm / error.norm;
-      const double kept = 0.9 * eta * eta;
-      double forcing_next = 0.9 * ratio * ratio;
-      if (kept > 0.1) forcing_next = std::max(forcing_next, kept);
-      forcing_next = std::max(forcing_next, 0.5 * options.tolerance / next.norm);
-      eta = std::min(forcing_next, kForcingMax);
-    }
+    ++s->iterations;
+    if (!direct) eta = next_forcing(eta, st->error, next, options.tolerance);
     // Near round-off the error can stop falling; do not spin to max_iterations there.
-    slow_steps = (next.max > 0.5 * error.max && next.max < 1e-9) ? slow_steps + 1 : 0;
-    error = next;
-    if (slow_steps >= 3) {
-      failure = "progress stalled at round-off level";
-      break;
-    }
+    slow_steps = (next.max > 0.5 * st->error.max && next.max < 1e-9) ? slow_steps + 1 : 0;
+    st->error = next;
+    if (slow_steps >= 3) return "progress stalled at round-off level";
   }
+  return failure;
+}
 
-  ViewFactors vf;
-  vf.names.reserve(n);
-  vf.areas.reserve(n);
-  for (const Patch& patch : patches.patches) {
-    vf.names.push_back(patch.name);
-    vf.areas.push_back(patch.area);
-  }
-  vf.rays = tallies.rays;
-  vf.smoothed = true;
-  const smoothing_detail::Measures m = smoothing_detail::finish(p, mu, tallies, &vf);
-  vf.max_correction_sigma = m.max_correction_sigma;
-  s.max_row_error = m.max_row_error;
-  s.max_reciprocity_error = m.max_reciprocity_error;
-  s.max_correction_sigma = m.max_correction_sigma;
-  s.converged = failure.empty() && error.max < options.tolerance;
+// The summary's message: how it ended, by which method, and the measures of the result.
+std::string message(const SmoothingSummary& s, const SmoothingOptions& options, bool direct,
+                    std::string failure, double final_error) {
   const std::string method =
       direct ? "dense LDL^T"
              : std::to_string(s.linear_iterations) + " conjugate-gradient iterations";
@@ -266,16 +270,44 @@ ViewFactors smooth_view_factors(const PatchSet& patches, const Tallies& tallies,
                               rounded("%.3g", s.max_reciprocity_error) + ", largest correction " +
                               rounded("%.3g", s.max_correction_sigma) + " standard errors";
   if (s.converged) {
-    s.message = "converged in " + std::to_string(s.iterations) + " Newton iterations (" + method +
-                "); " + figures;
-  } else {
-    if (failure.empty()) {
-      failure = "no convergence in " + std::to_string(options.max_iterations) + " iterations";
-    }
-    s.message = "smoothing did not converge (" + failure + ", row error " +
-                rounded("%.3g", error.max) + " above tolerance " +
-                rounded("%.3g", options.tolerance) + "; " + method + "); " + figures;
+    return "converged in " + std::to_string(s.iterations) + " Newton iterations (" + method +
+           "); " + figures;
   }
+  if (failure.empty()) {
+    failure = "no convergence in " + std::to_string(options.max_iterations) + " iterations";
+  }
+  return "smoothing did not converge (" + failure + ", row error " + rounded("%.3g", final_error) +
+         " above tolerance " + rounded("%.3g", options.tolerance) + "; " + method + "); " + figures;
+}
+
+}  // namespace
+
+ViewFactors smooth_view_factors(const PatchSet& patches, const Tallies& tallies,
+                                const SmoothingOptions& options, SmoothingSummary* summary) {
+  const bool direct = check_and_choose_solver(patches, tallies, options);
+  Problem p = smoothing_detail::make_problem(patches, tallies);
+  SmoothingSummary local;
+  SmoothingSummary& s = summary != nullptr ? *summary : local;
+  s = SmoothingSummary{};
+  NewtonState st = raw_start(p, tallies);
+  const std::string failure = newton(p, options, direct, &st, &s);
+
+  ViewFactors vf;
+  vf.names.reserve(patches.size());
+  vf.areas.reserve(patches.size());
+  for (const Patch& patch : patches.patches) {
+    vf.names.push_back(patch.name);
+    vf.areas.push_back(patch.area);
+  }
+  vf.rays = tallies.rays;
+  vf.smoothed = true;
+  const smoothing_detail::Measures m = smoothing_detail::finish(p, st.mu, tallies, &vf);
+  vf.max_correction_sigma = m.max_correction_sigma;
+  s.max_row_error = m.max_row_error;
+  s.max_reciprocity_error = m.max_reciprocity_error;
+  s.max_correction_sigma = m.max_correction_sigma;
+  s.converged = failure.empty() && st.error.max < options.tolerance;
+  s.message = message(s, options, direct, failure, st.error.max);
   return vf;
 }
 

@@ -220,33 +220,45 @@ double correction_sigma(double f, std::uint64_t rays) {
 
 }  // namespace
 
-Problem make_problem(const PatchSet& patches, const Tallies& t) {
-  Problem p;
-  const std::size_t n = patches.size();
-  p.n = n;
+namespace {
+
+int has_self(const Problem& p, std::size_t i) {
+  return p.self[at(i)] > 0 ? 1 : 0;
+}
+
+// The per-row terms of the problem: own counts (self, escaped, back faces) and areas.
+void fill_row_terms(const PatchSet& patches, const Tallies& t, Problem* p) {
+  const std::size_t n = p->n;
   const auto size = static_cast<Eigen::Index>(n);
-  p.self.setZero(size);
-  p.escaped.resize(size);
-  p.back.resize(size);
-  p.area.resize(size);
-  p.own_weight.setZero(size);
+  p->self.setZero(size);
+  p->escaped.resize(size);
+  p->back.resize(size);
+  p->area.resize(size);
+  p->own_weight.setZero(size);
   for (std::size_t i = 0; i < n; ++i) {
-    p.escaped[at(i)] = static_cast<double>(t.escaped[i]);
-    p.back[at(i)] = static_cast<double>(t.back_face[i]);
-    p.area[at(i)] = patches.patches[i].area;
+    p->escaped[at(i)] = static_cast<double>(t.escaped[i]);
+    p->back[at(i)] = static_cast<double>(t.back_face[i]);
+    p->area[at(i)] = patches.patches[i].area;
     const std::uint32_t* first = t.hit_patch.data() + t.hit_offset[i];
     const std::uint32_t* last = t.hit_patch.data() + t.hit_offset[i + 1];
     const std::uint32_t* self = std::lower_bound(first, last, static_cast<std::uint32_t>(i));
     if (self != last && *self == i) {
-      p.self[at(i)] =
+      p->self[at(i)] =
           static_cast<double>(t.hit_count[static_cast<std::size_t>(self - t.hit_patch.data())]);
     }
   }
-  p.lumped = p.self + p.escaped + p.back;
+  p->lumped = p->self + p->escaped + p->back;
+}
 
-  // Senders: the transpose of the strictly lower part of the counts (rays from j to i < j),
-  // so that each row can list its partners j > i in either direction. 4 bytes per entry,
-  // freed once the pair list is built.
+// Senders: the transpose of the strictly lower part of the counts (rays from j to i < j),
+// so that each row can list its partners j > i in either direction. 4 bytes per entry,
+// freed once the pair list is built.
+struct Senders {
+  std::vector<std::uint64_t> begin;  // row i's senders: from[begin[i] .. begin[i + 1])
+  std::vector<std::uint32_t> from;
+};
+
+Senders transpose_senders(const Tallies& t, std::size_t n) {
   const std::vector<std::size_t> tally_block = partition(t.hit_offset);
   auto each_sender = [&](std::size_t b, auto&& sent) {
     for (std::size_t j = tally_block[b]; j < tally_block[b + 1]; ++j) {
@@ -261,46 +273,53 @@ Problem make_problem(const PatchSet& patches, const Tallies& t) {
       block_histograms<std::uint64_t>(tally_block, n, [&](std::size_t b, auto&& add) {
         each_sender(b, [&](std::uint32_t i, std::size_t) { add(i); });
       });
-  std::vector<std::uint64_t> sent_begin(n + 1, 0);
+  Senders senders;
+  senders.begin.assign(n + 1, 0);
   for (std::size_t i = 0; i < n; ++i) {
-    sent_begin[i + 1] = sent_begin[i] + column_total(cursor, tally_block.size() - 1, n, i);
+    senders.begin[i + 1] = senders.begin[i] + column_total(cursor, tally_block.size() - 1, n, i);
   }
-  histograms_to_cursors(&cursor, tally_block.size() - 1, n, sent_begin.data());
-  std::vector<std::uint32_t> sent_from(sent_begin[n]);
+  histograms_to_cursors(&cursor, tally_block.size() - 1, n, senders.begin.data());
+  senders.from.resize(senders.begin[n]);
   for_each_block(tally_block, [&](std::size_t b, std::size_t, std::size_t) {
     std::uint64_t* next = cursor.data() + b * n;
     each_sender(b, [&](std::uint32_t i, std::size_t j) {
-      sent_from[next[i]++] = static_cast<std::uint32_t>(j);
+      senders.from[next[i]++] = static_cast<std::uint32_t>(j);
     });
   });
-  std::vector<std::uint64_t>().swap(cursor);
+  return senders;
+}
 
-  // Count the pairs of each row, then fill them.
-  p.row_begin.assign(n + 1, 0);
+// Counts the pairs of each row (p.row_begin, p.pairs); returns the entries the final matrix
+// will hold, refusing more than its index type can address.
+std::uint64_t count_pairs(const Tallies& t, const Senders& senders, Problem* p) {
+  const std::size_t n = p->n;
+  p->row_begin.assign(n + 1, 0);
   tbb::parallel_for(tbb::blocked_range<std::size_t>(0, n, 256),
                     [&](const tbb::blocked_range<std::size_t>& range) {
                       for (std::size_t i = range.begin(); i != range.end(); ++i) {
                         std::uint64_t partners = 0;
-                        for_each_partner(t, sent_begin, sent_from, i,
+                        for_each_partner(t, senders.begin, senders.from, i,
                                          [&](std::uint32_t, std::uint64_t, bool) { ++partners; });
-                        p.row_begin[i + 1] = partners;
+                        p->row_begin[i + 1] = partners;
                       }
                     });
-  for (std::size_t i = 0; i < n; ++i) p.row_begin[i + 1] += p.row_begin[i];
-  p.pairs = p.row_begin[n];
-  std::uint64_t entries = 2 * p.pairs;
-  for (std::size_t i = 0; i < n; ++i) entries += p.self[at(i)] > 0 ? 1 : 0;
+  for (std::size_t i = 0; i < n; ++i) p->row_begin[i + 1] += p->row_begin[i];
+  p->pairs = p->row_begin[n];
+  std::uint64_t entries = 2 * p->pairs;
+  for (std::size_t i = 0; i < n; ++i) entries += has_self(*p, i);
   if (entries > static_cast<std::uint64_t>(std::numeric_limits<Index>::max())) {
     throw InputError("the smoothed view-factor matrix would have " + std::to_string(entries) +
                      " entries, more than its index type can address; use fewer patches");
   }
-  p.block = partition(p.row_begin);
-  const std::size_t blocks = p.block.size() - 1;
-  p.F.resize(size, size);
-  p.F.resizeNonZeros(static_cast<Eigen::Index>(entries));
-  Index* partner = p.F.innerIndexPtr();
-  double* count = p.F.valuePtr();
-  for_each_block(p.block, [&](std::size_t, std::size_t first, std::size_t last) {
+  return entries;
+}
+
+// Fills each row's pairs: partner and the rays exchanged both ways, into p.F's arrays.
+void fill_pairs(const Tallies& t, const Senders& senders, Problem* p) {
+  const std::size_t n = p->n;
+  Index* partner = p->F.innerIndexPtr();
+  double* count = p->F.valuePtr();
+  for_each_block(p->block, [&](std::size_t, std::size_t first, std::size_t last) {
     // Row j's rays to partners i < j are read in ascending i as the block's rows are filled,
     // from the first one at or after the block's first row (only senders j > first matter).
     std::vector<std::uint64_t> next(n);
@@ -313,8 +332,8 @@ Problem make_problem(const PatchSet& patches, const Tallies& t) {
                                      row);
     }
     for (std::size_t i = first; i < last; ++i) {
-      std::uint64_t out = p.row_begin[i];
-      for_each_partner(t, sent_begin, sent_from, i,
+      std::uint64_t out = p->row_begin[i];
+      for_each_partner(t, senders.begin, senders.from, i,
                        [&](std::uint32_t j, std::uint64_t received, bool sent) {
                          std::uint64_t both = received;
                          if (sent) {
@@ -328,8 +347,26 @@ Problem make_problem(const PatchSet& patches, const Tallies& t) {
                        });
     }
   });
+}
+
+}  // namespace
+
+Problem make_problem(const PatchSet& patches, const Tallies& t) {
+  Problem p;
+  const std::size_t n = patches.size();
+  p.n = n;
+  fill_row_terms(patches, t, &p);
+  const Senders senders = transpose_senders(t, n);
+  const std::uint64_t entries = count_pairs(t, senders, &p);
+  p.block = partition(p.row_begin);
+  const std::size_t blocks = p.block.size() - 1;
+  const auto size = static_cast<Eigen::Index>(n);
+  p.F.resize(size, size);
+  p.F.resizeNonZeros(static_cast<Eigen::Index>(entries));
+  fill_pairs(t, senders, &p);
 
   // Partners j < i of each row i per block (the final layout's entries left of the diagonal).
+  const Index* partner = p.F.innerIndexPtr();
   p.block_lower = block_histograms<Index>(p.block, n, [&](std::size_t b, auto&& add) {
     for (std::uint64_t k = p.row_begin[p.block[b]]; k < p.row_begin[p.block[b + 1]]; ++k) {
       add(static_cast<std::size_t>(partner[k]));
@@ -399,17 +436,21 @@ double step_to_boundary(Problem& p, const Eigen::VectorXd& mu, const Eigen::Vect
   return *std::min_element(alpha.begin(), alpha.end());
 }
 
-Measures finish(Problem& p, const Eigen::VectorXd& mu, const Tallies& t, ViewFactors* vf) {
+namespace {
+
+// Lays out the final rows of p.F around the pair list: for each row its entries left of the
+// diagonal, its own entry, then its pairs (moved there). Returns the count left of the
+// diagonal per row.
+std::vector<Index> final_row_layout(Problem& p) {
   const std::size_t n = p.n, blocks = p.block.size() - 1;
   Index* offset = p.F.outerIndexPtr();
   Index* column = p.F.innerIndexPtr();
   double* value = p.F.valuePtr();
-  auto has_self = [&](std::size_t i) { return p.self[at(i)] > 0 ? 1 : 0; };
   std::vector<Index> lower(n);
   offset[0] = 0;
   for (std::size_t i = 0; i < n; ++i) {
     lower[i] = column_total(p.block_lower, blocks, n, i);
-    offset[i + 1] = offset[i] + lower[i] + has_self(i) +
+    offset[i + 1] = offset[i] + lower[i] + has_self(p, i) +
                     static_cast<Index>(p.row_begin[i + 1] - p.row_begin[i]);
   }
   // Move each row's pairs to the end of its final row, last row first: a row only moves to
@@ -418,13 +459,23 @@ Measures finish(Problem& p, const Eigen::VectorXd& mu, const Tallies& t, ViewFac
   // The weights (values from `pairs` on) are no longer needed.
   for (std::size_t i = n; i-- > 0;) {
     const std::uint64_t from = p.row_begin[i], len = p.row_begin[i + 1] - from;
-    const std::uint64_t to = static_cast<std::uint64_t>(offset[i] + lower[i] + has_self(i));
+    const std::uint64_t to = static_cast<std::uint64_t>(offset[i] + lower[i] + has_self(p, i));
     std::memmove(column + to, column + from, len * sizeof(Index));
     std::memmove(value + to, value + from, len * sizeof(double));
   }
-  // Exchange areas S_ij = n_ij / (mu_i + mu_j) once per pair, divided by A_i in row i and by
-  // A_j in row j, whose entries left of the diagonal fill up in ascending i (each block from
-  // its own cursors). Reciprocity is measured on the stored values.
+  return lower;
+}
+
+// Exchange areas S_ij = n_ij / (mu_i + mu_j) once per pair, divided by A_i in row i and by
+// A_j in row j, whose entries left of the diagonal fill up in ascending i (each block from
+// its own cursors). Reciprocity is measured on the stored values: returns the largest
+// |S_ij - S_ji| relative to the largest S.
+double fill_factors(Problem& p, const Eigen::VectorXd& mu, const std::vector<Index>& lower,
+                    ViewFactors* vf) {
+  const std::size_t n = p.n, blocks = p.block.size() - 1;
+  Index* offset = p.F.outerIndexPtr();
+  Index* column = p.F.innerIndexPtr();
+  double* value = p.F.valuePtr();
   histograms_to_cursors(&p.block_lower, blocks, n, offset);
   vf->to_surroundings.resize(n);
   vf->to_back_faces.resize(n);
@@ -435,7 +486,7 @@ Measures finish(Problem& p, const Eigen::VectorXd& mu, const Tallies& t, ViewFac
     for (std::size_t i = first; i < last; ++i) {
       const double a = p.area[at(i)], mu_i = mu[at(i)];
       Index k = offset[i] + lower[i];
-      if (has_self(i)) {
+      if (has_self(p, i)) {
         column[k] = static_cast<Index>(i);
         value[k] = own_area(p.self[at(i)], mu_i) / a;
         top = std::max(top, a * value[k]);
@@ -460,12 +511,16 @@ Measures finish(Problem& p, const Eigen::VectorXd& mu, const Tallies& t, ViewFac
     asymmetry[b] = worst;
   });
   std::vector<Index>().swap(p.block_lower);
-  Measures m;
   const double top = *std::max_element(largest.begin(), largest.end());
-  m.max_reciprocity_error =
-      top > 0 ? *std::max_element(asymmetry.begin(), asymmetry.end()) / top : 0;
+  return top > 0 ? *std::max_element(asymmetry.begin(), asymmetry.end()) / top : 0;
+}
 
-  // Row sums and the largest change from the raw factors F_ij = N_ij / N_i, row by row.
+// Row sums and the largest change from the raw factors F_ij = N_ij / N_i, row by row.
+void measure_rows(const Problem& p, const Tallies& t, const ViewFactors& vf, Measures* m) {
+  const std::size_t blocks = p.block.size() - 1;
+  const Index* offset = p.F.outerIndexPtr();
+  const Index* column = p.F.innerIndexPtr();
+  const double* value = p.F.valuePtr();
   std::vector<double> row_error(blocks, 0.0), correction(blocks, 0.0);
   for_each_block(p, [&](std::size_t b, std::size_t first, std::size_t last) {
     double worst_row = 0, worst_correction = 0;
@@ -486,16 +541,25 @@ Measures finish(Problem& p, const Eigen::VectorXd& mu, const Tallies& t, ViewFac
         const bool counted = r < t.hit_offset[i + 1] && t.hit_patch[r] == col;
         note(value[k], counted ? static_cast<double>(t.hit_count[r]) / n_i : 0.0);
       }
-      sum += vf->to_surroundings[i] + vf->to_back_faces[i];
+      sum += vf.to_surroundings[i] + vf.to_back_faces[i];
       worst_row = std::max(worst_row, std::abs(sum - 1));
-      note(vf->to_surroundings[i], static_cast<double>(t.escaped[i]) / n_i);
-      note(vf->to_back_faces[i], static_cast<double>(t.back_face[i]) / n_i);
+      note(vf.to_surroundings[i], static_cast<double>(t.escaped[i]) / n_i);
+      note(vf.to_back_faces[i], static_cast<double>(t.back_face[i]) / n_i);
     }
     row_error[b] = worst_row;
     correction[b] = worst_correction;
   });
-  m.max_row_error = *std::max_element(row_error.begin(), row_error.end());
-  m.max_correction_sigma = *std::max_element(correction.begin(), correction.end());
+  m->max_row_error = *std::max_element(row_error.begin(), row_error.end());
+  m->max_correction_sigma = *std::max_element(correction.begin(), correction.end());
+}
+
+}  // namespace
+
+Measures finish(Problem& p, const Eigen::VectorXd& mu, const Tallies& t, ViewFactors* vf) {
+  const std::vector<Index> lower = final_row_layout(p);
+  Measures m;
+  m.max_reciprocity_error = fill_factors(p, mu, lower, vf);
+  measure_rows(p, t, *vf, &m);
   vf->F.swap(p.F);
   return m;
 }
