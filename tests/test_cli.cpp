@@ -4,6 +4,7 @@
 #include <string>
 #include <vector>
 
+#include "hearthray/version.hpp"
 #include "support/cli_run.hpp"
 
 using namespace hearthray::testing;
@@ -109,4 +110,12 @@ TEST_CASE("bad input gives error: and a non-zero exit", "[cli]") {
     CHECK(r.status != 0);
     CHECK(r.err.find(c.expect) != std::string::npos);
   }
+}
+
+TEST_CASE("the version flag prints the version CMake configured", "[cli]") {
+  // One home for the version: project(VERSION) -> hearthray/version.hpp -> the tool.
+  const ScratchDir dir("cli-version");
+  const auto r = run_cli("--version", dir);
+  CHECK(r.status == 0);
+  CHECK(r.out == std::string("hearthray ") + hearthray::kVersion + "\n");
 }

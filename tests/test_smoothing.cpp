@@ -7,6 +7,7 @@
 #include <cmath>
 #include <cstdint>
 #include <random>
+#include <stdexcept>
 #include <string>
 #include <vector>
 
@@ -593,6 +594,9 @@ TEST_CASE("smoothing rejects incomplete or inconsistent input", "[smoothing]") {
   shard.hit_count.erase(shard.hit_count.begin(), shard.hit_count.begin() + cut);
   shard.hit_offset.erase(shard.hit_offset.begin(), shard.hit_offset.begin() + 2);
   for (auto& o : shard.hit_offset) o -= cut;
+  // Shards not merged are the caller's mistake, not bad input.
+  CHECK_THROWS_AS(smooth_view_factors(patches, shard, SmoothingOptions{}, &summary),
+                  std::invalid_argument);
   CHECK_THROWS_WITH(smooth_view_factors(patches, shard, SmoothingOptions{}, &summary),
                     Catch::Contains("merge the shards"));
 

@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <catch2/catch.hpp>
 #include <cmath>
+#include <stdexcept>
 #include <vector>
 
 #include "hearthray/tracer.hpp"
@@ -106,6 +107,23 @@ TEST_CASE("shards of emitter ranges merge into the full run bitwise", "[engine]"
   CHECK(first.rows() == 3);
   CHECK(second.emitter_begin == 3);
   CHECK(same_tallies(merge_shards({first, second}), full));
+}
+
+TEST_CASE("a wrong emitter range or shard order is a logic error, not bad input", "[engine]") {
+  // Emitter ranges and shards come from the caller's code, never from a user's file: a
+  // mistake there is std::invalid_argument (the tool reports an internal error, exit 3).
+  const Scene scene = load_obj_text(box_obj(1, 2, 3, 2), "box");
+  const PatchSet patches = make_surface_patches(scene);
+  CHECK_THROWS_AS(trace(scene, patches, 1, 4, 9), std::invalid_argument);
+  CHECK_THROWS_AS(trace(scene, patches, 1, 5, 3), std::invalid_argument);
+  ViewFactorOptions short_rays;
+  short_rays.rays_for_patch = {100, 100};
+  const Tracer tracer(scene);
+  CHECK_THROWS_AS(trace_tallies(scene, patches, tracer, short_rays), std::invalid_argument);
+  const Tallies first = trace(scene, patches, 1, 0, 3);
+  const Tallies second = trace(scene, patches, 1, 3, 6);
+  CHECK_THROWS_AS(merge_shards({second, first}), std::invalid_argument);
+  CHECK_THROWS_AS(merge_shards({}), std::invalid_argument);
 }
 
 TEST_CASE("smoothed factors: exact reciprocity, unit rows, no negatives", "[engine]") {

@@ -39,7 +39,8 @@ struct SmoothingSummary {
   std::string message;
 };
 
-// Requires tallies of all emitters (a full square matrix). Throws InputError otherwise.
+// Requires tallies of all emitters (a full square matrix): shards not yet merged are a
+// programming mistake (std::invalid_argument).
 ViewFactors smooth_view_factors(const PatchSet& patches, const Tallies& tallies,
                                 const SmoothingOptions& options, SmoothingSummary* summary);
 

@@ -65,11 +65,14 @@ struct TraceStats {
   int threads = 0;
 };
 
-// Traces the emitter range of `options`. Throws InputError for invalid options.
+// Traces the emitter range of `options`. Invalid options (an emitter range outside the
+// patches, one ray count per patch that is not) are a programming mistake:
+// std::invalid_argument.
 Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
                       const ViewFactorOptions& options, TraceStats* stats = nullptr);
 
-// Concatenates shards (tallies of consecutive emitter ranges) into one.
+// Concatenates shards (tallies of consecutive emitter ranges) into one. Shards of different
+// scenes, or out of order, are a programming mistake: std::invalid_argument.
 Tallies merge_shards(const std::vector<Tallies>& shards);
 
 using SparseMatrix = Eigen::SparseMatrix<double, Eigen::RowMajor>;

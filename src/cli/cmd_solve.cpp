@@ -7,6 +7,7 @@
 
 #include "commands.hpp"
 #include "hearthray/error.hpp"
+#include "hearthray/version.hpp"
 #include "hearthray/render.hpp"
 #include "hearthray/thermal_model.hpp"
 #include "hearthray/thermal_report.hpp"
@@ -26,7 +27,7 @@ constexpr std::size_t kDenseFactorFileLimit = 200;
 SolveReportInfo solve_info(const SceneFile& file, const FactorRun& run, const ThermalModel& model,
                            const std::vector<Warning>& warnings) {
   SolveReportInfo info;
-  info.version = kToolVersion;
+  info.version = kVersion;
   info.scene = file.path;
   info.mesh = file.mesh_path;
   info.unit = to_string(file.mesh.unit);

@@ -16,8 +16,6 @@
 
 namespace hearthray::cli {
 
-inline constexpr const char* kToolVersion = "0.1.0";
-
 struct RaySettings {
   std::optional<std::uint64_t> rays;  // command line over scene file over default
   std::optional<std::uint64_t> seed;

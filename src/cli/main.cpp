@@ -1,22 +1,28 @@
 // hearthray: thermal radiation between surfaces. This file only parses arguments; each
-// command calls library stages (see commands.hpp).
+// command calls the library's pipeline (see commands.hpp).
 #include <CLI/CLI.hpp>
 #include <iostream>
 
 #include "commands.hpp"
 #include "hearthray/error.hpp"
+#include "hearthray/version.hpp"
 
 using namespace hearthray::cli;
 
-int main(int argc, char** argv) {
-  CLI::App app{
-      "hearthray: view factors and radiant heat exchange between the surfaces of a 3-D model.\n"
-      "Results are engineering estimates; furnace, kiln and heater design follows local codes,\n"
-      "the equipment maker's instructions and licensed practice."};
-  app.require_subcommand(1);
-  app.set_version_flag("--version", "hearthray 0.1.0");
+namespace {
 
+// The commands, and the arguments CLI11 fills for each.
+struct Commands {
   FactorsArgs factors;
+  CheckArgs check;
+  SolveArgs solve;
+  ComfortArgs comfort, compare;
+  RenderArgs render;
+  CLI::App *cmd_factors = nullptr, *cmd_check = nullptr, *cmd_solve = nullptr,
+           *cmd_comfort = nullptr, *cmd_compare = nullptr, *cmd_render = nullptr;
+};
+
+CLI::App* add_factors_command(CLI::App& app, FactorsArgs& factors) {
   CLI::App* cmd_factors = app.add_subcommand(
       "factors", "View factors between every pair of surfaces, with standard errors");
   cmd_factors->add_option("scene", factors.input, "Scene file (.toml) or mesh (.obj)")->required();
@@ -33,8 +39,10 @@ int main(int argc, char** argv) {
   cmd_factors->add_flag("-q,--quiet", factors.rays.quiet, "No progress line or summary");
   cmd_factors->add_option("-o,--output", factors.outputs,
                           "Output file: .csv, .mtx, .npy or .json (repeatable)");
+  return cmd_factors;
+}
 
-  CheckArgs check;
+CLI::App* add_check_command(CLI::App& app, CheckArgs& check) {
   CLI::App* cmd_check = app.add_subcommand(
       "check", "Mesh report: triangles, areas, topology, back-face hits, escaping rays");
   cmd_check->add_option("scene", check.input, "Scene file (.toml) or mesh (.obj)")->required();
@@ -43,8 +51,10 @@ int main(int argc, char** argv) {
   cmd_check->add_option("--seed", check.seed, "Random seed");
   cmd_check->add_option("--threads", check.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
+  return cmd_check;
+}
 
-  SolveArgs solve;
+CLI::App* add_solve_command(CLI::App& app, SolveArgs& solve) {
   CLI::App* cmd_solve = app.add_subcommand(
       "solve", "Radiant heat exchange: heat flows and surface temperatures from a scene file");
   cmd_solve->add_option("scene", solve.input, "Scene file (.toml) with thermal conditions")
@@ -69,11 +79,16 @@ int main(int argc, char** argv) {
   cmd_solve
       ->add_flag("--no-cache", solve.no_cache, "Always trace; neither read nor write the cache")
       ->excludes(cache_dir);
+  return cmd_solve;
+}
 
-  ComfortArgs comfort, compare;
-  CLI::App* cmd_comfort = app.add_subcommand(
+// `comfort` (one scene) and `compare` (two or more) take the same options.
+void add_comfort_commands(CLI::App& app, Commands* c) {
+  ComfortArgs& comfort = c->comfort;
+  ComfortArgs& compare = c->compare;
+  CLI::App* cmd_comfort = c->cmd_comfort = app.add_subcommand(
       "comfort", "Radiant comfort at points and over a grid: t_mr, t_o, asymmetry, maps");
-  CLI::App* cmd_compare = app.add_subcommand(
+  CLI::App* cmd_compare = c->cmd_compare = app.add_subcommand(
       "compare", "Comfort of two or more scenes (e.g. panel layouts) side by side");
   for (auto [cmd, a] : {std::pair{cmd_comfort, &comfort}, std::pair{cmd_compare, &compare}}) {
     const bool one = cmd == cmd_comfort;
@@ -89,8 +104,9 @@ int main(int argc, char** argv) {
     CLI::Option* dir = cmd->add_option("--cache", a->cache_dir, "View-factor cache folder");
     cmd->add_flag("--no-cache", a->no_cache, "Always trace view factors")->excludes(dir);
   }
+}
 
-  RenderArgs render;
+CLI::App* add_render_command(CLI::App& app, RenderArgs& render) {
   CLI::App* cmd_render = app.add_subcommand(
       "render", "PNG picture of the model coloured by surface, patch area or a view factor");
   cmd_render->add_option("scene", render.input, "Scene file (.toml) or mesh (.obj)")->required();
@@ -129,18 +145,26 @@ int main(int argc, char** argv) {
   cmd_render->add_option("--threads", render.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
   cmd_render->add_flag("-q,--quiet", render.quiet, "No summary line");
+  return cmd_render;
+}
 
+// An unknown first word gets the list of commands, not CLI11's generic message. Returns
+// whether it printed an error.
+bool unknown_command(const CLI::App& app, int argc, char** argv) {
   auto known = [&](const std::string& name) {
     for (const CLI::App* sub : app.get_subcommands({}))
       if (sub->get_name() == name) return true;
     return false;
   };
-  if (argc > 1 && argv[1][0] != '-' && !known(argv[1])) {
-    std::cerr << "error: unknown command '" << argv[1] << "': use one of";
-    for (const CLI::App* sub : app.get_subcommands({})) std::cerr << " " << sub->get_name();
-    std::cerr << " (see hearthray --help)\n";
-    return 2;
-  }
+  if (argc <= 1 || argv[1][0] == '-' || known(argv[1])) return false;
+  std::cerr << "error: unknown command '" << argv[1] << "': use one of";
+  for (const CLI::App* sub : app.get_subcommands({})) std::cerr << " " << sub->get_name();
+  std::cerr << " (see hearthray --help)\n";
+  return true;
+}
+
+// Parses the command line. Returns -1 to go on, else the exit code (help, version, errors).
+int parse(CLI::App& app, int argc, char** argv) {
   try {
     app.parse(argc, argv);
   } catch (const CLI::CallForHelp& e) {
@@ -154,14 +178,18 @@ int main(int argc, char** argv) {
               << " --help)\n";
     return 2;
   }
+  return -1;
+}
 
+// Runs the command given; bad input is exit 2, anything else an internal failure (exit 3).
+int run(const Commands& c) {
   try {
-    if (*cmd_factors) return run_factors_command(factors);
-    if (*cmd_check) return run_check_command(check);
-    if (*cmd_solve) return run_solve_command(solve);
-    if (*cmd_render) return run_render_command(render);
-    if (*cmd_comfort) return run_comfort_command(comfort);
-    if (*cmd_compare) return run_compare_command(compare);
+    if (*c.cmd_factors) return run_factors_command(c.factors);
+    if (*c.cmd_check) return run_check_command(c.check);
+    if (*c.cmd_solve) return run_solve_command(c.solve);
+    if (*c.cmd_render) return run_render_command(c.render);
+    if (*c.cmd_comfort) return run_comfort_command(c.comfort);
+    if (*c.cmd_compare) return run_compare_command(c.compare);
   } catch (const hearthray::InputError& e) {
     std::cerr << "error: " << e.what() << "\n";
     return 2;
@@ -170,4 +198,24 @@ int main(int argc, char** argv) {
     return 3;
   }
   return 0;
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  CLI::App app{
+      "hearthray: view factors and radiant heat exchange between the surfaces of a 3-D model.\n"
+      "Results are engineering estimates; furnace, kiln and heater design follows local codes,\n"
+      "the equipment maker's instructions and licensed practice."};
+  app.require_subcommand(1);
+  app.set_version_flag("--version", std::string("hearthray ") + hearthray::kVersion);
+  Commands c;
+  c.cmd_factors = add_factors_command(app, c.factors);
+  c.cmd_check = add_check_command(app, c.check);
+  c.cmd_solve = add_solve_command(app, c.solve);
+  add_comfort_commands(app, &c);
+  c.cmd_render = add_render_command(app, c.render);
+  if (unknown_command(app, argc, argv)) return 2;
+  if (const int status = parse(app, argc, argv); status >= 0) return status;
+  return run(c);
 }

@@ -10,6 +10,7 @@
 #include <chrono>
 #include <functional>
 #include <mutex>
+#include <stdexcept>
 
 #include "factors/emitter_sampling.hpp"
 #include "factors/hit_counter.hpp"
@@ -42,22 +43,23 @@ struct Chunk {
 constexpr std::uint64_t kChunkRays = 16384;
 constexpr std::size_t kBatch = 256;
 
-// The emitter range of the options, checked against the patches.
+// The emitter range of the options, checked against the patches. Options come from the
+// caller's code, not from the user's input: a wrong one is a programming mistake.
 std::pair<std::uint32_t, std::uint32_t> checked_emitters(const PatchSet& patches,
                                                          const ViewFactorOptions& options) {
   std::string why;
-  if (!options.IsValid(&why)) throw InputError("view factors: " + why);
+  if (!options.IsValid(&why)) throw std::invalid_argument("view factors: " + why);
   const auto n_patches = static_cast<std::uint32_t>(patches.size());
   if (!options.rays_for_patch.empty() && options.rays_for_patch.size() != n_patches)
-    throw InputError("view factors: rays_for_patch has " +
-                     std::to_string(options.rays_for_patch.size()) + " entries for " +
-                     std::to_string(n_patches) + " patches");
+    throw std::invalid_argument("view factors: rays_for_patch has " +
+                                std::to_string(options.rays_for_patch.size()) + " entries for " +
+                                std::to_string(n_patches) + " patches");
   const std::uint32_t begin = options.emitter_begin;
   const std::uint32_t end = options.emitter_end == 0 ? n_patches : options.emitter_end;
   if (end > n_patches || begin > end)
-    throw InputError("view factors: emitter range [" + std::to_string(begin) + ", " +
-                     std::to_string(end) + ") is outside the " + std::to_string(n_patches) +
-                     " patches");
+    throw std::invalid_argument("view factors: emitter range [" + std::to_string(begin) + ", " +
+                                std::to_string(end) + ") is outside the " +
+                                std::to_string(n_patches) + " patches");
   return {begin, end};
 }
 
@@ -230,7 +232,7 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
 }
 
 Tallies merge_shards(const std::vector<Tallies>& shards) {
-  if (shards.empty()) throw InputError("merge_shards: no shards given");
+  if (shards.empty()) throw std::invalid_argument("merge_shards: no shards given");
   Tallies merged;
   merged.patch_count = shards.front().patch_count;
   merged.emitter_begin = shards.front().emitter_begin;
@@ -240,7 +242,7 @@ Tallies merge_shards(const std::vector<Tallies>& shards) {
   for (const Tallies& s : shards) {
     if (s.patch_count != merged.patch_count || s.emitter_begin != next ||
         s.hits_on_surface.size() != merged.hits_on_surface.size())
-      throw InputError(
+      throw std::invalid_argument(
           "merge_shards: shards must come from one scene and cover consecutive "
           "emitter ranges in order");
     const std::uint64_t base = merged.hit_patch.size();

@@ -31,6 +31,7 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <stdexcept>
 #include <string>
 
 #include "core/text.hpp"
@@ -151,10 +152,10 @@ bool check_and_choose_solver(const PatchSet& patches, const Tallies& tallies,
   if (!options.IsValid(&invalid)) throw InputError(invalid);
   const std::size_t n = patches.size();
   if (tallies.emitter_begin != 0 || tallies.rows() != n) {
-    throw InputError("smoothing needs the tallies of all " + std::to_string(n) +
-                     " patches, but got rows " + std::to_string(tallies.emitter_begin) + " to " +
-                     std::to_string(tallies.emitter_begin + tallies.rows()) +
-                     "; merge the shards first");
+    throw std::invalid_argument("smoothing needs the tallies of all " + std::to_string(n) +
+                                " patches, but got rows " + std::to_string(tallies.emitter_begin) +
+                                " to " + std::to_string(tallies.emitter_begin + tallies.rows()) +
+                                "; merge the shards first");
   }
   tallies_detail::check_tallies(patches, tallies);
   for (std::size_t i = 0; i < n; ++i) {
