@@ -7,11 +7,11 @@
 
 #include "commands.hpp"
 #include "hearthray/error.hpp"
-#include "hearthray/version.hpp"
 #include "hearthray/render.hpp"
 #include "hearthray/thermal_model.hpp"
 #include "hearthray/thermal_report.hpp"
 #include "hearthray/tracer.hpp"
+#include "hearthray/version.hpp"
 #include "hearthray/vtu.hpp"
 
 namespace hearthray::cli {

@@ -9,6 +9,7 @@
 #include "hearthray/gas_run.hpp"
 #include "hearthray/thermal_report.hpp"
 #include "hearthray/units.hpp"
+#include "hearthray/version.hpp"
 #include "hearthray/vtu.hpp"
 
 namespace hearthray::cli {
@@ -42,7 +43,7 @@ int run_gas_solve(const SolveArgs& args, const SceneFile& file) {
   if (!args.output_dir.empty()) {
     const fs::path dir = make_output_dir(args.output_dir);
     GasReportInfo info{
-        kToolVersion,
+        kVersion,
         file.path,
         file.mesh_path,
         gas_options.seed,
