@@ -49,13 +49,13 @@ TEST_CASE("hearthray solve runs a fired scene through the gas zones", "[gas][cli
   const ScratchDir dir("gas-cli");
   write_text(dir / "box.obj", box_with_load_obj(3, 1.2, 1.2, 1.25, 0.35, 0.05, 0.5));
   write_text(dir / "scene.toml", kScene);
-  const CliResult r = run_cli("solve '" + (dir / "scene.toml").string() + "' -o '" +
-                                  (dir / "out").string() + "' --quiet",
-                              dir);
+  const CliResult r = run_cli(
+      "solve '" + (dir / "scene.toml").string() + "' -o '" + (dir / "out").string() + "' --quiet",
+      dir);
   INFO(r.err);
   REQUIRE(r.status == 0);
-  for (const char* f : {"report.json", "zones.csv", "gas_patches.csv", "zones.vtu", "patches.vtu",
-                        "gas_zones.png"})
+  for (const char* f :
+       {"report.json", "zones.csv", "gas_patches.csv", "zones.vtu", "patches.vtu", "gas_zones.png"})
     CHECK(std::filesystem::exists(dir / "out" / f));
   const auto report = nlohmann::json::parse(slurp(dir / "out" / "report.json"));
   const auto& b = report["gas"]["balance"];

@@ -139,10 +139,10 @@ struct GasSmoothingSummary {
 };
 
 // Reciprocity and closure: each pair's two estimates are pooled, weighted by each row's rays
-// over its scale (A_i or 4 k V_cell), into a symmetric matrix, then scaled S = D S~ D (symmetric matrix balancing; Knight, "The
-// Sinkhorn-Knopp algorithm: convergence and applications", SIAM J. Matrix Anal. Appl. 30,
-// 2008, symmetric variant) so that every row sums to its target less its lost part. Zeros
-// stay zero and nothing turns negative.
+// over its scale (A_i or 4 k V_cell), into a symmetric matrix, then scaled S = D S~ D (symmetric
+// matrix balancing; Knight, "The Sinkhorn-Knopp algorithm: convergence and applications", SIAM J.
+// Matrix Anal. Appl. 30, 2008, symmetric variant) so that every row sums to its target less its
+// lost part. Zeros stay zero and nothing turns negative.
 GasSmoothingSummary smooth_gas_exchange(GasExchange& exchange, double tolerance = 1e-13,
                                         int max_iterations = 10000);
 

@@ -33,8 +33,8 @@ std::string join(const std::vector<std::string>& items, const std::string& separ
 }
 
 std::string join_at_most(const std::vector<std::string>& items, std::size_t most) {
-  const std::vector<std::string> shown(items.begin(),
-                                       items.begin() + std::ptrdiff_t(std::min(most, items.size())));
+  const std::vector<std::string> shown(
+      items.begin(), items.begin() + std::ptrdiff_t(std::min(most, items.size())));
   std::string out = join(shown);
   if (items.size() > most) out += " and " + std::to_string(items.size() - most) + " more";
   return out;

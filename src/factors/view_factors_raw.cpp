@@ -6,10 +6,10 @@
 #include <limits>
 #include <string>
 
+#include "factors/view_factors_check.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/statistics.hpp"
 #include "hearthray/view_factors.hpp"
-#include "factors/view_factors_check.hpp"
 
 namespace hearthray {
 namespace {

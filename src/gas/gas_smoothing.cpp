@@ -20,7 +20,7 @@ Eigen::MatrixXd symmetric_estimate(const GasExchange& x, std::size_t g) {
   Eigen::VectorXd w(n);
   for (Eigen::Index i = 0; i < n; ++i) {
     const double scale = std::size_t(i) < x.patch_count ? x.areas[std::size_t(i)]
-                                                         : 4 * x.k[g] * x.grid.cell_volume();
+                                                        : 4 * x.k[g] * x.grid.cell_volume();
     w(i) = scale > 0 ? double(x.rays[std::size_t(i)]) / scale : 0.0;
   }
   Eigen::MatrixXd M = Eigen::MatrixXd::Zero(n, n);
