@@ -48,7 +48,7 @@ TEST_CASE("WSGG weights stay positive and below one over the fit's temperature r
 
 TEST_CASE("WSGG emissivity of a uniform path matches the published formula", "[gas]") {
   // Reference values: eps = sum_i a_i(T) [1 - exp(-kappa_i pL)] (Smith, Shen & Friedman 1982,
-  // eq. 2; Table 2 coefficients as in shared/refs/gas-radiation-data.md), evaluated by hand in
+  // eq. 2 and Table 2), evaluated by hand in
   // a separate Python session from a second typing of the table, not by this code.
   struct Case {
     WsggSet set;

@@ -216,7 +216,7 @@ TEST_CASE("WSGG gas sphere: per-gray-gas weights at the emitter's temperature",
 TEST_CASE("cube of gas against the mean-beam-length estimate", "[validation][gas]") {
   // Hand estimate: eps ~ 1 - exp(-k L_e) with Hottel's mean beam length of a cube radiating
   // to a face, L_e = 0.66 L, or the average correction L_e = 0.9 x 4V/A = 0.6 L (Hottel &
-  // Sarofim 1967; Incropera Table 13.4; shared/refs/gas-radiation-data.md). The zone method
+  // Sarofim 1967; Incropera et al., Table 13.4). The zone method
   // needs no mean beam length. How close the hand estimate comes: in the thin limit the two
   // agree (eps -> k 4V/A = 0.667 kL); as the gas thickens the cube's chords, spread from the
   // short ones at its edges to the long diagonals, make eps = 4kV/A E[exp(-k l)] fall below

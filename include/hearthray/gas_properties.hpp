@@ -7,7 +7,7 @@
 // a_i(T) of its black-body power in gray gas i, and the total emissivity of a uniform path of
 // length L is eps = sum_i a_i(T) [1 - exp(-k_i L)] (Smith, Shen & Friedman, "Evaluation of
 // coefficients for the weighted sum of gray gases model", J. Heat Transfer 104(4):602-608,
-// 1982, eq. 2 and Table 2; coefficients as transcribed in shared/refs/gas-radiation-data.md).
+// 1982, eq. 2 and Table 2, transcribed).
 #pragma once
 
 #include <array>

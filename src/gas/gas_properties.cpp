@@ -15,8 +15,8 @@ struct WsggCoefficients {
   double b[3][4];   // b_i1 .. b_i4, already scaled: T^(j-1) in K^-(j-1)
 };
 
-// Smith, Shen & Friedman (1982), Table 2, as transcribed (scaled from the printed b1 x 10,
-// b2 x 10^4, b3 x 10^7, b4 x 10^11) in shared/refs/gas-radiation-data.md.
+// Smith, Shen & Friedman (1982), Table 2, transcribed (scaled from the printed b1 x 10,
+// b2 x 10^4, b3 x 10^7, b4 x 10^11); check against the printed table when changing them.
 const WsggCoefficients& coefficients(WsggSet set) {
   static const WsggCoefficients ratio_1 = {{0.4303, 7.055, 178.1},
                                            {{5.150e-1, -2.303e-4, 0.9779e-7, -1.494e-11},
