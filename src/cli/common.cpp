@@ -7,6 +7,7 @@
 #include <cstdio>
 #include <iostream>
 
+#include "core/text.hpp"
 #include "hearthray/error.hpp"
 
 namespace hearthray::cli {
@@ -28,12 +29,6 @@ void show_progress(const PipelineProgress& p) {
                rate / 1e6, std::ceil(left));
   std::fflush(stderr);
   progress_shown = true;
-}
-
-std::string seconds_text(double seconds) {
-  char buffer[32];
-  std::snprintf(buffer, sizeof buffer, "%.3g", seconds);
-  return buffer;
 }
 
 // The refused scene's error, then the ray warnings that may explain it (flipped normals, a
@@ -92,7 +87,7 @@ void end_progress_line() {
 
 std::string cache_log_line(const FactorRun& run) {
   const std::string traced = "view factors: traced " + std::to_string(run.stats.rays) +
-                             " rays in " + seconds_text(run.stats.seconds) + " s";
+                             " rays in " + rounded("%.3g", run.stats.seconds) + " s";
   switch (run.cache) {
     case CacheOutcome::hit:
       return "view factors: from cache " + run.cache_path;

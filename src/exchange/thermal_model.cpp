@@ -76,33 +76,18 @@ ExchangeProblem ThermalModel::problem() const {
   return p;
 }
 
-ThermalModel build_thermal_model(const ThermalInput& input, const Scene& scene,
-                                 const PatchSet& patches, ViewFactors factors,
-                                 const ThermalModelOptions& options) {
-  std::string error;
-  if (!options.IsValid(&error)) throw InputError("thermal model options: " + error);
-  if (input.surfaces.size() != scene.surfaces.size()) {
-    throw std::invalid_argument("build_thermal_model: " + std::to_string(input.surfaces.size()) +
-                                " thermal surfaces for a scene of " +
-                                std::to_string(scene.surfaces.size()));
-  }
-  if (factors.size() != patches.size() || factors.areas.size() != patches.size()) {
-    throw InputError("the view factors have " + std::to_string(factors.size()) +
-                     " rows but the scene has " + std::to_string(patches.size()) +
-                     " patches: compute them for this scene");
-  }
-  const std::vector<SurfaceThermal>& thermal = input.surfaces;
+namespace {
 
-  ThermalModel m;
-  m.factors = std::move(factors);
-  m.surroundings_K = input.surroundings_K;
+// One node per (surface, piece), the front and back faces of a piece sharing it; a power is
+// spread over its surface as a uniform flux, each piece taking its area's share.
+void add_nodes_and_faces(ThermalModel& m, const std::vector<SurfaceThermal>& thermal,
+                         const Scene& scene, const PatchSet& patches) {
   for (std::size_t s = 0; s < scene.surfaces.size(); ++s) {
     m.surface_names.push_back(scene.surfaces[s].name);
     m.surface_conditions.push_back(thermal[s].condition);
     m.two_sided.push_back(scene.surfaces[s].two_sided);
     m.emissivity.push_back(thermal[s].emissivity);
   }
-  // One node per (surface, piece); the front and back faces of a piece share it.
   std::vector<std::vector<std::uint32_t>> node_of(scene.surfaces.size());
   std::vector<std::uint32_t> pieces(scene.surfaces.size(), 0);
   for (const Patch& patch : patches.patches)
@@ -128,27 +113,29 @@ ThermalModel build_thermal_model(const ThermalInput& input, const Scene& scene,
       surface_area[patch.surface] += m.factors.areas[p];
     }
   }
-  // A power is spread over the surface as a uniform flux: each piece takes its area's share.
   for (std::size_t k = 0; k < m.nodes.size(); ++k) {
     NodeCondition& c = m.nodes[k].condition;
     const double whole = surface_area[m.node_surface[k]];
     if (c.kind == ConditionKind::power && whole > 0) c.value *= piece_area[k] / whole;
   }
+}
 
-  const MeshTopology topology = analyse_topology(scene);
-  // Only the one-sided surfaces can close an enclosure: the back of a two-sided sheet that is
-  // part of the outer boundary looks out of it, and what it sends there is no leak.
-  m.mesh_closed = topology.one_sided_closed;
-  // Share of all rays lost, weighted by rays emitted (by area for factors without rays).
+// Share of all rays lost, weighted by rays emitted (by area for factors without rays).
+double lost_fraction(const ViewFactors& vf) {
   double weight = 0, lost_weight = 0;
-  for (std::size_t f = 0; f < m.factors.size(); ++f) {
-    const bool by_rays = f < m.factors.rays.size() && m.factors.rays[f] > 0;
-    const double w = by_rays ? double(m.factors.rays[f]) : m.factors.areas[f];
+  for (std::size_t f = 0; f < vf.size(); ++f) {
+    const bool by_rays = f < vf.rays.size() && vf.rays[f] > 0;
+    const double w = by_rays ? double(vf.rays[f]) : vf.areas[f];
     weight += w;
-    lost_weight += w * lost(m.factors, f);
+    lost_weight += w * lost(vf, f);
   }
-  m.lost_fraction = weight > 0 ? lost_weight / weight : 0.0;
+  return weight > 0 ? lost_weight / weight : 0.0;
+}
 
+// Radiation that leaves: folded back as leaks in a closed mesh, refused without a surroundings
+// temperature, noted when a surroundings temperature plays no part.
+void settle_losses(ThermalModel& m, const ThermalInput& input, const Scene& scene,
+                   const ThermalModelOptions& options) {
   if (m.mesh_closed && m.lost_fraction > 0 && m.lost_fraction < options.leak_limit) {
     fold_leaks(&m.factors);
     m.leaks_folded = true;
@@ -192,6 +179,34 @@ ThermalModel build_thermal_model(const ThermalInput& input, const Scene& scene,
         "no radiation leaves the scene: the [surroundings] temperature plays no "
         "part");
   }
+}
+
+}  // namespace
+
+ThermalModel build_thermal_model(const ThermalInput& input, const Scene& scene,
+                                 const PatchSet& patches, ViewFactors factors,
+                                 const ThermalModelOptions& options) {
+  std::string error;
+  if (!options.IsValid(&error)) throw InputError("thermal model options: " + error);
+  if (input.surfaces.size() != scene.surfaces.size()) {
+    throw std::invalid_argument("build_thermal_model: " + std::to_string(input.surfaces.size()) +
+                                " thermal surfaces for a scene of " +
+                                std::to_string(scene.surfaces.size()));
+  }
+  if (factors.size() != patches.size() || factors.areas.size() != patches.size()) {
+    throw InputError("the view factors have " + std::to_string(factors.size()) +
+                     " rows but the scene has " + std::to_string(patches.size()) +
+                     " patches: compute them for this scene");
+  }
+  ThermalModel m;
+  m.factors = std::move(factors);
+  m.surroundings_K = input.surroundings_K;
+  add_nodes_and_faces(m, input.surfaces, scene, patches);
+  // Only the one-sided surfaces can close an enclosure: the back of a two-sided sheet that is
+  // part of the outer boundary looks out of it, and what it sends there is no leak.
+  m.mesh_closed = analyse_topology(scene).one_sided_closed;
+  m.lost_fraction = lost_fraction(m.factors);
+  settle_losses(m, input, scene, options);
   return m;
 }
 

@@ -155,7 +155,11 @@ class Reader {
     }
     Convection c;
     c.h = quantity(*h, "h", name, Quantity::heat_transfer_coefficient, "8 W/m2K");
-    c.fluid_K = quantity(*fluid, "fluid", name, Quantity::temperature, "20 C");
+    // fluid = "gas": the radiating gas beside the surface ([gas] scenes; checked in read()).
+    if (const auto* word = fluid->as_string(); word && word->get() == "gas")
+      c.fluid_is_gas = true;
+    else
+      c.fluid_K = quantity(*fluid, "fluid", name, Quantity::temperature, "20 C");
     return c;
   }
 
@@ -417,6 +421,7 @@ class Reader {
                        [](const auto& a, const auto& b) { return a.second.line < b.second.line; });
     }
     if (const toml::node* gas = root.get("gas")) file.gas = read_gas_table(*gas, path_);
+    check_convection_fluids(file);
     if (const toml::node* comfort = root.get("comfort")) {
       file.comfort = read_comfort_table(*comfort, path_);
     }
@@ -424,6 +429,24 @@ class Reader {
   }
 
  private:
+  // With a radiating gas the films exchange with the gas (fluid = "gas"); without one there is
+  // no gas to name.
+  void check_convection_fluids(const SceneFile& file) const {
+    auto check = [&](const SurfaceSpec& spec, const std::string& table) {
+      if (!spec.convection) return;
+      if (spec.convection->fluid_is_gas && !file.gas)
+        throw InputError(path_ + ":" + std::to_string(spec.line) + ": 'convection' of " + table +
+                         " has fluid = \"gas\", but the scene has no [gas] table; give the "
+                         "fluid's temperature, e.g. fluid = \"20 C\"");
+      if (!spec.convection->fluid_is_gas && file.gas)
+        throw InputError(path_ + ":" + std::to_string(spec.line) + ": 'convection' of " + table +
+                         " gives a fluid temperature, but in a scene with [gas] the film "
+                         "exchanges with the gas beside the surface: write fluid = \"gas\"");
+    };
+    check(file.defaults, "[defaults]");
+    for (const auto& [name, spec] : file.surfaces) check(spec, "[surface." + name + "]");
+  }
+
   std::string path_;
 };
 
