@@ -154,9 +154,10 @@ void settle_losses(ThermalModel& m, const ThermalInput& input, const Scene& scen
       throw InputError("the mesh '" + scene.source + "' is closed, yet " +
                        percent(m.lost_fraction) +
                        " of all rays left it or were absorbed on back faces (by surface: " + list +
-                       "): too many for leaks through shared edges. Look for gaps or for "
-                       "surfaces whose normals point out of the enclosure (hearthray check "
-                       "shows both); if radiation really leaves, " +
+                       "): too many for leaks through shared edges. Fix the mesh first: look for "
+                       "surfaces whose normals point out of the enclosure, solids exported "
+                       "touching (faces lying on each other) and gaps (hearthray check shows "
+                       "where); only if radiation really leaves, " +
                        fix);
     }
     bool back_faces = false;
@@ -166,7 +167,12 @@ void settle_losses(ThermalModel& m, const ThermalInput& input, const Scene& scen
         " surface(s) (share of each one's radiation: " + list + "; " + percent(m.lost_fraction) +
         " of all rays" +
         (back_faces ? ", counting rays absorbed on the back of one-sided surfaces" : "") +
-        "), but no surroundings temperature is given: " + fix + ", or close the geometry");
+        "), but no surroundings temperature is given. " +
+        (back_faces ? "First fix the normals of surfaces hit on their back, and faces of "
+                      "solids exported touching (hearthray check shows where); then, if "
+                      "radiation really leaves, "
+                    : "If radiation really leaves, ") +
+        fix + "; otherwise close the geometry");
   }
   if (leaving == 0 && m.surroundings_K) {
     m.notes.push_back(
