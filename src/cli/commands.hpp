@@ -31,6 +31,7 @@ struct SolveArgs {
   RaySettings rays;
   std::string cache_dir;  // --cache; "" = default
   bool no_cache = false;
+  std::string units = "si";  // --units: si | us | kcal, for the table, surfaces.csv, pictures
 };
 // Exit codes: 0 solved, 2 bad input, 4 the solver did not converge (outputs still written).
 inline constexpr int kExitNotConverged = 4;

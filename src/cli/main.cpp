@@ -86,6 +86,10 @@ CLI::App* add_solve_command(CLI::App& app, SolveArgs& solve) {
   cmd_solve
       ->add_flag("--no-cache", solve.no_cache, "Always trace; neither read nor write the cache")
       ->excludes(cache_dir);
+  cmd_solve->add_option("--units", solve.units,
+                        "Units of the table, surfaces.csv and pictures: si (C, W, W/m2), us "
+                        "(F, Btu/h, Btu/(h ft2)) or kcal (C, kcal/h, kcal/(h m2)); report.json "
+                        "stays SI (default si)");
   return cmd_solve;
 }
 

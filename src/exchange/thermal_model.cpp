@@ -261,6 +261,7 @@ HeatBalance heat_balance(const ExchangeResult& result) {
   double net = 0;
   for (const NodeResult& n : result.nodes) {
     b.heat_input_W += n.heat_input_W;
+    (n.heat_input_W > 0 ? b.gross_input_W : b.taken_out_W) += std::abs(n.heat_input_W);
     b.convection_W += n.convection_W;
     b.wall_loss_W += n.wall_loss_W;
     net += n.net_radiation_W;
@@ -272,6 +273,22 @@ HeatBalance heat_balance(const ExchangeResult& result) {
   // heat_input - convection - wall_loss is the net radiation of all surfaces; what the
   // surroundings do not take of it is the residual.
   b.residual_W = net - b.to_surroundings_W;
+  return b;
+}
+
+HeatBalance heat_balance(const ThermalModel& model, const ExchangeResult& result) {
+  HeatBalance b = heat_balance(result);
+  std::vector<char> source(model.surface_names.size(), 0), sink(model.surface_names.size(), 0);
+  for (std::size_t k = 0; k < result.nodes.size() && k < model.node_surface.size(); ++k) {
+    const double q = result.nodes[k].heat_input_W;
+    // Round-off of a balanced reradiating piece is neither.
+    if (std::abs(q) <= 1e-9 * b.largest_W) continue;
+    (q > 0 ? source : sink)[model.node_surface[k]] = 1;
+  }
+  for (std::size_t s = 0; s < model.surface_names.size(); ++s) {
+    if (source[s]) b.sources.push_back(model.surface_names[s]);
+    if (sink[s]) b.sinks.push_back(model.surface_names[s]);
+  }
   return b;
 }
 
