@@ -11,6 +11,8 @@ using namespace hearthray::cli;
 
 namespace {
 
+const char* const kUnitHelp = "Unit of a bare mesh's coordinates: mm, cm, m, in or ft (default m)";
+
 // The commands, and the arguments CLI11 fills for each.
 struct Commands {
   FactorsArgs factors;
@@ -26,6 +28,7 @@ CLI::App* add_factors_command(CLI::App& app, FactorsArgs& factors) {
   CLI::App* cmd_factors = app.add_subcommand(
       "factors", "View factors between every pair of surfaces, with standard errors");
   cmd_factors->add_option("scene", factors.input, "Scene file (.toml) or mesh (.obj)")->required();
+  cmd_factors->add_option("--unit", factors.unit, kUnitHelp);
   cmd_factors
       ->add_option(
           "--rays", factors.rays.rays,
@@ -46,6 +49,10 @@ CLI::App* add_check_command(CLI::App& app, CheckArgs& check) {
   CLI::App* cmd_check = app.add_subcommand(
       "check", "Mesh report: triangles, areas, topology, back-face hits, escaping rays");
   cmd_check->add_option("scene", check.input, "Scene file (.toml) or mesh (.obj)")->required();
+  cmd_check->add_option("--unit", check.unit, kUnitHelp);
+  cmd_check->add_option("--where", check.where,
+                        "Write gaps, touching faces and back hits as lines and points a viewer "
+                        "opens (.obj or .vtu)");
   cmd_check->add_option("--rays", check.rays, "Rays per surface for the quick estimate")
       ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 32));
   cmd_check->add_option("--seed", check.seed, "Random seed");
@@ -79,6 +86,10 @@ CLI::App* add_solve_command(CLI::App& app, SolveArgs& solve) {
   cmd_solve
       ->add_flag("--no-cache", solve.no_cache, "Always trace; neither read nor write the cache")
       ->excludes(cache_dir);
+  cmd_solve->add_option("--units", solve.units,
+                        "Units of the table, surfaces.csv and pictures: si (C, W, W/m2), us "
+                        "(F, Btu/h, Btu/(h ft2)) or kcal (C, kcal/h, kcal/(h m2)); report.json "
+                        "stays SI (default si)");
   return cmd_solve;
 }
 
@@ -110,9 +121,11 @@ CLI::App* add_render_command(CLI::App& app, RenderArgs& render) {
   CLI::App* cmd_render = app.add_subcommand(
       "render", "PNG picture of the model coloured by surface, patch area or a view factor");
   cmd_render->add_option("scene", render.input, "Scene file (.toml) or mesh (.obj)")->required();
+  cmd_render->add_option("--unit", render.unit, kUnitHelp);
   cmd_render->add_option("-o,--output", render.output, "Picture file (.png)")->required();
   cmd_render->add_option("--field", render.field,
-                         "surface, area or view-factor-to=<surface> (default surface)");
+                         "surface, area, view-factor-to=<surface>; with --results: temperature, "
+                         "net-flux, irradiation, radiosity (default surface)");
   cmd_render->add_option("--width", render.width, "Pixels (default 800)")
       ->check(CLI::Range(16, 16384));
   cmd_render->add_option("--height", render.height, "Pixels (default 600)")
@@ -144,6 +157,12 @@ CLI::App* add_render_command(CLI::App& app, RenderArgs& render) {
                          "Random seed (default " + std::to_string(hearthray::kDefaultSeed) + ")");
   cmd_render->add_option("--threads", render.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
+  cmd_render->add_option("--results", render.results,
+                         "Folder a solve wrote (-o): draw its temperature, net-flux, irradiation "
+                         "or radiosity");
+  cmd_render->add_option("--units", render.units,
+                         "Units of a solved field: si (C, W/m2), us (F, Btu/(h ft2)) or kcal "
+                         "(C, kcal/(h m2)) (default si)");
   cmd_render->add_flag("-q,--quiet", render.quiet, "No summary line");
   return cmd_render;
 }
