@@ -17,8 +17,9 @@ using Catch::Matchers::Contains;
 namespace {
 
 TallyCacheKey key_of(const LoadedScene& l, std::uint64_t rays = 1000, std::uint64_t seed = 1,
-                     bool smoothed = true) {
+                     bool smoothed = true, EmissionSampler sampler = kDefaultSampler) {
   TallyCacheSettings settings;
+  settings.sampler = sampler;
   settings.patch_specs = patch_specs(l.file, l.scene);
   settings.rays.assign(l.patches.size(), rays);
   settings.seed = seed;
@@ -73,6 +74,8 @@ TEST_CASE("the cache key follows the mesh bytes and every ray setting", "[cache]
   CHECK_FALSE(key_of(base, 1001) == key);
   CHECK_FALSE(key_of(base, 1000, 2) == key);
   CHECK_FALSE(key_of(base, 1000, 1, false) == key);
+  CHECK_FALSE(key_of(base, 1000, 1, true, EmissionSampler::stratified) ==
+              key_of(base, 1000, 1, true, EmissionSampler::sobol));
   CHECK_FALSE(key_of(load_scene_text(dir, unit_cube_obj() + "# a comment\n")) == key);
   CHECK_FALSE(key_of(load_scene_text(dir, unit_cube_obj(), "unit = \"mm\"\n")) == key);
   CHECK_FALSE(key_of(load_scene_text(dir, unit_cube_obj(), "[surface.east]\ntwo_sided = true\n")) ==
@@ -113,6 +116,12 @@ TEST_CASE("tallies survive a round trip through the cache", "[cache]") {
   CHECK(c.tallies.hit_count == t.hit_count);
   CHECK(c.tallies.hits_on_surface == t.hits_on_surface);
   CHECK(c.tallies.back_face_hits_on_surface == t.back_face_hits_on_surface);
+  // The sobol sampler's replicate squares come back bit for bit (doubles as their IEEE bits).
+  REQUIRE(kDefaultSampler == EmissionSampler::sobol);
+  REQUIRE(!t.hit_square.empty());
+  CHECK(c.tallies.hit_square == t.hit_square);
+  CHECK(c.tallies.escaped_square == t.escaped_square);
+  CHECK(c.tallies.back_face_square == t.back_face_square);
 }
 
 TEST_CASE("a bad cache file is rejected and never trusted", "[cache]") {

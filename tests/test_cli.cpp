@@ -62,6 +62,14 @@ TEST_CASE("one and two threads give identical files", "[cli]") {
   CHECK(slurp(dir / "t1.csv") == slurp(dir / "t2.csv"));
   REQUIRE(run_cli(base + "--threads 2 --seed 2 -o " + (dir / "s2.csv").string(), dir).status == 0);
   CHECK(slurp(dir / "t1.csv") != slurp(dir / "s2.csv"));  // the seed does matter
+  // Both samplers are there; the other one gives other factors; JSON names the sampler.
+  for (const char* s : {"stratified", "sobol"}) {
+    const std::string json = (dir / (std::string(s) + ".json")).string();
+    REQUIRE(run_cli(base + "--threads 2 --sampler " + s + " -o " + json, dir).status == 0);
+    CHECK(slurp(json).find(std::string("\"sampler\": \"") + s + "\"") != std::string::npos);
+  }
+  CHECK(slurp(dir / "stratified.json") != slurp(dir / "sobol.json"));
+  CHECK(run_cli(base + "--sampler halton", dir).status != 0);
 }
 
 TEST_CASE("terminal table and check report", "[cli]") {

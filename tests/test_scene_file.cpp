@@ -200,6 +200,11 @@ TEST_CASE("bad values in a scene file are errors naming file, line and key", "[s
                     Catch::Contains("scene.toml:4:") && Catch::Contains("positive whole number"));
   CHECK_THROWS_WITH(read("[rays]\nper_patch = 2e5\n"), Catch::Contains("per_patch"));
   CHECK_THROWS_WITH(read("[rays]\nseed = -1\n"), Catch::Contains("non-negative whole number"));
+  CHECK_THROWS_WITH(read("[rays]\nsampler = \"halton\"\n"),
+                    Catch::Contains("sampler in [rays] is 'halton'") && Catch::Contains("sobol"));
+  CHECK(read("[rays]\nsampler = \"stratified\"\n").sampler == EmissionSampler::stratified);
+  CHECK(read("[rays]\nsampler = \"sobol\"\n").sampler == EmissionSampler::sobol);
+  CHECK_FALSE(read("[rays]\nseed = 3\n").sampler.has_value());
   CHECK_THROWS_WITH(read("unit = \"yd\"\n"),
                     Catch::Contains("scene.toml:3:") && Catch::Contains("mm, cm, m, in, ft"));
   CHECK_THROWS_WITH(read("surfaces_from = \"names\"\n"),

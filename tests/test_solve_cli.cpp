@@ -316,6 +316,7 @@ adiabatic = true
     CHECK(report.at("caution").get<std::string>().find(hazard) != std::string::npos);
   CHECK(report.at("scene").at("surroundings_K").get<double>() == Approx(293.15));
   CHECK(report.at("view_factors").at("rays_per_patch") == 20000);
+  CHECK(report.at("view_factors").at("sampler") == "sobol");  // the default
   CHECK(report.at("solver").at("status") == "converged");
   const json& surfaces = report.at("surfaces");
   REQUIRE(surfaces.size() == 5);

@@ -22,7 +22,7 @@ namespace hearthray {
 
 // Part of every key. Change it whenever tracing or sampling changes what (mesh, rays, seed)
 // produce, or when the file layout changes: old files then simply stop matching.
-inline constexpr const char* kTallyCacheFormat = "hearthray-tallies/3";
+inline constexpr const char* kTallyCacheFormat = "hearthray-tallies/4";
 
 // 128 bits from two unrelated 64-bit hashes of the same bytes (FNV-1a and a word-wise
 // multiply-xorshift mix), so an accidental collision needs both to collide at once.
@@ -39,6 +39,7 @@ struct TallyCacheSettings {
   std::vector<PatchSpec> patch_specs;  // per surface: how it is cut into patches
   std::vector<std::uint64_t> rays;     // rays of each patch
   std::uint64_t seed = 0;
+  EmissionSampler sampler = kDefaultSampler;
   bool smoothed = true;  // the factors are smoothed after loading
 };
 

@@ -14,6 +14,7 @@ namespace hearthray {
 struct FactorReportInfo {
   std::string scene;  // scene or mesh file
   std::uint64_t seed = 0;
+  std::string sampler;  // "stratified" or "sobol" (sampler_name)
   std::uint64_t rays_per_patch = 0;
   double trace_seconds = 0;
   double rays_per_second = 0;

@@ -60,10 +60,12 @@ struct PipelineOptions {
   // kDefaultRaysPerPatch.
   std::optional<std::uint64_t> rays_per_patch;
   std::optional<std::uint64_t> seed;  // over the scene file's seed; empty: its, else kDefaultSeed
-  int threads = 0;                    // threads of every stage; 0 = all cores
-  bool smooth = true;                 // enforce reciprocity and closure (false: raw factors)
-  bool use_cache = false;             // tallies from the view-factor cache, traced ones stored
-  std::string cache_dir;              // "" = default_cache_dir() (cache.hpp)
+  std::optional<EmissionSampler>
+      sampler;             // over the scene file's; empty: its, else kDefaultSampler
+  int threads = 0;         // threads of every stage; 0 = all cores
+  bool smooth = true;      // enforce reciprocity and closure (false: raw factors)
+  bool use_cache = false;  // tallies from the view-factor cache, traced ones stored
+  std::string cache_dir;   // "" = default_cache_dir() (cache.hpp)
   TracerOptions tracer;
   SmoothingOptions smoothing;
   ThermalModelOptions thermal_model;
@@ -92,6 +94,7 @@ struct FactorRun {
   std::vector<std::uint64_t> rays;   // per patch
   std::uint64_t rays_per_patch = 0;  // when every patch has the same rays, else 0
   std::uint64_t seed = 0;
+  EmissionSampler sampler = kDefaultSampler;
   Tallies tallies;  // the ray counts (emptied by solve_scene once the factors are made)
   ViewFactors factors;
   TraceStats stats;  // rays: those traced or read from the cache

@@ -32,6 +32,7 @@
 #include "hearthray/gas_input.hpp"
 #include "hearthray/patches.hpp"
 #include "hearthray/scene.hpp"
+#include "hearthray/view_factors.hpp"  // EmissionSampler
 
 namespace hearthray {
 
@@ -55,6 +56,7 @@ struct SceneFile {
   MeshOptions mesh;
   std::optional<std::uint64_t> rays_per_patch;
   std::optional<std::uint64_t> seed;
+  std::optional<EmissionSampler> sampler;           // [rays] sampler
   std::optional<std::uint64_t> rays_total;          // budget spread over patches by area
   std::optional<std::uint64_t> rays_min_per_patch;  // floor per patch with rays_total
   std::optional<double> surroundings_K;

@@ -33,6 +33,7 @@ struct SolveReportInfo {
   std::string surfaces_from;  // groups | materials
   std::uint64_t rays_per_patch = 0;
   std::uint64_t seed = 0;
+  std::string sampler;  // "stratified" or "sobol" (sampler_name)
   std::uint64_t rays_total = 0;
   std::optional<double> trace_seconds;  // empty: the tallies came from the cache
   std::string cache_file;               // read or written; "" when the cache was not used

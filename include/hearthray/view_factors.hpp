@@ -33,6 +33,12 @@ struct TraceProgress {
 //    replicates (Owen, "Monte Carlo theory, methods and examples", ch. 17, randomised QMC).
 enum class EmissionSampler { stratified, sobol };
 inline constexpr std::uint32_t kSobolReplicates = 8;
+// The sampler when neither the caller nor the scene file says (see README, "Sampling").
+inline constexpr EmissionSampler kDefaultSampler = EmissionSampler::sobol;
+// "stratified" / "sobol": the names of the scene key [rays] sampler and of --sampler.
+inline const char* sampler_name(EmissionSampler s) {
+  return s == EmissionSampler::sobol ? "sobol" : "stratified";
+}
 
 // First ray of replicate r (0..replicates) of a patch emitting `total` rays: floor(r N / R).
 inline std::uint64_t replicate_first_ray(std::uint64_t total, std::uint32_t r) {
@@ -44,7 +50,7 @@ struct ViewFactorOptions {
   std::uint64_t rays_per_patch = kDefaultRaysPerPatch;  // rays emitted by every patch...
   std::vector<std::uint64_t> rays_for_patch;            // ...unless given here, one count per patch
   std::uint64_t seed = kDefaultSeed;                    // results depend on seed and rays only
-  EmissionSampler sampler = EmissionSampler::stratified;
+  EmissionSampler sampler = kDefaultSampler;
   int threads = 0;                  // worker threads; 0 = all cores
   std::uint32_t emitter_begin = 0;  // emitting patches [begin, end); end 0 = all
   std::uint32_t emitter_end = 0;

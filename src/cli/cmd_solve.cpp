@@ -39,6 +39,7 @@ SolveReportInfo solve_info(const SceneFile& file, const FactorRun& run, const Th
   info.surfaces_from = file.mesh.surfaces_from == SurfacesFrom::groups ? "groups" : "materials";
   info.rays_per_patch = run.rays_per_patch;
   info.seed = run.seed;
+  info.sampler = sampler_name(run.sampler);
   info.rays_total = run.diagnostics.emitted;
   if (!run.from_cache()) info.trace_seconds = run.stats.seconds;
   info.cache_file = run.cache_path;

@@ -61,6 +61,9 @@ PipelineOptions pipeline_options(const RaySettings& settings, const CacheChoice*
   PipelineOptions options;
   options.rays_per_patch = settings.rays;
   options.seed = settings.seed;
+  if (settings.sampler)
+    options.sampler =
+        *settings.sampler == "sobol" ? EmissionSampler::sobol : EmissionSampler::stratified;
   options.threads = settings.threads;
   options.smooth = !settings.raw;
   if (cache) {
@@ -106,6 +109,7 @@ FactorReportInfo report_info(const SceneFile& file, const FactorRun& run) {
   FactorReportInfo info;
   info.scene = file.path.empty() ? file.mesh_path : file.path;
   info.seed = run.seed;
+  info.sampler = sampler_name(run.sampler);
   info.rays_per_patch = run.rays_per_patch;
   info.trace_seconds = run.stats.seconds;
   info.rays_per_second = run.stats.rays_per_second;

@@ -19,6 +19,7 @@ namespace hearthray::cli {
 struct RaySettings {
   std::optional<std::uint64_t> rays;  // command line over scene file over default
   std::optional<std::uint64_t> seed;
+  std::optional<std::string> sampler;  // "sobol" or "stratified" (checked by CLI11)
   int threads = 0;
   bool raw = false;    // skip smoothing
   bool quiet = false;  // no progress line, no summary

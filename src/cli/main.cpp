@@ -24,6 +24,14 @@ struct Commands {
            *cmd_comfort = nullptr, *cmd_compare = nullptr, *cmd_render = nullptr;
 };
 
+void add_sampler_option(CLI::App* cmd, RaySettings& rays) {
+  cmd->add_option("--sampler", rays.sampler,
+                  std::string("How surfaces emit rays: sobol (scrambled Sobol' points, errors from "
+                              "8 replicates) or stratified (plain Monte Carlo); default: scene, ") +
+                      hearthray::sampler_name(hearthray::kDefaultSampler))
+      ->check(CLI::IsMember({"sobol", "stratified"}));
+}
+
 CLI::App* add_factors_command(CLI::App& app, FactorsArgs& factors) {
   CLI::App* cmd_factors = app.add_subcommand(
       "factors", "View factors between every pair of surfaces, with standard errors");
@@ -36,6 +44,7 @@ CLI::App* add_factors_command(CLI::App& app, FactorsArgs& factors) {
       ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 40));
   cmd_factors->add_option("--seed", factors.rays.seed,
                           "Random seed (default " + std::to_string(hearthray::kDefaultSeed) + ")");
+  add_sampler_option(cmd_factors, factors.rays);
   cmd_factors->add_option("--threads", factors.rays.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
   cmd_factors->add_flag("--raw", factors.rays.raw, "Skip the reciprocity and closure correction");
@@ -77,6 +86,7 @@ CLI::App* add_solve_command(CLI::App& app, SolveArgs& solve) {
   cmd_solve->add_option(
       "--seed", solve.rays.seed,
       "Random seed (default: scene, " + std::to_string(hearthray::kDefaultSeed) + ")");
+  add_sampler_option(cmd_solve, solve.rays);
   cmd_solve->add_option("--threads", solve.rays.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
   CLI::Option* cache_dir =

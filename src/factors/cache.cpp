@@ -21,9 +21,10 @@ namespace {
 namespace fs = std::filesystem;
 
 constexpr char kMagic[8] = {'h', 'r', 't', 'a', 'l', 'l', 'y', '\0'};
-constexpr std::uint32_t kLayoutVersion = 1;
-// magic, layout version + spare, key (2), patches, surfaces, rows, emitter_begin, hits,
-// trace seconds, payload hash (2).
+constexpr std::uint32_t kLayoutVersion = 2;
+// magic, layout version + flags (1: the sobol sampler's replicate squares follow the hit
+// counts), key (2), patches, surfaces, rows, emitter_begin, hits, trace seconds, payload
+// hash (2).
 constexpr std::size_t kHeaderBytes = 8 + 8 + 16 + 5 * 8 + 8 + 16;
 
 std::uint64_t rotl(std::uint64_t x, int r) {
@@ -109,6 +110,14 @@ struct Cursor {
     for (int i = 0; i < 4; ++i)
       v |= std::uint32_t(static_cast<unsigned char>(data[at + i])) << (8 * i);
     at += 4;
+    return v;
+  }
+  std::vector<double> reals(std::size_t n) {
+    std::vector<double> v(n);
+    for (double& x : v) {
+      const std::uint64_t bits = u64();
+      std::memcpy(&x, &bits, sizeof x);
+    }
     return v;
   }
   template <typename T>
@@ -204,6 +213,7 @@ TallyCacheKey tally_cache_key(const std::string& mesh_bytes, const MeshOptions& 
   h.u64(settings.rays.size());
   for (std::uint64_t n : settings.rays) h.u64(n);
   h.u64(settings.seed);
+  h.text(sampler_name(settings.sampler));
   h.u64(settings.smoothed ? 1 : 0);
   return h.finish();
 }
@@ -251,7 +261,7 @@ CachedTallies load_cached_tallies(const std::string& dir, const TallyCacheKey& k
   }
   Cursor c{data, sizeof kMagic};
   const std::uint32_t layout = c.u32();
-  c.u32();
+  const bool squares = (c.u32() & 1u) != 0;
   if (layout != kLayoutVersion) {
     return reject("its layout version is " + std::to_string(layout) + ", expected " +
                   std::to_string(kLayoutVersion));
@@ -275,9 +285,11 @@ CachedTallies load_cached_tallies(const std::string& dir, const TallyCacheKey& k
   }
   // Sizes are now bounded by the scene, except `hits`: check it against the file's length
   // before anything is allocated.
-  const std::uint64_t fixed = kHeaderBytes + rows * 8 * 3 + (rows + 1) * 8 + n_surfaces * 8 * 2;
-  if (data.size() < fixed || (data.size() - fixed) % 12 != 0 ||
-      (data.size() - fixed) / 12 != hits) {
+  const std::uint64_t fixed =
+      kHeaderBytes + rows * 8 * (squares ? 5 : 3) + (rows + 1) * 8 + n_surfaces * 8 * 2;
+  const std::uint64_t per_hit = squares ? 20 : 12;
+  if (data.size() < fixed || (data.size() - fixed) % per_hit != 0 ||
+      (data.size() - fixed) / per_hit != hits) {
     return reject("its length does not match its header (a truncated or damaged file)");
   }
   if (!(payload_hash(data, kHeaderBytes) == checksum)) {
@@ -294,6 +306,11 @@ CachedTallies load_cached_tallies(const std::string& dir, const TallyCacheKey& k
   t.hit_count = c.all<std::uint64_t>(hits);
   t.back_face_hits_on_surface = c.all<std::uint64_t>(n_surfaces);
   t.hits_on_surface = c.all<std::uint64_t>(n_surfaces);
+  if (squares) {
+    t.hit_square = c.reals(hits);
+    t.escaped_square = c.reals(rows);
+    t.back_face_square = c.reals(rows);
+  }
   const std::string problem = check_counts(t, rays);
   if (!problem.empty()) return reject(problem);
   std::memcpy(&out.trace_seconds, &seconds_bits, sizeof seconds_bits);
@@ -318,13 +335,21 @@ CacheWrite store_cached_tallies(const std::string& dir, const TallyCacheKey& key
   put_all(&payload, t.hit_count);
   put_all(&payload, t.back_face_hits_on_surface);
   put_all(&payload, t.hits_on_surface);
+  const bool squares = !t.hit_square.empty();
+  for (const auto* reals : {&t.hit_square, &t.escaped_square, &t.back_face_square}) {
+    for (double x : *reals) {
+      std::uint64_t bits;
+      std::memcpy(&bits, &x, sizeof bits);
+      put_u64(&payload, bits);
+    }
+  }
   Hasher h;
   h.bytes(payload.data(), payload.size());
   const TallyCacheKey checksum = h.finish();
 
   std::string data(kMagic, sizeof kMagic);
   put_u32(&data, kLayoutVersion);
-  put_u32(&data, 0);
+  put_u32(&data, squares ? 1u : 0u);
   put_u64(&data, key.fnv);
   put_u64(&data, key.mix);
   put_u64(&data, t.patch_count);

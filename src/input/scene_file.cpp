@@ -23,7 +23,8 @@ namespace fs = std::filesystem;
 const std::vector<std::string> kTopKeys = {"mesh",    "rays",    "surroundings", "defaults",
                                            "surface", "comfort", "gas"};
 const std::vector<std::string> kMeshKeys = {"file", "unit", "surfaces_from"};
-const std::vector<std::string> kRaysKeys = {"per_patch", "total", "min_per_patch", "seed"};
+const std::vector<std::string> kRaysKeys = {"per_patch", "total", "min_per_patch", "seed",
+                                            "sampler"};
 const std::vector<std::string> kSurroundingsKeys = {"temperature"};
 const std::vector<std::string> kSurfaceKeys = {
     "two_sided", "emissivity", "temperature", "heat_flux", "power",
@@ -376,6 +377,18 @@ class Reader {
         file.rays_per_patch = whole_number(*n, "per_patch", true, "200_000");
       }
       if (const toml::node* n = rays.get("seed")) file.seed = whole_number(*n, "seed", false, "1");
+      if (const toml::node* n = rays.get("sampler")) {
+        const std::string text = need_string(*n, "sampler", "[rays]", "\"sobol\"");
+        if (text == "sobol") {
+          file.sampler = EmissionSampler::sobol;
+        } else if (text == "stratified") {
+          file.sampler = EmissionSampler::stratified;
+        } else {
+          fail(n->source(), "sampler in [rays] is '" + text +
+                                "'; write \"sobol\" (scrambled Sobol' points) or \"stratified\" "
+                                "(plain Monte Carlo, stratified by area)");
+        }
+      }
       if (const toml::node* n = rays.get("total")) {
         if (file.rays_per_patch)
           fail(n->source(),

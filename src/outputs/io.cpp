@@ -162,6 +162,7 @@ void write_factors_json(std::ostream& out, const ViewFactors& vf, const FactorRe
   doc["max_correction_sigma"] = vf.max_correction_sigma;
   doc["info"] = {{"scene", info.scene},
                  {"seed", info.seed},
+                 {"sampler", info.sampler},
                  {"rays_per_patch", info.rays_per_patch},
                  {"trace_seconds", info.trace_seconds},
                  {"rays_per_second", info.rays_per_second},

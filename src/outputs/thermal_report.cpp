@@ -258,7 +258,8 @@ json scene_json(const SolveReportInfo& info, const ThermalModel& model) {
   json scene;
   scene["file"] = info.scene;
   scene["mesh"] = {{"file", info.mesh}, {"unit", info.unit}, {"surfaces_from", info.surfaces_from}};
-  scene["rays"] = {{"per_patch", info.rays_per_patch}, {"seed", info.seed}};
+  scene["rays"] = {
+      {"per_patch", info.rays_per_patch}, {"seed", info.seed}, {"sampler", info.sampler}};
   scene["surroundings_K"] = model.surroundings_K ? json(*model.surroundings_K) : json(nullptr);
   scene["surfaces"] = scene_surfaces;
   return scene;
@@ -269,6 +270,7 @@ json view_factors_json(const SolveReportInfo& info, const ThermalModel& model) {
   vf["rays_per_patch"] = info.rays_per_patch;
   vf["rays_total"] = info.rays_total;
   vf["seed"] = info.seed;
+  vf["sampler"] = info.sampler;
   vf["seconds"] = info.trace_seconds ? json(*info.trace_seconds) : json("cache");
   vf["cache_file"] = info.cache_file.empty() ? json(nullptr) : json(info.cache_file);
   vf["smoothing"] = info.smoothing;

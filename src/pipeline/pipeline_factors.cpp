@@ -67,6 +67,7 @@ FactorRun start_run(const SceneFile& file, const Scene& scene, const PipelineOpt
                                    [&](std::uint64_t n) { return n == run.rays.front(); });
   run.rays_per_patch = uniform && !run.rays.empty() ? run.rays.front() : 0;
   run.seed = options.seed.value_or(file.seed.value_or(kDefaultSeed));
+  run.sampler = options.sampler.value_or(file.sampler.value_or(kDefaultSampler));
   for (const std::string& w : scene.warnings) run.warnings.push_back({WarningKind::mesh, w});
   return run;
 }
@@ -75,6 +76,7 @@ void trace_run(const PipelineOptions& options, const Reporter& reporter, FactorR
   ViewFactorOptions vf;
   vf.rays_for_patch = run->rays;
   vf.seed = run->seed;
+  vf.sampler = run->sampler;
   vf.threads = options.threads;
   vf.tracer = options.tracer;
   vf.progress = reporter.trace();
@@ -117,6 +119,7 @@ FactorRun cached_run(const SceneFile& file, const Scene& scene, const PipelineOp
   key_settings.patch_specs = run.specs;
   key_settings.rays = run.rays;
   key_settings.seed = run.seed;
+  key_settings.sampler = run.sampler;
   key_settings.smoothed = options.smooth;
   const TallyCacheKey key =
       tally_cache_key(mesh_bytes(file.mesh_path), file.mesh, scene, key_settings);
