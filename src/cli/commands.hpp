@@ -11,6 +11,8 @@ struct FactorsArgs {
   std::string input;                 // scene.toml or mesh.obj
   std::vector<std::string> outputs;  // -o, format by extension
   RaySettings rays;
+  std::string cache_dir;  // --cache; "" = default
+  bool no_cache = false;
 };
 int run_factors_command(const FactorsArgs& args);
 
