@@ -11,7 +11,7 @@
 namespace hearthray::cli {
 
 int run_factors_command(const FactorsArgs& args) {
-  const SceneFile file = open_scene(args.input);
+  const SceneFile file = open_scene_with_unit(args.input, args.unit);
   const Scene scene = load_scene(file);
   CacheChoice cache;
   cache.use = !args.no_cache;

@@ -41,6 +41,22 @@ int refuse(const RefusedInput& e) {
 
 }  // namespace
 
+SceneFile open_scene_with_unit(const std::string& input, const std::string& unit) {
+  SceneFile file = open_scene(input);
+  if (unit.empty()) return file;
+  if (!file.path.empty()) {
+    throw InputError("--unit is for a bare mesh: " + input +
+                     " is a scene file, which gives the mesh's unit in [mesh] as unit = \"" + unit +
+                     "\"");
+  }
+  try {
+    file.mesh.unit = parse_length_unit(unit);
+  } catch (const InputError& e) {
+    throw InputError(std::string("--unit: ") + e.what());
+  }
+  return file;
+}
+
 PipelineOptions pipeline_options(const RaySettings& settings, const CacheChoice* cache) {
   PipelineOptions options;
   options.rays_per_patch = settings.rays;

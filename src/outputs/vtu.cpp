@@ -153,10 +153,15 @@ void write_cell_data(std::FILE* f, const PatchSet& patches, const std::vector<Pa
   std::fputs("      </CellData>\n", f);
 }
 
-// The surface names as field data of the grid: a String array, which the VTK XML format writes
-// in ASCII as the character codes of each string followed by a 0.
-void write_surface_names(std::FILE* f, const Scene& scene) {
+// Field data of the grid: the flags, then the surface names as a String array, which the VTK
+// XML format writes in ASCII as the character codes of each string followed by a 0.
+void write_field_data(std::FILE* f, const Scene& scene, const std::vector<VtuFlag>& field_data) {
   std::fputs("    <FieldData>\n", f);
+  for (const VtuFlag& flag : field_data)
+    std::fprintf(f,
+                 "      <DataArray type=\"Int32\" Name=\"%s\" NumberOfTuples=\"1\" "
+                 "format=\"ascii\">%ld</DataArray>\n",
+                 xml_escape(flag.name).c_str(), static_cast<long>(flag.value));
   std::fprintf(f,
                "      <DataArray type=\"String\" Name=\"surface_names\" NumberOfTuples=\"%zu\" "
                "format=\"ascii\">\n",
@@ -170,7 +175,8 @@ void write_surface_names(std::FILE* f, const Scene& scene) {
 }
 
 void write_grid(std::FILE* f, const Scene& scene, const PatchSet& patches,
-                const std::vector<PatchField>& fields, const Layout& l) {
+                const std::vector<PatchField>& fields, const std::vector<VtuFlag>& field_data,
+                const Layout& l) {
   std::fputs("<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n", f);
   std::fputs("<VTKFile type=\"UnstructuredGrid\" version=\"1.0\" byte_order=\"LittleEndian\">\n",
              f);
@@ -180,7 +186,7 @@ void write_grid(std::FILE* f, const Scene& scene, const PatchSet& patches,
                  s + 1 < scene.surfaces.size() ? "," : "");
   std::fputs(" -->\n", f);
   std::fputs("  <UnstructuredGrid>\n", f);
-  write_surface_names(f, scene);
+  write_field_data(f, scene, field_data);
   std::fprintf(f, "    <Piece NumberOfPoints=\"%zu\" NumberOfCells=\"%zu\">\n", l.points.size(),
                l.cell_patch.size());
   write_points(f, scene, l);
@@ -196,7 +202,7 @@ std::string vtu_array_name(const PatchField& field) {
 }
 
 void write_vtu(const std::string& path, const Scene& scene, const PatchSet& patches,
-               const std::vector<PatchField>& fields) {
+               const std::vector<PatchField>& fields, const std::vector<VtuFlag>& field_data) {
   std::set<std::string> names{"surface", "patch", "side"};
   for (const PatchField& field : fields) {
     check_field(field, patches);
@@ -209,7 +215,7 @@ void write_vtu(const std::string& path, const Scene& scene, const PatchSet& patc
   write_file_atomically(path, [&](const std::string& temporary) {
     File file(std::fopen(temporary.c_str(), "wb"));
     if (!file) throw InputError("cannot open '" + path + "' for writing");
-    write_grid(file.get(), scene, patches, fields, l);
+    write_grid(file.get(), scene, patches, fields, field_data, l);
     const bool failed = std::ferror(file.get()) != 0;
     if (std::fclose(file.release()) != 0 || failed)
       throw InputError("writing '" + path + "' failed (disk full or no permission?)");

@@ -1,0 +1,254 @@
+// Gaps and touching faces, with coordinates (see mesh_where.hpp).
+#include <algorithm>
+#include <cmath>
+#include <map>
+#include <numeric>
+#include <unordered_map>
+
+#include "core/text.hpp"
+#include "hearthray/mesh_where.hpp"
+#include "mesh/topology.hpp"
+
+namespace hearthray {
+namespace {
+
+struct P2 {
+  double x = 0, y = 0;
+};
+
+double cross2(const P2& a, const P2& b, const P2& c) {
+  return (b.x - a.x) * (c.y - a.y) - (b.y - a.y) * (c.x - a.x);
+}
+
+std::uint32_t find_root(std::vector<std::uint32_t>& parent, std::uint32_t i) {
+  while (parent[i] != i) i = parent[i] = parent[parent[i]];
+  return i;
+}
+
+// One triangle as the contact search sees it.
+struct Face {
+  Vec3 n;    // unit normal
+  double d;  // plane offset: dot(n, p) = d
+  Box3 box;
+  std::uint32_t triangle;
+};
+
+// The part of triangle `b` inside triangle `a`, both in a's plane, projected by dropping the
+// axis `drop` (the largest component of a's normal): a convex polygon (Sutherland-Hodgman).
+std::vector<P2> clip_in_plane(const std::array<P2, 3>& a, const std::array<P2, 3>& b) {
+  std::vector<P2> poly(b.begin(), b.end());
+  const double orientation = cross2(a[0], a[1], a[2]) > 0 ? 1.0 : -1.0;
+  for (int e = 0; e < 3 && !poly.empty(); ++e) {
+    const P2 &p = a[e], &q = a[(e + 1) % 3];
+    std::vector<P2> out;
+    for (std::size_t i = 0; i < poly.size(); ++i) {
+      const P2 &s = poly[i], &t = poly[(i + 1) % poly.size()];
+      const double fs = orientation * cross2(p, q, s), ft = orientation * cross2(p, q, t);
+      if (fs >= 0) out.push_back(s);
+      if ((fs >= 0) != (ft >= 0)) {
+        const double k = fs / (fs - ft);
+        out.push_back({s.x + k * (t.x - s.x), s.y + k * (t.y - s.y)});
+      }
+    }
+    poly = std::move(out);
+  }
+  return poly;
+}
+
+// The two axes kept when `drop` is dropped.
+P2 project(const Vec3& p, int drop) {
+  if (drop == 0) return {p.y, p.z};
+  if (drop == 1) return {p.z, p.x};
+  return {p.x, p.y};
+}
+
+// The point of the plane (n, d) over the projected point q.
+Vec3 lift(const P2& q, int drop, const Vec3& n, double d) {
+  if (drop == 0) return {(d - n.y * q.x - n.z * q.y) / n.x, q.x, q.y};
+  if (drop == 1) return {q.y, (d - n.z * q.x - n.x * q.y) / n.y, q.x};
+  return {q.x, q.y, (d - n.x * q.x - n.y * q.y) / n.z};
+}
+
+int largest_axis(const Vec3& v) {
+  const double x = std::fabs(v.x), y = std::fabs(v.y), z = std::fabs(v.z);
+  return x >= y && x >= z ? 0 : (y >= z ? 1 : 2);
+}
+
+bool boxes_meet(const Box3& a, const Box3& b, double tol) {
+  return a.lo.x <= b.hi.x + tol && b.lo.x <= a.hi.x + tol && a.lo.y <= b.hi.y + tol &&
+         b.lo.y <= a.hi.y + tol && a.lo.z <= b.hi.z + tol && b.lo.z <= a.hi.z + tol;
+}
+
+// Adds the overlap of faces f and g (coplanar) to `contact`; false when they only touch.
+bool add_overlap(const Scene& scene, const Face& f, const Face& g, double min_area,
+                 FaceContact* contact) {
+  const int drop = largest_axis(f.n);
+  std::array<P2, 3> a, b;
+  for (int k = 0; k < 3; ++k) {
+    a[k] = project(scene.vertices[scene.triangles[f.triangle].v[k]], drop);
+    b[k] = project(scene.vertices[scene.triangles[g.triangle].v[k]], drop);
+  }
+  const std::vector<P2> poly = clip_in_plane(a, b);
+  if (poly.size() < 3) return false;
+  double area2 = 0;
+  P2 c;
+  for (std::size_t i = 1; i + 1 < poly.size(); ++i) {
+    const double t = cross2(poly[0], poly[i], poly[i + 1]);
+    area2 += t;
+    c.x += t * (poly[0].x + poly[i].x + poly[i + 1].x) / 3;
+    c.y += t * (poly[0].y + poly[i].y + poly[i + 1].y) / 3;
+  }
+  const double area = std::fabs(area2) / 2 / std::fabs(f.n[drop]);
+  if (!(area > min_area)) return false;
+  const Vec3 centre = lift({c.x / area2, c.y / area2}, drop, f.n, f.d);
+  contact->centre = (contact->centre * contact->area + centre * area) / (contact->area + area);
+  contact->area += area;
+  for (const P2& q : poly) contact->box.grow(lift(q, drop, f.n, f.d));
+  for (std::size_t i = 1; i + 1 < poly.size() && contact->pieces.size() < 1000; ++i)
+    contact->pieces.push_back({lift(poly[0], drop, f.n, f.d), lift(poly[i], drop, f.n, f.d),
+                               lift(poly[i + 1], drop, f.n, f.d)});
+  return true;
+}
+
+std::vector<Face> contact_faces(const Scene& scene) {
+  std::vector<Face> faces;
+  faces.reserve(scene.triangles.size());
+  for (std::uint32_t t = 0; t < scene.triangles.size(); ++t) {
+    Face f;
+    f.triangle = t;
+    f.n = scene.normal(t);
+    f.d = dot(f.n, scene.vertices[scene.triangles[t].v[0]]);
+    for (std::uint32_t v : scene.triangles[t].v) f.box.grow(scene.vertices[v]);
+    faces.push_back(f);
+  }
+  return faces;
+}
+
+}  // namespace
+
+std::vector<GapRun> gap_runs(const Scene& scene) {
+  const std::vector<std::uint32_t> weld = mesh_detail::weld_by_position(scene.vertices);
+  // Edge (welded ends, ascending) -> uses, and a vertex pair and surface of its last use.
+  struct Use {
+    std::uint32_t count = 0, a = 0, b = 0, surface = 0;
+  };
+  std::map<std::pair<std::uint32_t, std::uint32_t>, Use> edges;
+  for (const Triangle& t : scene.triangles) {
+    for (int k = 0; k < 3; ++k) {
+      std::uint32_t a = weld[t.v[k]], b = weld[t.v[(k + 1) % 3]];
+      if (a == b) continue;
+      Use& use = edges[{std::min(a, b), std::max(a, b)}];
+      ++use.count;
+      use.a = t.v[k];
+      use.b = t.v[(k + 1) % 3];
+      use.surface = t.surface;
+    }
+  }
+  std::vector<std::uint32_t> parent(scene.vertices.size());
+  std::iota(parent.begin(), parent.end(), 0u);
+  for (const auto& [key, use] : edges)
+    if (use.count == 1) parent[find_root(parent, key.first)] = find_root(parent, key.second);
+  std::unordered_map<std::uint32_t, std::size_t> run_of;
+  std::vector<GapRun> runs;
+  for (const auto& [key, use] : edges) {
+    if (use.count != 1) continue;
+    const std::uint32_t root = find_root(parent, key.first);
+    auto it = run_of.emplace(root, runs.size()).first;
+    if (it->second == runs.size()) runs.emplace_back();
+    GapRun& run = runs[it->second];
+    const Vec3 &a = scene.vertices[use.a], &b = scene.vertices[use.b];
+    run.edges.push_back({a, b});
+    run.length += norm(b - a);
+    run.box.grow(a);
+    run.box.grow(b);
+    if (std::find(run.surfaces.begin(), run.surfaces.end(), use.surface) == run.surfaces.end())
+      run.surfaces.push_back(use.surface);
+  }
+  for (GapRun& run : runs) std::sort(run.surfaces.begin(), run.surfaces.end());
+  std::stable_sort(runs.begin(), runs.end(),
+                   [](const GapRun& x, const GapRun& y) { return x.length > y.length; });
+  return runs;
+}
+
+std::vector<FaceContact> face_contacts(const Scene& scene, double relative_tolerance) {
+  const double diagonal = scene.bounds.diagonal();
+  const double tol = relative_tolerance * diagonal;
+  const double min_area = relative_tolerance * diagonal * diagonal;
+  std::vector<Face> faces = contact_faces(scene);
+  // Sweep along the longest side of the scene: faces sorted by their low end, each compared
+  // with those starting before its high end.
+  const int axis = largest_axis(scene.bounds.extent());
+  std::sort(faces.begin(), faces.end(), [axis](const Face& a, const Face& b) {
+    return a.box.lo[axis] < b.box.lo[axis] ||
+           (a.box.lo[axis] == b.box.lo[axis] && a.triangle < b.triangle);
+  });
+  std::map<std::tuple<std::uint32_t, std::uint32_t, bool>, FaceContact> found;
+  for (std::size_t i = 0; i < faces.size(); ++i) {
+    const Face& f = faces[i];
+    const std::uint32_t sf = scene.triangles[f.triangle].surface;
+    for (std::size_t j = i + 1; j < faces.size() && faces[j].box.lo[axis] <= f.box.hi[axis] + tol;
+         ++j) {
+      const Face& g = faces[j];
+      const std::uint32_t sg = scene.triangles[g.triangle].surface;
+      if (sf == sg || !boxes_meet(f.box, g.box, tol)) continue;
+      const double c = dot(f.n, g.n);
+      if (std::fabs(c) < 1 - 1e-9) continue;
+      bool in_plane = true;
+      for (std::uint32_t v : scene.triangles[g.triangle].v)
+        in_plane = in_plane && std::fabs(dot(f.n, scene.vertices[v]) - f.d) <= tol;
+      if (!in_plane) continue;
+      const std::uint32_t a = std::min(sf, sg), b = std::max(sf, sg);
+      FaceContact candidate;
+      if (!add_overlap(scene, f, g, min_area, &candidate)) continue;
+      FaceContact& contact = found[{a, b, c < 0}];
+      contact.surface_a = a;
+      contact.surface_b = b;
+      contact.opposed = c < 0;
+      contact.centre = (contact.centre * contact.area + candidate.centre * candidate.area) /
+                       (contact.area + candidate.area);
+      contact.area += candidate.area;
+      contact.box.grow(candidate.box.lo);
+      contact.box.grow(candidate.box.hi);
+      for (const auto& piece : candidate.pieces)
+        if (contact.pieces.size() < 1000) contact.pieces.push_back(piece);
+    }
+  }
+  std::vector<FaceContact> out;
+  for (auto& entry : found) out.push_back(std::move(entry.second));
+  std::stable_sort(out.begin(), out.end(),
+                   [](const FaceContact& x, const FaceContact& y) { return x.area > y.area; });
+  return out;
+}
+
+std::string point_text(const Vec3& p) {
+  auto c = [](double v) { return rounded("%.4g", std::fabs(v) < 1e-12 ? 0.0 : v); };
+  return "(" + c(p.x) + ", " + c(p.y) + ", " + c(p.z) + ") m";
+}
+
+std::string gap_sentence(const Scene& scene, const GapRun& gap) {
+  std::vector<std::string> names;
+  for (std::uint32_t s : gap.surfaces) names.push_back("'" + scene.surfaces[s].name + "'");
+  return std::to_string(gap.edges.size()) + " edge(s), " + rounded("%.4g", gap.length) +
+         " m long, from " + point_text(gap.box.lo) + " to " + point_text(gap.box.hi) +
+         ", edges of " + join_at_most(names, 6);
+}
+
+std::string contact_sentence(const Scene& scene, const FaceContact& contact) {
+  const std::string a = "'" + scene.surfaces[contact.surface_a].name + "'";
+  const std::string b = "'" + scene.surfaces[contact.surface_b].name + "'";
+  const std::string where = rounded("%.3g", contact.area) + " m2 around " +
+                            point_text(contact.centre) + " (from " + point_text(contact.box.lo) +
+                            " to " + point_text(contact.box.hi) + ")";
+  if (contact.opposed) {
+    return "surfaces " + a + " and " + b + " touch face to face over " + where +
+           ": the solids were exported touching, so rays start inside one of them and end on "
+           "the back of its faces. Export only the faces that see the enclosure (cut the "
+           "covered part out of the one and drop the hidden face of the other, e.g. by a "
+           "boolean union of the solids), or leave a gap of a few millimetres between them";
+  }
+  return "surfaces " + a + " and " + b + " lie on each other over " + where +
+         " with their fronts the same way: the same face is in the mesh twice. Delete one of "
+         "the two copies";
+}
+
+}  // namespace hearthray
