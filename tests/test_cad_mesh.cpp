@@ -3,9 +3,11 @@
 // polygons that are not flat or cross themselves are reported.
 #include <catch2/catch.hpp>
 #include <cmath>
+#include <random>
 #include <sstream>
 #include <string>
 
+#include "hearthray/mesh_where.hpp"
 #include "hearthray/scene.hpp"
 #include "support/cad_meshes.hpp"
 #include "support/meshes.hpp"
@@ -126,4 +128,102 @@ TEST_CASE("a polygon that crosses itself is reported", "[scene][cad]") {
     reported = reported || (w.find("cross themselves") != std::string::npos &&
                             w.find("tie.obj:6:") != std::string::npos);
   CHECK(reported);
+}
+
+TEST_CASE("faces lying on each other and solids cutting through each other are found",
+          "[scene][cad]") {
+  // Touching: each support's foot (0.1 x 0.4 m) on the hearth, and the block on each support's
+  // top; places and areas from the drawing (tests/support/cad_meshes.hpp).
+  CadFurnace with_blocks;
+  with_blocks.blocks = true;
+  const Scene s = load_obj_text(cad_furnace_obj(with_blocks), "blocks.obj");
+  const std::vector<FaceContact> touching = face_contacts(s);
+  REQUIRE(touching.size() == 4);
+  for (const FaceContact& c : touching) {
+    CHECK(c.kind == ContactKind::touching);
+    CHECK(c.area == Approx(0.04).epsilon(1e-9));
+    CHECK(c.centre.y == Approx(0.5));
+    const std::string a = s.surfaces[c.surface_a].name, b = s.surfaces[c.surface_b].name;
+    const double z = a == "hearth_right" ? 0.0 : 0.1;
+    CHECK(c.centre.z == Approx(z).margin(1e-12));
+    const bool left = a == "support_a" || b == "support_a";
+    CHECK(c.centre.x == Approx(left ? 1.25 : 1.75));
+  }
+  // The plain furnace has walls meeting at edges only: nothing.
+  CHECK(face_contacts(load_obj_text(cad_furnace_obj(), "furnace.obj")).empty());
+
+  // A face given twice, the same way round.
+  const Scene doubled = load_obj_text(
+      "v 0 0 0\nv 1 0 0\nv 1 1 0\nv 0 1 0\ng a\nf 1 2 3 4\ng b\nf 1 2 3\n", "doubled.obj");
+  const std::vector<FaceContact> twice = face_contacts(doubled);
+  REQUIRE(twice.size() == 1);
+  CHECK(twice[0].kind == ContactKind::doubled);
+  CHECK(twice[0].area == Approx(0.5));
+  CHECK_THAT(contact_sentence(doubled, twice[0]),
+             Catch::Contains("the same face is in the mesh twice"));
+
+  // Sunk 5 cm into the hearth: the block's sides cut hearth_right along a 0.4 m square.
+  CadFurnace sunk;
+  sunk.sunk_block = true;
+  const Scene k = load_obj_text(cad_furnace_obj(sunk), "sunk.obj");
+  const std::vector<FaceContact> cut = face_contacts(k);
+  REQUIRE(cut.size() == 1);
+  CHECK(cut[0].kind == ContactKind::crossing);
+  CHECK(k.surfaces[cut[0].surface_a].name == "hearth_right");
+  CHECK(k.surfaces[cut[0].surface_b].name == "block");
+  CHECK(cut[0].length == Approx(1.6).epsilon(1e-9));
+  CHECK(cut[0].centre.x == Approx(1.5));
+  CHECK(cut[0].centre.y == Approx(0.5));
+  CHECK(cut[0].centre.z == Approx(0).margin(1e-12));
+  CHECK_THAT(contact_sentence(k, cut[0]),
+             Catch::Contains("surfaces 'hearth_right' and 'block' cut through each other along "
+                             "1.6 m around (1.5, 0.5, 0) m"));
+}
+
+TEST_CASE("ear clipping tiles random star-shaped polygons in tilted planes", "[scene][cad]") {
+  // A polygon whose corners, seen from its centre, run round in angle order is simple
+  // (star-shaped); its area is the sum of the triangles fanned from the centre, a cut the
+  // loader never sees (it gets the outline only). Fixed seed; 40 polygons of 5 to 40 corners
+  // with radii between 0.2 and 1, put in planes turned about two axes.
+  std::mt19937 random(7);
+  std::uniform_real_distribution<double> uniform(0.0, 1.0);
+  for (int trial = 0; trial < 40; ++trial) {
+    const int n = 5 + int(uniform(random) * 36);
+    const double a = uniform(random) * 3, b = uniform(random) * 3;
+    // Rotation about x by a, then about z by b, applied to (x, y, 0).
+    auto place = [&](double x, double y) {
+      const Vec3 p{x, y * std::cos(a), y * std::sin(a)};
+      return Vec3{p.x * std::cos(b) - p.y * std::sin(b), p.x * std::sin(b) + p.y * std::cos(b),
+                  p.z};
+    };
+    std::ostringstream obj;
+    obj.precision(17);
+    double area = 0, previous_x = 0, previous_y = 0, first_x = 0, first_y = 0;
+    for (int k = 0; k < n; ++k) {
+      const double r = 0.2 + 0.8 * uniform(random);
+      const double t = 2 * std::acos(-1.0) * (k + 0.5 * uniform(random)) / n;
+      const double x = r * std::cos(t), y = r * std::sin(t);
+      if (k == 0) first_x = x, first_y = y;
+      if (k > 0) area += 0.5 * (previous_x * y - previous_y * x);
+      previous_x = x, previous_y = y;
+      const Vec3 p = place(x, y);
+      obj << "v " << p.x << ' ' << p.y << ' ' << p.z << "\n";
+    }
+    area += 0.5 * (previous_x * first_y - previous_y * first_x);
+    obj << "g star\nf";
+    for (int k = 1; k <= n; ++k) obj << ' ' << k;
+    obj << "\n";
+    const Scene s = load_obj_text(obj.str(), "star.obj");
+    INFO("trial " << trial << ", " << n << " corners");
+    CHECK(s.warnings.empty());
+    REQUIRE(s.triangles.size() == std::size_t(n - 2));
+    const Vec3 normal = cross(place(1, 0), place(0, 1));  // the plane's +z
+    double sum = 0;
+    for (std::uint32_t t = 0; t < s.triangles.size(); ++t) {
+      const double along = dot(s.normal(t), normal);
+      CHECK(along > 1 - 1e-9);  // every triangle faces the polygon's front
+      sum += s.triangle_area(t);
+    }
+    CHECK(sum == Approx(area).epsilon(1e-12));
+  }
 }

@@ -20,7 +20,7 @@ struct WhereFindings {
 };
 
 // kind in the VTU file: 1 gap edge, 2 faces touching (opposed fronts), 3 the same face twice,
-// 4 a back-face hit.
+// 4 a back-face hit, 5 the line where two faces cut through each other.
 void write_where_file(const std::string& path, const Scene& scene, const WhereFindings& found);
 
 }  // namespace hearthray

@@ -30,7 +30,7 @@ void print_gaps(const Scene& scene, const std::vector<GapRun>& gaps) {
 
 void print_contacts(const Scene& scene, const std::vector<FaceContact>& contacts) {
   if (contacts.empty()) return;
-  std::printf("\nfaces lying on each other:\n");
+  std::printf("\nfaces lying on or cutting through each other:\n");
   for (std::size_t k = 0; k < contacts.size() && k < kListed; ++k)
     std::printf("  %zu: %s\n", k + 1, contact_sentence(scene, contacts[k]).c_str());
   if (contacts.size() > kListed) std::printf("  ... and %zu more\n", contacts.size() - kListed);
@@ -101,7 +101,7 @@ int run_check_command(const CheckArgs& args) {
   for (const std::string& line : defaults) std::printf("%s\n", line.c_str());
   if (!args.where.empty()) {
     write_where_file(args.where, scene, found);
-    std::printf("\nwrote %s (%zu gap(s), %zu overlap(s), %zu surface(s) with back hits)\n",
+    std::printf("\nwrote %s (%zu gap(s), %zu contact(s) of faces, %zu surface(s) with back hits)\n",
                 args.where.c_str(), found.gaps.size(), found.contacts.size(),
                 found.back_hits.size());
   }

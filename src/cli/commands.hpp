@@ -65,6 +65,8 @@ struct RenderArgs {
   std::string title;                       // "" = file name and field
   bool no_title = false;
   std::vector<double> range;                // low,high of the colour bar
+  std::string results;                      // --results DIR: a solve's output folder
+  std::string units = "si";                 // --units for solved fields
   std::uint64_t rays = kQuickRaysPerPatch;  // per patch, for view-factor-to
   std::uint64_t seed = kDefaultSeed;
   int threads = 0;

@@ -129,7 +129,8 @@ CLI::App* add_render_command(CLI::App& app, RenderArgs& render) {
   cmd_render->add_option("--unit", render.unit, kUnitHelp);
   cmd_render->add_option("-o,--output", render.output, "Picture file (.png)")->required();
   cmd_render->add_option("--field", render.field,
-                         "surface, area or view-factor-to=<surface> (default surface)");
+                         "surface, area, view-factor-to=<surface>; with --results: temperature, "
+                         "net-flux, irradiation, radiosity (default surface)");
   cmd_render->add_option("--width", render.width, "Pixels (default 800)")
       ->check(CLI::Range(16, 16384));
   cmd_render->add_option("--height", render.height, "Pixels (default 600)")
@@ -161,6 +162,12 @@ CLI::App* add_render_command(CLI::App& app, RenderArgs& render) {
                          "Random seed (default " + std::to_string(hearthray::kDefaultSeed) + ")");
   cmd_render->add_option("--threads", render.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
+  cmd_render->add_option("--results", render.results,
+                         "Folder a solve wrote (-o): draw its temperature, net-flux, irradiation "
+                         "or radiosity");
+  cmd_render->add_option("--units", render.units,
+                         "Units of a solved field: si (C, W/m2), us (F, Btu/(h ft2)) or kcal "
+                         "(C, kcal/(h m2)) (default si)");
   cmd_render->add_flag("-q,--quiet", render.quiet, "No summary line");
   return cmd_render;
 }

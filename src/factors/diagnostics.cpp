@@ -7,11 +7,18 @@ namespace hearthray {
 
 namespace {
 
+// Share of all rays lost (on back faces, or escaping a closed mesh) above which faces lying on
+// each other are looked for.
+constexpr double kContactSearchShare = 1e-5;
+
 // Rays on back faces (or escaping a closed mesh) often come from solids exported touching:
 // names those contacts as warnings and marks the surfaces involved, so that their normals are
 // not blamed. Returns whether any contact was found.
 bool name_contacts(const Scene& scene, const Tallies& tallies, RayDiagnostics* d) {
-  if (d->back_face_hits == 0 && !(d->mesh_closed && d->escaped > 0)) return false;
+  // The search costs seconds at 10^5 triangles: run it only for losses well above the ~1e-6
+  // of rays that slip through shared edges of a sound mesh.
+  const double lost = double(d->back_face_hits) + (d->mesh_closed ? double(d->escaped) : 0.0);
+  if (!(lost > kContactSearchShare * double(d->emitted))) return false;
   bool found = false;
   for (const FaceContact& c : face_contacts(scene)) {
     found = true;
@@ -54,12 +61,18 @@ RayDiagnostics diagnose_rays(const Scene& scene, const PatchSet& patches, const 
                                 "probably point the wrong way (the front is the side from which "
                                 "the corners run counter-clockwise). Flip its faces, or declare "
                                 "it two_sided if it is a thin sheet seen from both sides "
-                                "(hearthray check shows where the rays land)."});
+                                "(hearthray check shows where the rays land)." +
+                                (share > 0.5 ? " A solve refuses it until then, unless its table "
+                                               "says expect_back_hits = true."
+                                             : "")});
     else
       d.warnings.push_back({WarningKind::back_faces,
                             "surface '" + s.name + "': " + std::to_string(s.back_face_hits) +
                                 " rays (" + percent(share) +
-                                " of its arrivals) hit its back side and were absorbed there; "
+                                " of its arrivals) hit its back side and were absorbed there; " +
+                                (contacts ? "probably rays from faces inside a solid (named "
+                                            "above); otherwise "
+                                          : "") +
                                 "declare it two_sided if both sides should take part."});
   }
   if (d.escaped > 0) {

@@ -3,6 +3,7 @@
 #include <cmath>
 #include <map>
 #include <numeric>
+#include <tuple>
 #include <unordered_map>
 
 #include "core/text.hpp"
@@ -110,6 +111,73 @@ bool add_overlap(const Scene& scene, const Face& f, const Face& g, double min_ar
   return true;
 }
 
+// Signed distances of triangle `g`'s corners from the plane of `f`.
+std::array<double, 3> distances(const Scene& scene, const Face& f, const Face& g) {
+  std::array<double, 3> d{};
+  for (int k = 0; k < 3; ++k)
+    d[k] = dot(f.n, scene.vertices[scene.triangles[g.triangle].v[k]]) - f.d;
+  return d;
+}
+
+bool straddles(const std::array<double, 3>& d, double tol) {
+  const double lo = std::min({d[0], d[1], d[2]}), hi = std::max({d[0], d[1], d[2]});
+  return lo < -tol && hi > tol;
+}
+
+// The segment where triangle g (straddling f's plane, distances d) crosses that plane.
+std::array<Vec3, 2> plane_cut(const Scene& scene, const Face& g, const std::array<double, 3>& d) {
+  std::array<Vec3, 2> out;
+  int n = 0;
+  for (int k = 0; k < 3 && n < 2; ++k) {
+    const int j = (k + 1) % 3;
+    const Vec3& a = scene.vertices[scene.triangles[g.triangle].v[k]];
+    const Vec3& b = scene.vertices[scene.triangles[g.triangle].v[j]];
+    if ((d[k] < 0) != (d[j] < 0)) out[n++] = a + (b - a) * (d[k] / (d[k] - d[j]));
+  }
+  return out;
+}
+
+// Where triangles f and g cut through each other (each straddles the other's plane): the
+// overlap of their two cuts along the planes' common line; false when it is shorter than tol.
+bool crossing(const Scene& scene, const Face& f, const Face& g, double tol,
+              std::array<Vec3, 2>* segment) {
+  const std::array<double, 3> dg = distances(scene, f, g), df = distances(scene, g, f);
+  if (!straddles(dg, tol) || !straddles(df, tol)) return false;
+  const std::array<Vec3, 2> a = plane_cut(scene, g, dg), b = plane_cut(scene, f, df);
+  const Vec3 line = cross(f.n, g.n);
+  double a0 = dot(line, a[0]), a1 = dot(line, a[1]), b0 = dot(line, b[0]), b1 = dot(line, b[1]);
+  Vec3 pa0 = a[0], pa1 = a[1], pb0 = b[0], pb1 = b[1];
+  if (a0 > a1) std::swap(a0, a1), std::swap(pa0, pa1);
+  if (b0 > b1) std::swap(b0, b1), std::swap(pb0, pb1);
+  const double scale = norm(line);
+  if ((std::min(a1, b1) - std::max(a0, b0)) / scale <= tol) return false;
+  (*segment)[0] = a0 > b0 ? pa0 : pb0;
+  (*segment)[1] = a1 < b1 ? pa1 : pb1;
+  return true;
+}
+
+// Adds a piece of the line where two faces cross to a crossing contact.
+void add_crossing(const std::array<Vec3, 2>& segment, FaceContact* contact) {
+  const double length = norm(segment[1] - segment[0]);
+  const Vec3 mid = (segment[0] + segment[1]) * 0.5;
+  contact->centre = (contact->centre * contact->length + mid * length) / (contact->length + length);
+  contact->length += length;
+  contact->box.grow(segment[0]);
+  contact->box.grow(segment[1]);
+  if (contact->lines.size() < 1000) contact->lines.push_back(segment);
+}
+
+// Adds the overlap of one pair of faces to the contact of their surfaces.
+void merge_overlap(const FaceContact& overlap, FaceContact* contact) {
+  contact->centre = (contact->centre * contact->area + overlap.centre * overlap.area) /
+                    (contact->area + overlap.area);
+  contact->area += overlap.area;
+  contact->box.grow(overlap.box.lo);
+  contact->box.grow(overlap.box.hi);
+  for (const auto& piece : overlap.pieces)
+    if (contact->pieces.size() < 1000) contact->pieces.push_back(piece);
+}
+
 std::vector<Face> contact_faces(const Scene& scene) {
   std::vector<Face> faces;
   faces.reserve(scene.triangles.size());
@@ -182,7 +250,7 @@ std::vector<FaceContact> face_contacts(const Scene& scene, double relative_toler
     return a.box.lo[axis] < b.box.lo[axis] ||
            (a.box.lo[axis] == b.box.lo[axis] && a.triangle < b.triangle);
   });
-  std::map<std::tuple<std::uint32_t, std::uint32_t, bool>, FaceContact> found;
+  std::map<std::tuple<std::uint32_t, std::uint32_t, ContactKind>, FaceContact> found;
   for (std::size_t i = 0; i < faces.size(); ++i) {
     const Face& f = faces[i];
     const std::uint32_t sf = scene.triangles[f.triangle].surface;
@@ -192,36 +260,38 @@ std::vector<FaceContact> face_contacts(const Scene& scene, double relative_toler
       const std::uint32_t sg = scene.triangles[g.triangle].surface;
       if (sf == sg || !boxes_meet(f.box, g.box, tol)) continue;
       const double c = dot(f.n, g.n);
-      if (std::fabs(c) < 1 - 1e-9) continue;
+      const std::uint32_t a = std::min(sf, sg), b = std::max(sf, sg);
+      if (std::fabs(c) < 1 - 1e-9) {
+        std::array<Vec3, 2> segment;
+        if (crossing(scene, f, g, tol, &segment))
+          add_crossing(segment, &found[{a, b, ContactKind::crossing}]);
+        continue;
+      }
       bool in_plane = true;
       for (std::uint32_t v : scene.triangles[g.triangle].v)
         in_plane = in_plane && std::fabs(dot(f.n, scene.vertices[v]) - f.d) <= tol;
-      if (!in_plane) continue;
-      const std::uint32_t a = std::min(sf, sg), b = std::max(sf, sg);
-      FaceContact candidate;
-      if (!add_overlap(scene, f, g, min_area, &candidate)) continue;
-      FaceContact& contact = found[{a, b, c < 0}];
-      contact.surface_a = a;
-      contact.surface_b = b;
-      contact.opposed = c < 0;
-      contact.centre = (contact.centre * contact.area + candidate.centre * candidate.area) /
-                       (contact.area + candidate.area);
-      contact.area += candidate.area;
-      contact.box.grow(candidate.box.lo);
-      contact.box.grow(candidate.box.hi);
-      for (const auto& piece : candidate.pieces)
-        if (contact.pieces.size() < 1000) contact.pieces.push_back(piece);
+      FaceContact overlap;
+      if (!in_plane || !add_overlap(scene, f, g, min_area, &overlap)) continue;
+      merge_overlap(overlap, &found[{a, b, c < 0 ? ContactKind::touching : ContactKind::doubled}]);
     }
+  }
+  for (auto& [key, contact] : found) {
+    contact.surface_a = std::get<0>(key);
+    contact.surface_b = std::get<1>(key);
+    contact.kind = std::get<2>(key);
   }
   std::vector<FaceContact> out;
   for (auto& entry : found) out.push_back(std::move(entry.second));
-  std::stable_sort(out.begin(), out.end(),
-                   [](const FaceContact& x, const FaceContact& y) { return x.area > y.area; });
+  std::stable_sort(out.begin(), out.end(), [](const FaceContact& x, const FaceContact& y) {
+    const bool cx = x.kind == ContactKind::crossing, cy = y.kind == ContactKind::crossing;
+    if (cx != cy) return cy;
+    return cx ? x.length > y.length : x.area > y.area;
+  });
   return out;
 }
 
 std::string point_text(const Vec3& p) {
-  auto c = [](double v) { return rounded("%.4g", std::fabs(v) < 1e-12 ? 0.0 : v); };
+  auto c = [](double v) { return rounded("%.4g", std::fabs(v) < 1e-6 ? 0.0 : v); };
   return "(" + c(p.x) + ", " + c(p.y) + ", " + c(p.z) + ") m";
 }
 
@@ -236,10 +306,18 @@ std::string gap_sentence(const Scene& scene, const GapRun& gap) {
 std::string contact_sentence(const Scene& scene, const FaceContact& contact) {
   const std::string a = "'" + scene.surfaces[contact.surface_a].name + "'";
   const std::string b = "'" + scene.surfaces[contact.surface_b].name + "'";
-  const std::string where = rounded("%.3g", contact.area) + " m2 around " +
-                            point_text(contact.centre) + " (from " + point_text(contact.box.lo) +
-                            " to " + point_text(contact.box.hi) + ")";
-  if (contact.opposed) {
+  const std::string span =
+      " (from " + point_text(contact.box.lo) + " to " + point_text(contact.box.hi) + ")";
+  if (contact.kind == ContactKind::crossing) {
+    return "surfaces " + a + " and " + b + " cut through each other along " +
+           rounded("%.3g", contact.length) + " m around " + point_text(contact.centre) + span +
+           ": one solid sticks into the other, so faces lie inside a solid where rays start "
+           "and end on back faces. Export the outer skin of the solids together (a boolean "
+           "union), or move them apart so that they only touch";
+  }
+  const std::string where =
+      rounded("%.3g", contact.area) + " m2 around " + point_text(contact.centre) + span;
+  if (contact.kind == ContactKind::touching) {
     return "surfaces " + a + " and " + b + " touch face to face over " + where +
            ": the solids were exported touching, so rays start inside one of them and end on "
            "the back of its faces. Export only the faces that see the enclosure (cut the "

@@ -46,11 +46,15 @@ Cells cells_of(const Scene& scene, const WhereFindings& f) {
       c.add({e[0], e[1]}, 1, int(g + 1), "gap_" + std::to_string(g + 1));
   for (std::size_t k = 0; k < f.contacts.size(); ++k) {
     const FaceContact& t = f.contacts[k];
-    const std::string name = std::string(t.opposed ? "touching_" : "doubled_") +
-                             group_name(scene.surfaces[t.surface_a].name) + "_" +
+    const char* prefix = t.kind == ContactKind::touching  ? "touching_"
+                         : t.kind == ContactKind::doubled ? "doubled_"
+                                                          : "crossing_";
+    const int kind = t.kind == ContactKind::touching ? 2 : t.kind == ContactKind::doubled ? 3 : 5;
+    const std::string name = prefix + group_name(scene.surfaces[t.surface_a].name) + "_" +
                              group_name(scene.surfaces[t.surface_b].name);
     for (const auto& piece : t.pieces)
-      c.add({piece[0], piece[1], piece[2]}, t.opposed ? 2 : 3, int(k + 1), name);
+      c.add({piece[0], piece[1], piece[2]}, kind, int(k + 1), name);
+    for (const auto& line : t.lines) c.add({line[0], line[1]}, kind, int(k + 1), name);
   }
   for (std::size_t k = 0; k < f.back_hits.size(); ++k) {
     const std::string name = "back_hits_" + group_name(scene.surfaces[f.back_hits[k].surface].name);

@@ -63,6 +63,7 @@ std::string cad_furnace_obj(const CadFurnace& o) {
     add_group(&obj, "support_b", box_faces({1.7, 0.3, 0}, {1.8, 0.7, 0.1}), s);
     add_group(&obj, "block", box_faces({1.15, 0.3, 0.1}, {1.85, 0.7, 0.4}), s);
   }
+  if (o.sunk_block) add_group(&obj, "block", box_faces({1.3, 0.3, -0.05}, {1.7, 0.7, 0.25}), s);
   return obj;
 }
 

@@ -22,10 +22,13 @@
 namespace hearthray::testing {
 
 struct CadFurnace {
-  bool blocks = false;     // the block on its supports
-  bool flip_roof = false;  // the roof written with its front facing out (a flipped wall)
-  double scale = 1;        // coordinates multiplied by this when written
-  bool door = true;        // false: the door left out, a 0.5 x 0.5 m hole at x = 0
+  bool blocks = false;      // the block on its supports
+  bool flip_roof = false;   // the roof written with its front facing out (a flipped wall)
+  double scale = 1;         // coordinates multiplied by this when written
+  bool door = true;         // false: the door left out, a 0.5 x 0.5 m hole at x = 0
+  bool sunk_block = false;  // a "block" box [1.3, 1.7] x [0.3, 0.7] x [-0.05, 0.25] m sunk
+                            // 5 cm into the hearth: its sides cut hearth_right along the
+                            // 1.6 m square round (1.5, 0.5, 0)
 };
 
 std::string cad_furnace_obj(const CadFurnace& options = {});
