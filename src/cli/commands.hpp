@@ -12,6 +12,8 @@ struct FactorsArgs {
   std::string unit;                  // --unit of a bare mesh ("" = m)
   std::vector<std::string> outputs;  // -o, format by extension
   RaySettings rays;
+  std::string cache_dir;  // --cache; "" = default
+  bool no_cache = false;
 };
 int run_factors_command(const FactorsArgs& args);
 
