@@ -32,6 +32,15 @@ void add_sampler_option(CLI::App* cmd, RaySettings& rays) {
       ->check(CLI::IsMember({"sobol", "stratified"}));
 }
 
+// --cache DIR and --no-cache (which exclude each other).
+void add_cache_options(CLI::App* cmd, std::string* dir, bool* no_cache) {
+  CLI::Option* cache_dir = cmd->add_option("--cache", *dir,
+                                           "View-factor cache folder (default: $HEARTHRAY_CACHE, "
+                                           "$XDG_CACHE_HOME/hearthray or ~/.cache/hearthray)");
+  cmd->add_flag("--no-cache", *no_cache, "Always trace; neither read nor write the cache")
+      ->excludes(cache_dir);
+}
+
 CLI::App* add_factors_command(CLI::App& app, FactorsArgs& factors) {
   CLI::App* cmd_factors = app.add_subcommand(
       "factors", "View factors between every pair of surfaces, with standard errors");
@@ -50,7 +59,9 @@ CLI::App* add_factors_command(CLI::App& app, FactorsArgs& factors) {
   cmd_factors->add_flag("--raw", factors.rays.raw, "Skip the reciprocity and closure correction");
   cmd_factors->add_flag("-q,--quiet", factors.rays.quiet, "No progress line or summary");
   cmd_factors->add_option("-o,--output", factors.outputs,
-                          "Output file: .csv, .mtx, .npy or .json (repeatable)");
+                          "Output file: .csv, .mtx, .npy or .json (repeatable); the patch table "
+                          "and VTU are written beside it");
+  add_cache_options(cmd_factors, &factors.cache_dir, &factors.no_cache);
   return cmd_factors;
 }
 
@@ -89,13 +100,7 @@ CLI::App* add_solve_command(CLI::App& app, SolveArgs& solve) {
   add_sampler_option(cmd_solve, solve.rays);
   cmd_solve->add_option("--threads", solve.rays.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
-  CLI::Option* cache_dir =
-      cmd_solve->add_option("--cache", solve.cache_dir,
-                            "View-factor cache folder (default: $HEARTHRAY_CACHE, "
-                            "$XDG_CACHE_HOME/hearthray or ~/.cache/hearthray)");
-  cmd_solve
-      ->add_flag("--no-cache", solve.no_cache, "Always trace; neither read nor write the cache")
-      ->excludes(cache_dir);
+  add_cache_options(cmd_solve, &solve.cache_dir, &solve.no_cache);
   cmd_solve->add_option("--units", solve.units,
                         "Units of the table, surfaces.csv and pictures: si (C, W, W/m2), us "
                         "(F, Btu/h, Btu/(h ft2)) or kcal (C, kcal/h, kcal/(h m2)); report.json "
@@ -118,7 +123,14 @@ void add_comfort_commands(CLI::App& app, Commands* c) {
                         : "Scene files (.toml) with [comfort] tables")
         ->required()
         ->expected(one ? 1 : 2, one ? 1 : 64);
-    if (one) cmd->add_option("-o,--output", a->output_dir, "Folder for comfort.csv and maps");
+    cmd->add_option("-o,--output", a->output_dir,
+                    one ? "Folder for comfort.csv and maps"
+                        : "Folder for the scenes' maps, side by side on one colour range");
+    cmd->add_option("--range", a->range,
+                    "Colour range low,high in C of the temperature maps (compare: the same for "
+                    "all scenes by default)")
+        ->delimiter(',')
+        ->expected(2);
     cmd->add_flag("-q,--quiet", a->rays.quiet, "No progress, notes or view-factor lines");
     cmd->add_option("--threads", a->rays.threads, "Worker threads (default: all)")
         ->check(CLI::Range(0, 1024));
