@@ -44,10 +44,11 @@ int run_gas_solve(const SolveArgs& args, const SceneFile& file);
 
 struct ComfortArgs {
   std::vector<std::string> inputs;  // comfort: one scene; compare: two or more
-  std::string output_dir;           // comfort -o: comfort.csv, comfort.txt, maps (PNG)
+  std::string output_dir;           // -o: comfort.csv, comfort.txt, maps; compare: maps
   RaySettings rays;                 // --threads, --quiet; rays and seed from the scene
   std::string cache_dir;            // --cache; "" = default
   bool no_cache = false;
+  std::vector<double> range;  // --range low,high (C) of the temperature maps
 };
 // Exit codes as for solve. `comfort`: table, summary, cautions, files. `compare`: the scenes
 // side by side.

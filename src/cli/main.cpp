@@ -117,7 +117,14 @@ void add_comfort_commands(CLI::App& app, Commands* c) {
                         : "Scene files (.toml) with [comfort] tables")
         ->required()
         ->expected(one ? 1 : 2, one ? 1 : 64);
-    if (one) cmd->add_option("-o,--output", a->output_dir, "Folder for comfort.csv and maps");
+    cmd->add_option("-o,--output", a->output_dir,
+                    one ? "Folder for comfort.csv and maps"
+                        : "Folder for the scenes' maps, side by side on one colour range");
+    cmd->add_option("--range", a->range,
+                    "Colour range low,high in C of the temperature maps (compare: the same for "
+                    "all scenes by default)")
+        ->delimiter(',')
+        ->expected(2);
     cmd->add_flag("-q,--quiet", a->rays.quiet, "No progress, notes or view-factor lines");
     cmd->add_option("--threads", a->rays.threads, "Worker threads (default: all)")
         ->check(CLI::Range(0, 1024));
