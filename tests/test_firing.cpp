@@ -162,3 +162,57 @@ TEST_CASE("firing input is checked", "[firing]") {
   in.surfaces[0].second.layers[0].density = 0;
   CHECK_THROWS_WITH(run_firing(s.model, in), Catch::Contains("floor"));
 }
+
+TEST_CASE("hearthray fire runs a schedule and writes its files", "[firing][cli]") {
+  const ScratchDir dir("firing-cli");
+  write_text(dir / "mesh.obj", box_obj(0.6, 0.6, 0.6));
+  const std::string scene = std::string("[mesh]\nfile = \"mesh.obj\"\n") + kKiln + R"(
+[firing]
+control = "east"
+schedule = [{ ramp = "200 K/h", to = "500 C" }, { hold = "10 min" },
+            { cool = "natural", to = "300 C" }]
+[firing.surface.floor]
+layers = [
+  { thickness = "50 mm", conductivity = [["100 C", "0.15 W/mK"], ["900 C", "0.25 W/mK"]], density = "600 kg/m3", specific_heat = "1 kJ/kgK" },
+]
+outside = { room = "20 C", h = "6 W/m2K", emissivity = 0.9 }
+[firing.surface.west]
+mass = "3 kg"
+specific_heat = "900 J/kgK"
+)";
+  write_text(dir / "scene.toml", scene);
+  const CliResult r = run_cli("fire '" + (dir / "scene.toml").string() + "' -o '" +
+                                  (dir / "out").string() + "' --no-cache",
+                              dir);
+  INFO(r.err);
+  REQUIRE(r.status == 0);
+  CHECK(r.out.find("schedule completed and followed") != std::string::npos);
+  CHECK(r.out.find("carbon monoxide") != std::string::npos);
+  for (const char* f : {"report.json", "firing.csv", "firing_temperatures.png", "firing_power.png",
+                        "firing_temperatures.svg", "firing_power.svg"})
+    CHECK(std::filesystem::exists(dir / "out" / f));
+  const std::string csv = slurp(dir / "out" / "firing.csv");
+  CHECK(csv.rfind("time_s,time_h,segment,set_point_C,control_C,power_W,floor_C", 0) == 0);
+  CHECK(csv.find("floor_outer_face_C") != std::string::npos);
+  CHECK(csv.find("west_inside_C") != std::string::npos);
+
+  // Mistakes are named with their line: a ramp without a target, an unknown key, a wrong unit.
+  for (const auto& [bad, words] : std::vector<std::pair<std::string, std::string>>{
+           {"{ ramp = \"200 K/h\" }", "needs to ="},
+           {"{ ramp = \"200 K\", to = \"500 C\" }", "K/h"},
+           {"{ soak = \"10 min\" }", "unknown key 'soak'"}}) {
+    std::string wrong = scene;
+    wrong.replace(wrong.find("{ hold = \"10 min\" }"), 19, bad);
+    write_text(dir / "bad.toml", wrong);
+    const CliResult b = run_cli("fire '" + (dir / "bad.toml").string() + "' --no-cache", dir);
+    INFO(bad);
+    CHECK(b.status == 2);
+    CHECK(b.err.find(words) != std::string::npos);
+    CHECK(b.err.find("bad.toml:") != std::string::npos);
+  }
+  // A scene without [firing] is refused by `fire`, saying what to add.
+  write_text(dir / "steady.toml", std::string("[mesh]\nfile = \"mesh.obj\"\n") + kKiln);
+  const CliResult none = run_cli("fire '" + (dir / "steady.toml").string() + "'", dir);
+  CHECK(none.status == 2);
+  CHECK(none.err.find("no [firing] table") != std::string::npos);
+}

@@ -171,7 +171,9 @@ class Firing {
     state_.from_K = in.start_K;
     r_.control_reached_s.assign(in.schedule.size(), -1);
     r_.load_reached_s.assign(loads_.size(), std::vector<double>(in.schedule.size(), -1));
+    r_.load_peak_K.assign(loads_.size(), 0.0);
     r_.notes = s_.notes;
+    r_.installed_W = s_.installed_W;
     biot_notes(model);
   }
 
@@ -303,6 +305,8 @@ class Firing {
         if (r_.load_reached_s[l][g] < 0 && hit(x.surface_K[loads_[l]]))
           r_.load_reached_s[l][g] = x.time_s;
     }
+    for (std::size_t l = 0; l < loads_.size(); ++l)
+      r_.load_peak_K[l] = std::max(r_.load_peak_K[l], x.surface_K[loads_[l]]);
   }
 
   // The deepest cell of a slab load (area-weighted over its pieces) or the lumped temperature.
@@ -354,34 +358,45 @@ class Firing {
   std::vector<bool> rising_;                // per segment opened: towards a higher target
 };
 
-// Lumped or not: Bi = h_r L / k at the schedule's highest target, h_r = 4 eps sigma T^3.
+// Lumped or not. Bi = h_r L / k at the schedule's highest target, h_r = 4 eps sigma T^3 (the
+// radiative coefficient), L the half thickness of a lumped load (heated on both sides) or the
+// thickness of a slab (its back insulated): Bi < 0.1 makes lumping accurate for any change
+// (Incropera & DeWitt, sec. 5.2). On a ramp of rate r the inside lags the surface by about
+// r L^2 / (2 alpha) once the heating is steady (Carslaw & Jaeger, sec. 3.3, a surface
+// temperature rising at a constant rate); for a lumped load alpha = k A t / (m c), its density
+// taken as m / (A t) over the surface's area A.
 void Firing::biot_notes(const ThermalModel& model) {
-  double top = in_.start_K;
+  double top = in_.start_K, fastest = 0;
   for (const ScheduleSegment& g : in_.schedule)
-    if (g.kind == ScheduleSegment::Kind::ramp) top = std::max(top, g.target);
+    if (g.kind == ScheduleSegment::Kind::ramp)
+      top = std::max(top, g.target), fastest = std::max(fastest, g.rate);
   for (std::size_t l = 0; l < loads_.size(); ++l) {
     const SurfaceMass* mass = nullptr;
     for (const auto& [name, m] : in_.surfaces)
       if (name == r_.load_names[l]) mass = &m;
-    const double L =
-        mass->kind == SurfaceMass::Kind::slab ? mass->layers[0].thickness : mass->thickness;
-    const double k = mass->kind == SurfaceMass::Kind::slab ? mass->layers[0].conductivity_at(top)
-                                                           : mass->conductivity;
-    if (!(L > 0 && k > 0)) continue;
+    const bool slab = mass->kind == SurfaceMass::Kind::slab;
+    const double t = slab ? mass->layers[0].thickness : mass->thickness;
+    const double k = slab ? mass->layers[0].conductivity_at(top) : mass->conductivity;
+    if (!(t > 0 && k > 0)) continue;
+    const double L = slab ? t : t / 2;
+    double area = 0;
+    for (std::size_t n = 0; n < s_.nodes; ++n)
+      if (s_.node_surface[n] == loads_[l]) area += s_.node_area[n];
+    const double alpha = slab ? k / (mass->layers[0].density * mass->layers[0].specific_heat)
+                              : k * area * t / (mass->mass * mass->specific_heat);
+    const double lag = fastest * L * L / (2 * alpha);
     const double hr = 4 * model.emissivity[loads_[l]] * kStefanBoltzmann * top * top * top;
     const double Bi = hr * L / k;
-    const std::string what = "load '" + r_.load_names[l] +
-                             "': Biot number h_r L / k = " + rounded("%.2g", Bi) + " at " +
-                             rounded("%.0f C", top - kZeroCelsius);
-    if (mass->kind == SurfaceMass::Kind::slab)
-      r_.notes.push_back(what + (Bi < 0.1 ? " (< 0.1: lumping it would do as well)"
-                                          : ": conducted in 1-D, as given"));
-    else if (Bi < 0.1)
-      r_.notes.push_back(what + " (< 0.1: lumped, as given)");
+    const std::string what =
+        "load '" + r_.load_names[l] + "': Biot number h_r L / k = " + rounded("%.2g", Bi) + " at " +
+        rounded("%.0f C", top - kZeroCelsius) + "; on the fastest ramp its inside lags " +
+        "its surface by about " + rounded("%.2g K", lag);
+    if (slab)
+      r_.notes.push_back(what + " (conducted in 1-D, as given)");
+    else if (Bi < 0.1 || lag < 2)
+      r_.notes.push_back(what + ": lumping it holds");
     else
-      r_.warnings.push_back(what +
-                            " (>= 0.1): its inside lags its surface, and a lumped load "
-                            "understates the lag; give it as a slab");
+      r_.warnings.push_back(what + ": a lumped load hides that lag; give it as a slab");
   }
 }
 
