@@ -10,7 +10,9 @@
 // Cell data: "surface" (Int32, index into Scene::surfaces), "patch" (Int32, index into
 // PatchSet), "side" (Int32, 0 front, 1 back), then each field as Float64 named
 // "<name> [<unit>]" ("<name>" when the unit is empty). NaN values are written as "nan".
-// The surface names are listed in an XML comment after the header.
+// The surface names travel as field data of the grid: the String array "surface_names", entry
+// k the name of surface k (the cell data "surface"), and are listed in an XML comment after
+// the header. The file is written under a temporary name and renamed: it appears whole.
 #pragma once
 
 #include <string>
@@ -22,10 +24,17 @@
 
 namespace hearthray {
 
+// One integer for the whole data set, written as VTK field data (e.g. "converged" 1 or 0, so
+// that a viewer shows whether the fields are an answer).
+struct VtuFlag {
+  std::string name;
+  long value = 0;
+};
+
 // Throws InputError when the file cannot be written, a field does not hold one value per
 // patch, or two arrays would get the same name.
 void write_vtu(const std::string& path, const Scene& scene, const PatchSet& patches,
-               const std::vector<PatchField>& fields);
+               const std::vector<PatchField>& fields, const std::vector<VtuFlag>& field_data = {});
 
 // The array name write_vtu gives a field.
 std::string vtu_array_name(const PatchField& field);

@@ -7,6 +7,7 @@
 
 #include "commands.hpp"
 #include "hearthray/error.hpp"
+#include "hearthray/patch_geometry.hpp"
 #include "hearthray/render.hpp"
 #include "hearthray/thermal_model.hpp"
 #include "hearthray/thermal_report.hpp"
@@ -23,6 +24,11 @@ namespace fs = std::filesystem;
 // Up to this many patches the view factors are also written densely (CSV and JSON); beyond,
 // only as a sparse Matrix Market file (a dense 20k x 20k matrix would be 3 GB of text).
 constexpr std::size_t kDenseFactorFileLimit = 200;
+
+// The height of the model's case: its extent along z, the vertical of the scene frame.
+double model_height(const Scene& scene) {
+  return scene.bounds.hi.z - scene.bounds.lo.z;
+}
 
 SolveReportInfo solve_info(const SceneFile& file, const FactorRun& run, const ThermalModel& model,
                            const std::vector<Warning>& warnings) {
@@ -48,11 +54,15 @@ SolveReportInfo solve_info(const SceneFile& file, const FactorRun& run, const Th
   for (const Warning& w : warnings)
     if (w.kind != WarningKind::cache) info.warnings.push_back(w.text);
   info.notes = model.notes;
+  info.model_height_m = model_height(run.scene);
+  info.notes.push_back(
+      "report.json is in SI units (keys name them); the table, surfaces.csv and "
+      "the pictures use --units");
   return info;
 }
 
 // The output folder: view factors, per-patch fields, pictures, the surface table and the report.
-void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved) {
+void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved, UnitSystem units) {
   const SceneFile& file = solved.file;
   const FactorRun& run = solved.run;
   const ThermalModel& model = solved.model;
@@ -69,8 +79,10 @@ void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved) {
   for (const std::string& name : factor_files)
     write_factors_file((dir / name).string(), used, factor_info);
   const std::vector<PatchField> fields = solve_fields(model, result);
-  write_vtu((dir / "patches.vtu").string(), run.scene, run.patches, fields);
-  info.files = {"surfaces.csv", "patches.vtu"};
+  write_vtu((dir / "patches.vtu").string(), run.scene, run.patches, fields,
+            {{"converged", result.status == ExchangeStatus::converged ? 1 : 0}});
+  write_patches_csv_file((dir / "patches.csv").string(), run.scene, run.patches);
+  info.files = {"surfaces.csv", "patches.vtu", "patches.csv"};
   // Pictures of the temperature and the net radiative flux from the default view.
   const Tracer tracer(run.scene);
   const std::string scene_name = fs::path(file.path).stem().string();
@@ -82,9 +94,10 @@ void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved) {
       if (field.name != field_name) continue;
       RenderOptions options;
       options.threads = args.rays.threads;
-      options.title = scene_name + ": " + field.name;
+      options.title = solved_picture_title(field.name, shown_in(field, units).unit, scene_name,
+                                           result.status == ExchangeStatus::converged);
       options.diverging = field_name == "net radiative flux";
-      const Picture drawn = render(run.scene, run.patches, tracer, field, options);
+      const Picture drawn = render(run.scene, run.patches, tracer, shown_in(field, units), options);
       for (const char* extension : {".png", ".svg"}) {
         write_picture((dir / (picture + extension)).string(), drawn);
         info.files.push_back(picture + extension);
@@ -94,7 +107,7 @@ void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved) {
   info.files.insert(info.files.end(), factor_files.begin(), factor_files.end());
   {
     std::ofstream csv = open_output(dir / "surfaces.csv");
-    write_surfaces_csv(csv, model, result);
+    write_surfaces_csv(csv, model, result, units);
   }
   {
     std::ofstream report = open_output(dir / "report.json");
@@ -116,6 +129,7 @@ int run_solve_command(const SolveArgs& args) {
   CacheChoice cache;
   cache.use = !args.no_cache;
   cache.dir = args.cache_dir;
+  const UnitSystem units = parse_unit_system(args.units);  // before the work: a typo stops it
   SolvedScene solved;
   if (const int status = solve_scene_printing(args.input, args.rays, cache, false, &solved))
     return status;
@@ -130,10 +144,11 @@ int run_solve_command(const SolveArgs& args) {
     std::cout << smoothing_line(run) << "\n\n";
   }
   if (!args.rays.quiet || args.output_dir.empty()) {
-    print_solve_table(std::cout, surface_heat(model, result), heat_balance(result), result);
+    print_solve_table(std::cout, surface_heat(model, result), heat_balance(model, result), result,
+                      outer_cases(model, result, model_height(run.scene)), units);
   }
 
-  if (!args.output_dir.empty()) write_solve_outputs(args, solved);
+  if (!args.output_dir.empty()) write_solve_outputs(args, solved, units);
 
   if (result.status != ExchangeStatus::converged) {
     std::cerr << "error: the exchange solve did not converge (" << to_string(result.status)

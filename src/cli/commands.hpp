@@ -9,13 +9,18 @@ namespace hearthray::cli {
 
 struct FactorsArgs {
   std::string input;                 // scene.toml or mesh.obj
+  std::string unit;                  // --unit of a bare mesh ("" = m)
   std::vector<std::string> outputs;  // -o, format by extension
   RaySettings rays;
+  std::string cache_dir;  // --cache; "" = default
+  bool no_cache = false;
 };
 int run_factors_command(const FactorsArgs& args);
 
 struct CheckArgs {
   std::string input;
+  std::string unit;   // --unit of a bare mesh ("" = m)
+  std::string where;  // --where: file of gaps, contacts and back hits (.obj or .vtu)
   std::uint64_t rays = kQuickRaysPerPatch;  // quick estimate
   std::uint64_t seed = kDefaultSeed;
   int threads = 0;
@@ -28,6 +33,7 @@ struct SolveArgs {
   RaySettings rays;
   std::string cache_dir;  // --cache; "" = default
   bool no_cache = false;
+  std::string units = "si";  // --units: si | us | kcal, for the table, surfaces.csv, pictures
 };
 // Exit codes: 0 solved, 2 bad input, 4 the solver did not converge (outputs still written).
 inline constexpr int kExitNotConverged = 4;
@@ -40,10 +46,11 @@ int run_fire_command(const SolveArgs& args);
 
 struct ComfortArgs {
   std::vector<std::string> inputs;  // comfort: one scene; compare: two or more
-  std::string output_dir;           // comfort -o: comfort.csv, comfort.txt, maps (PNG)
+  std::string output_dir;           // -o: comfort.csv, comfort.txt, maps; compare: maps
   RaySettings rays;                 // --threads, --quiet; rays and seed from the scene
   std::string cache_dir;            // --cache; "" = default
   bool no_cache = false;
+  std::vector<double> range;  // --range low,high (C) of the temperature maps
 };
 // Exit codes as for solve. `comfort`: table, summary, cautions, files. `compare`: the scenes
 // side by side.
@@ -52,6 +59,7 @@ int run_compare_command(const ComfortArgs& args);
 
 struct RenderArgs {
   std::string input;              // scene.toml or mesh.obj
+  std::string unit;               // --unit of a bare mesh ("" = m)
   std::string output;             // -o picture.png
   std::string field = "surface";  // surface | area | view-factor-to=<surface>
   int width = 800, height = 600;
@@ -61,6 +69,8 @@ struct RenderArgs {
   std::string title;                       // "" = file name and field
   bool no_title = false;
   std::vector<double> range;                // low,high of the colour bar
+  std::string results;                      // --results DIR: a solve's output folder
+  std::string units = "si";                 // --units for solved fields
   std::uint64_t rays = kQuickRaysPerPatch;  // per patch, for view-factor-to
   std::uint64_t seed = kDefaultSeed;
   int threads = 0;

@@ -41,6 +41,22 @@ int refuse(const RefusedInput& e) {
 
 }  // namespace
 
+SceneFile open_scene_with_unit(const std::string& input, const std::string& unit) {
+  SceneFile file = open_scene(input);
+  if (unit.empty()) return file;
+  if (!file.path.empty()) {
+    throw InputError("--unit is for a bare mesh: " + input +
+                     " is a scene file, which gives the mesh's unit in [mesh] as unit = \"" + unit +
+                     "\"");
+  }
+  try {
+    file.mesh.unit = parse_length_unit(unit);
+  } catch (const InputError& e) {
+    throw InputError(std::string("--unit: ") + e.what());
+  }
+  return file;
+}
+
 PipelineOptions pipeline_options(const RaySettings& settings, const CacheChoice* cache) {
   PipelineOptions options;
   options.rays_per_patch = settings.rays;
@@ -84,6 +100,12 @@ std::string cache_log_line(const FactorRun& run) {
       break;
   }
   return traced + " (cache not used)";
+}
+
+void print_no_cache_folder(const FactorRun& run) {
+  if (run.cache != CacheOutcome::no_folder) return;
+  std::cerr << "warning: no cache folder: set HEARTHRAY_CACHE (or HOME) or give --cache DIR; "
+               "view factors are traced every time\n";
 }
 
 FactorReportInfo report_info(const SceneFile& file, const FactorRun& run) {
@@ -158,10 +180,7 @@ int solve_scene_printing(const std::string& input, const RaySettings& settings,
     *out = model_scene(std::move(file), std::move(scene), options);
     end_progress_line();
     print_warnings(out->warnings);
-    if (out->run.cache == CacheOutcome::no_folder) {
-      std::cerr << "warning: no cache folder: set HEARTHRAY_CACHE (or HOME) or give --cache DIR; "
-                   "view factors are traced every time\n";
-    }
+    print_no_cache_folder(out->run);
     if (!settings.quiet) print_notes(out->notes);
     if (exchange) solve_model_exchange(out, options);
   } catch (const RefusedInput& e) {

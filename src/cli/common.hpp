@@ -29,6 +29,10 @@ struct CacheChoice {
   std::string dir;  // "" = default_cache_dir()
 };
 
+// A scene file or a bare mesh; `unit` (from --unit, "" when not given) is the unit of a bare
+// mesh's coordinates. A scene file gives its unit in [mesh]: --unit with one is an error.
+SceneFile open_scene_with_unit(const std::string& input, const std::string& unit);
+
 // Pipeline options from the command line; the cache only when `cache` is given and used.
 // Unless quiet, a progress line on a terminal while tracing.
 PipelineOptions pipeline_options(const RaySettings& settings, const CacheChoice* cache = nullptr);
@@ -43,6 +47,9 @@ void end_progress_line();
 
 // What happened to the view factors, e.g. "view factors: from cache PATH".
 std::string cache_log_line(const FactorRun& run);
+
+// To stderr, when the cache was asked for but no folder is known: a warning saying how to set one.
+void print_no_cache_folder(const FactorRun& run);
 
 // The report fields for the JSON output.
 FactorReportInfo report_info(const SceneFile& file, const FactorRun& run);

@@ -154,9 +154,10 @@ void settle_losses(ThermalModel& m, const ThermalInput& input, const Scene& scen
       throw InputError("the mesh '" + scene.source + "' is closed, yet " +
                        percent(m.lost_fraction) +
                        " of all rays left it or were absorbed on back faces (by surface: " + list +
-                       "): too many for leaks through shared edges. Look for gaps or for "
-                       "surfaces whose normals point out of the enclosure (hearthray check "
-                       "shows both); if radiation really leaves, " +
+                       "): too many for leaks through shared edges. Fix the mesh first: look for "
+                       "surfaces whose normals point out of the enclosure, solids exported "
+                       "touching (faces lying on each other) and gaps (hearthray check shows "
+                       "where); only if radiation really leaves, " +
                        fix);
     }
     bool back_faces = false;
@@ -166,7 +167,12 @@ void settle_losses(ThermalModel& m, const ThermalInput& input, const Scene& scen
         " surface(s) (share of each one's radiation: " + list + "; " + percent(m.lost_fraction) +
         " of all rays" +
         (back_faces ? ", counting rays absorbed on the back of one-sided surfaces" : "") +
-        "), but no surroundings temperature is given: " + fix + ", or close the geometry");
+        "), but no surroundings temperature is given. " +
+        (back_faces ? "First fix the normals of surfaces hit on their back, and faces of "
+                      "solids exported touching (hearthray check shows where); then, if "
+                      "radiation really leaves, "
+                    : "If radiation really leaves, ") +
+        fix + "; otherwise close the geometry");
   }
   if (leaving == 0 && m.surroundings_K) {
     m.notes.push_back(
@@ -255,6 +261,7 @@ HeatBalance heat_balance(const ExchangeResult& result) {
   double net = 0;
   for (const NodeResult& n : result.nodes) {
     b.heat_input_W += n.heat_input_W;
+    (n.heat_input_W > 0 ? b.gross_input_W : b.taken_out_W) += std::abs(n.heat_input_W);
     b.convection_W += n.convection_W;
     b.wall_loss_W += n.wall_loss_W;
     net += n.net_radiation_W;
@@ -266,6 +273,22 @@ HeatBalance heat_balance(const ExchangeResult& result) {
   // heat_input - convection - wall_loss is the net radiation of all surfaces; what the
   // surroundings do not take of it is the residual.
   b.residual_W = net - b.to_surroundings_W;
+  return b;
+}
+
+HeatBalance heat_balance(const ThermalModel& model, const ExchangeResult& result) {
+  HeatBalance b = heat_balance(result);
+  std::vector<char> source(model.surface_names.size(), 0), sink(model.surface_names.size(), 0);
+  for (std::size_t k = 0; k < result.nodes.size() && k < model.node_surface.size(); ++k) {
+    const double q = result.nodes[k].heat_input_W;
+    // Round-off of a balanced reradiating piece is neither.
+    if (std::abs(q) <= 1e-9 * b.largest_W) continue;
+    (q > 0 ? source : sink)[model.node_surface[k]] = 1;
+  }
+  for (std::size_t s = 0; s < model.surface_names.size(); ++s) {
+    if (source[s]) b.sources.push_back(model.surface_names[s]);
+    if (sink[s]) b.sinks.push_back(model.surface_names[s]);
+  }
   return b;
 }
 

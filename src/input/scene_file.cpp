@@ -26,9 +26,9 @@ const std::vector<std::string> kTopKeys = {"mesh",    "rays",    "surroundings",
 const std::vector<std::string> kMeshKeys = {"file", "unit", "surfaces_from"};
 const std::vector<std::string> kRaysKeys = {"per_patch", "total", "min_per_patch", "seed"};
 const std::vector<std::string> kSurroundingsKeys = {"temperature"};
-const std::vector<std::string> kSurfaceKeys = {"two_sided",  "emissivity", "temperature",
-                                               "heat_flux",  "power",      "adiabatic",
-                                               "convection", "wall",       "patches"};
+const std::vector<std::string> kSurfaceKeys = {
+    "two_sided", "emissivity", "temperature", "heat_flux", "power",
+    "adiabatic", "convection", "wall",        "patches",   "expect_back_hits"};
 const std::vector<std::string> kConvectionKeys = {"h", "fluid"};
 const std::vector<std::string> kWallKeys = {"U", "outside", "thickness", "conductivity"};
 
@@ -214,6 +214,22 @@ class Reader {
     return {PatchSpec::Mode::size, size};
   }
 
+  // `key = false` in a surface's table: no convection or wall loss there, whatever
+  // [defaults] says. Anything else but a table is an error.
+  bool switched_off(const toml::node& node, const std::string& key, const std::string& table_name,
+                    bool in_surface) const {
+    const auto* b = node.as_boolean();
+    if (!b) return false;
+    if (b->get() || !in_surface) {
+      fail(node.source(), key + " = " + (b->get() ? "true" : "false") + " in " + table_name +
+                              " means nothing: " +
+                              (in_surface ? "give " + key + " = { ... }, or " + key +
+                                                " = false to take none from [defaults]"
+                                          : "leave " + key + " out of [defaults] to give none"));
+    }
+    return true;
+  }
+
   SurfaceSpec surface(const toml::table& t, const std::string& table_name,
                       bool allow_two_sided) const {
     SurfaceSpec spec;
@@ -272,9 +288,22 @@ class Reader {
         }
         set_condition(*node, key, ConditionKind::adiabatic, 0.0);
       } else if (key == "convection") {
-        spec.convection = convection(*node, table_name);
+        if (switched_off(*node, key, table_name, allow_two_sided))
+          spec.no_convection = true;
+        else
+          spec.convection = convection(*node, table_name);
       } else if (key == "wall") {
-        spec.wall_loss = wall(*node, table_name);
+        if (switched_off(*node, key, table_name, allow_two_sided))
+          spec.no_wall = true;
+        else
+          spec.wall_loss = wall(*node, table_name);
+      } else if (key == "expect_back_hits") {
+        const auto* b = node->as_boolean();
+        if (!b) {
+          fail(node->source(), "expect_back_hits in " + table_name +
+                                   " must be true or false, not " + type_name(*node));
+        }
+        spec.expect_back_hits = b->get();
       } else if (key == "patches") {
         spec.patches = patch_spec(*node, table_name);
       }
@@ -543,6 +572,7 @@ std::vector<SurfaceThermal> resolve_thermal(const SceneFile& file, const Scene& 
     thermal.condition.kind = *with_condition.kind;
     thermal.condition.value = with_condition.value;
     thermal.condition.convection = spec.convection ? spec.convection : def.convection;
+    if (spec.no_convection) thermal.condition.convection.reset();
 
     const bool two_sided = surface.two_sided || spec.two_sided;
     if (spec.wall_loss && two_sided) {
@@ -552,7 +582,8 @@ std::vector<SurfaceThermal> resolve_thermal(const SceneFile& file, const Scene& 
                        table + " or make the surface one-sided");
     }
     // A wall loss in [defaults] applies to the one-sided surfaces only, for the same reason.
-    if (!two_sided) thermal.condition.wall_loss = spec.wall_loss ? spec.wall_loss : def.wall_loss;
+    if (!two_sided && !spec.no_wall)
+      thermal.condition.wall_loss = spec.wall_loss ? spec.wall_loss : def.wall_loss;
     out.push_back(std::move(thermal));
   }
   return out;
