@@ -92,10 +92,6 @@ CLI::App* add_scene_command(CLI::App& app, const std::string& name, const std::s
   cmd_solve->add_option("--threads", solve.rays.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
   add_cache_options(cmd_solve, &solve.cache_dir, &solve.no_cache);
-  cmd_solve->add_option("--units", solve.units,
-                        "Units of the table, surfaces.csv and pictures: si (C, W, W/m2), us "
-                        "(F, Btu/h, Btu/(h ft2)) or kcal (C, kcal/h, kcal/(h m2)); report.json "
-                        "stays SI (default si)");
   return cmd_solve;
 }
 
@@ -248,6 +244,10 @@ int main(int argc, char** argv) {
   c.cmd_solve = add_scene_command(
       app, "solve", "Radiant heat exchange: heat flows and surface temperatures from a scene file",
       "Folder for surfaces.csv, report.json and view_factors.csv/.json", c.solve);
+  c.cmd_solve->add_option("--units", c.solve.units,
+                          "Units of the table, surfaces.csv and pictures: si (C, W, W/m2), us "
+                          "(F, Btu/h, Btu/(h ft2)) or kcal (C, kcal/h, kcal/(h m2)); report.json "
+                          "stays SI (default si)");
   c.cmd_fire = add_scene_command(
       app, "fire",
       "A firing over time: the scene's [firing] schedule, walls and loads with heat capacity",
