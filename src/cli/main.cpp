@@ -50,9 +50,10 @@ CLI::App* add_factors_command(CLI::App& app, FactorsArgs& factors) {
       ->check(CLI::Range(0, 1024));
   cmd_factors->add_flag("--raw", factors.rays.raw, "Skip the reciprocity and closure correction");
   cmd_factors->add_flag("-q,--quiet", factors.rays.quiet, "No progress line or summary");
-  cmd_factors->add_option("-o,--output", factors.outputs,
-                          "Output file: .csv, .mtx, .npy or .json (repeatable); the patch table "
-                          "and VTU are written beside it");
+  cmd_factors->add_option(
+      "-o,--output", factors.outputs,
+      "Output file: .csv, .mtx, .npy, .json or .h5 (repeatable); the patch table "
+      "and VTU are written beside it");
   add_cache_options(cmd_factors, &factors.cache_dir, &factors.no_cache);
   return cmd_factors;
 }
@@ -91,6 +92,9 @@ CLI::App* add_scene_command(CLI::App& app, const std::string& name, const std::s
       "Random seed (default: scene, " + std::to_string(hearthray::kDefaultSeed) + ")");
   cmd_solve->add_option("--threads", solve.rays.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
+  cmd_solve->add_flag("--matrix-text", solve.matrix_text,
+                      "Above 200 patches, write the view factors as Matrix Market text "
+                      "(view_factors.mtx) instead of compressed HDF5 (view_factors.h5)");
   add_cache_options(cmd_solve, &solve.cache_dir, &solve.no_cache);
   return cmd_solve;
 }
