@@ -50,6 +50,7 @@ file = "cube.obj"
 [rays]
 per_patch = 20_000
 seed = 3
+sampler = "stratified"
 [defaults]
 emissivity = 0.9
 adiabatic = true
@@ -144,7 +145,7 @@ def main():
     check(np.max(np.abs(dense[:, n])) < 1e-12, "surroundings column")
     exchange = area[:, None] * dense[:, :n]
     check(np.max(np.abs(exchange - exchange.T)) < 1e-12, "reciprocity A_i F_ij = A_j F_ji")
-    # Standard errors are sqrt(F(1-F)/N) of each stored entry, rounded to float32 (relative
+    # Standard errors (stratified sampler, as the scene asks) are sqrt(F(1-F)/N) of each entry, rounded to float32 (relative
     # rounding error at most 2^-24, about 6e-8).
     expected = np.sqrt(F.data * (1 - F.data) / np.repeat(rays, np.diff(F.indptr)))
     check(np.allclose(se.data, expected, rtol=1.2e-7, atol=0), "standard errors")
