@@ -55,7 +55,7 @@ int run_render_command(const RenderArgs& args) {
       throw InputError("--field " + args.field + ": no surface named '" + name +
                        "'; the model has " + known_surfaces(scene));
     // A quick raw estimate on whole surfaces (the patches of the picture).
-    const FactorRun run = quick_view_factors(scene, args.rays, args.seed, args.threads);
+    const FactorRun run = quick_view_factors(scene, args.rays, args.seed, args.threads, args.force);
     field = view_factor_to_surface_field(scene, patches, run.factors, std::uint32_t(target));
   } else {
     throw InputError("unknown --field '" + args.field +

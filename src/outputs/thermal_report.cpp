@@ -26,8 +26,10 @@ std::string watts(double v) {
   return rounded(std::abs(v) >= 1e8 ? "%.4g" : "%.1f", v);
 }
 
+// A value wider than its column keeps a blank on the side of its neighbour: columns never run
+// together.
 std::string pad(const std::string& s, std::size_t width, bool right) {
-  if (s.size() >= width) return s;
+  if (s.size() >= width) return right ? " " + s : s + " ";
   const std::string fill(width - s.size(), ' ');
   return right ? fill + s : s + fill;
 }
@@ -279,7 +281,7 @@ void write_solve_json(std::ostream& out, const SolveReportInfo& info, const Ther
                     {"largest_W", b.largest_W},
                     {"relative_residual", b.largest_W > 0 ? b.residual_W / b.largest_W : 0.0}};
   doc["notes"] = info.notes;
-  out << doc.dump(2) << "\n";
+  out << doc.dump(2, ' ', false, json::error_handler_t::replace) << "\n";
 }
 
 std::vector<PatchField> solve_fields(const ThermalModel& model, const ExchangeResult& result) {
