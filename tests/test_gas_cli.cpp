@@ -82,3 +82,43 @@ TEST_CASE("hearthray solve refuses bad gas input with error and exit 2", "[gas][
   CHECK(r.err.find("error:") != std::string::npos);
   CHECK(r.err.find("wood") != std::string::npos);
 }
+
+TEST_CASE("films between the gas and the walls: fluid = \"gas\" only with [gas]", "[gas][cli]") {
+  const ScratchDir dir("gas-cli-films");
+  write_text(dir / "box.obj", box_with_load_obj(3, 1.2, 1.2, 1.25, 0.35, 0.05, 0.5));
+  std::string scene = kScene;
+  const std::string wall = "wall = { U = \"1.2 W/m2K\", outside = \"20 C\" }\n";
+  scene.insert(scene.find(wall) + wall.size(),
+               "convection = { h = \"12 W/m2K\", fluid = \"gas\" }\n");
+  write_text(dir / "scene.toml", scene);
+  const CliResult r = run_cli(
+      "solve '" + (dir / "scene.toml").string() + "' -o '" + (dir / "out").string() + "' --quiet",
+      dir);
+  INFO(r.err);
+  REQUIRE(r.status == 0);
+  const auto report = nlohmann::json::parse(slurp(dir / "out" / "report.json"));
+  const auto& b = report["gas"]["balance"];
+  const double firing = b["heat_released_W"].get<double>();
+  const double out = b["to_load_W"].get<double>() + b["to_other_held_surfaces_W"].get<double>() +
+                     b["through_walls_W"].get<double>() + b["to_surroundings_W"].get<double>() +
+                     b["flue_enthalpy_W"].get<double>();
+  CHECK(std::fabs(firing + b["air_enthalpy_in_W"].get<double>() - out) < 1e-9 * firing);
+  double given = 0, received = 0;
+  for (const auto& z : report["gas"]["zones"]) given += z["convection_out_W"].get<double>();
+  for (const auto& p : report["gas"]["patches"]) received += p["convection_in_W"].get<double>();
+  CHECK(given > 0);
+  CHECK(std::fabs(given - received) < 1e-9 * firing);
+
+  // A fluid temperature with [gas], and fluid = "gas" without it, are refused at their line.
+  std::string fixed = scene;
+  fixed.replace(fixed.find("fluid = \"gas\""), 13, "fluid = \"20 C\"");
+  write_text(dir / "fixed.toml", fixed);
+  CliResult bad = run_cli("solve '" + (dir / "fixed.toml").string() + "'", dir);
+  CHECK(bad.status == 2);
+  CHECK(bad.err.find("write fluid = \"gas\"") != std::string::npos);
+  std::string no_gas = scene.substr(0, scene.find("[gas]"));
+  write_text(dir / "nogas.toml", no_gas);
+  bad = run_cli("solve '" + (dir / "nogas.toml").string() + "'", dir);
+  CHECK(bad.status == 2);
+  CHECK(bad.err.find("no [gas] table") != std::string::npos);
+}

@@ -185,7 +185,38 @@ excess_air = "15 %"
   CHECK_THROWS_WITH(run_gas(wrong, scene, patches, tracer,
                             gas_patch_conditions(thermal, scene, patches), options),
                     Catch::Contains("'ingot'"));
-  // Convection with a gas is refused for now, naming the surface.
-  thermal[0].condition.convection = Convection{10, 300};
-  CHECK_THROWS_WITH(gas_patch_conditions(thermal, scene, patches), Catch::Contains("floor"));
+  // With a gas, a film's fluid is the gas beside the surface; a fluid temperature is refused,
+  // naming the surface.
+  std::vector<SurfaceThermal> fixed_fluid = thermal;
+  fixed_fluid[0].condition.convection = Convection{10, 300};
+  CHECK_THROWS_WITH(gas_patch_conditions(fixed_fluid, scene, patches),
+                    Catch::Contains(scene.surfaces[0].name));
+
+  // Films on every surface to the gas: each patch's film goes to the zone beside it (the
+  // grid has three cells along x), and the balance still closes.
+  for (SurfaceThermal& t : thermal) t.condition.convection = Convection{10, 0, true};
+  const GasRun filmed = run_gas(input, scene, patches, tracer,
+                                gas_patch_conditions(thermal, scene, patches), options);
+  REQUIRE(filmed.solve.converged);
+  CHECK(std::fabs(filmed.solve.balance_error) < 1e-9 * firing);
+  CHECK(std::fabs(filmed.heat_to_load() + filmed.heat_through_walls() +
+                  filmed.solve.to_surroundings + filmed.solve.flue_enthalpy - firing -
+                  filmed.solve.air_enthalpy_in) < 1e-9 * firing);
+  int ends_seen = 0;
+  for (std::size_t p = 0; p < patches.size(); ++p) {
+    const int zone = filmed.patches[p].convection_zone;
+    REQUIRE(zone >= 0);
+    const int along_x = filmed.exchange.grid.cell_index(filmed.exchange.zone_cell[zone])[0];
+    const std::string& name = scene.surfaces[patches.patches[p].surface].name;
+    if (name == "west" || name == "east") {
+      CHECK(along_x == (name == "west" ? 0 : 2));
+      ++ends_seen;
+    }
+  }
+  CHECK(ends_seen == 2);
+  // The gas, far hotter than the load at 500 C, heats it by convection too.
+  double to_load = 0;
+  for (std::size_t p = 0; p < patches.size(); ++p)
+    if (filmed.load_patch[p]) to_load += filmed.solve.patches[p].convection_in;
+  CHECK(to_load > 0);
 }

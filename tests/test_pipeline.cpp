@@ -66,11 +66,15 @@ TEST_CASE("the pipeline gives the factors of the stages called one by one", "[pi
             smoothed.F.coeff(Eigen::Index(i), Eigen::Index(j)));
 }
 
-TEST_CASE("threads = 1 binds every stage of a solve to one thread", "[pipeline]") {
+TEST_CASE("threads = 1 binds every stage of a solve and of comfort to one thread", "[pipeline]") {
   // Each stage reports its start from inside the task arena it runs in (tracing reports from
   // its workers); smoothing and the exchange solve run their parallel loops in that arena.
   const ScratchDir dir("pipeline-threads");
-  const LoadedScene l = load_scene_text(dir, unit_cube_obj(2), kHotFloorColdRoof);
+  const std::string comfort = std::string(kHotFloorColdRoof) +
+                              "[comfort]\nair_temperature = \"21 C\"\nrays = 2000\n"
+                              "[comfort.point.middle]\nposition = [\"0.5 m\", \"0.5 m\", "
+                              "\"0.5 m\"]\n";
+  const LoadedScene l = load_scene_text(dir, unit_cube_obj(2), comfort);
   for (const int threads : {1, 2}) {
     ArenaLog log;
     PipelineOptions options;
@@ -79,11 +83,13 @@ TEST_CASE("threads = 1 binds every stage of a solve to one thread", "[pipeline]"
     options.progress = log.callback();
     SolvedScene s = model_scene(l.file, l.scene, options);
     solve_model_exchange(&s, options);
-    CHECK(s.result.status == ExchangeStatus::converged);
+    REQUIRE(s.result.status == ExchangeStatus::converged);
+    const SceneComfort c = scene_comfort(s, options);
+    CHECK(c.points.size() == 1);
     const std::set<PipelineStage> seen = log.stages();
     for (PipelineStage stage :
          {PipelineStage::build_tracer, PipelineStage::trace, PipelineStage::smooth,
-          PipelineStage::thermal_model, PipelineStage::exchange})
+          PipelineStage::thermal_model, PipelineStage::exchange, PipelineStage::comfort})
       CHECK(seen.count(stage) == 1);
     for (const auto& [stage, concurrency] : log.events) {
       INFO("threads " << threads << ", stage " << to_string(stage));

@@ -347,3 +347,41 @@ TEST_CASE("bad patch and budget settings are errors saying what to write", "[sce
     CHECK_THROWS_WITH(read_scene_file(dir.scene(c.body)), Catch::Contains(c.expect));
   }
 }
+
+TEST_CASE("a default wall or convection can be switched off per surface", "[scene_file]") {
+  SceneDir dir;
+  const SceneFile file =
+      read_scene_file(dir.scene("[defaults]\nemissivity = 0.8\nadiabatic = true\n"
+                                "wall = { U = \"1 W/m2K\", outside = \"20 C\" }\n"
+                                "convection = { h = \"5 W/m2K\", fluid = \"400 C\" }\n"
+                                "[surface.door]\nwall = false\nconvection = false\n"
+                                "[surface.panel]\ntwo_sided = true\n"));
+  const Scene scene = load_scene(file);
+  const std::vector<SurfaceThermal> thermal = resolve_thermal(file, scene);
+  // hearth, wall, door, panel: the door takes neither default, the two-sided panel no wall.
+  CHECK(thermal[0].condition.wall_loss);
+  CHECK(thermal[0].condition.convection);
+  CHECK_FALSE(thermal[2].condition.wall_loss);
+  CHECK_FALSE(thermal[2].condition.convection);
+  CHECK_FALSE(thermal[3].condition.wall_loss);
+  const std::vector<std::string> lines = defaults_taken(file, scene);
+  REQUIRE(lines.size() == 4);
+  CHECK(lines[0] ==
+        "[defaults] emissivity = 0.8: taken by hearth, wall, door, panel (4 of 4 "
+        "surfaces)");
+  CHECK(lines[2] ==
+        "[defaults] convection (h = 5 W/m2K, fluid 400 C): taken by hearth, wall, "
+        "panel (3 of 4 surfaces); switched off by convection = false in door");
+  CHECK(lines[3] ==
+        "[defaults] wall (U = 1 W/m2K, outside 20 C; two-sided sheets take none): "
+        "taken by hearth, wall (2 of 4 surfaces); switched off by wall = false in "
+        "door");
+  // true means nothing, and false belongs to a surface, not to [defaults].
+  CHECK_THROWS_WITH(read_scene_file(dir.scene("[surface.door]\nwall = true\n")),
+                    Catch::Contains("scene.toml:4:") && Catch::Contains("wall = true") &&
+                        Catch::Contains("wall = false to take none from [defaults]"));
+  CHECK_THROWS_WITH(read_scene_file(dir.scene("[defaults]\nconvection = false\n")),
+                    Catch::Contains("leave convection out of [defaults]"));
+  CHECK_THROWS_WITH(read_scene_file(dir.scene("[surface.door]\nexpect_back_hits = 1\n")),
+                    Catch::Contains("expect_back_hits") && Catch::Contains("true or false"));
+}

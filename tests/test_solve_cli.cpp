@@ -166,8 +166,14 @@ TEST_CASE("solve refuses bad scenes with a clear error and exit 2", "[solve]") {
        "",
        {"[surroundings]", "below absolute zero"}},
       {"TOML syntax error", cube_scene("[defaults\nemissivity = 0.5"), "", {"scene.toml:"}},
-      {"closed mesh whose normals point out, no surroundings",
+      {"closed mesh whose normals point out",
        "[mesh]\nfile = \"flipped.obj\"\n[rays]\nper_patch = 2000\n[defaults]\n" + ok,
+       "",
+       {"most rays reaching surface(s) 'roof' (100.0 %) arrive on their back side",
+        "Fix the normals first"}},
+      {"closed mesh whose normals point out by design, no surroundings",
+       "[mesh]\nfile = \"flipped.obj\"\n[rays]\nper_patch = 2000\n[defaults]\n" + ok +
+           "\n[surface.roof]\nexpect_back_hits = true",
        "",
        {"is closed, yet", "'roof' 100.0 %", "normals"}},
       {"a bare mesh has no thermal input", "", "cube.obj", {"is a mesh", "emissivity"}},
@@ -247,6 +253,14 @@ power = "-50 kW"
   const json report = json::parse(slurp(dir / "out" / "report.json"));
   CHECK(report.at("solver").at("status") == "not_converged");
   CHECK(report.at("solver").at("message").get<std::string>().find("floor") != std::string::npos);
+  // Every file says so: a column of surfaces.csv, field data of patches.vtu.
+  const std::string csv = slurp(dir / "out" / "surfaces.csv");
+  CHECK(csv.substr(0, csv.find('\n')).find(",converged") != std::string::npos);
+  CHECK(csv.find(",yes\n") == std::string::npos);
+  CHECK(csv.find(",no\n") != std::string::npos);
+  CHECK(slurp(dir / "out" / "patches.vtu")
+            .find("Name=\"converged\" NumberOfTuples=\"1\" "
+                  "format=\"ascii\">0<") != std::string::npos);
 }
 
 TEST_CASE("solve prints the table and writes surfaces.csv and report.json and view factors",
@@ -278,8 +292,10 @@ adiabatic = true
       run_cli("solve " + (dir / "scene.toml").string() + " -o " + (dir / "out").string(), dir);
   INFO(r.err);
   REQUIRE(r.status == 0);
-  for (const char* word : {"floor", "east *", "energy balance", "converged",
-                           "caution:", "licensed practice", "W/m2"}) {
+  for (const char* word :
+       {"floor", "east *", "energy balance", "converged", "caution:", "licensed practice", "W/m2",
+        "fire", "burns", "carbon monoxide", "hot surfaces", "heat put in (gross)",
+        "heat taken by loads and sinks", "outer case"}) {
     CHECK(r.out.find(word) != std::string::npos);
   }
   for (const char* file : {"surfaces.csv", "report.json", "view_factors.csv", "view_factors.json"})
@@ -287,7 +303,9 @@ adiabatic = true
 
   const json report = json::parse(slurp(dir / "out" / "report.json"));
   CHECK(report.at("tool") == "hearthray");
-  CHECK(report.at("caution").get<std::string>().find("licensed practice") != std::string::npos);
+  for (const char* hazard :
+       {"licensed practice", "fire", "burns", "carbon monoxide", "hot surfaces"})
+    CHECK(report.at("caution").get<std::string>().find(hazard) != std::string::npos);
   CHECK(report.at("scene").at("surroundings_K").get<double>() == Approx(293.15));
   CHECK(report.at("view_factors").at("rays_per_patch") == 20000);
   CHECK(report.at("solver").at("status") == "converged");
@@ -315,11 +333,65 @@ adiabatic = true
                b.at("to_surroundings_W").get<double>())
             .margin(1e-9 * b.at("largest_W").get<double>()));
 
+  CHECK(b.at("gross_input_W").get<double>() ==
+        Approx(b.at("taken_by_loads_and_sinks_W").get<double>() +
+               b.at("convection_W").get<double>() + b.at("wall_loss_W").get<double>() +
+               b.at("to_surroundings_W").get<double>())
+            .margin(1e-9 * b.at("largest_W").get<double>()));
+  CHECK(b.at("sources").dump().find("floor") != std::string::npos);
+  // The floor's wall loses 1.5 W/m2K times its excess over 20 C: its case is reported.
+  const json& cases = report.at("outer_case").at("surfaces");
+  REQUIRE(cases.size() == 1);
+  CHECK(cases[0].at("surface") == "floor");
+  CHECK(cases[0].at("temperature_K").get<double>() > 293.15);
+
   // surfaces.csv: one row per face (the two-sided east wall has two), header first.
   const std::string csv = slurp(dir / "out" / "surfaces.csv");
   CHECK(csv.rfind("surface,face,side,area_m2,emissivity,temperature_K", 0) == 0);
   CHECK(std::count(csv.begin(), csv.end(), '\n') == 1 + 6);
   CHECK(csv.find("east,east (back),back,") != std::string::npos);
+  CHECK(csv.find(",yes\n") != std::string::npos);  // converged, on every row
+  CHECK(csv.find(",no\n") == std::string::npos);
+}
+
+TEST_CASE("solve reports a hot outer case where a wall loses much heat", "[solve]") {
+  // The floor of the open box held at 500 C behind a wall of U = 5 W/m2K to a 20 C room loses
+  // 2.4 kW/m2; no film of still air and radiation (~15 W/m2K together) takes that below about
+  // 150 C: far above the 65 C at which bare metal burns on touch (ISO 13732-1, recalled).
+  const ScratchDir dir("solve-hot-case");
+  set_up_meshes(dir);
+  write_text(dir / "scene.toml", R"([mesh]
+file = "open.obj"
+[rays]
+per_patch = 5000
+[surroundings]
+temperature = "20 C"
+[defaults]
+emissivity = 0.9
+adiabatic = true
+[surface.floor]
+temperature = "500 C"
+wall = { U = "5 W/m2K", outside = "20 C" }
+[surface.north]
+wall = { U = "0.05 W/m2K", outside = "20 C" }
+)");
+  const CliResult r =
+      run_cli("solve " + (dir / "scene.toml").string() + " -o " + (dir / "out").string(), dir);
+  INFO(r.err);
+  REQUIRE(r.status == 0);
+  CHECK(r.out.find("WARNING: burns on a touch") != std::string::npos);
+  CHECK(r.out.find("Churchill & Chu") != std::string::npos);
+  const json report = json::parse(slurp(dir / "out" / "report.json"));
+  const json& cases = report.at("outer_case").at("surfaces");
+  REQUIRE(cases.size() == 2);
+  CHECK(cases[0].at("surface") == "floor");
+  CHECK(cases[0].at("wall_loss_flux_W_m2").get<double>() == Approx(5 * 480).epsilon(1e-9));
+  CHECK(cases[0].at("temperature_C").get<double>() > 150);
+  CHECK(cases[0].at("hot_to_touch") == true);
+  CHECK(cases[1].at("surface") == "north");
+  CHECK(cases[1].at("hot_to_touch") == false);
+  CHECK(report.at("outer_case").at("touch_thresholds").get<std::string>().find("ISO 13732-1") !=
+        std::string::npos);
 }
 
 TEST_CASE("solve reuses cached view factors and misses on a changed setting or mesh", "[solve]") {

@@ -10,6 +10,7 @@
 #include "hearthray/error.hpp"
 #include "hearthray/scene_file.hpp"
 #include "hearthray/thermal_model.hpp"
+#include "hearthray/units.hpp"
 #include "support/cli_run.hpp"
 #include "support/closed_forms.hpp"
 #include "support/meshes.hpp"
@@ -240,4 +241,31 @@ TEST_CASE("the thermal model refuses what it cannot build", "[thermal_model]") {
                       "\"900 K\"\n");
   CHECK_THROWS_WITH(thermal_input(none.file, none.scene),
                     Contains("surface 'roof' has no condition"));
+}
+
+TEST_CASE("the energy balance names gross input and what loads take, not their net",
+          "[thermal_model]") {
+  // Floor at 1000 K (the source), roof at 400 K (the load), four reradiating walls of the unit
+  // cube. Incropera & DeWitt, Fundamentals of Heat and Mass Transfer, eq. 13.30 (two surfaces
+  // and a reradiating one): q = sigma (T1^4 - T2^4) / [(1 - e1)/(e1 A1) +
+  // 1/(A1 F12 + 1/(1/(A1 F1R) + 1/(A2 F2R))) + (1 - e2)/(e2 A2)].
+  const ScratchDir dir("thermal-gross");
+  const LoadedScene l = load_scene_text(dir, unit_cube_obj(), kHotFloorColdRoof);
+  const ViewFactors vf = cube_factors(l.patches);
+  const ThermalModel m =
+      build_thermal_model(thermal_input(l.file, l.scene), l.scene, l.patches, vf);
+  const ExchangeResult r = solve_exchange(m.problem(), ExchangeOptions{});
+  REQUIRE(r.status == ExchangeStatus::converged);
+  const double F12 = parallel_rectangles_aligned(1, 1, 1), F1R = 1 - F12;
+  const double q = kStefanBoltzmann * (std::pow(1000.0, 4) - std::pow(400.0, 4)) /
+                   ((1 - 0.8) / 0.8 + 1 / (F12 + 1 / (2 / F1R)) + (1 - 0.6) / 0.6);
+  const HeatBalance b = heat_balance(m, r);
+  CHECK(b.gross_input_W == Approx(q).epsilon(1e-9));
+  CHECK(b.taken_out_W == Approx(q).epsilon(1e-9));  // the roof takes it all
+  CHECK(std::abs(b.heat_input_W) <= 1e-9 * q);      // the net that used to be printed: ~0
+  CHECK(b.sources == std::vector<std::string>{"floor"});
+  CHECK(b.sinks == std::vector<std::string>{"roof"});
+  CHECK(b.gross_input_W ==
+        Approx(b.taken_out_W + b.convection_W + b.wall_loss_W + b.to_surroundings_W + b.residual_W)
+            .epsilon(1e-12));
 }

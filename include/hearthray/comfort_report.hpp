@@ -8,7 +8,7 @@
 #include <vector>
 
 #include "hearthray/comfort.hpp"
-#include "hearthray/render.hpp"
+#include "hearthray/picture.hpp"
 #include "hearthray/thermal_model.hpp"
 
 namespace hearthray {

@@ -19,7 +19,10 @@ enum class ConditionKind {
 
 struct Convection {
   double h = 0;        // W/(m^2 K)
-  double fluid_K = 0;  // K
+  double fluid_K = 0;  // K (unused when the fluid is the gas)
+  // In a scene with a radiating gas: the fluid is the gas zone beside the surface, whose
+  // temperature is solved (scene file: fluid = "gas").
+  bool fluid_is_gas = false;
 };
 
 // Conduction through the wall to an outside temperature, as an overall coefficient

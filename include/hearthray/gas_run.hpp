@@ -50,7 +50,8 @@ struct GasRun {
 // Per-patch conditions from the surfaces' thermal description: temperature, heat flux and
 // power (a surface's power shared among its patches by area), adiabatic, wall loss (for
 // surfaces of solved temperature; one held at its temperature is fed from outside the model).
-// Convection is refused with a gas (not yet modelled: the gas would be its fluid).
+// Convection goes to the gas (fluid = "gas"; run_gas finds each patch's zone); a fluid of
+// given temperature is refused with a gas.
 std::vector<ZonePatchCondition> gas_patch_conditions(const std::vector<SurfaceThermal>& surfaces,
                                                      const Scene& scene, const PatchSet& patches);
 

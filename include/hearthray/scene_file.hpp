@@ -12,6 +12,9 @@
 //               wall = { U = "0.9 W/m2K", outside = "20 C" }
 //                   or { thickness = "230 mm", conductivity = "0.3 W/mK", outside = "20 C" }
 //               patches = "0.25 m" (pieces of about that size) | "triangles" | "whole"
+//               convection = false, wall = false: none here, whatever [defaults] says
+//               expect_back_hits = true: rays mostly arriving on its back are by design
+//                   (otherwise a solve refuses such a surface as flipped)
 //   [comfort]   air_temperature, air_speed, rays, [comfort.point.NAME], [comfort.grid]
 //               (see comfort_input.hpp)
 //   [gas]       a radiating combustion gas in zones: cells, properties, temperature or flow,
@@ -40,6 +43,9 @@ struct SurfaceSpec {
   std::optional<Convection> convection;
   std::optional<WallLoss> wall_loss;
   std::optional<PatchSpec> patches;  // how the surface is cut into patches (default: whole)
+  bool no_convection = false;        // convection = false: none, whatever [defaults] says
+  bool no_wall = false;              // wall = false: no wall loss, whatever [defaults] says
+  bool expect_back_hits = false;     // rays arriving on its back are by design (not refused)
   int line = 0;                      // line of the table in the scene file (0 when not from a file)
 };
 
@@ -82,6 +88,12 @@ RayBudget ray_budget(const SceneFile& file);
 // Resolved thermal description of every surface (surface spec over defaults). Throws
 // InputError naming the surface when it has no emissivity or no condition.
 std::vector<SurfaceThermal> resolve_thermal(const SceneFile& file, const Scene& scene);
+
+// Which surfaces took each key of [defaults] (and which switched a wall or convection off),
+// one line per key given there, e.g. "[defaults] wall (U = 0.9 W/m2K, outside 20 C; ...):
+// taken by roof, block (2 of 9 surfaces); switched off by wall = false in door". Empty
+// without [defaults].
+std::vector<std::string> defaults_taken(const SceneFile& file, const Scene& scene);
 
 // The thermal input of a scene, checked before any ray is traced: throws InputError when the
 // file has no thermal input at all (a bare mesh) or a surface lacks an emissivity or a

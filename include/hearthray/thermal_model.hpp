@@ -94,16 +94,27 @@ struct SurfaceHeat {
 
 std::vector<SurfaceHeat> surface_heat(const ThermalModel& model, const ExchangeResult& result);
 
-// Where the heat put in goes: heat_input = convection + wall_loss + to_surroundings + residual.
+// Where the heat put in goes, each flow on its own line rather than netted:
+//   gross_input = taken_out + convection + wall_loss + to_surroundings + residual,
+// where gross_input sums the pieces that take heat in (heaters, held hot surfaces) and
+// taken_out the pieces that give heat up (loads, cooled or held cold surfaces), each as a
+// positive number; heat_input = gross_input - taken_out is the net of the two.
 struct HeatBalance {
-  double heat_input_W = 0;  // sum over surfaces (negative where heat is taken out)
-  double convection_W = 0;
-  double wall_loss_W = 0;
-  double to_surroundings_W = 0;  // net radiation received by the surroundings
+  double gross_input_W = 0;      // heat put in where it is put in (pieces with heat input > 0)
+  double taken_out_W = 0;        // heat taken by loads and sinks (pieces with heat input < 0), >= 0
+  double heat_input_W = 0;       // net: gross_input_W - taken_out_W
+  double convection_W = 0;       // to the fluids, net over all surfaces (positive out)
+  double wall_loss_W = 0;        // through the walls, net over all surfaces (positive out)
+  double to_surroundings_W = 0;  // net radiation out of the openings to the surroundings
   double residual_W = 0;
-  double largest_W = 0;  // largest single flow of any surface, for relative measures
+  double largest_W = 0;              // largest single flow of any surface, for relative measures
+  std::vector<std::string> sources;  // surfaces with a piece taking heat in, in scene order
+  std::vector<std::string> sinks;    // surfaces with a piece giving heat up, in scene order
 };
 
+// The balance of a solved model (sources and sinks named by surface).
+HeatBalance heat_balance(const ThermalModel& model, const ExchangeResult& result);
+// The same without names.
 HeatBalance heat_balance(const ExchangeResult& result);
 
 }  // namespace hearthray

@@ -11,13 +11,18 @@
 
 #include "hearthray/exchange.hpp"
 #include "hearthray/fields.hpp"
+#include "hearthray/outer_case.hpp"
 #include "hearthray/thermal_model.hpp"
+#include "hearthray/units.hpp"
 
 namespace hearthray {
 
 inline constexpr const char* kEngineeringCaution =
-    "These are engineering estimates from a gray, diffuse radiation model. Furnace, kiln and "
-    "heater design follows local codes, the maker's instructions and licensed practice.";
+    "These are engineering estimates from a gray, diffuse radiation model, not a safety "
+    "assessment. Furnaces, kilns and heaters can cause fire, burns from hot surfaces (casings, "
+    "doors, flues) and, when fired, carbon monoxide poisoning from flue gas. Their design, "
+    "installation and operation follow local codes, the maker's instructions and licensed "
+    "practice.";
 
 // What report.json echoes besides the model and the result.
 struct SolveReportInfo {
@@ -39,21 +44,33 @@ struct SolveReportInfo {
   std::vector<std::string> warnings;  // from the ray diagnostics
   std::vector<std::string> notes;     // choices made (e.g. leaks folded back)
   std::vector<std::string> files;     // other files written with the report
+  double model_height_m = 0;          // vertical extent of the model: the height of its case
 };
 
-// Per-surface table, energy balance and solver status, then the caution.
+// Per-surface table, energy balance, outer case temperatures (when walls lose heat) and solver
+// status, then the caution.
 void print_solve_table(std::ostream& out, const std::vector<SurfaceHeat>& surfaces,
-                       const HeatBalance& balance, const ExchangeResult& result);
+                       const HeatBalance& balance, const ExchangeResult& result,
+                       const std::vector<OuterCase>& cases = {}, UnitSystem units = UnitSystem::si);
 
 // One row per face. Convection and wall loss of a two-sided surface are split over its faces
 // by area, so the faces of a surface add up to its totals and each row balances:
 // heat_input_W = net_W + convection_W + wall_loss_W.
-void write_surfaces_csv(std::ostream& out, const ThermalModel& model, const ExchangeResult& result);
+// Values in `units`, each column's unit in its name (temperature_C or temperature_F, net_W or
+// net_Btu_h, ...); temperature_K always; the last column says whether the solve converged.
+void write_surfaces_csv(std::ostream& out, const ThermalModel& model, const ExchangeResult& result,
+                        UnitSystem units = UnitSystem::si);
 
 void write_solve_json(std::ostream& out, const SolveReportInfo& info, const ThermalModel& model,
                       const ExchangeResult& result);
 
-std::string to_string(ExchangeStatus status);  // "converged", "not_converged", "singular"
+std::string to_string(ExchangeStatus status);
+
+// Title of a picture of a solved field: what, where, and whether the solve converged
+// ("Temperature in °C, box-furnace (solve converged)"; "... NOT CONVERGED, not an answer").
+std::string solved_picture_title(const std::string& quantity, const std::string& unit,
+                                 const std::string& where,
+                                 bool converged);  // "converged", "not_converged", "singular"
 
 // Per-patch results for VTU files and pictures (one value per face of the model): temperature
 // [°C], net radiative heat flux [W/m²] (leaving, positive out), irradiation and radiosity
@@ -61,5 +78,9 @@ std::string to_string(ExchangeStatus status);  // "converged", "not_converged", 
 // and the largest standard error of the patch's view factors, sqrt(F(1-F)/N) over its row
 // with the surroundings [-].
 std::vector<PatchField> solve_fields(const ThermalModel& model, const ExchangeResult& result);
+
+// A field of solve_fields in other units: temperature (°C) and heat fluxes (W/m²) converted,
+// the unit renamed ("°F", "Btu/(h·ft²)"); other fields unchanged.
+PatchField shown_in(const PatchField& field, UnitSystem units);
 
 }  // namespace hearthray

@@ -22,10 +22,17 @@
 
 namespace hearthray {
 
+// One integer for the whole data set, written as VTK field data (e.g. "converged" 1 or 0, so
+// that a viewer shows whether the fields are an answer).
+struct VtuFlag {
+  std::string name;
+  long value = 0;
+};
+
 // Throws InputError when the file cannot be written, a field does not hold one value per
 // patch, or two arrays would get the same name.
 void write_vtu(const std::string& path, const Scene& scene, const PatchSet& patches,
-               const std::vector<PatchField>& fields);
+               const std::vector<PatchField>& fields, const std::vector<VtuFlag>& field_data = {});
 
 // The array name write_vtu gives a field.
 std::string vtu_array_name(const PatchField& field);

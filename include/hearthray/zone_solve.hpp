@@ -9,7 +9,10 @@
 // L_i the exchange area lost to the surroundings (0 in a closed enclosure). Net radiation
 // leaving patch i: Q_i = sum_g eps_i (A_i E_i - A_i H_i). Zone z absorbs
 // sum_g (sum_j S_zj J_j + sum_y S_zy E_y + L_z E_sur) and emits sum_g 4 k_g V_z E_z.
-// Zone energy: release + enthalpy in - enthalpy out + absorbed - emitted = 0, where products
+// Convection: a patch's film exchanges h A (T_z - T_i) with the zone beside it (gas_run.cpp
+// takes the zone that holds a point just in front of the patch's centroid).
+// Zone energy: release + enthalpy in - enthalpy out + absorbed - emitted - convection to its
+// patches = 0, where products
 // flow zone to zone in a given order (plug flow; one zone is a well-stirred furnace), the first
 // zone receiving the combustion air.
 //
@@ -37,6 +40,10 @@ struct ZonePatchCondition {
   // temperature only; U = 0: none).
   double wall_U = 0;               // W/(m^2 K)
   double outside_temperature = 0;  // K
+  // Convection from the gas zone beside the patch, h A (T_zone - T_patch) into the patch
+  // (h = 0 or no zone: none).
+  double convection_h = 0;   // W/(m^2 K)
+  int convection_zone = -1;  // the zone the patch's film touches
 };
 
 struct ZoneGasCondition {
@@ -62,20 +69,22 @@ struct ZoneSolveInput {
 };
 
 struct ZonePatchResult {
-  double temperature = 0;  // K
-  double emitted = 0;      // W: eps A sigma T^4 summed over gray gases
-  double absorbed = 0;     // W
-  double net_out = 0;      // W: emitted - absorbed (negative: the patch takes heat)
-  double wall_loss = 0;    // W through the wall to the outside
+  double temperature = 0;    // K
+  double emitted = 0;        // W: eps A sigma T^4 summed over gray gases
+  double absorbed = 0;       // W
+  double net_out = 0;        // W: emitted - absorbed (negative: the patch takes heat)
+  double wall_loss = 0;      // W through the wall to the outside
+  double convection_in = 0;  // W from the gas by convection
 };
 
 struct ZoneGasResult {
-  double temperature = 0;   // K
-  double heat_release = 0;  // W
-  double emitted = 0;       // W: sum_g 4 k_g V a_g sigma T^4
-  double absorbed = 0;      // W
-  double enthalpy_in = 0;   // W above 25 C (air or the upstream zone's products)
-  double enthalpy_out = 0;  // W above 25 C
+  double temperature = 0;     // K
+  double heat_release = 0;    // W
+  double emitted = 0;         // W: sum_g 4 k_g V a_g sigma T^4
+  double absorbed = 0;        // W
+  double enthalpy_in = 0;     // W above 25 C (air or the upstream zone's products)
+  double enthalpy_out = 0;    // W above 25 C
+  double convection_out = 0;  // W to the patches beside the zone by convection
   // Heat the zone needs to hold a known temperature (release + in - out + absorbed -
   // emitted, negated): 0 for zones whose temperature was solved.
   double imbalance = 0;
@@ -94,8 +103,8 @@ struct ZoneSolveResult {
   double flue_enthalpy = 0;     // W above 25 C, out of the last zone
   double flue_temperature = 0;  // K
   // Energy balance, the difference of release + air enthalpy in + what held zones need
-  // = heat the patches take (-sum of net_out: for patches of unknown temperature the wall
-  // loss less the power put in) + surroundings + flue enthalpy, W (round-off when
+  // = heat the patches take (convection_in - net_out: for patches of unknown temperature the
+  // wall loss less the power put in) + surroundings + flue enthalpy, W (round-off when
   // converged).
   double balance_error = 0;
 };

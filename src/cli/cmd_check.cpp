@@ -3,6 +3,8 @@
 #include <iostream>
 
 #include "commands.hpp"
+#include "hearthray/mesh_where.hpp"
+#include "hearthray/where_file.hpp"
 
 namespace hearthray::cli {
 
@@ -12,10 +14,41 @@ double share(std::uint64_t part, std::uint64_t whole) {
   return whole ? double(part) / double(whole) : 0.0;
 }
 
+// Most items of one kind listed; the rest counted (all are in the --where file).
+constexpr std::size_t kListed = 10;
+// Rays per surface side for the back-hit places: a sample, not a result.
+constexpr std::uint64_t kSpotRays = 5000;
+
+void print_gaps(const Scene& scene, const std::vector<GapRun>& gaps) {
+  if (gaps.empty()) return;
+  std::printf("\ngaps and open rims (boundary edges joined into runs):\n");
+  for (std::size_t g = 0; g < gaps.size() && g < kListed; ++g) {
+    std::printf("  gap %zu: %s\n", g + 1, gap_sentence(scene, gaps[g]).c_str());
+  }
+  if (gaps.size() > kListed) std::printf("  ... and %zu more\n", gaps.size() - kListed);
+}
+
+void print_contacts(const Scene& scene, const std::vector<FaceContact>& contacts) {
+  if (contacts.empty()) return;
+  std::printf("\nfaces lying on or cutting through each other:\n");
+  for (std::size_t k = 0; k < contacts.size() && k < kListed; ++k)
+    std::printf("  %zu: %s\n", k + 1, contact_sentence(scene, contacts[k]).c_str());
+  if (contacts.size() > kListed) std::printf("  ... and %zu more\n", contacts.size() - kListed);
+}
+
+void print_back_hits(const Scene& scene, const std::vector<BackHitSpot>& spots) {
+  if (spots.empty()) return;
+  std::printf("\nwhere rays land on back faces (a sample of %llu rays per surface side):\n",
+              static_cast<unsigned long long>(kSpotRays));
+  for (std::size_t k = 0; k < spots.size() && k < kListed; ++k)
+    std::printf("  %zu: %s\n", k + 1, back_hit_sentence(scene, spots[k]).c_str());
+  if (spots.size() > kListed) std::printf("  ... and %zu more\n", spots.size() - kListed);
+}
+
 }  // namespace
 
 int run_check_command(const CheckArgs& args) {
-  const SceneFile file = open_scene(args.input);
+  const SceneFile file = open_scene_with_unit(args.input, args.unit);
   const Scene scene = load_scene(file);
   const MeshTopology topology = analyse_topology(scene);
 
@@ -56,6 +89,22 @@ int run_check_command(const CheckArgs& args) {
       "\n(back hits: share of arrivals on the back of a one-sided surface; escaped: "
       "share of the surface's own rays that hit nothing; %llu rays per side)\n",
       static_cast<unsigned long long>(args.rays));
+  WhereFindings found;
+  found.gaps = gap_runs(scene);
+  found.contacts = face_contacts(scene);
+  if (d.back_face_hits > 0) found.back_hits = back_hit_spots(scene, kSpotRays, args.seed);
+  print_gaps(scene, found.gaps);
+  print_contacts(scene, found.contacts);
+  print_back_hits(scene, found.back_hits);
+  const std::vector<std::string> defaults = defaults_taken(file, scene);
+  if (!defaults.empty()) std::printf("\n");
+  for (const std::string& line : defaults) std::printf("%s\n", line.c_str());
+  if (!args.where.empty()) {
+    write_where_file(args.where, scene, found);
+    std::printf("\nwrote %s (%zu gap(s), %zu contact(s) of faces, %zu surface(s) with back hits)\n",
+                args.where.c_str(), found.gaps.size(), found.contacts.size(),
+                found.back_hits.size());
+  }
   std::cout.flush();
   print_warnings(run.warnings);
   print_notes(run.notes);

@@ -8,6 +8,7 @@
 #include <sstream>
 
 #include "commands.hpp"
+#include "core/text.hpp"
 #include "hearthray/comfort.hpp"
 #include "hearthray/comfort_report.hpp"
 #include "hearthray/error.hpp"
@@ -62,20 +63,15 @@ int run_comfort(const std::string& input, const ComfortArgs& args, ComfortRun* o
   return 0;
 }
 
-std::string fmt(const char* spec, double v) {
-  char b[64];
-  std::snprintf(b, sizeof b, spec, v);
-  return b;
-}
-
 void print_report(std::ostream& out, const ComfortRun& r) {
   const ComfortInput& in = *r.solved.file.comfort;
-  out << "air " << fmt("%.1f C", in.air_K - kZeroCelsius) << ", " << fmt("%.2g m/s", in.air_speed)
-      << "; " << in.rays << " rays per point for the body and for each of six planes, seed "
-      << r.solved.run.seed << "\n";
+  out << "air " << rounded("%.1f C", in.air_K - kZeroCelsius) << ", "
+      << rounded("%.2g m/s", in.air_speed) << "; " << in.rays
+      << " rays per point for the body and for each of six planes, seed " << r.solved.run.seed
+      << "\n";
   if (r.heaters.count) {
-    out << "heaters: " << r.heaters.count << ", " << fmt("%.0f W", r.heaters.power_W)
-        << " in total, surface up to " << fmt("%.1f C", r.heaters.surface_max_K - kZeroCelsius)
+    out << "heaters: " << r.heaters.count << ", " << rounded("%.0f W", r.heaters.power_W)
+        << " in total, surface up to " << rounded("%.1f C", r.heaters.surface_max_K - kZeroCelsius)
         << "\n";
   }
   out << "\n";
@@ -150,29 +146,30 @@ int run_compare_command(const ComfortArgs& args) {
   row("heated surfaces",
       [](const ComfortRun& r, const S&) { return std::to_string(r.heaters.count); });
   row("heater power (W)",
-      [](const ComfortRun& r, const S&) { return fmt("%.0f", r.heaters.power_W); });
+      [](const ComfortRun& r, const S&) { return rounded("%.0f", r.heaters.power_W); });
   row("heater surface, hottest (C)", [](const ComfortRun& r, const S&) {
-    return r.heaters.count ? fmt("%.1f", r.heaters.surface_max_K - kZeroCelsius) : "-";
+    return r.heaters.count ? rounded("%.1f", r.heaters.surface_max_K - kZeroCelsius) : "-";
   });
   row("points", [](const ComfortRun&, const S& s) { return std::to_string(s.points); });
   row("mean radiant temp. min-max (C)", [](const ComfortRun&, const S& s) {
-    return fmt("%.1f", s.mean_radiant_K.min - kZeroCelsius) + " - " +
-           fmt("%.1f", s.mean_radiant_K.max - kZeroCelsius);
+    return rounded("%.1f", s.mean_radiant_K.min - kZeroCelsius) + " - " +
+           rounded("%.1f", s.mean_radiant_K.max - kZeroCelsius);
   });
   row("operative temp. min-max (C)", [](const ComfortRun&, const S& s) {
-    return fmt("%.1f", s.operative_K.min - kZeroCelsius) + " - " +
-           fmt("%.1f", s.operative_K.max - kZeroCelsius);
+    return rounded("%.1f", s.operative_K.min - kZeroCelsius) + " - " +
+           rounded("%.1f", s.operative_K.max - kZeroCelsius);
   });
-  row("operative temp. mean (C)",
-      [](const ComfortRun&, const S& s) { return fmt("%.1f", s.operative_K.mean - kZeroCelsius); });
+  row("operative temp. mean (C)", [](const ComfortRun&, const S& s) {
+    return rounded("%.1f", s.operative_K.mean - kZeroCelsius);
+  });
   row("vertical asymmetry max (K)",
-      [](const ComfortRun&, const S& s) { return fmt("%.1f", s.vertical_K.max); });
+      [](const ComfortRun&, const S& s) { return rounded("%.1f", s.vertical_K.max); });
   row("horizontal asymmetry max (K)",
-      [](const ComfortRun&, const S& s) { return fmt("%.1f", s.horizontal_K.max); });
+      [](const ComfortRun&, const S& s) { return rounded("%.1f", s.horizontal_K.max); });
   row("worst asymmetry / its limit",
-      [](const ComfortRun&, const S& s) { return fmt("%.2f", s.worst_ratio); });
+      [](const ComfortRun&, const S& s) { return rounded("%.2f", s.worst_ratio); });
   row("share within limits",
-      [](const ComfortRun&, const S& s) { return fmt("%.0f %%", 100 * s.within_both); });
+      [](const ComfortRun&, const S& s) { return rounded("%.0f %%", 100 * s.within_both); });
 
   std::vector<std::size_t> width(head.size(), 0);
   for (const auto& r : rows)

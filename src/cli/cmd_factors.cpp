@@ -6,7 +6,7 @@
 namespace hearthray::cli {
 
 int run_factors_command(const FactorsArgs& args) {
-  const SceneFile file = open_scene(args.input);
+  const SceneFile file = open_scene_with_unit(args.input, args.unit);
   const Scene scene = load_scene(file);
   const FactorRun run = run_view_factors(file, scene, pipeline_options(args.rays));
   end_progress_line();

@@ -35,7 +35,7 @@ std::string known_surfaces(const Scene& scene) {
 
 int run_render_command(const RenderArgs& args) {
   const auto start = std::chrono::steady_clock::now();
-  const SceneFile file = open_scene(args.input);
+  const SceneFile file = open_scene_with_unit(args.input, args.unit);
   const Scene scene = load_scene(file);
   const PatchSet patches = make_surface_patches(scene);
   for (const std::string& w : scene.warnings) std::cerr << "warning: " << w << "\n";

@@ -24,6 +24,11 @@ namespace fs = std::filesystem;
 // only as a sparse Matrix Market file (a dense 20k x 20k matrix would be 3 GB of text).
 constexpr std::size_t kDenseFactorFileLimit = 200;
 
+// The height of the model's case: its extent along z, the vertical of the scene frame.
+double model_height(const Scene& scene) {
+  return scene.bounds.hi.z - scene.bounds.lo.z;
+}
+
 SolveReportInfo solve_info(const SceneFile& file, const FactorRun& run, const ThermalModel& model,
                            const std::vector<Warning>& warnings) {
   SolveReportInfo info;
@@ -48,7 +53,70 @@ SolveReportInfo solve_info(const SceneFile& file, const FactorRun& run, const Th
   for (const Warning& w : warnings)
     if (w.kind != WarningKind::cache) info.warnings.push_back(w.text);
   info.notes = model.notes;
+  info.model_height_m = model_height(run.scene);
+  info.notes.push_back(
+      "report.json is in SI units (keys name them); the table, surfaces.csv and "
+      "the pictures use --units");
   return info;
+}
+
+// The output folder: view factors, per-patch fields, pictures, the surface table and the report.
+void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved, UnitSystem units) {
+  const SceneFile& file = solved.file;
+  const FactorRun& run = solved.run;
+  const ThermalModel& model = solved.model;
+  const ExchangeResult& result = solved.result;
+  const fs::path dir = make_output_dir(args.output_dir);
+  const FactorReportInfo factor_info = report_info(file, run);
+  SolveReportInfo info = solve_info(file, run, model, solved.warnings);
+  // Dense view-factor files for a few surfaces; for many patches only the sparse one.
+  const ViewFactors& used = solved.model.factors;  // as the exchange used them
+  const bool dense = used.size() <= kDenseFactorFileLimit;
+  const std::vector<std::string> factor_files =
+      dense ? std::vector<std::string>{"view_factors.csv", "view_factors.json"}
+            : std::vector<std::string>{"view_factors.mtx"};
+  for (const std::string& name : factor_files)
+    write_factors_file((dir / name).string(), used, factor_info);
+  const std::vector<PatchField> fields = solve_fields(model, result);
+  write_vtu((dir / "patches.vtu").string(), run.scene, run.patches, fields,
+            {{"converged", result.status == ExchangeStatus::converged ? 1 : 0}});
+  info.files = {"surfaces.csv", "patches.vtu"};
+  // Pictures of the temperature and the net radiative flux from the default view.
+  const Tracer tracer(run.scene);
+  const std::string scene_name = fs::path(file.path).stem().string();
+  // Each as PNG and as SVG; the net flux, a signed quantity, on the diverging colour map.
+  for (const auto& [field_name, picture] :
+       {std::pair<std::string, std::string>{"temperature", "temperature"},
+        {"net radiative flux", "net_flux"}}) {
+    for (const PatchField& field : fields) {
+      if (field.name != field_name) continue;
+      RenderOptions options;
+      options.threads = args.rays.threads;
+      options.title = solved_picture_title(field.name, shown_in(field, units).unit, scene_name,
+                                           result.status == ExchangeStatus::converged);
+      options.diverging = field_name == "net radiative flux";
+      const Picture drawn = render(run.scene, run.patches, tracer, shown_in(field, units), options);
+      for (const char* extension : {".png", ".svg"}) {
+        write_picture((dir / (picture + extension)).string(), drawn);
+        info.files.push_back(picture + extension);
+      }
+    }
+  }
+  info.files.insert(info.files.end(), factor_files.begin(), factor_files.end());
+  {
+    std::ofstream csv = open_output(dir / "surfaces.csv");
+    write_surfaces_csv(csv, model, result, units);
+  }
+  {
+    std::ofstream report = open_output(dir / "report.json");
+    write_solve_json(report, info, model, result);
+    if (!report) throw InputError("cannot write '" + (dir / "report.json").string() + "'");
+  }
+  if (!args.rays.quiet) {
+    std::cout << "\nwrote " << (dir / "report.json").string();
+    for (const std::string& name : info.files) std::cout << ", " << name;
+    std::cout << "\n";
+  }
 }
 
 }  // namespace
@@ -59,6 +127,7 @@ int run_solve_command(const SolveArgs& args) {
   CacheChoice cache;
   cache.use = !args.no_cache;
   cache.dir = args.cache_dir;
+  const UnitSystem units = parse_unit_system(args.units);  // before the work: a typo stops it
   SolvedScene solved;
   if (const int status = solve_scene_printing(args.input, args.rays, cache, false, &solved))
     return status;
@@ -66,7 +135,6 @@ int run_solve_command(const SolveArgs& args) {
   const FactorRun& run = solved.run;
   const ThermalModel& model = solved.model;
   const ExchangeResult& result = solved.result;
-  const std::vector<Warning>& warnings = solved.warnings;
 
   if (!args.rays.quiet) {
     std::cout << "hearthray solve " << file.path << "\n";
@@ -74,60 +142,11 @@ int run_solve_command(const SolveArgs& args) {
     std::cout << smoothing_line(run) << "\n\n";
   }
   if (!args.rays.quiet || args.output_dir.empty()) {
-    print_solve_table(std::cout, surface_heat(model, result), heat_balance(result), result);
+    print_solve_table(std::cout, surface_heat(model, result), heat_balance(model, result), result,
+                      outer_cases(model, result, model_height(run.scene)), units);
   }
 
-  if (!args.output_dir.empty()) {
-    const fs::path dir = make_output_dir(args.output_dir);
-    const FactorReportInfo factor_info = report_info(file, run);
-    SolveReportInfo info = solve_info(file, run, model, warnings);
-    // Dense view-factor files for a few surfaces; for many patches only the sparse one.
-    const ViewFactors& used = solved.model.factors;  // as the exchange used them
-    const bool dense = used.size() <= kDenseFactorFileLimit;
-    const std::vector<std::string> factor_files =
-        dense ? std::vector<std::string>{"view_factors.csv", "view_factors.json"}
-              : std::vector<std::string>{"view_factors.mtx"};
-    for (const std::string& name : factor_files)
-      write_factors_file((dir / name).string(), used, factor_info);
-    const std::vector<PatchField> fields = solve_fields(model, result);
-    write_vtu((dir / "patches.vtu").string(), run.scene, run.patches, fields);
-    info.files = {"surfaces.csv", "patches.vtu"};
-    // Pictures of the temperature and the net radiative flux from the default view.
-    const Tracer tracer(run.scene);
-    const std::string scene_name = fs::path(file.path).stem().string();
-    // Each as PNG and as SVG; the net flux, a signed quantity, on the diverging colour map.
-    for (const auto& [field_name, picture] :
-         {std::pair<std::string, std::string>{"temperature", "temperature"},
-          {"net radiative flux", "net_flux"}}) {
-      for (const PatchField& field : fields) {
-        if (field.name != field_name) continue;
-        RenderOptions options;
-        options.threads = args.rays.threads;
-        options.title = scene_name + ": " + field.name;
-        options.diverging = field_name == "net radiative flux";
-        const Picture drawn = render(run.scene, run.patches, tracer, field, options);
-        for (const char* extension : {".png", ".svg"}) {
-          write_picture((dir / (picture + extension)).string(), drawn);
-          info.files.push_back(picture + extension);
-        }
-      }
-    }
-    info.files.insert(info.files.end(), factor_files.begin(), factor_files.end());
-    {
-      std::ofstream csv = open_output(dir / "surfaces.csv");
-      write_surfaces_csv(csv, model, result);
-    }
-    {
-      std::ofstream report = open_output(dir / "report.json");
-      write_solve_json(report, info, model, result);
-      if (!report) throw InputError("cannot write '" + (dir / "report.json").string() + "'");
-    }
-    if (!args.rays.quiet) {
-      std::cout << "\nwrote " << (dir / "report.json").string();
-      for (const std::string& name : info.files) std::cout << ", " << name;
-      std::cout << "\n";
-    }
-  }
+  if (!args.output_dir.empty()) write_solve_outputs(args, solved, units);
 
   if (result.status != ExchangeStatus::converged) {
     std::cerr << "error: the exchange solve did not converge (" << to_string(result.status)

@@ -9,6 +9,7 @@ namespace hearthray::cli {
 
 struct FactorsArgs {
   std::string input;                 // scene.toml or mesh.obj
+  std::string unit;                  // --unit of a bare mesh ("" = m)
   std::vector<std::string> outputs;  // -o, format by extension
   RaySettings rays;
 };
@@ -16,6 +17,8 @@ int run_factors_command(const FactorsArgs& args);
 
 struct CheckArgs {
   std::string input;
+  std::string unit;   // --unit of a bare mesh ("" = m)
+  std::string where;  // --where: file of gaps, contacts and back hits (.obj or .vtu)
   std::uint64_t rays = kQuickRaysPerPatch;  // quick estimate
   std::uint64_t seed = kDefaultSeed;
   int threads = 0;
@@ -29,6 +32,7 @@ struct SolveArgs {
   RaySettings rays;
   std::string cache_dir;  // --cache; "" = default
   bool no_cache = false;
+  std::string units = "si";  // --units: si | us | kcal, for the table, surfaces.csv, pictures
 };
 // Exit codes: 0 solved, 2 bad input, 4 the solver did not converge (outputs still written).
 inline constexpr int kExitNotConverged = 4;
@@ -50,6 +54,7 @@ int run_compare_command(const ComfortArgs& args);
 
 struct RenderArgs {
   std::string input;              // scene.toml or mesh.obj
+  std::string unit;               // --unit of a bare mesh ("" = m)
   std::string output;             // -o picture.png
   std::string field = "surface";  // surface | area | view-factor-to=<surface>
   int width = 800, height = 600;

@@ -7,6 +7,7 @@
 #include <cstdio>
 #include <iostream>
 
+#include "core/text.hpp"
 #include "hearthray/error.hpp"
 
 namespace hearthray::cli {
@@ -50,12 +51,6 @@ void log_progress(const PipelineProgress& p) {
   std::fflush(stderr);
 }
 
-std::string seconds_text(double seconds) {
-  char buffer[32];
-  std::snprintf(buffer, sizeof buffer, "%.3g", seconds);
-  return buffer;
-}
-
 // The refused scene's error, then the ray warnings that may explain it (flipped normals, a
 // leak).
 int refuse(const RefusedInput& e) {
@@ -65,6 +60,22 @@ int refuse(const RefusedInput& e) {
 }
 
 }  // namespace
+
+SceneFile open_scene_with_unit(const std::string& input, const std::string& unit) {
+  SceneFile file = open_scene(input);
+  if (unit.empty()) return file;
+  if (!file.path.empty()) {
+    throw InputError("--unit is for a bare mesh: " + input +
+                     " is a scene file, which gives the mesh's unit in [mesh] as unit = \"" + unit +
+                     "\"");
+  }
+  try {
+    file.mesh.unit = parse_length_unit(unit);
+  } catch (const InputError& e) {
+    throw InputError(std::string("--unit: ") + e.what());
+  }
+  return file;
+}
 
 PipelineOptions pipeline_options(const RaySettings& settings, const CacheChoice* cache) {
   PipelineOptions options;
@@ -98,7 +109,7 @@ void end_progress_line() {
 
 std::string cache_log_line(const FactorRun& run) {
   const std::string traced = "view factors: traced " + std::to_string(run.stats.rays) +
-                             " rays in " + seconds_text(run.stats.seconds) + " s";
+                             " rays in " + rounded("%.3g", run.stats.seconds) + " s";
   switch (run.cache) {
     case CacheOutcome::hit:
       return "view factors: from cache " + run.cache_path;

@@ -30,6 +30,10 @@ struct CacheChoice {
   std::string dir;  // "" = default_cache_dir()
 };
 
+// A scene file or a bare mesh; `unit` (from --unit, "" when not given) is the unit of a bare
+// mesh's coordinates. A scene file gives its unit in [mesh]: --unit with one is an error.
+SceneFile open_scene_with_unit(const std::string& input, const std::string& unit);
+
 // Pipeline options from the command line; the cache only when `cache` is given and used.
 // Unless quiet, a progress line on a terminal while tracing.
 PipelineOptions pipeline_options(const RaySettings& settings, const CacheChoice* cache = nullptr);

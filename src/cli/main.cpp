@@ -20,6 +20,8 @@ CLI::Range seed_range() {
   return CLI::Range(std::int64_t{0}, std::numeric_limits<std::int64_t>::max());
 }
 
+const char* const kUnitHelp = "Unit of a bare mesh's coordinates: mm, cm, m, in or ft (default m)";
+
 // The commands, and the arguments CLI11 fills for each.
 struct Commands {
   FactorsArgs factors;
@@ -35,6 +37,7 @@ CLI::App* add_factors_command(CLI::App& app, FactorsArgs& factors) {
   CLI::App* cmd_factors = app.add_subcommand(
       "factors", "View factors between every pair of surfaces, with standard errors");
   cmd_factors->add_option("scene", factors.input, "Scene file (.toml) or mesh (.obj)")->required();
+  cmd_factors->add_option("--unit", factors.unit, kUnitHelp);
   cmd_factors
       ->add_option(
           "--rays", factors.rays.rays,
@@ -59,6 +62,10 @@ CLI::App* add_check_command(CLI::App& app, CheckArgs& check) {
   CLI::App* cmd_check = app.add_subcommand(
       "check", "Mesh report: triangles, areas, topology, back-face hits, escaping rays");
   cmd_check->add_option("scene", check.input, "Scene file (.toml) or mesh (.obj)")->required();
+  cmd_check->add_option("--unit", check.unit, kUnitHelp);
+  cmd_check->add_option("--where", check.where,
+                        "Write gaps, touching faces and back hits as lines and points a viewer "
+                        "opens (.obj or .vtu)");
   cmd_check->add_option("--rays", check.rays, "Rays per surface for the quick estimate")
       ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 32));
   cmd_check->add_option("--seed", check.seed, "Random seed")->check(seed_range());
@@ -97,6 +104,10 @@ CLI::App* add_solve_command(CLI::App& app, SolveArgs& solve) {
   cmd_solve
       ->add_flag("--no-cache", solve.no_cache, "Always trace; neither read nor write the cache")
       ->excludes(cache_dir);
+  cmd_solve->add_option("--units", solve.units,
+                        "Units of the table, surfaces.csv and pictures: si (C, W, W/m2), us "
+                        "(F, Btu/h, Btu/(h ft2)) or kcal (C, kcal/h, kcal/(h m2)); report.json "
+                        "stays SI (default si)");
   return cmd_solve;
 }
 
@@ -130,6 +141,7 @@ CLI::App* add_render_command(CLI::App& app, RenderArgs& render) {
   CLI::App* cmd_render = app.add_subcommand(
       "render", "PNG picture of the model coloured by surface, patch area or a view factor");
   cmd_render->add_option("scene", render.input, "Scene file (.toml) or mesh (.obj)")->required();
+  cmd_render->add_option("--unit", render.unit, kUnitHelp);
   cmd_render->add_option("-o,--output", render.output, "Picture file (.png)")->required();
   cmd_render->add_option("--field", render.field,
                          "surface, area or view-factor-to=<surface> (default surface)");

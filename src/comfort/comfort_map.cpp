@@ -8,6 +8,7 @@
 #include <map>
 #include <tuple>
 
+#include "core/text.hpp"
 #include "hearthray/comfort_report.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/units.hpp"
@@ -184,9 +185,7 @@ void draw_scale_bar(Canvas& c, double x, double y, const Plan& plan) {
   c.stroke_rect(x, y, w, h, 1, kInk);
   const double base = y + h + kFont;
   c.text(x, base, "0", 0.9 * kFont, kInk, Align::centre);
-  char label[32];
-  std::snprintf(label, sizeof label, "%g m", length);
-  c.text(x + w, base, label, 0.9 * kFont, kInk, Align::centre);
+  c.text(x + w, base, rounded("%g m", length), 0.9 * kFont, kInk, Align::centre);
 }
 
 // The legend in one row from (x, y): what the lines and marks on the plan mean.

@@ -45,4 +45,55 @@ std::string to_string(LengthUnit unit) {
   return "m";
 }
 
+UnitSystem parse_unit_system(const std::string& text) {
+  if (text == "si" || text == "SI") return UnitSystem::si;
+  if (text == "us" || text == "US") return UnitSystem::us;
+  if (text == "kcal") return UnitSystem::kcal;
+  throw InputError("unknown unit system '" + text +
+                   "': write si (C, W, W/m2), us (F, Btu/h, Btu/(h ft2)) or kcal (C, kcal/h, "
+                   "kcal/(h m2))");
+}
+
+std::string to_string(UnitSystem system) {
+  switch (system) {
+    case UnitSystem::si:
+      return "si";
+    case UnitSystem::us:
+      return "us";
+    case UnitSystem::kcal:
+      return "kcal";
+  }
+  return "si";
+}
+
+ResultUnit result_unit(UnitSystem system, ResultKind kind) {
+  constexpr double kFoot = 0.3048;
+  const double btu_h = kJoulesPerBtu / 3600, kcal_h = kJoulesPerKcal / 3600;  // W
+  const bool us = system == UnitSystem::us, kcal = system == UnitSystem::kcal;
+  switch (kind) {
+    case ResultKind::temperature:
+      if (us) return {"F", "\u00b0F", "F", 9.0 / 5.0, 32 - kZeroCelsius * 9.0 / 5.0};
+      return {"C", "\u00b0C", "C", 1, -kZeroCelsius};
+    case ResultKind::power:
+      if (us) return {"Btu/h", "Btu/h", "Btu_h", 1 / btu_h};
+      if (kcal) return {"kcal/h", "kcal/h", "kcal_h", 1 / kcal_h};
+      return {"W", "W", "W", 1};
+    case ResultKind::heat_flux:
+      if (us) return {"Btu/h/ft2", "Btu/(h\u00b7ft\u00b2)", "Btu_h_ft2", kFoot * kFoot / btu_h};
+      if (kcal) return {"kcal/h/m2", "kcal/(h\u00b7m\u00b2)", "kcal_h_m2", 1 / kcal_h};
+      return {"W/m2", "W/m\u00b2", "W_m2", 1};
+    case ResultKind::area:
+      if (us) return {"ft2", "ft\u00b2", "ft2", 1 / (kFoot * kFoot)};
+      return {"m2", "m\u00b2", "m2", 1};
+    case ResultKind::heat_transfer_coefficient:
+      if (us)
+        return {"Btu/h/ft2/F", "Btu/(h\u00b7ft\u00b2\u00b7\u00b0F)", "Btu_h_ft2_F",
+                kFoot * kFoot / btu_h / 1.8};
+      if (kcal)
+        return {"kcal/h/m2/C", "kcal/(h\u00b7m\u00b2\u00b7\u00b0C)", "kcal_h_m2_C", 1 / kcal_h};
+      return {"W/m2K", "W/(m\u00b2\u00b7K)", "W_m2K", 1};
+  }
+  return {"", "", "", 1};
+}
+
 }  // namespace hearthray

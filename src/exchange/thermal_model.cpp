@@ -76,33 +76,18 @@ ExchangeProblem ThermalModel::problem() const {
   return p;
 }
 
-ThermalModel build_thermal_model(const ThermalInput& input, const Scene& scene,
-                                 const PatchSet& patches, ViewFactors factors,
-                                 const ThermalModelOptions& options) {
-  std::string error;
-  if (!options.IsValid(&error)) throw InputError("thermal model options: " + error);
-  if (input.surfaces.size() != scene.surfaces.size()) {
-    throw std::invalid_argument("build_thermal_model: " + std::to_string(input.surfaces.size()) +
-                                " thermal surfaces for a scene of " +
-                                std::to_string(scene.surfaces.size()));
-  }
-  if (factors.size() != patches.size() || factors.areas.size() != patches.size()) {
-    throw InputError("the view factors have " + std::to_string(factors.size()) +
-                     " rows but the scene has " + std::to_string(patches.size()) +
-                     " patches: compute them for this scene");
-  }
-  const std::vector<SurfaceThermal>& thermal = input.surfaces;
+namespace {
 
-  ThermalModel m;
-  m.factors = std::move(factors);
-  m.surroundings_K = input.surroundings_K;
+// One node per (surface, piece), the front and back faces of a piece sharing it; a power is
+// spread over its surface as a uniform flux, each piece taking its area's share.
+void add_nodes_and_faces(ThermalModel& m, const std::vector<SurfaceThermal>& thermal,
+                         const Scene& scene, const PatchSet& patches) {
   for (std::size_t s = 0; s < scene.surfaces.size(); ++s) {
     m.surface_names.push_back(scene.surfaces[s].name);
     m.surface_conditions.push_back(thermal[s].condition);
     m.two_sided.push_back(scene.surfaces[s].two_sided);
     m.emissivity.push_back(thermal[s].emissivity);
   }
-  // One node per (surface, piece); the front and back faces of a piece share it.
   std::vector<std::vector<std::uint32_t>> node_of(scene.surfaces.size());
   std::vector<std::uint32_t> pieces(scene.surfaces.size(), 0);
   for (const Patch& patch : patches.patches)
@@ -128,27 +113,29 @@ ThermalModel build_thermal_model(const ThermalInput& input, const Scene& scene,
       surface_area[patch.surface] += m.factors.areas[p];
     }
   }
-  // A power is spread over the surface as a uniform flux: each piece takes its area's share.
   for (std::size_t k = 0; k < m.nodes.size(); ++k) {
     NodeCondition& c = m.nodes[k].condition;
     const double whole = surface_area[m.node_surface[k]];
     if (c.kind == ConditionKind::power && whole > 0) c.value *= piece_area[k] / whole;
   }
+}
 
-  const MeshTopology topology = analyse_topology(scene);
-  // Only the one-sided surfaces can close an enclosure: the back of a two-sided sheet that is
-  // part of the outer boundary looks out of it, and what it sends there is no leak.
-  m.mesh_closed = topology.one_sided_closed;
-  // Share of all rays lost, weighted by rays emitted (by area for factors without rays).
+// Share of all rays lost, weighted by rays emitted (by area for factors without rays).
+double lost_fraction(const ViewFactors& vf) {
   double weight = 0, lost_weight = 0;
-  for (std::size_t f = 0; f < m.factors.size(); ++f) {
-    const bool by_rays = f < m.factors.rays.size() && m.factors.rays[f] > 0;
-    const double w = by_rays ? double(m.factors.rays[f]) : m.factors.areas[f];
+  for (std::size_t f = 0; f < vf.size(); ++f) {
+    const bool by_rays = f < vf.rays.size() && vf.rays[f] > 0;
+    const double w = by_rays ? double(vf.rays[f]) : vf.areas[f];
     weight += w;
-    lost_weight += w * lost(m.factors, f);
+    lost_weight += w * lost(vf, f);
   }
-  m.lost_fraction = weight > 0 ? lost_weight / weight : 0.0;
+  return weight > 0 ? lost_weight / weight : 0.0;
+}
 
+// Radiation that leaves: folded back as leaks in a closed mesh, refused without a surroundings
+// temperature, noted when a surroundings temperature plays no part.
+void settle_losses(ThermalModel& m, const ThermalInput& input, const Scene& scene,
+                   const ThermalModelOptions& options) {
   if (m.mesh_closed && m.lost_fraction > 0 && m.lost_fraction < options.leak_limit) {
     fold_leaks(&m.factors);
     m.leaks_folded = true;
@@ -167,9 +154,10 @@ ThermalModel build_thermal_model(const ThermalInput& input, const Scene& scene,
       throw InputError("the mesh '" + scene.source + "' is closed, yet " +
                        percent(m.lost_fraction) +
                        " of all rays left it or were absorbed on back faces (by surface: " + list +
-                       "): too many for leaks through shared edges. Look for gaps or for "
-                       "surfaces whose normals point out of the enclosure (hearthray check "
-                       "shows both); if radiation really leaves, " +
+                       "): too many for leaks through shared edges. Fix the mesh first: look for "
+                       "surfaces whose normals point out of the enclosure, solids exported "
+                       "touching (faces lying on each other) and gaps (hearthray check shows "
+                       "where); only if radiation really leaves, " +
                        fix);
     }
     bool back_faces = false;
@@ -179,13 +167,46 @@ ThermalModel build_thermal_model(const ThermalInput& input, const Scene& scene,
         " surface(s) (share of each one's radiation: " + list + "; " + percent(m.lost_fraction) +
         " of all rays" +
         (back_faces ? ", counting rays absorbed on the back of one-sided surfaces" : "") +
-        "), but no surroundings temperature is given: " + fix + ", or close the geometry");
+        "), but no surroundings temperature is given. " +
+        (back_faces ? "First fix the normals of surfaces hit on their back, and faces of "
+                      "solids exported touching (hearthray check shows where); then, if "
+                      "radiation really leaves, "
+                    : "If radiation really leaves, ") +
+        fix + "; otherwise close the geometry");
   }
   if (leaving == 0 && m.surroundings_K) {
     m.notes.push_back(
         "no radiation leaves the scene: the [surroundings] temperature plays no "
         "part");
   }
+}
+
+}  // namespace
+
+ThermalModel build_thermal_model(const ThermalInput& input, const Scene& scene,
+                                 const PatchSet& patches, ViewFactors factors,
+                                 const ThermalModelOptions& options) {
+  std::string error;
+  if (!options.IsValid(&error)) throw InputError("thermal model options: " + error);
+  if (input.surfaces.size() != scene.surfaces.size()) {
+    throw std::invalid_argument("build_thermal_model: " + std::to_string(input.surfaces.size()) +
+                                " thermal surfaces for a scene of " +
+                                std::to_string(scene.surfaces.size()));
+  }
+  if (factors.size() != patches.size() || factors.areas.size() != patches.size()) {
+    throw InputError("the view factors have " + std::to_string(factors.size()) +
+                     " rows but the scene has " + std::to_string(patches.size()) +
+                     " patches: compute them for this scene");
+  }
+  ThermalModel m;
+  m.factors = std::move(factors);
+  m.surroundings_K = input.surroundings_K;
+  add_nodes_and_faces(m, input.surfaces, scene, patches);
+  // Only the one-sided surfaces can close an enclosure: the back of a two-sided sheet that is
+  // part of the outer boundary looks out of it, and what it sends there is no leak.
+  m.mesh_closed = analyse_topology(scene).one_sided_closed;
+  m.lost_fraction = lost_fraction(m.factors);
+  settle_losses(m, input, scene, options);
   return m;
 }
 
@@ -240,6 +261,7 @@ HeatBalance heat_balance(const ExchangeResult& result) {
   double net = 0;
   for (const NodeResult& n : result.nodes) {
     b.heat_input_W += n.heat_input_W;
+    (n.heat_input_W > 0 ? b.gross_input_W : b.taken_out_W) += std::abs(n.heat_input_W);
     b.convection_W += n.convection_W;
     b.wall_loss_W += n.wall_loss_W;
     net += n.net_radiation_W;
@@ -251,6 +273,22 @@ HeatBalance heat_balance(const ExchangeResult& result) {
   // heat_input - convection - wall_loss is the net radiation of all surfaces; what the
   // surroundings do not take of it is the residual.
   b.residual_W = net - b.to_surroundings_W;
+  return b;
+}
+
+HeatBalance heat_balance(const ThermalModel& model, const ExchangeResult& result) {
+  HeatBalance b = heat_balance(result);
+  std::vector<char> source(model.surface_names.size(), 0), sink(model.surface_names.size(), 0);
+  for (std::size_t k = 0; k < result.nodes.size() && k < model.node_surface.size(); ++k) {
+    const double q = result.nodes[k].heat_input_W;
+    // Round-off of a balanced reradiating piece is neither.
+    if (std::abs(q) <= 1e-9 * b.largest_W) continue;
+    (q > 0 ? source : sink)[model.node_surface[k]] = 1;
+  }
+  for (std::size_t s = 0; s < model.surface_names.size(); ++s) {
+    if (source[s]) b.sources.push_back(model.surface_names[s]);
+    if (sink[s]) b.sinks.push_back(model.surface_names[s]);
+  }
   return b;
 }
 

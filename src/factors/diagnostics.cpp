@@ -1,8 +1,35 @@
 #include "hearthray/diagnostics.hpp"
 
 #include "core/text.hpp"
+#include "hearthray/mesh_where.hpp"
 
 namespace hearthray {
+
+namespace {
+
+// Share of all rays lost (on back faces, or escaping a closed mesh) above which faces lying on
+// each other are looked for.
+constexpr double kContactSearchShare = 1e-5;
+
+// Rays on back faces (or escaping a closed mesh) often come from solids exported touching:
+// names those contacts as warnings and marks the surfaces involved, so that their normals are
+// not blamed. Returns whether any contact was found.
+bool name_contacts(const Scene& scene, const Tallies& tallies, RayDiagnostics* d) {
+  // The search costs seconds at 10^5 triangles: run it only for losses well above the ~1e-6
+  // of rays that slip through shared edges of a sound mesh.
+  const double lost = double(d->back_face_hits) + (d->mesh_closed ? double(d->escaped) : 0.0);
+  if (!(lost > kContactSearchShare * double(d->emitted))) return false;
+  bool found = false;
+  for (const FaceContact& c : face_contacts(scene)) {
+    found = true;
+    d->warnings.push_back({WarningKind::touching_faces, contact_sentence(scene, c)});
+    for (std::uint32_t s : {c.surface_a, c.surface_b})
+      if (tallies.back_face_hits_on_surface[s] > 0) d->surfaces[s].touching = true;
+  }
+  return found;
+}
+
+}  // namespace
 
 RayDiagnostics diagnose_rays(const Scene& scene, const PatchSet& patches, const Tallies& tallies,
                              const MeshTopology& topology) {
@@ -23,16 +50,18 @@ RayDiagnostics diagnose_rays(const Scene& scene, const PatchSet& patches, const 
     d.escaped += tallies.escaped[r];
   }
 
+  const bool contacts = name_contacts(scene, tallies, &d);
   for (const SurfaceRayReport& s : d.surfaces) {
-    if (s.back_face_hits == 0) continue;
+    if (s.back_face_hits == 0 || s.touching) continue;
     const double share = double(s.back_face_hits) / double(s.arrivals);
     if (share >= 0.1)
       d.warnings.push_back({WarningKind::back_faces,
                             "surface '" + s.name + "': " + percent(share) +
                                 " of the rays reaching it arrive on its back side: its normals "
                                 "probably point the wrong way (the front is the side from which "
-                                "the vertices run counter-clockwise). Flip its faces, or declare "
-                                "it two_sided if it is a thin sheet seen from both sides."});
+                                "the corners run counter-clockwise). Flip its faces, or declare "
+                                "it two_sided if it is a thin sheet seen from both sides "
+                                "(hearthray check shows where the rays land)."});
     else
       d.warnings.push_back({WarningKind::back_faces,
                             "surface '" + s.name + "': " + std::to_string(s.back_face_hits) +
@@ -48,8 +77,10 @@ RayDiagnostics diagnose_rays(const Scene& scene, const PatchSet& patches, const 
            "leak: the mesh is closed, yet " + std::to_string(d.escaped) + " rays (" +
                percent(share) +
                ") escaped through it; they are counted as radiation to the "
-               "surroundings. Check for gaps, or for a surface whose normals point "
-               "out of the enclosure."});
+               "surroundings. Check for " +
+               (contacts ? "the faces lying on each other named above, " : "") +
+               "gaps, or a surface whose normals point out of the enclosure (hearthray "
+               "check shows where)."});
     } else {
       std::size_t worst = 0;
       for (std::size_t s = 1; s < d.surfaces.size(); ++s) {

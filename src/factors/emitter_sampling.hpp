@@ -49,4 +49,9 @@ class EmitterSampler {
   std::vector<double> cumulative_, inverse_area_;
 };
 
+// A back-face hit within a few offsets of the origin is not radiation arriving anywhere (the
+// sampled point rounded onto the plane of a neighbour meeting the emitter at an edge): traces
+// on from just past it. Defined in view_factors.cpp.
+void trace_past_edge_neighbour(const Tracer& tracer, float offset, Ray& ray, RayHit& hit);
+
 }  // namespace hearthray

@@ -18,6 +18,15 @@
 
 namespace hearthray {
 
+// Declared in emitter_sampling.hpp.
+void trace_past_edge_neighbour(const Tracer& tracer, float offset, Ray& ray, RayHit& hit) {
+  for (int retry = 0;
+       retry < 3 && hit.triangle != RayHit::kMiss && !hit.front && hit.t < 4 * offset; ++retry) {
+    ray.tnear = hit.t + offset;
+    tracer.trace(&ray, &hit, 1);
+  }
+}
+
 bool ViewFactorOptions::IsValid(std::string* error) const {
   auto fail = [&](const std::string& m) {
     if (error) *error = m;
@@ -86,17 +95,6 @@ struct Scratch {
   std::vector<float> offset;  // origin offset of each ray of the batch
   std::uint64_t retraced = 0;
 };
-
-// A back-face hit within a few offsets of the origin is not radiation arriving anywhere: the
-// sampled point rounded onto (or just behind) the plane of a neighbour meeting the emitter at
-// an edge. Trace on from just past it.
-void trace_past_edge_neighbour(const Tracer& tracer, float offset, Ray& ray, RayHit& hit) {
-  for (int retry = 0;
-       retry < 3 && hit.triangle != RayHit::kMiss && !hit.front && hit.t < 4 * offset; ++retry) {
-    ray.tnear = hit.t + offset;
-    tracer.trace(&ray, &hit, 1);
-  }
-}
 
 HitTally trace_chunk(const Chunk& chunk, const EmitterSampler& emitters, const Tracer& tracer,
                      Scratch& s) {

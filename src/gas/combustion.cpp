@@ -3,6 +3,7 @@
 #include <cmath>
 #include <sstream>
 
+#include "core/text.hpp"
 #include "hearthray/error.hpp"
 
 namespace hearthray {
@@ -68,13 +69,6 @@ const double* range_for(Species s, double T) {
   return T < 1000 ? c.low : c.high;
 }
 
-std::string str(double x) {
-  std::ostringstream s;
-  s.precision(6);
-  s << x;
-  return s.str();
-}
-
 // Lower heating value (J/kg) of C_x H_y from the enthalpies of formation at 25 C, water as
 // vapour: C_x H_y + (x + y/4) O2 -> x CO2 + y/2 H2O.
 double heating_value_from_formation(Species fuel, double x, double y) {
@@ -129,13 +123,13 @@ Fuel propane() {
 Fuel fuel_oil(double c_to_h, double lower_heating_value) {
   if (!std::isfinite(c_to_h) || c_to_h < 4 || c_to_h > 12)
     throw InputError("fuel oil: carbon-to-hydrogen mass ratio must be between 4 and 12 (got " +
-                     str(c_to_h) + "; light fuel oil is about 6.3 to 7.5)");
+                     rounded("%.6g", c_to_h) + "; light fuel oil is about 6.3 to 7.5)");
   if (!std::isfinite(lower_heating_value) || lower_heating_value < 30e6 ||
       lower_heating_value > 50e6)
     throw InputError("fuel oil: lower heating value must be between 30 and 50 MJ/kg (got " +
-                     str(lower_heating_value / 1e6) + " MJ/kg)");
+                     rounded("%.6g", lower_heating_value / 1e6) + " MJ/kg)");
   const double n = (kCarbon / kHydrogen) / c_to_h;  // H atoms per C atom
-  return {"fuel oil CH" + str(n), 1, n, kCarbon + n * kHydrogen, lower_heating_value};
+  return {"fuel oil CH" + rounded("%.6g", n), 1, n, kCarbon + n * kHydrogen, lower_heating_value};
 }
 
 bool CombustionInput::IsValid(std::string* error) const {
@@ -150,14 +144,15 @@ bool CombustionInput::IsValid(std::string* error) const {
     return fail("firing rate must be positive (W)");
   if (flue_o2_dry >= 0) {
     if (!(flue_o2_dry < 0.15))
-      return fail("O2 in the dry flue gas must be below 15 % (got " + str(100 * flue_o2_dry) +
-                  " %)");
+      return fail("O2 in the dry flue gas must be below 15 % (got " +
+                  rounded("%.6g", 100 * flue_o2_dry) + " %)");
   } else if (!std::isfinite(excess_air) || excess_air < 0 || excess_air > 5) {
-    return fail("excess air must be between 0 and 500 % (got " + str(100 * excess_air) + " %)");
+    return fail("excess air must be between 0 and 500 % (got " + rounded("%.6g", 100 * excess_air) +
+                " %)");
   }
   if (!std::isfinite(air_temperature) || air_temperature < 200 || air_temperature > 1500)
     return fail("combustion-air temperature must be between 200 and 1500 K (got " +
-                str(air_temperature) + " K)");
+                rounded("%.6g", air_temperature) + " K)");
   return true;
 }
 
@@ -222,7 +217,7 @@ double Combustion::products_temperature(double H) const {
   // Newton safeguarded by bisection on [100, 6000] K (H(T) increases: cp > 0).
   double lo = 100, hi = 6000;
   if (!(H >= products_enthalpy(lo) && H <= products_enthalpy(hi)))
-    throw InputError("combustion: products' enthalpy " + str(H) +
+    throw InputError("combustion: products' enthalpy " + rounded("%.6g", H) +
                      " W is outside what 100..6000 K can carry");
   double T = 1500;
   for (int it = 0; it < 200; ++it) {

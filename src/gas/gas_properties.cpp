@@ -4,6 +4,7 @@
 #include <cmath>
 #include <sstream>
 
+#include "core/text.hpp"
 #include "hearthray/error.hpp"
 
 namespace hearthray {
@@ -57,23 +58,16 @@ double clamp_temperature(double T) {
   return std::min(std::max(T, kWsggMinTemperature), kWsggMaxTemperature);
 }
 
-std::string format(double x) {
-  std::ostringstream s;
-  s.precision(4);
-  s << x;
-  return s.str();
-}
-
 void check_composition(const GasComposition& c) {
   auto bad = [](double x) { return !std::isfinite(x) || x < 0; };
   if (bad(c.p_h2o) || bad(c.p_co2))
     throw InputError("gas: partial pressures of H2O and CO2 must be finite and >= 0 atm");
   if (c.p_h2o + c.p_co2 > 1.0)
-    throw InputError("gas: p_H2O + p_CO2 = " + format(c.p_h2o + c.p_co2) +
+    throw InputError("gas: p_H2O + p_CO2 = " + rounded("%.4g", c.p_h2o + c.p_co2) +
                      " atm exceeds the total pressure of 1 atm the WSGG fit is made for");
   if (bad(c.soot_volume_fraction) || c.soot_volume_fraction > 1e-4)
     throw InputError("gas: soot volume fraction must be between 0 and 1e-4 (got " +
-                     format(c.soot_volume_fraction) + ")");
+                     rounded("%.4g", c.soot_volume_fraction) + ")");
   if (!std::isfinite(c.soot_temperature) || c.soot_temperature <= 0)
     throw InputError("gas: soot temperature must be a positive temperature in K");
 }
@@ -122,19 +116,19 @@ GrayGasSet GrayGasSet::wsgg(const GasComposition& c) {
   } else if (pc == 0) {
     set = pw <= 0.2 ? WsggSet::h2o_dilute : WsggSet::h2o_one_atm;
     if (pw > 0.2 && pw < 0.8)
-      warnings.push_back("gas: p_H2O = " + format(pw) +
+      warnings.push_back("gas: p_H2O = " + rounded("%.4g", pw) +
                          " atm lies between the dilute and the 1 atm water-vapour sets; the "
                          "1 atm set is used (extrapolated)");
   } else {
     const double ratio = pw / pc;
     if (ratio < 0.5 || ratio > 4)
-      throw InputError("gas: p_H2O/p_CO2 = " + format(ratio) +
+      throw InputError("gas: p_H2O/p_CO2 = " + rounded("%.4g", ratio) +
                        " is outside the range of the Smith-Shen-Friedman mixture sets "
                        "(fitted at 1 and 2; accepted 0.5 to 4)");
     set = ratio < 1.5 ? WsggSet::mixture_ratio_1 : WsggSet::mixture_ratio_2;
     if (ratio < 0.8 || ratio > 2.5)
-      warnings.push_back("gas: p_H2O/p_CO2 = " + format(ratio) + " is extrapolated with the " +
-                         to_string(set) + " set");
+      warnings.push_back("gas: p_H2O/p_CO2 = " + rounded("%.4g", ratio) +
+                         " is extrapolated with the " + to_string(set) + " set");
   }
   GrayGasSet result = wsgg(set, c);
   result.warnings_.insert(result.warnings_.begin(), warnings.begin(), warnings.end());

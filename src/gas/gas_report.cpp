@@ -48,25 +48,26 @@ std::string kw(double W) {
 void print_gas_surfaces(std::ostream& out, const GasRun& run, const Scene& scene,
                         const PatchSet& patches) {
   const std::size_t S = scene.surfaces.size();
-  std::vector<double> area(S, 0), weighted_T(S, 0), takes(S, 0), loss(S, 0);
+  std::vector<double> area(S, 0), weighted_T(S, 0), takes(S, 0), convection(S, 0), loss(S, 0);
   for (std::size_t p = 0; p < patches.size(); ++p) {
     const std::uint32_t s = patches.patches[p].surface;
     const double a = patches.patches[p].area;
     const ZonePatchResult& r = run.solve.patches[p];
     area[s] += a;
     weighted_T[s] += r.temperature * a;
-    takes[s] -= r.net_out;
+    takes[s] += r.convection_in - r.net_out;
+    convection[s] += r.convection_in;
     loss[s] += r.wall_loss;
   }
   char line[200];
-  std::snprintf(line, sizeof line, "%-20s %10s %10s %14s %14s\n", "surface", "area m2", "T C",
-                "takes kW", "wall loss kW");
+  std::snprintf(line, sizeof line, "%-20s %10s %10s %14s %14s %14s\n", "surface", "area m2", "T C",
+                "takes kW", "of it conv. kW", "wall loss kW");
   out << line;
   for (std::size_t s = 0; s < S; ++s) {
     if (area[s] == 0) continue;
-    std::snprintf(line, sizeof line, "%-20s %10.3f %10.1f %14.2f %14.2f\n",
+    std::snprintf(line, sizeof line, "%-20s %10.3f %10.1f %14.2f %14.2f %14.2f\n",
                   scene.surfaces[s].name.c_str(), area[s], celsius(weighted_T[s] / area[s]),
-                  takes[s] / 1e3, loss[s] / 1e3);
+                  takes[s] / 1e3, convection[s] / 1e3, loss[s] / 1e3);
     out << line;
   }
 }
@@ -83,14 +84,16 @@ void print_gas_table(std::ostream& out, const GasRun& run) {
         << rounded("%.0f C", celsius(c.adiabatic_flame_temperature)) << "\n";
   }
   char line[256];
-  std::snprintf(line, sizeof line, "%-6s %10s %10s %12s %12s %12s %12s %12s\n", "zone", "volume m3",
-                "T C", "released kW", "emitted kW", "absorbed kW", "in kW", "out kW");
+  std::snprintf(line, sizeof line, "%-6s %10s %10s %12s %12s %12s %12s %12s %12s\n", "zone",
+                "volume m3", "T C", "released kW", "emitted kW", "absorbed kW", "conv. kW", "in kW",
+                "out kW");
   out << line;
   for (std::size_t z = 0; z < s.zones.size(); ++z) {
     const ZoneGasResult& r = s.zones[z];
-    std::snprintf(line, sizeof line, "%-6zu %10.4g %10.1f %12.2f %12.2f %12.2f %12.2f %12.2f\n", z,
-                  run.exchange.volume[z], celsius(r.temperature), r.heat_release / 1e3,
-                  r.emitted / 1e3, r.absorbed / 1e3, r.enthalpy_in / 1e3, r.enthalpy_out / 1e3);
+    std::snprintf(
+        line, sizeof line, "%-6zu %10.4g %10.1f %12.2f %12.2f %12.2f %12.2f %12.2f %12.2f\n", z,
+        run.exchange.volume[z], celsius(r.temperature), r.heat_release / 1e3, r.emitted / 1e3,
+        r.absorbed / 1e3, r.convection_out / 1e3, r.enthalpy_in / 1e3, r.enthalpy_out / 1e3);
     out << line;
   }
   const FurnaceFigures f = figures(run);
@@ -116,7 +119,7 @@ void print_gas_table(std::ostream& out, const GasRun& run) {
 void write_zones_csv(std::ostream& out, const GasRun& run) {
   const GasExchange& x = run.exchange;
   out << "zone,i,j,k,x_m,y_m,z_m,volume_m3,volume_se_m3,temperature_K,heat_release_W,"
-         "emitted_W,absorbed_W,enthalpy_in_W,enthalpy_out_W,held_W\n";
+         "emitted_W,absorbed_W,convection_out_W,enthalpy_in_W,enthalpy_out_W,held_W\n";
   for (std::size_t z = 0; z < x.zone_count(); ++z) {
     const auto c = x.grid.cell_index(x.zone_cell[z]);
     const Box3 b = x.grid.cell_box(x.zone_cell[z]);
@@ -126,19 +129,19 @@ void write_zones_csv(std::ostream& out, const GasRun& run) {
         << shortest(m.y) << ',' << shortest(m.z) << ',' << shortest(x.volume[z]) << ','
         << shortest(x.volume_error[z]) << ',' << shortest(r.temperature) << ','
         << shortest(r.heat_release) << ',' << shortest(r.emitted) << ',' << shortest(r.absorbed)
-        << ',' << shortest(r.enthalpy_in) << ',' << shortest(r.enthalpy_out) << ','
-        << shortest(r.imbalance) << '\n';
+        << ',' << shortest(r.convection_out) << ',' << shortest(r.enthalpy_in) << ','
+        << shortest(r.enthalpy_out) << ',' << shortest(r.imbalance) << '\n';
   }
 }
 
 void write_gas_patches_csv(std::ostream& out, const GasRun& run,
                            const std::vector<std::string>& names) {
-  out << "patch,temperature_K,emitted_W,absorbed_W,net_out_W,wall_loss_W\n";
+  out << "patch,temperature_K,emitted_W,absorbed_W,net_out_W,convection_in_W,wall_loss_W\n";
   for (std::size_t p = 0; p < run.solve.patches.size(); ++p) {
     const ZonePatchResult& r = run.solve.patches[p];
     out << csv_field(names[p]) << ',' << shortest(r.temperature) << ',' << shortest(r.emitted)
-        << ',' << shortest(r.absorbed) << ',' << shortest(r.net_out) << ',' << shortest(r.wall_loss)
-        << '\n';
+        << ',' << shortest(r.absorbed) << ',' << shortest(r.net_out) << ','
+        << shortest(r.convection_in) << ',' << shortest(r.wall_loss) << '\n';
   }
 }
 
@@ -183,6 +186,7 @@ std::string gas_report_json(const GasRun& run, const std::vector<std::string>& n
                      {"absorbed_W", r.absorbed},
                      {"enthalpy_in_W", r.enthalpy_in},
                      {"enthalpy_out_W", r.enthalpy_out},
+                     {"convection_out_W", r.convection_out},
                      {"held_W", r.imbalance}});
   }
   j["zones"] = zones;
@@ -192,6 +196,7 @@ std::string gas_report_json(const GasRun& run, const std::vector<std::string>& n
     patches.push_back({{"patch", names[p]},
                        {"temperature_K", r.temperature},
                        {"net_out_W", r.net_out},
+                       {"convection_in_W", r.convection_in},
                        {"wall_loss_W", r.wall_loss}});
   }
   j["patches"] = patches;

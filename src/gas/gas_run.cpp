@@ -2,30 +2,40 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 #include <sstream>
 
 #include "hearthray/error.hpp"
 
 namespace hearthray {
 
+namespace {
+
+// Heat a patch takes from the furnace: radiation absorbed less emitted, plus convection.
+double taken(const ZonePatchResult& r) {
+  return r.convection_in - r.net_out;
+}
+
+}  // namespace
+
 double GasRun::heat_to_load() const {
   double q = 0;
   for (std::size_t p = 0; p < patches.size(); ++p)
-    if (load_patch[p]) q -= solve.patches[p].net_out;
+    if (load_patch[p]) q += taken(solve.patches[p]);
   return q;
 }
 
 double GasRun::heat_to_held_patches() const {
   double q = 0;
   for (std::size_t p = 0; p < patches.size(); ++p)
-    if (patches[p].known_temperature && !load_patch[p]) q -= solve.patches[p].net_out;
+    if (patches[p].known_temperature && !load_patch[p]) q += taken(solve.patches[p]);
   return q;
 }
 
 double GasRun::heat_through_walls() const {
   double q = 0;
   for (std::size_t p = 0; p < patches.size(); ++p)
-    if (!patches[p].known_temperature && !load_patch[p]) q -= solve.patches[p].net_out;
+    if (!patches[p].known_temperature && !load_patch[p]) q += taken(solve.patches[p]);
   return q;
 }
 
@@ -37,12 +47,15 @@ std::vector<ZonePatchCondition> gas_patch_conditions(const std::vector<SurfaceTh
   for (const Patch& p : patches.patches) {
     const SurfaceThermal& s = surfaces[p.surface];
     const std::string& name = scene.surfaces[p.surface].name;
-    if (s.condition.convection)
-      throw InputError("surface " + name +
-                       ": convection is not modelled together with [gas] yet (the gas would "
-                       "be its fluid); remove it or leave [gas] out");
     ZonePatchCondition c;
     c.emissivity = s.emissivity;
+    if (s.condition.convection) {
+      // The scene file allows only the gas as the fluid here; run_gas finds the zone.
+      if (!s.condition.convection->fluid_is_gas)
+        throw InputError("surface " + name +
+                         ": with [gas], convection exchanges with the gas: fluid = \"gas\"");
+      c.convection_h = s.condition.convection->h;
+    }
     switch (s.condition.kind) {
       case ConditionKind::temperature:
         c.known_temperature = true;
@@ -86,6 +99,46 @@ std::vector<std::size_t> flow_order(const GasInput& in, const GasExchange& x) {
     return in.flow_direction > 0 ? ia < ib : ia > ib;
   });
   return order;
+}
+
+// The zone a patch's film touches: the zone of the cell that holds a point just in front of
+// the patch's area-weighted centroid (on the side the patch faces), or the zone of the nearest
+// cell when that cell holds no gas.
+std::size_t zone_beside(const Scene& scene, const PatchSet& patches, std::size_t p,
+                        const GasExchange& x) {
+  Vec3 centre{0, 0, 0}, normal{0, 0, 0};
+  double area = 0;
+  for (std::uint32_t k = patches.triangle_offset[p]; k < patches.triangle_offset[p + 1]; ++k) {
+    const std::uint32_t t = patches.triangle_index[k];
+    const auto& v = scene.triangles[t].v;
+    const double a = scene.triangle_area(t);
+    centre =
+        centre + (scene.vertices[v[0]] + scene.vertices[v[1]] + scene.vertices[v[2]]) * (a / 3.0);
+    normal = normal + scene.normal(t) * a;
+    area += a;
+  }
+  centre = centre * (1.0 / area);
+  if (patches.patches[p].side == Side::back) normal = normal * -1.0;
+  const Vec3 h = x.grid.cell_size();
+  // A closed surface taken as one patch has no net normal: its centroid then.
+  const Vec3 point = norm(normal) > 1e-12 * area
+                         ? centre + normalized(normal) * (1e-3 * std::min({h.x, h.y, h.z}))
+                         : centre;
+  const Box3& box = x.grid.box();
+  std::array<int, 3> at{};
+  const double lo[3] = {box.lo.x, box.lo.y, box.lo.z}, q[3] = {point.x, point.y, point.z},
+               size[3] = {h.x, h.y, h.z};
+  for (int d = 0; d < 3; ++d)
+    at[d] = std::clamp(int(std::floor((q[d] - lo[d]) / size[d])), 0, x.grid.cells()[d] - 1);
+  std::size_t best = 0;
+  double best_distance = std::numeric_limits<double>::infinity();
+  for (std::size_t z = 0; z < x.zone_count(); ++z) {
+    const auto c = x.grid.cell_index(x.zone_cell[z]);
+    double d2 = 0;
+    for (int d = 0; d < 3; ++d) d2 += std::pow((c[d] - at[d]) * size[d], 2);
+    if (d2 < best_distance) best_distance = d2, best = z;
+  }
+  return best;
 }
 
 }  // namespace
@@ -135,6 +188,9 @@ GasRun run_gas(const GasInput& input, const Scene& scene, const PatchSet& patche
 
   run.flow_order = flow_order(input, x);
   run.patches = std::move(conditions);
+  for (std::size_t p = 0; p < patches.size(); ++p)
+    if (run.patches[p].convection_h > 0)
+      run.patches[p].convection_zone = int(zone_beside(scene, patches, p, x));
   ZoneSolveInput in;
   in.exchange = &x;
   in.gases = &run.gases;

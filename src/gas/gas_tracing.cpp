@@ -275,34 +275,31 @@ std::vector<std::uint32_t> nearest_kept(const ZoneGrid& grid, const std::vector<
   return to;
 }
 
-}  // namespace
+// Raw per-cell sums of every chunk, merged in the chunks' fixed order (so the result does not
+// depend on the thread count).
+struct RawScores {
+  std::vector<Eigen::MatrixXd> sum, sq;  // per gray gas: (P + C)^2 sums of scores and squares
+  std::vector<Eigen::VectorXd> lost;     // per gray gas and row: escaped or back-side score
+  std::vector<std::uint64_t> inside;     // per cell: its points that lay in the gas
+};
 
-GasExchange trace_gas_exchange(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
-                               std::array<int, 3> cells, const std::vector<double>& k,
-                               const GasTraceOptions& options) {
+void check_gas_trace_input(const PatchSet& patches, const std::vector<double>& k,
+                           const GasTraceOptions& options) {
   std::string why;
   if (!options.IsValid(&why)) throw InputError("gas exchange: " + why);
   if (k.empty()) throw InputError("gas exchange: no gray gas given");
   for (double kg : k)
     if (!std::isfinite(kg) || kg < 0)
       throw InputError("gas exchange: absorption coefficients must be finite and >= 0");
-  const std::size_t P = patches.size();
-  if (!options.rays_for_patch.empty() && options.rays_for_patch.size() != P)
+  if (!options.rays_for_patch.empty() && options.rays_for_patch.size() != patches.size())
     throw InputError("gas exchange: rays_for_patch needs one count per patch");
-  // The grid covers the enclosure's box; the walk counts points rounded outside it to the
-  // nearest cell.
-  const ZoneGrid grid(scene.bounds, cells);
-  const std::size_t C = grid.cell_count(), N = P + C;
-  if (N > options.max_rows)
-    throw InputError("gas exchange: " + std::to_string(P) + " patches and " + std::to_string(C) +
-                     " grid cells exceed the dense limit of " + std::to_string(options.max_rows) +
-                     " rows; use fewer patches or cells");
-  const std::size_t G = k.size();
+}
 
-  auto rays_of = [&](std::size_t row) -> std::uint64_t {
-    if (row >= P) return options.rays_per_cell;
-    return options.rays_for_patch.empty() ? options.rays_per_patch : options.rays_for_patch[row];
-  };
+template <class RaysOf>
+RawScores trace_raw_scores(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
+                           const ZoneGrid& grid, const std::vector<double>& k,
+                           const GasTraceOptions& options, const RaysOf& rays_of) {
+  const std::size_t P = patches.size(), C = grid.cell_count(), N = P + C, G = k.size();
   std::vector<Chunk> chunks;
   for (std::size_t row = 0; row < N; ++row)
     for (std::uint64_t f = 0, n = rays_of(row); f < n; f += kChunkRays)
@@ -321,41 +318,45 @@ GasExchange trace_gas_exchange(const Scene& scene, const PatchSet& patches, cons
                       });
   });
 
-  // Merge chunks in their fixed order into dense raw sums over all cells.
-  std::vector<Eigen::MatrixXd> sum(G, Eigen::MatrixXd::Zero(N, N)), sq = sum;
-  std::vector<Eigen::VectorXd> lost(G, Eigen::VectorXd::Zero(N));
-  std::vector<std::uint64_t> inside(C, 0);
+  RawScores raw;
+  raw.sum.assign(G, Eigen::MatrixXd::Zero(N, N));
+  raw.sq = raw.sum;
+  raw.lost.assign(G, Eigen::VectorXd::Zero(N));
+  raw.inside.assign(C, 0);
   for (std::size_t c = 0; c < chunks.size(); ++c) {
     const ChunkScores& r = results[c];
     const std::size_t row = chunks[c].row;
-    if (row >= P) inside[row - P] += r.inside;
-    for (std::size_t g = 0; g < G; ++g) lost[g](row) += r.lost[g];
+    if (row >= P) raw.inside[row - P] += r.inside;
+    for (std::size_t g = 0; g < G; ++g) raw.lost[g](row) += r.lost[g];
     for (std::size_t i = 0; i < r.column.size(); ++i)
       for (std::size_t g = 0; g < G; ++g) {
-        sum[g](row, r.column[i]) += r.sum[i * G + g];
-        sq[g](row, r.column[i]) += r.sum_sq[i * G + g];
+        raw.sum[g](row, r.column[i]) += r.sum[i * G + g];
+        raw.sq[g](row, r.column[i]) += r.sum_sq[i * G + g];
       }
   }
-  results.clear();
+  return raw;
+}
 
-  // Zones: cells with points in the gas. Columns of dropped cells go to the nearest zone.
+// Zones are the cells with points in the gas; rows of dropped cells go, their columns move to
+// the nearest zone. Scores become exchange areas (scale A_i or 4 k V_cell) with standard errors.
+template <class RaysOf>
+void assemble_zones(GasExchange& x, const RawScores& raw, const PatchSet& patches,
+                    const RaysOf& rays_of) {
+  const ZoneGrid& grid = x.grid;
+  const std::size_t P = patches.size(), C = grid.cell_count(), N = P + C, G = x.k.size();
   std::vector<bool> kept(C);
-  for (std::size_t c = 0; c < C; ++c) kept[c] = inside[c] > 0;
+  for (std::size_t c = 0; c < C; ++c) kept[c] = raw.inside[c] > 0;
   if (std::none_of(kept.begin(), kept.end(), [](bool b) { return b; }))
     throw InputError(
         "gas zones: no sampled point lies in the gas. The gas needs a closed enclosure whose "
         "surfaces face it with their fronts (normals pointing into the gas)");
   const std::vector<std::uint32_t> to = nearest_kept(grid, kept);
-  GasExchange x;
-  x.grid = grid;
-  x.patch_count = P;
-  x.k = k;
   std::vector<std::size_t> zone_of_cell(C, 0);
   for (std::size_t c = 0; c < C; ++c) {
     if (!kept[c]) continue;
     zone_of_cell[c] = x.zone_cell.size();
     x.zone_cell.push_back(std::uint32_t(c));
-    const double p = double(inside[c]) / double(rays_of(P + c));
+    const double p = double(raw.inside[c]) / double(rays_of(P + c));
     x.volume.push_back(grid.cell_volume() * p);
     x.volume_error.push_back(grid.cell_volume() * std::sqrt(p * (1 - p) / double(rays_of(P + c))));
   }
@@ -374,21 +375,48 @@ GasExchange trace_gas_exchange(const Scene& scene, const PatchSet& patches, cons
     for (std::size_t i = 0; i < N; ++i) {
       if (row_of[i] == R) continue;
       const double n = double(rays_of(i));
-      const double scale = i < P ? patches.patches[i].area : 4 * k[g] * grid.cell_volume();
-      L(row_of[i]) = scale * lost[g](i) / n;
+      const double scale = i < P ? patches.patches[i].area : 4 * x.k[g] * grid.cell_volume();
+      L(row_of[i]) = scale * raw.lost[g](i) / n;
       for (std::size_t j = 0; j < N; ++j) {
-        const double s = sum[g](i, j);
+        const double s = raw.sum[g](i, j);
         if (s == 0) continue;
         const double mean = s / n;
         S(row_of[i], col_of[j]) += scale * mean;
         var(row_of[i], col_of[j]) +=
-            scale * scale * std::max(0.0, sq[g](i, j) / n - mean * mean) / n;
+            scale * scale * std::max(0.0, raw.sq[g](i, j) / n - mean * mean) / n;
       }
     }
     x.S.push_back(std::move(S));
     x.sigma.push_back(var.cwiseSqrt());
     x.lost.push_back(std::move(L));
   }
+}
+
+}  // namespace
+
+GasExchange trace_gas_exchange(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
+                               std::array<int, 3> cells, const std::vector<double>& k,
+                               const GasTraceOptions& options) {
+  check_gas_trace_input(patches, k, options);
+  const std::size_t P = patches.size();
+  // The grid covers the enclosure's box; the walk counts points rounded outside it to the
+  // nearest cell.
+  const ZoneGrid grid(scene.bounds, cells);
+  const std::size_t C = grid.cell_count(), N = P + C;
+  if (N > options.max_rows)
+    throw InputError("gas exchange: " + std::to_string(P) + " patches and " + std::to_string(C) +
+                     " grid cells exceed the dense limit of " + std::to_string(options.max_rows) +
+                     " rows; use fewer patches or cells");
+  auto rays_of = [&](std::size_t row) -> std::uint64_t {
+    if (row >= P) return options.rays_per_cell;
+    return options.rays_for_patch.empty() ? options.rays_per_patch : options.rays_for_patch[row];
+  };
+  const RawScores raw = trace_raw_scores(scene, patches, tracer, grid, k, options, rays_of);
+  GasExchange x;
+  x.grid = grid;
+  x.patch_count = P;
+  x.k = k;
+  assemble_zones(x, raw, patches, rays_of);
   return x;
 }
 

@@ -35,6 +35,10 @@ bool ZoneSolveInput::IsValid(std::string* error) const {
     if (!std::isfinite(c.wall_U) || c.wall_U < 0 || !std::isfinite(c.outside_temperature) ||
         c.outside_temperature < 0)
       return fail(at + "wall U must be >= 0 and the outside temperature >= 0 K");
+    if (!std::isfinite(c.convection_h) || c.convection_h < 0)
+      return fail(at + "convection coefficient must be finite and >= 0");
+    if (c.convection_zone >= int(zones.size()) || c.convection_zone < -1)
+      return fail(at + "convection names a zone that does not exist");
   }
   for (std::size_t z = 0; z < zones.size(); ++z) {
     const ZoneGasCondition& c = zones[z];
@@ -82,6 +86,11 @@ class ZoneSystem {
       if (m > 0) upstream_[in.flow_order[m]] = int(in.flow_order[m - 1]);
     }
     if (!in.flow_order.empty()) first_ = int(in.flow_order.front());
+    for (std::size_t i = 0; i < P_; ++i) {
+      const ZonePatchCondition& c = in.patches[i];
+      if (c.convection_h > 0 && c.convection_zone >= 0)
+        films_.push_back({i, std::size_t(c.convection_zone), c.convection_h * x_.areas[i]});
+    }
   }
 
   const std::vector<std::size_t>& unknowns() const { return unknown_; }
@@ -90,6 +99,7 @@ class ZoneSystem {
   // `jacobian` is given, the derivatives of the residuals of the unknowns.
   struct State {
     Eigen::VectorXd emitted, absorbed;  // per row (patches then zones), W
+    Eigen::VectorXd convection;         // per row: into a patch (> 0), out of a zone (> 0), W
     double to_surroundings = 0;
     Eigen::VectorXd residual;  // per unknown
   };
@@ -164,12 +174,19 @@ class ZoneSystem {
     if (jacobian) *jacobian = Eigen::MatrixXd::Zero(U, U);
     std::vector<int> column_of(P_ + Z_, -1);
     for (std::size_t u = 0; u < U; ++u) column_of[unknown_[u]] = int(u);
+    s.convection = Eigen::VectorXd::Zero(N);
+    for (const Film& f : films_) {
+      const double q = f.hA * (T(P_ + f.zone) - T(f.patch));
+      s.convection(f.patch) += q;
+      s.convection(P_ + f.zone) += q;
+    }
     for (std::size_t u = 0; u < U; ++u) {
       const std::size_t r = unknown_[u];
       if (r < P_) {
         // Net radiation out plus the wall loss equals the power put in.
         const ZonePatchCondition& c = in_.patches[r];
-        s.residual(u) = s.emitted(r) - s.absorbed(r) + wall_loss(r, T(r)) - c.power;
+        s.residual(u) =
+            s.emitted(r) - s.absorbed(r) + wall_loss(r, T(r)) - c.power - s.convection(r);
         if (jacobian) {
           jacobian->row(u) = d_net.row(r);
           (*jacobian)(u, u) += c.wall_U * x_.areas[r];
@@ -188,7 +205,25 @@ class ZoneSystem {
         }
       }
     }
+    if (jacobian) add_film_derivatives(column_of, *jacobian);
     return s;
+  }
+
+  // d(residual)/dT of the films, q = hA (T_zone - T_patch): a patch's residual (net out +
+  // losses - power) holds -q, a zone's (gains - losses) holds -q as well, as it loses what the
+  // patch gains.
+  void add_film_derivatives(const std::vector<int>& column_of, Eigen::MatrixXd& jacobian) const {
+    for (const Film& f : films_) {
+      const int up = column_of[f.patch], uz = column_of[P_ + f.zone];
+      if (up >= 0) {
+        jacobian(up, up) += f.hA;
+        if (uz >= 0) jacobian(up, uz) -= f.hA;
+      }
+      if (uz >= 0) {
+        jacobian(uz, uz) -= f.hA;
+        if (up >= 0) jacobian(uz, up) += f.hA;
+      }
+    }
   }
 
   double wall_loss(std::size_t patch, double T) const {
@@ -203,11 +238,12 @@ class ZoneSystem {
   double enthalpy_out(std::size_t z, const Eigen::VectorXd& T) const {
     return in_flow_[z] ? in_.combustion->products_enthalpy(T(P_ + z)) : 0.0;
   }
-  // Release + enthalpy in - out + absorbed - emitted (the residual of an unknown zone).
+  // Release + enthalpy in - out + absorbed - emitted - convection to the patches (the
+  // residual of an unknown zone).
   double gas_balance(std::size_t z, const Eigen::VectorXd& T, const State& s) const {
     const double release = in_.zones[z].known_temperature ? 0.0 : in_.zones[z].heat_release;
     return release + enthalpy_in(z, T) - enthalpy_out(z, T) + s.absorbed(P_ + z) -
-           s.emitted(P_ + z);
+           s.emitted(P_ + z) - s.convection(P_ + z);
   }
 
  private:
@@ -219,28 +255,23 @@ class ZoneSystem {
   std::vector<int> upstream_;
   std::vector<bool> in_flow_;
   int first_ = -1;
+  struct Film {
+    std::size_t patch, zone;
+    double hA;  // W/K
+  };
+  std::vector<Film> films_;  // convection between a patch and its zone
 };
 
-}  // namespace
-
-ZoneSolveResult solve_zones(const ZoneSolveInput& in) {
-  std::string why;
-  if (!in.IsValid(&why)) throw InputError("zone solve: " + why);
-  const GasExchange& x = *in.exchange;
-  const std::size_t P = x.patch_count, Z = x.zone_count(), N = P + Z;
-  const ZoneSystem system(in);
-  Eigen::VectorXd T(N);
-  for (std::size_t i = 0; i < P; ++i) T(i) = in.patches[i].temperature;
-  for (std::size_t z = 0; z < Z; ++z) T(P + z) = in.zones[z].temperature;
+// Newton's method on the unknown temperatures, damped; fills converged, iterations, message
+// and max_residual, and leaves T and the state at the last iterate.
+void newton(const ZoneSolveInput& in, const ZoneSystem& system, Eigen::VectorXd& T,
+            ZoneSystem::State& state, ZoneSolveResult& result) {
+  const std::size_t P = in.exchange->patch_count, Z = in.exchange->zone_count();
   const auto& unknown = system.unknowns();
-
   double heat_scale = 0;  // what the residuals are measured against
   for (std::size_t i = 0; i < P; ++i) heat_scale += std::fabs(in.patches[i].power);
   for (std::size_t z = 0; z < Z; ++z) heat_scale += in.zones[z].heat_release;
   if (in.combustion) heat_scale += in.combustion->air_enthalpy_in;
-
-  ZoneSolveResult result;
-  ZoneSystem::State state;
   for (int it = 0;; ++it) {
     Eigen::MatrixXd jacobian;
     state = system.evaluate(T, unknown.empty() ? nullptr : &jacobian);
@@ -250,20 +281,21 @@ ZoneSolveResult solve_zones(const ZoneSolveInput& in) {
     result.iterations = it;
     if (result.max_residual <= in.tolerance * scale) {
       result.converged = true;
-      break;
+      result.message = "converged";
+      return;
     }
     if (it == in.max_iterations) {
       result.message = "Newton's method did not converge in " + std::to_string(it) +
                        " iterations (largest residual " + std::to_string(result.max_residual) +
                        " W)";
-      break;
+      return;
     }
     Eigen::FullPivLU<Eigen::MatrixXd> lu(jacobian);
     if (!lu.isInvertible()) {
       result.message =
           "the Jacobian is singular: a zone or patch of unknown temperature "
           "exchanges no heat (clear gas with no flow, or isolated)";
-      break;
+      return;
     }
     const Eigen::VectorXd step = lu.solve(-state.residual);
     // Damped: no temperature falls below half or rises above twice its value in one step.
@@ -272,9 +304,12 @@ ZoneSolveResult solve_zones(const ZoneSolveInput& in) {
       T(unknown[u]) = std::min(std::max(t + step(u), 0.5 * t), 2 * t);
     }
   }
-  if (result.converged) result.message = "converged";
+}
 
-  // Results and the energy balance.
+// Per-patch and per-zone results at the solution, the flue and the energy balance.
+void collect_results(const ZoneSolveInput& in, const ZoneSystem& system, const Eigen::VectorXd& T,
+                     const ZoneSystem::State& state, ZoneSolveResult& result) {
+  const std::size_t P = in.exchange->patch_count, Z = in.exchange->zone_count();
   result.patches.resize(P);
   for (std::size_t i = 0; i < P; ++i) {
     ZonePatchResult& r = result.patches[i];
@@ -282,6 +317,7 @@ ZoneSolveResult solve_zones(const ZoneSolveInput& in) {
     r.emitted = state.emitted(i);
     r.absorbed = state.absorbed(i);
     r.net_out = r.emitted - r.absorbed;
+    r.convection_in = state.convection(i);
     if (!in.patches[i].known_temperature) r.wall_loss = system.wall_loss(i, T(i));
   }
   result.zones.resize(Z);
@@ -294,6 +330,7 @@ ZoneSolveResult solve_zones(const ZoneSolveInput& in) {
     r.absorbed = state.absorbed(P + z);
     r.enthalpy_in = system.enthalpy_in(z, T);
     r.enthalpy_out = system.enthalpy_out(z, T);
+    r.convection_out = state.convection(P + z);
     r.imbalance = in.zones[z].known_temperature ? -system.gas_balance(z, T, state) : 0.0;
     result.heat_released += r.heat_release;
     held += r.imbalance;
@@ -305,10 +342,27 @@ ZoneSolveResult solve_zones(const ZoneSolveInput& in) {
     result.flue_enthalpy = result.zones[last].enthalpy_out;
     result.flue_temperature = result.zones[last].temperature;
   }
-  double patches_net = 0;
-  for (const ZonePatchResult& r : result.patches) patches_net += r.net_out;
+  double patches_net = 0;  // what the patches give: radiation out less convection in
+  for (const ZonePatchResult& r : result.patches) patches_net += r.net_out - r.convection_in;
   result.balance_error = result.heat_released + held + result.air_enthalpy_in + patches_net -
                          result.to_surroundings - result.flue_enthalpy;
+}
+
+}  // namespace
+
+ZoneSolveResult solve_zones(const ZoneSolveInput& in) {
+  std::string why;
+  if (!in.IsValid(&why)) throw InputError("zone solve: " + why);
+  const GasExchange& x = *in.exchange;
+  const std::size_t P = x.patch_count, Z = x.zone_count(), N = P + Z;
+  const ZoneSystem system(in);
+  Eigen::VectorXd T(N);
+  for (std::size_t i = 0; i < P; ++i) T(i) = in.patches[i].temperature;
+  for (std::size_t z = 0; z < Z; ++z) T(P + z) = in.zones[z].temperature;
+  ZoneSolveResult result;
+  ZoneSystem::State state;
+  newton(in, system, T, state, result);
+  collect_results(in, system, T, state, result);
   return result;
 }
 

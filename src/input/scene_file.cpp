@@ -26,9 +26,9 @@ const std::vector<std::string> kTopKeys = {"mesh",    "rays",    "surroundings",
 const std::vector<std::string> kMeshKeys = {"file", "unit", "surfaces_from"};
 const std::vector<std::string> kRaysKeys = {"per_patch", "total", "min_per_patch", "seed"};
 const std::vector<std::string> kSurroundingsKeys = {"temperature"};
-const std::vector<std::string> kSurfaceKeys = {"two_sided",  "emissivity", "temperature",
-                                               "heat_flux",  "power",      "adiabatic",
-                                               "convection", "wall",       "patches"};
+const std::vector<std::string> kSurfaceKeys = {
+    "two_sided", "emissivity", "temperature", "heat_flux", "power",
+    "adiabatic", "convection", "wall",        "patches",   "expect_back_hits"};
 const std::vector<std::string> kConvectionKeys = {"h", "fluid"};
 const std::vector<std::string> kWallKeys = {"U", "outside", "thickness", "conductivity"};
 
@@ -156,7 +156,11 @@ class Reader {
     }
     Convection c;
     c.h = quantity(*h, "h", name, Quantity::heat_transfer_coefficient, "8 W/m2K");
-    c.fluid_K = quantity(*fluid, "fluid", name, Quantity::temperature, "20 C");
+    // fluid = "gas": the radiating gas beside the surface ([gas] scenes; checked in read()).
+    if (const auto* word = fluid->as_string(); word && word->get() == "gas")
+      c.fluid_is_gas = true;
+    else
+      c.fluid_K = quantity(*fluid, "fluid", name, Quantity::temperature, "20 C");
     return c;
   }
 
@@ -208,6 +212,22 @@ class Reader {
     }
     if (!(size > 0)) fail(node.source(), "patches in " + table_name + " must be a positive length");
     return {PatchSpec::Mode::size, size};
+  }
+
+  // `key = false` in a surface's table: no convection or wall loss there, whatever
+  // [defaults] says. Anything else but a table is an error.
+  bool switched_off(const toml::node& node, const std::string& key, const std::string& table_name,
+                    bool in_surface) const {
+    const auto* b = node.as_boolean();
+    if (!b) return false;
+    if (b->get() || !in_surface) {
+      fail(node.source(), key + " = " + (b->get() ? "true" : "false") + " in " + table_name +
+                              " means nothing: " +
+                              (in_surface ? "give " + key + " = { ... }, or " + key +
+                                                " = false to take none from [defaults]"
+                                          : "leave " + key + " out of [defaults] to give none"));
+    }
+    return true;
   }
 
   SurfaceSpec surface(const toml::table& t, const std::string& table_name,
@@ -268,9 +288,22 @@ class Reader {
         }
         set_condition(*node, key, ConditionKind::adiabatic, 0.0);
       } else if (key == "convection") {
-        spec.convection = convection(*node, table_name);
+        if (switched_off(*node, key, table_name, allow_two_sided))
+          spec.no_convection = true;
+        else
+          spec.convection = convection(*node, table_name);
       } else if (key == "wall") {
-        spec.wall_loss = wall(*node, table_name);
+        if (switched_off(*node, key, table_name, allow_two_sided))
+          spec.no_wall = true;
+        else
+          spec.wall_loss = wall(*node, table_name);
+      } else if (key == "expect_back_hits") {
+        const auto* b = node->as_boolean();
+        if (!b) {
+          fail(node->source(), "expect_back_hits in " + table_name +
+                                   " must be true or false, not " + type_name(*node));
+        }
+        spec.expect_back_hits = b->get();
       } else if (key == "patches") {
         spec.patches = patch_spec(*node, table_name);
       }
@@ -386,6 +419,7 @@ class Reader {
                        [](const auto& a, const auto& b) { return a.second.line < b.second.line; });
     }
     if (const toml::node* gas = root.get("gas")) file.gas = read_gas_table(*gas, path_);
+    check_convection_fluids(file);
     if (const toml::node* comfort = root.get("comfort")) {
       file.comfort = read_comfort_table(*comfort, path_);
     }
@@ -393,6 +427,24 @@ class Reader {
   }
 
  private:
+  // With a radiating gas the films exchange with the gas (fluid = "gas"); without one there is
+  // no gas to name.
+  void check_convection_fluids(const SceneFile& file) const {
+    auto check = [&](const SurfaceSpec& spec, const std::string& table) {
+      if (!spec.convection) return;
+      if (spec.convection->fluid_is_gas && !file.gas)
+        throw InputError(path_ + ":" + std::to_string(spec.line) + ": 'convection' of " + table +
+                         " has fluid = \"gas\", but the scene has no [gas] table; give the "
+                         "fluid's temperature, e.g. fluid = \"20 C\"");
+      if (!spec.convection->fluid_is_gas && file.gas)
+        throw InputError(path_ + ":" + std::to_string(spec.line) + ": 'convection' of " + table +
+                         " gives a fluid temperature, but in a scene with [gas] the film "
+                         "exchanges with the gas beside the surface: write fluid = \"gas\"");
+    };
+    check(file.defaults, "[defaults]");
+    for (const auto& [name, spec] : file.surfaces) check(spec, "[surface." + name + "]");
+  }
+
   std::string path_;
 };
 
@@ -515,6 +567,7 @@ std::vector<SurfaceThermal> resolve_thermal(const SceneFile& file, const Scene& 
     thermal.condition.kind = *with_condition.kind;
     thermal.condition.value = with_condition.value;
     thermal.condition.convection = spec.convection ? spec.convection : def.convection;
+    if (spec.no_convection) thermal.condition.convection.reset();
 
     const bool two_sided = surface.two_sided || spec.two_sided;
     if (spec.wall_loss && two_sided) {
@@ -524,7 +577,8 @@ std::vector<SurfaceThermal> resolve_thermal(const SceneFile& file, const Scene& 
                        table + " or make the surface one-sided");
     }
     // A wall loss in [defaults] applies to the one-sided surfaces only, for the same reason.
-    if (!two_sided) thermal.condition.wall_loss = spec.wall_loss ? spec.wall_loss : def.wall_loss;
+    if (!two_sided && !spec.no_wall)
+      thermal.condition.wall_loss = spec.wall_loss ? spec.wall_loss : def.wall_loss;
     out.push_back(std::move(thermal));
   }
   return out;

@@ -10,6 +10,7 @@
 #include "core/text.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/scene_file.hpp"
+#include "hearthray/units.hpp"
 
 namespace hearthray {
 namespace {
@@ -30,6 +31,21 @@ struct QuantityDef {
   std::vector<UnitDef> units;
 };
 
+// The trade writes the BTU as BTU, Btu or btu, the hour as h or hr, "Btuh" for Btu/h, and
+// degrees as F or degF: one form each ("BTU", "h", "F", "C").
+std::string trade_spelling(std::string s) {
+  auto replace_all = [&s](const std::string& from, const std::string& to) {
+    for (std::size_t at = s.find(from); at != std::string::npos; at = s.find(from, at + to.size()))
+      s.replace(at, from.size(), to);
+  };
+  for (const char* btu : {"Btu", "btu"}) replace_all(btu, "BTU");
+  replace_all("BTUh", "BTU/h");
+  replace_all("hr", "h");
+  replace_all("deg", "");
+  replace_all("KCAL", "kcal");
+  return s;
+}
+
 // Spellings of one unit collapse to one form: blanks, brackets, '^', '*', the middle dot and
 // the degree sign go; superscript two becomes 2. "W/(m² K)" -> "W/m2K".
 std::string normalize_unit(const std::string& unit) {
@@ -48,10 +64,11 @@ std::string normalize_unit(const std::string& unit) {
         continue;
       }
     }
-    if (std::isspace(c) || c == '(' || c == ')' || c == '^' || c == '*') continue;
+    if (std::isspace(c) || c == '(' || c == ')' || c == '^' || c == '*' || c == '.' || c == '-')
+      continue;
     out += static_cast<char>(c);
   }
-  return out;
+  return trade_spelling(out);
 }
 
 // Length of the leading decimal number in s ([+-]digits[.digits][(e|E)[+-]digits]), 0 if none.
@@ -114,6 +131,14 @@ double parse_with(const QuantityDef& q, const std::string& raw, const std::strin
                    " " + q.example_unit + "\"");
 }
 
+// Trade units: the International Table BTU (1055.05585262 J) and kilocalorie (4186.8 J), the
+// hour, the foot and the degree Fahrenheit (units.hpp). Temperature differences in a unit
+// (per F, per C) scale by 5/9 and 1.
+constexpr double kBtuPerHour = kJoulesPerBtu / 3600;    // W
+constexpr double kKcalPerHour = kJoulesPerKcal / 3600;  // W
+constexpr double kFoot = 0.3048, kSquareFoot = kFoot * kFoot;
+constexpr double kPerFahrenheit = 9.0 / 5.0;  // 1/F in 1/K
+
 const QuantityDef& definition(Quantity quantity) {
   static const QuantityDef temperature{
       "temperature",
@@ -121,27 +146,67 @@ const QuantityDef& definition(Quantity quantity) {
       "C",
       "C, K, F",
       {{"C", 1.0, 0.0, kZeroCelsius}, {"K", 1.0}, {"F", 5.0 / 9.0, -32.0, kZeroCelsius}}};
-  static const QuantityDef power{
-      "power", "1200", "W", "W, kW, MW", {{"W", 1.0}, {"kW", 1e3}, {"MW", 1e6}}};
-  static const QuantityDef heat_flux{
-      "heat flux", "350", "W/m2", "W/m2, kW/m2", {{"W/m2", 1.0}, {"kW/m2", 1e3}}};
+  static const QuantityDef power{"power",
+                                 "1200",
+                                 "W",
+                                 "W, kW, MW, Btu/h, kBtu/h, MBtu/h, kcal/h, Mcal/h",
+                                 {{"W", 1.0},
+                                  {"kW", 1e3},
+                                  {"MW", 1e6},
+                                  {"BTU/h", kBtuPerHour},
+                                  {"kBTU/h", 1e3 * kBtuPerHour},
+                                  {"MBH", 1e3 * kBtuPerHour},  // trade: thousand Btu/h
+                                  {"MBTU/h", 1e6 * kBtuPerHour},
+                                  {"MMBTU/h", 1e6 * kBtuPerHour},
+                                  {"kcal/h", kKcalPerHour},
+                                  {"Mcal/h", 1e3 * kKcalPerHour}}};
+  static const QuantityDef heat_flux{"heat flux",
+                                     "350",
+                                     "W/m2",
+                                     "W/m2, kW/m2, Btu/(h ft2), kcal/(h m2)",
+                                     {{"W/m2", 1.0},
+                                      {"kW/m2", 1e3},
+                                      {"BTU/hft2", kBtuPerHour / kSquareFoot},
+                                      {"BTU/h/ft2", kBtuPerHour / kSquareFoot},
+                                      {"BTU/ft2h", kBtuPerHour / kSquareFoot},
+                                      {"kcal/hm2", kKcalPerHour},
+                                      {"kcal/h/m2", kKcalPerHour},
+                                      {"kcal/m2h", kKcalPerHour}}};
   static const QuantityDef heat_transfer_coefficient{
       "heat transfer coefficient",
       "6",
       "W/m2K",
-      "W/m2K, also written W/(m2 K) or W/m2/K",
-      {{"W/m2K", 1.0}, {"W/m2/K", 1.0}, {"W/Km2", 1.0}}};
+      "W/m2K (also W/(m2 K) or W/m2/K), Btu/(h ft2 F), kcal/(h m2 C)",
+      {{"W/m2K", 1.0},
+       {"W/m2/K", 1.0},
+       {"W/Km2", 1.0},
+       {"W/m2C", 1.0},
+       {"BTU/hft2F", kBtuPerHour / kSquareFoot * kPerFahrenheit},
+       {"BTU/h/ft2/F", kBtuPerHour / kSquareFoot * kPerFahrenheit},
+       {"kcal/hm2C", kKcalPerHour},
+       {"kcal/h/m2/C", kKcalPerHour},
+       {"kcal/hm2K", kKcalPerHour}}};
   static const QuantityDef length{
       "length",
       "230",
       "mm",
       "mm, cm, m, in, ft",
-      {{"mm", 1e-3}, {"cm", 1e-2}, {"m", 1.0}, {"in", 0.0254}, {"ft", 0.3048}}};
-  static const QuantityDef conductivity{"thermal conductivity",
-                                        "0.3",
-                                        "W/mK",
-                                        "W/mK, also written W/(m K) or W/m/K",
-                                        {{"W/mK", 1.0}, {"W/m/K", 1.0}, {"W/Km", 1.0}}};
+      {{"mm", 1e-3}, {"cm", 1e-2}, {"m", 1.0}, {"in", 0.0254}, {"ft", kFoot}}};
+  static const QuantityDef conductivity{
+      "thermal conductivity",
+      "0.3",
+      "W/mK",
+      "W/mK (also W/(m K) or W/m/K), Btu/(h ft F), Btu in/(h ft2 F), kcal/(h m C)",
+      {{"W/mK", 1.0},
+       {"W/m/K", 1.0},
+       {"W/Km", 1.0},
+       {"W/mC", 1.0},
+       {"BTU/hftF", kBtuPerHour / kFoot * kPerFahrenheit},
+       {"BTU/h/ft/F", kBtuPerHour / kFoot * kPerFahrenheit},
+       {"BTUin/hft2F", kBtuPerHour * 0.0254 / kSquareFoot * kPerFahrenheit},
+       {"kcal/hmC", kKcalPerHour},
+       {"kcal/h/m/C", kKcalPerHour},
+       {"kcal/hmK", kKcalPerHour}}};
   switch (quantity) {
     case Quantity::temperature:
       return temperature;

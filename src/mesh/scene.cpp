@@ -22,6 +22,7 @@
 #include "core/files.hpp"
 #include "core/text.hpp"
 #include "hearthray/error.hpp"
+#include "mesh/polygon.hpp"
 
 namespace hearthray {
 namespace {
@@ -128,6 +129,8 @@ struct PreScan {
   std::vector<std::string> material_libraries;
   std::vector<std::string> used_materials;  // usemtl names, in order of first use
   std::size_t faces = 0;
+  std::vector<std::size_t> face_lines;    // per face ('f' line): its line number
+  std::vector<std::size_t> face_corners;  // per face: its number of corners
 };
 
 // Splits text into lines the way tinyobjloader does (\n, \r\n or a lone \r end a line).
@@ -170,8 +173,8 @@ struct ForwardRef {
 
 // An 'f ...' line (without its "f "): at least three corners, each v, v/vt, v//vn or
 // v/vt/vn with non-zero integer indices; a vertex counted back must exist already.
-void check_face(const std::string& rest, long vertices_so_far, const std::string& name,
-                std::size_t line_no, std::vector<ForwardRef>* forward) {
+std::size_t check_face(const std::string& rest, long vertices_so_far, const std::string& name,
+                       std::size_t line_no, std::vector<ForwardRef>* forward) {
   const std::vector<std::string> t = split_blanks(rest);
   if (t.size() < 3) {
     throw InputError(at_line(name, line_no) + "face has " + std::to_string(t.size()) +
@@ -205,6 +208,7 @@ void check_face(const std::string& rest, long vertices_so_far, const std::string
     }
     if (v > vertices_so_far) forward->push_back({line_no, v});
   }
+  return t.size();
 }
 
 PreScan prescan(const std::string& text, const std::string& name, SurfacesFrom surfaces_from) {
@@ -221,7 +225,9 @@ PreScan prescan(const std::string& text, const std::string& name, SurfacesFrom s
     if (line[0] == 'v' && blank_after_1) {
       scan.vertices.push_back(parse_vertex(line.substr(2), name, n + 1));
     } else if (line[0] == 'f' && blank_after_1) {
-      check_face(line.substr(2), static_cast<long>(scan.vertices.size()), name, n + 1, &forward);
+      scan.face_corners.push_back(check_face(
+          line.substr(2), static_cast<long>(scan.vertices.size()), name, n + 1, &forward));
+      scan.face_lines.push_back(n + 1);
       ++scan.faces;
     } else if ((line[0] == 'g' || line[0] == 'o') && blank_after_1) {
       if (surfaces_from == SurfacesFrom::groups) check_name_utf8(line, name, n + 1);
@@ -298,56 +304,132 @@ void check_materials(const PreScan& scan, const std::vector<tinyobj::material_t>
   }
 }
 
+// What the triangulation met on one surface's polygons.
+struct PolygonRemarks {
+  std::size_t bent = 0;        // polygons not flat (a corner off the plane by > kBentShare)
+  double worst_offset = 0;     // the largest distance of a corner from its polygon's plane
+  double worst_size = 0;       // that polygon's size
+  std::size_t worst_line = 0;  // its line in the file
+  std::vector<std::size_t> crossing_lines;  // polygons that cross themselves
+};
+
+// A polygon is reported as not flat when a corner lies farther than this share of the
+// polygon's size from its plane (exporters' round-off is ~1e-7 of it; common practice, no
+// source).
+constexpr double kBentShare = 1e-3;
+
 // Triangles per surface name, surfaces in order of first appearance.
 struct GroupedTriangles {
   std::vector<std::string> names;
   std::vector<std::vector<std::array<std::uint32_t, 3>>> per_surface;
-  Box3 used_bounds;  // of the vertices the triangles use
+  std::vector<PolygonRemarks> remarks;  // per surface
+  Box3 used_bounds;                     // of the vertices the triangles use
 };
+
+// The surface a polygon belongs to: its group or its material.
+std::string surface_of(const tinyobj::shape_t& shape, std::size_t face,
+                       const std::vector<tinyobj::material_t>& materials,
+                       const MeshOptions& options) {
+  std::string surface;
+  if (options.surfaces_from == SurfacesFrom::groups) {
+    surface = trim(shape.name);
+  } else {
+    const auto& ids = shape.mesh.material_ids;
+    const int m = face < ids.size() ? ids[face] : -1;
+    if (m >= 0 && m < static_cast<int>(materials.size())) surface = trim(materials[m].name);
+  }
+  return surface.empty() ? kUnnamed : surface;
+}
+
+// Cuts one polygon into triangles in its own plane (mesh/polygon.hpp) and notes what it met.
+void add_polygon(const std::vector<std::uint32_t>& corners, const std::vector<Vec3>& vertices,
+                 std::size_t line, std::uint32_t surface, GroupedTriangles* g) {
+  const mesh_detail::PolygonCut cut = mesh_detail::triangulate_polygon(corners, vertices);
+  for (const auto& tri : cut.triangles) g->per_surface[surface].push_back(tri);
+  for (std::uint32_t v : corners) g->used_bounds.grow(vertices[v]);
+  PolygonRemarks& r = g->remarks[surface];
+  if (!cut.clean) r.crossing_lines.push_back(line);
+  if (cut.out_of_plane > kBentShare * cut.size) {
+    ++r.bent;
+    if (cut.out_of_plane / cut.size > r.worst_offset / std::max(r.worst_size, 1e-300)) {
+      r.worst_offset = cut.out_of_plane;
+      r.worst_size = cut.size;
+      r.worst_line = line;
+    }
+  }
+}
 
 GroupedTriangles group_triangles(const std::vector<tinyobj::shape_t>& shapes,
                                  const std::vector<tinyobj::material_t>& materials,
-                                 const std::vector<Vec3>& vertices, const std::string& name,
-                                 const MeshOptions& options) {
+                                 const std::vector<Vec3>& vertices, const PreScan& scan,
+                                 const std::string& name, const MeshOptions& options) {
   GroupedTriangles g;
   std::unordered_map<std::string, std::uint32_t> index_of;
   const auto vertex_count = static_cast<int>(vertices.size());
+  std::size_t face = 0;  // faces in file order, matching the pre-scan's 'f' lines
+  std::vector<std::uint32_t> corners;
   for (const tinyobj::shape_t& shape : shapes) {
     const auto& idx = shape.mesh.indices;
-    const std::size_t n_tri = idx.size() / 3;
-    for (std::size_t t = 0; t < n_tri; ++t) {
-      std::string surface;
-      if (options.surfaces_from == SurfacesFrom::groups) {
-        surface = trim(shape.name);
-      } else {
-        const int m = t < shape.mesh.material_ids.size() ? shape.mesh.material_ids[t] : -1;
-        if (m >= 0 && m < static_cast<int>(materials.size())) surface = trim(materials[m].name);
-      }
-      if (surface.empty()) surface = kUnnamed;
+    std::size_t next = 0;
+    for (std::size_t f = 0; next < idx.size(); ++f, ++face) {
+      // The corner count comes from the pre-scan: tinyobjloader keeps it in an unsigned char.
+      if (face >= scan.face_corners.size() || next + scan.face_corners[face] > idx.size())
+        throw InputError(name + ": cannot read the mesh: faces were read inconsistently");
+      const std::string surface = surface_of(shape, f, materials, options);
       auto it = index_of.find(surface);
       if (it == index_of.end()) {
         it = index_of.emplace(surface, static_cast<std::uint32_t>(g.names.size())).first;
         g.names.push_back(surface);
         g.per_surface.emplace_back();
+        g.remarks.emplace_back();
       }
-      std::array<std::uint32_t, 3> tri{};
-      for (int k = 0; k < 3; ++k) {
-        const int v = idx[3 * t + k].vertex_index;
+      corners.clear();
+      for (std::size_t k = 0; k < scan.face_corners[face]; ++k) {
+        const int v = idx[next + k].vertex_index;
         // Checked by the pre-scan already; kept so a library change cannot read out of range.
         if (v < 0 || v >= vertex_count) {
           throw InputError(name + ": a face refers to vertex " + std::to_string(v + 1) +
                            ", outside the " + std::to_string(vertex_count) + " vertices");
         }
-        tri[k] = static_cast<std::uint32_t>(v);
-        g.used_bounds.grow(vertices[static_cast<std::size_t>(v)]);
+        corners.push_back(static_cast<std::uint32_t>(v));
       }
-      g.per_surface[it->second].push_back(tri);
+      next += scan.face_corners[face];
+      add_polygon(corners, vertices, scan.face_lines[face], it->second, &g);
     }
   }
   if (g.names.empty()) {
     throw InputError(name + ": the mesh has no triangles after reading its faces");
   }
   return g;
+}
+
+// Warnings about surface `s`'s polygons: not flat, or crossing themselves. Lengths in the
+// file's unit.
+void polygon_warnings(const GroupedTriangles& g, std::uint32_t s, const std::string& name,
+                      LengthUnit unit, std::vector<std::string>* warnings) {
+  const PolygonRemarks& r = g.remarks[s];
+  const std::string surface = "surface '" + g.names[s] + "': ";
+  const std::string u = " " + to_string(unit);
+  const double per = metres_per(unit);
+  if (r.bent > 0) {
+    warnings->push_back(
+        at_line(name, r.worst_line) + surface + std::to_string(r.bent) +
+        " polygon(s) are not flat; the worst (this line) has a corner " +
+        rounded("%.3g", r.worst_offset / per) + u + " off its plane (" +
+        percent(r.worst_offset / r.worst_size) + " of its size, " +
+        rounded("%.4g", r.worst_size / per) + u +
+        "). They are cut into triangles as written, which puts a crease in them; split "
+        "them into flat faces in the modelling program if the shape matters");
+  }
+  if (!r.crossing_lines.empty()) {
+    std::vector<std::string> lines;
+    for (std::size_t line : r.crossing_lines) lines.push_back(std::to_string(line));
+    warnings->push_back(at_line(name, r.crossing_lines.front()) + surface +
+                        std::to_string(lines.size()) + " polygon(s) cross themselves (lines " +
+                        join_at_most(lines, 5) +
+                        "): no clean cut into triangles exists, the rest of each was cut as a "
+                        "fan and may cover area outside the outline; redraw them");
+  }
 }
 
 // Adds surface `s` of the grouped triangles to the scene, dropping triangles whose area is at
@@ -441,6 +523,41 @@ class CheckedMaterialReader : public tinyobj::MaterialReader {
   std::string dir_;
 };
 
+// Sizes of what the tool models (a small kiln to a large hall), for the size check of the
+// mesh unit: bounding-box diagonals outside this range are taken for a wrong unit (common
+// practice, no source).
+constexpr double kSmallestModel = 0.05, kLargestModel = 200;  // m
+
+// A warning when the model's size is implausible in its unit (a furnace drawn in mm read as
+// metres is kilometres across), suggesting the unit that gives the size nearest a few metres.
+void check_size(const Scene& scene, const std::string& name, LengthUnit unit,
+                std::vector<std::string>* warnings) {
+  const double d = scene.bounds.diagonal();
+  if (!(d < kSmallestModel || d > kLargestModel)) return;
+  const double in_file = d / metres_per(unit);
+  LengthUnit best = unit;
+  double best_distance = INFINITY;
+  for (LengthUnit u :
+       {LengthUnit::mm, LengthUnit::cm, LengthUnit::m, LengthUnit::in, LengthUnit::ft}) {
+    const double size = in_file * metres_per(u);
+    const double distance = std::fabs(std::log(size / 3.0));  // nearest 3 m, by ratio
+    if (size >= kSmallestModel && size <= kLargestModel && distance < best_distance)
+      best = u, best_distance = distance;
+  }
+  std::string text = name + ": the model is " + rounded("%.4g", d) +
+                     " m across (bounding-box diagonal, coordinates read in " + to_string(unit) +
+                     "); a furnace, kiln or room is 0.05 to 200 m.";
+  if (best != unit) {
+    const std::string u = to_string(best);
+    text += " If the coordinates are in " + u + " (" + rounded("%.4g", in_file * metres_per(best)) +
+            " m across), give the unit: --unit " + u + " for a bare mesh, or unit = \"" + u +
+            "\" in [mesh] of the scene file";
+  } else {
+    text += " Check the unit of the coordinates";
+  }
+  warnings->push_back(text);
+}
+
 Scene build_scene(const std::string& text, const std::string& name, const std::string& mtl_dir,
                   bool from_file, const MeshOptions& options) {
   if (!(options.degenerate_relative_area >= 0) ||
@@ -464,7 +581,7 @@ Scene build_scene(const std::string& text, const std::string& name, const std::s
   const bool read_materials = from_file && options.surfaces_from == SurfacesFrom::materials;
   tinyobj::MaterialReader* reader = read_materials ? &file_reader : nullptr;
   const bool ok = tinyobj::LoadObj(&attrib, &shapes, &materials, &warn, &err, &in, reader,
-                                   /*triangulate=*/true);
+                                   /*triangulate=*/false);
   if (!ok) throw InputError(name + ": cannot read the mesh: " + trim(err));
   if (attrib.vertices.size() != 3 * scan.vertices.size()) {
     throw InputError(name + ": cannot read the mesh: vertex lines were read inconsistently (" +
@@ -482,15 +599,18 @@ Scene build_scene(const std::string& text, const std::string& name, const std::s
   scene.vertices.reserve(scan.vertices.size());
   for (const Vec3& p : scan.vertices) scene.vertices.push_back(p * scale);
   const GroupedTriangles grouped =
-      group_triangles(shapes, materials, scene.vertices, name, options);
+      group_triangles(shapes, materials, scene.vertices, scan, name, options);
 
   // Scale-free threshold: the same mesh in any unit drops the same triangles.
   const double diagonal = grouped.used_bounds.diagonal();
   check_scale(diagonal, name, options);
   const double threshold = options.degenerate_relative_area * diagonal * diagonal;
-  for (std::uint32_t s = 0; s < grouped.names.size(); ++s)
+  for (std::uint32_t s = 0; s < grouped.names.size(); ++s) {
+    polygon_warnings(grouped, s, name, options.unit, &scene.warnings);
     add_surface(grouped, s, threshold, name, &scene);
+  }
   check_usable(scene, name);
+  check_size(scene, name, options.unit, &scene.warnings);
   return scene;
 }
 
@@ -533,73 +653,6 @@ std::vector<std::string> Scene::surface_names() const {
   out.reserve(surfaces.size());
   for (const Surface& s : surfaces) out.push_back(s.name);
   return out;
-}
-
-MeshTopology analyse_topology(const Scene& scene) {
-  MeshTopology topology;
-  const auto& vertices = scene.vertices;
-
-  // Weld vertices by exact position: sort once, equal neighbours share an id (O(n log n)).
-  std::vector<std::uint32_t> order(vertices.size());
-  std::iota(order.begin(), order.end(), 0u);
-  auto less = [&](std::uint32_t a, std::uint32_t b) {
-    const Vec3& p = vertices[a];
-    const Vec3& q = vertices[b];
-    if (p.x != q.x) return p.x < q.x;
-    if (p.y != q.y) return p.y < q.y;
-    return p.z < q.z;
-  };
-  std::sort(order.begin(), order.end(), less);
-  std::vector<std::uint32_t> weld(vertices.size());
-  std::uint32_t id = 0;
-  for (std::size_t i = 0; i < order.size(); ++i) {
-    if (i > 0 && !(vertices[order[i]] == vertices[order[i - 1]])) ++id;
-    weld[order[i]] = id;
-  }
-
-  std::vector<std::uint64_t> edges;
-  std::vector<std::uint64_t> one_sided_edges;  // edges of one-sided surfaces only
-  std::vector<std::array<std::uint32_t, 3>> faces;
-  edges.reserve(3 * scene.triangles.size());
-  faces.reserve(scene.triangles.size());
-  for (const Triangle& t : scene.triangles) {
-    std::array<std::uint32_t, 3> w{weld[t.v[0]], weld[t.v[1]], weld[t.v[2]]};
-    for (int k = 0; k < 3; ++k) {
-      std::uint32_t a = w[k], b = w[(k + 1) % 3];
-      if (a == b) continue;
-      if (a > b) std::swap(a, b);
-      edges.push_back((static_cast<std::uint64_t>(a) << 32) | b);
-      if (!scene.surfaces[t.surface].two_sided) one_sided_edges.push_back(edges.back());
-    }
-    std::sort(w.begin(), w.end());
-    faces.push_back(w);
-  }
-
-  std::sort(edges.begin(), edges.end());
-  for (std::size_t i = 0; i < edges.size();) {
-    std::size_t j = i;
-    while (j < edges.size() && edges[j] == edges[i]) ++j;
-    const std::size_t uses = j - i;
-    if (uses == 1) ++topology.boundary_edges;
-    if (uses > 2) ++topology.nonmanifold_edges;
-    i = j;
-  }
-  std::sort(one_sided_edges.begin(), one_sided_edges.end());
-  bool one_sided_manifold = !one_sided_edges.empty();
-  for (std::size_t i = 0; i < one_sided_edges.size() && one_sided_manifold;) {
-    std::size_t j = i;
-    while (j < one_sided_edges.size() && one_sided_edges[j] == one_sided_edges[i]) ++j;
-    one_sided_manifold = j - i == 2;
-    i = j;
-  }
-  topology.one_sided_closed = one_sided_manifold;
-  std::sort(faces.begin(), faces.end());
-  for (std::size_t i = 1; i < faces.size(); ++i) {
-    if (faces[i] == faces[i - 1]) ++topology.duplicate_triangles;
-  }
-  topology.closed =
-      !scene.triangles.empty() && topology.boundary_edges == 0 && topology.nonmanifold_edges == 0;
-  return topology;
 }
 
 }  // namespace hearthray

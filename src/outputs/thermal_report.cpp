@@ -10,6 +10,7 @@
 
 #include "core/text.hpp"
 #include "hearthray/io.hpp"
+#include "hearthray/outer_case.hpp"
 #include "hearthray/units.hpp"
 
 namespace hearthray {
@@ -65,6 +66,51 @@ const char* side_name(Side side) {
   return side == Side::front ? "front" : "back";
 }
 
+// The units of one report.
+struct Shown {
+  ResultUnit T, P, q, A;
+  explicit Shown(UnitSystem u)
+      : T(result_unit(u, ResultKind::temperature)),
+        P(result_unit(u, ResultKind::power)),
+        q(result_unit(u, ResultKind::heat_flux)),
+        A(result_unit(u, ResultKind::area)) {}
+};
+
+// The energy balance, each flow on its own line: what is put in, where it is taken out.
+void print_balance(std::ostream& out, const HeatBalance& b, const Shown& u) {
+  const double relative = b.largest_W > 0 ? b.residual_W / b.largest_W : 0.0;
+  auto row = [&](const std::string& label, double watts_value, const std::string& where) {
+    out << "  " << pad(label, 42, false) << pad(watts(u.P.from_si(watts_value)), 14, true) << " "
+        << u.P.label << (where.empty() ? "" : "  (" + where + ")") << "\n";
+  };
+  out << "energy balance (each flow separately; heat put in = the other lines summed)\n";
+  row("heat put in (gross)", b.gross_input_W,
+      b.sources.empty() ? "none" : join_at_most(b.sources, 5));
+  row("heat taken by loads and sinks", b.taken_out_W,
+      b.sinks.empty() ? "none" : join_at_most(b.sinks, 5));
+  row("wall losses (through the walls)", b.wall_loss_W, "");
+  row("convection to the fluids", b.convection_W, "");
+  row("radiation out of the openings", b.to_surroundings_W, "to the surroundings");
+  out << "  " << pad("residual", 42, false)
+      << pad(rounded("%.3g", u.P.from_si(b.residual_W)), 14, true) << " " << u.P.label << "  ("
+      << rounded("%.2g", std::abs(relative)) << " of the largest flow)\n\n";
+}
+
+// Outer case temperatures of the walls that lose heat, with a warning where they burn.
+void print_outer_cases(std::ostream& out, const std::vector<OuterCase>& cases, const Shown& u) {
+  if (cases.empty()) return;
+  out << "outer case (from each wall's largest loss flux; natural convection by Churchill & Chu "
+         "1975 plus radiation, emissivity "
+      << rounded("%.2g", kCaseEmissivity) << ", to a room at the wall's outside temperature)\n";
+  for (const OuterCase& c : cases) {
+    out << "  " << pad(c.surface, 20, false)
+        << pad(rounded("%.1f", u.T.from_si(c.temperature_K)), 8, true) << " " << u.T.label
+        << "  at " << watts(u.q.from_si(c.flux_W_m2)) << " " << u.q.label
+        << (c.hazard == TouchHazard::none ? "" : "  WARNING: " + hazard_text(c.hazard)) << "\n";
+  }
+  out << "  the wall loss leaves out the outside film, so these are upper bounds\n\n";
+}
+
 }  // namespace
 
 std::string to_string(ExchangeStatus status) {
@@ -79,68 +125,78 @@ std::string to_string(ExchangeStatus status) {
   return "unknown";
 }
 
-void print_solve_table(std::ostream& out, const std::vector<SurfaceHeat>& surfaces,
-                       const HeatBalance& balance, const ExchangeResult& result) {
-  struct Column {
-    const char* title;
-    const char* unit;
-  };
-  const Column columns[] = {{"area", "m2"},       {"emissivity", ""},    {"T", "C"},
-                            {"T", "K"},           {"radiosity", "W/m2"}, {"irradiation", "W/m2"},
-                            {"net flux", "W/m2"}, {"net rad.", "W"},     {"convection", "W"},
-                            {"wall loss", "W"},   {"heat input", "W"}};
+std::string solved_picture_title(const std::string& quantity, const std::string& unit,
+                                 const std::string& where, bool converged) {
+  std::string what = quantity;
+  if (!what.empty() && what[0] >= 'a' && what[0] <= 'z') what[0] = char(what[0] - 'a' + 'A');
+  if (!unit.empty() && unit != "-") what += " in " + unit;
+  return what + ", " + where +
+         (converged ? " (solve converged)" : " \u2014 NOT CONVERGED, not an answer");
+}
+
+namespace {
+
+// One line per surface, under two header lines (titles, units).
+void print_surface_rows(std::ostream& out, const std::vector<SurfaceHeat>& surfaces,
+                        const Shown& u) {
+  const std::pair<const char*, std::string> columns[] = {
+      {"area", u.A.label},       {"emissivity", ""},
+      {"T", u.T.label},          {"T", "K"},
+      {"radiosity", u.q.label},  {"irradiation", u.q.label},
+      {"net flux", u.q.label},   {"net rad.", u.P.label},
+      {"convection", u.P.label}, {"wall loss", u.P.label},
+      {"heat input", u.P.label}};
   std::size_t name_width = 7;
-  bool any_two_sided = false;
-  for (const SurfaceHeat& s : surfaces) {
-    name_width = std::max(name_width, s.name.size() + 2);
-    any_two_sided = any_two_sided || s.two_sided;
-  }
+  for (const SurfaceHeat& s : surfaces) name_width = std::max(name_width, s.name.size() + 2);
   std::string titles = pad("surface", name_width, false), units(name_width, ' ');
-  for (const Column& c : columns) {
-    titles += pad(c.title, kWidth, true);
-    units += pad(c.unit, kWidth, true);
+  for (const auto& [title, unit] : columns) {
+    titles += pad(title, kWidth, true);
+    units += pad(unit, kWidth, true);
   }
   out << titles << "\n" << units << "\n";
   for (const SurfaceHeat& s : surfaces) {
     std::string line = pad(s.name + (s.two_sided ? " *" : ""), name_width, false);
-    const std::string cells[] = {rounded("%.4g", s.area_m2),
+    const std::string cells[] = {rounded("%.4g", u.A.from_si(s.area_m2)),
                                  rounded("%.3g", s.emissivity),
-                                 rounded("%.1f", s.temperature_K - kZeroCelsius),
+                                 rounded("%.1f", u.T.from_si(s.temperature_K)),
                                  rounded("%.1f", s.temperature_K),
-                                 watts(s.radiosity_W_m2),
-                                 watts(s.irradiation_W_m2),
-                                 watts(s.net_flux_W_m2),
-                                 watts(s.net_W),
-                                 watts(s.convection_W),
-                                 watts(s.wall_loss_W),
-                                 watts(s.heat_input_W)};
+                                 watts(u.q.from_si(s.radiosity_W_m2)),
+                                 watts(u.q.from_si(s.irradiation_W_m2)),
+                                 watts(u.q.from_si(s.net_flux_W_m2)),
+                                 watts(u.P.from_si(s.net_W)),
+                                 watts(u.P.from_si(s.convection_W)),
+                                 watts(u.P.from_si(s.wall_loss_W)),
+                                 watts(u.P.from_si(s.heat_input_W))};
     for (const std::string& c : cells) line += pad(c, kWidth, true);
     out << line << "\n";
   }
+}
+
+}  // namespace
+
+void print_solve_table(std::ostream& out, const std::vector<SurfaceHeat>& surfaces,
+                       const HeatBalance& balance, const ExchangeResult& result,
+                       const std::vector<OuterCase>& cases, UnitSystem units) {
+  const Shown u(units);
+  print_surface_rows(out, surfaces, u);
+  bool any_two_sided = false;
+  for (const SurfaceHeat& s : surfaces) any_two_sided = any_two_sided || s.two_sided;
   for (const SurfaceHeat& s : surfaces) {
     if (s.pieces <= 1) continue;
     out << "  " << s.name << ": " << s.pieces << " patches; T above is their area-weighted mean, "
-        << "they range from " << rounded("%.1f", s.temperature_min_K - kZeroCelsius) << " to "
-        << rounded("%.1f", s.temperature_max_K - kZeroCelsius) << " C (each in surfaces.csv)\n";
+        << "they range from " << rounded("%.1f", u.T.from_si(s.temperature_min_K)) << " to "
+        << rounded("%.1f", u.T.from_si(s.temperature_max_K)) << " " << u.T.label
+        << " (each in surfaces.csv)\n";
   }
   if (any_two_sided) {
-    out << "* two-sided: both faces on one line (W/m2 averaged over them, W summed); each face "
-           "is in surfaces.csv\n";
+    out << "* two-sided: both faces on one line (" << u.q.label << " averaged over them, "
+        << u.P.label << " summed); each face is in surfaces.csv\n";
   }
   out << "net rad.: net heat leaving by radiation; heat input = net rad. + convection + wall "
          "loss (positive: heat put into the surface)\n\n";
 
-  const double relative = balance.largest_W > 0 ? balance.residual_W / balance.largest_W : 0.0;
-  out << "energy balance\n"
-      << "  heat put in, all surfaces       " << pad(watts(balance.heat_input_W), 14, true)
-      << " W\n"
-      << "  to the fluids by convection     " << pad(watts(balance.convection_W), 14, true)
-      << " W\n"
-      << "  through the walls               " << pad(watts(balance.wall_loss_W), 14, true) << " W\n"
-      << "  radiation to the surroundings   " << pad(watts(balance.to_surroundings_W), 14, true)
-      << " W\n"
-      << "  residual                        " << pad(rounded("%.3g", balance.residual_W), 14, true)
-      << " W (" << rounded("%.2g", std::abs(relative)) << " of the largest flow)\n\n";
+  print_balance(out, balance, u);
+  print_outer_cases(out, cases, u);
 
   out << "solver: ";
   if (result.status == ExchangeStatus::converged) {
@@ -150,15 +206,22 @@ void print_solve_table(std::ostream& out, const std::vector<SurfaceHeat>& surfac
         << " after " << result.iterations << " Newton iteration(s): the values above are not "
         << "an answer";
   }
-  out << "; largest node residual " << rounded("%.3g", result.final_residual_W) << " W\n";
+  out << "; largest node residual " << rounded("%.3g", u.P.from_si(result.final_residual_W)) << " "
+      << u.P.label << "\n";
   if (!result.message.empty()) out << "  " << result.message << "\n";
   out << "\ncaution: " << kEngineeringCaution << "\n";
 }
 
-void write_surfaces_csv(std::ostream& out, const ThermalModel& model,
-                        const ExchangeResult& result) {
-  out << "surface,face,side,area_m2,emissivity,temperature_K,temperature_C,radiosity_W_m2,"
-         "irradiation_W_m2,net_flux_W_m2,net_W,convection_W,wall_loss_W,heat_input_W\n";
+void write_surfaces_csv(std::ostream& out, const ThermalModel& model, const ExchangeResult& result,
+                        UnitSystem units) {
+  // The unit of each column is in its name: temperature_F, net_Btu_h, ...
+  const Shown u(units);
+  const std::string q = "_" + u.q.key, P = "_" + u.P.key;
+  out << "surface,face,side,area_" << u.A.key << ",emissivity,temperature_K,temperature_" << u.T.key
+      << ",radiosity" << q << ",irradiation" << q << ",net_flux" << q << ",net" << P
+      << ",convection" << P << ",wall_loss" << P << ",heat_input" << P << ",converged\n";
+  // Every row says whether the solve converged: a row copied out of the file keeps it.
+  const char* converged = result.status == ExchangeStatus::converged ? "yes" : "no";
   std::vector<double> node_area(model.nodes.size(), 0.0);
   for (std::size_t f = 0; f < model.faces.size(); ++f) {
     node_area[model.faces[f].node] += model.factors.areas[f];
@@ -171,11 +234,13 @@ void write_surfaces_csv(std::ostream& out, const ThermalModel& model,
     const double convection = n.convection_W * share, wall = n.wall_loss_W * share;
     out << csv_field(model.surface_names[model.node_surface[k]]) << ","
         << csv_field(model.factors.names[f]) << "," << side_name(model.face_side[f]) << ","
-        << shortest(model.factors.areas[f]) << "," << shortest(model.faces[f].emissivity) << ","
-        << shortest(n.temperature_K) << "," << shortest(n.temperature_K - kZeroCelsius) << ","
-        << shortest(face.radiosity) << "," << shortest(face.irradiation) << ","
-        << shortest(face.net_flux) << "," << shortest(face.net_power) << "," << shortest(convection)
-        << "," << shortest(wall) << "," << shortest(face.net_power + convection + wall) << "\n";
+        << shortest(u.A.from_si(model.factors.areas[f])) << ","
+        << shortest(model.faces[f].emissivity) << "," << shortest(n.temperature_K) << ","
+        << shortest(u.T.from_si(n.temperature_K)) << "," << shortest(u.q.from_si(face.radiosity))
+        << "," << shortest(u.q.from_si(face.irradiation)) << ","
+        << shortest(u.q.from_si(face.net_flux)) << "," << shortest(u.P.from_si(face.net_power))
+        << "," << shortest(u.P.from_si(convection)) << "," << shortest(u.P.from_si(wall)) << ","
+        << shortest(u.P.from_si(face.net_power + convection + wall)) << "," << converged << "\n";
   }
 }
 
@@ -256,6 +321,45 @@ json surfaces_json(const ThermalModel& model, const ExchangeResult& result) {
   return surfaces;
 }
 
+json balance_json(const HeatBalance& b) {
+  return {{"gross_input_W", b.gross_input_W},
+          {"taken_by_loads_and_sinks_W", b.taken_out_W},
+          {"wall_loss_W", b.wall_loss_W},
+          {"convection_W", b.convection_W},
+          {"to_surroundings_W", b.to_surroundings_W},
+          {"residual_W", b.residual_W},
+          {"heat_input_W", b.heat_input_W},
+          {"sources", b.sources},
+          {"sinks", b.sinks},
+          {"largest_W", b.largest_W},
+          {"relative_residual", b.largest_W > 0 ? b.residual_W / b.largest_W : 0.0},
+          {"meaning",
+           "gross_input_W = taken_by_loads_and_sinks_W + wall_loss_W + convection_W + "
+           "to_surroundings_W + residual_W; heat_input_W is gross input less what is taken"}};
+}
+
+json outer_case_json(const std::vector<OuterCase>& cases) {
+  json list = json::array();
+  for (const OuterCase& c : cases) {
+    list.push_back({{"surface", c.surface},
+                    {"wall_loss_flux_W_m2", c.flux_W_m2},
+                    {"room_K", c.room_K},
+                    {"temperature_K", c.temperature_K},
+                    {"temperature_C", c.temperature_K - kZeroCelsius},
+                    {"convection_h_W_m2K", c.convection_h},
+                    {"hot_to_touch", c.hazard != TouchHazard::none},
+                    {"warning", hazard_text(c.hazard)}});
+  }
+  return {
+      {"method",
+       "case temperature that gives off the largest wall-loss flux of the surface by natural "
+       "convection (Churchill & Chu 1975, vertical plate as tall as the model) and radiation "
+       "(emissivity 0.9) to a room at the wall's outside temperature; an upper bound, as the "
+       "wall loss leaves out the outside film"},
+      {"touch_thresholds", "ISO 13732-1: 65 C bare metal about 1 s, 48 C about 10 min (recalled)"},
+      {"surfaces", list}};
+}
+
 }  // namespace
 
 void write_solve_json(std::ostream& out, const SolveReportInfo& info, const ThermalModel& model,
@@ -272,14 +376,8 @@ void write_solve_json(std::ostream& out, const SolveReportInfo& info, const Ther
                    {"iterations", result.iterations},
                    {"final_residual_W", result.final_residual_W}};
   doc["surfaces"] = surfaces_json(model, result);
-  const HeatBalance b = heat_balance(result);
-  doc["balance"] = {{"heat_input_W", b.heat_input_W},
-                    {"convection_W", b.convection_W},
-                    {"wall_loss_W", b.wall_loss_W},
-                    {"to_surroundings_W", b.to_surroundings_W},
-                    {"residual_W", b.residual_W},
-                    {"largest_W", b.largest_W},
-                    {"relative_residual", b.largest_W > 0 ? b.residual_W / b.largest_W : 0.0}};
+  doc["balance"] = balance_json(heat_balance(model, result));
+  doc["outer_case"] = outer_case_json(outer_cases(model, result, info.model_height_m));
   doc["notes"] = info.notes;
   out << doc.dump(2, ' ', false, json::error_handler_t::replace) << "\n";
 }
@@ -315,6 +413,20 @@ std::vector<PatchField> solve_fields(const ThermalModel& model, const ExchangeRe
     error.values[f] = f < vf.rays.size() && vf.rays[f] > 0 ? worst : NAN;
   }
   return {temperature, net, irradiation, radiosity, input, error};
+}
+
+PatchField shown_in(const PatchField& field, UnitSystem units) {
+  PatchField out = field;
+  if (field.unit == "\u00b0C") {
+    const ResultUnit T = result_unit(units, ResultKind::temperature);
+    for (double& v : out.values) v = T.from_si(v + kZeroCelsius);
+    out.unit = T.text;
+  } else if (field.unit == "W/m\u00b2") {
+    const ResultUnit q = result_unit(units, ResultKind::heat_flux);
+    for (double& v : out.values) v = q.from_si(v);
+    out.unit = q.text;
+  }
+  return out;
 }
 
 }  // namespace hearthray

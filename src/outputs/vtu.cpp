@@ -159,7 +159,7 @@ std::string vtu_array_name(const PatchField& field) {
 }
 
 void write_vtu(const std::string& path, const Scene& scene, const PatchSet& patches,
-               const std::vector<PatchField>& fields) {
+               const std::vector<PatchField>& fields, const std::vector<VtuFlag>& field_data) {
   std::set<std::string> names{"surface", "patch", "side"};
   for (const PatchField& field : fields) {
     check_field(field, patches);
@@ -181,6 +181,15 @@ void write_vtu(const std::string& path, const Scene& scene, const PatchSet& patc
                  s + 1 < scene.surfaces.size() ? "," : "");
   std::fputs(" -->\n", f);
   std::fputs("  <UnstructuredGrid>\n", f);
+  if (!field_data.empty()) {
+    std::fputs("    <FieldData>\n", f);
+    for (const VtuFlag& flag : field_data)
+      std::fprintf(f,
+                   "      <DataArray type=\"Int32\" Name=\"%s\" NumberOfTuples=\"1\" "
+                   "format=\"ascii\">%ld</DataArray>\n",
+                   xml_escape(flag.name).c_str(), static_cast<long>(flag.value));
+    std::fputs("    </FieldData>\n", f);
+  }
   std::fprintf(f, "    <Piece NumberOfPoints=\"%zu\" NumberOfCells=\"%zu\">\n", l.points.size(),
                l.cell_patch.size());
   write_points(f, scene, l);

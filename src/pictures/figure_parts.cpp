@@ -5,6 +5,7 @@
 #include <cstdio>
 #include <cstdlib>
 
+#include "core/text.hpp"
 #include "pictures/canvas.hpp"
 
 namespace hearthray::pictures {
@@ -63,9 +64,8 @@ std::vector<std::string> wrap_text(const Canvas& canvas, const std::string& utf8
 }
 
 std::string format_number(double value, int decimals) {
-  char text[64];
-  std::snprintf(text, sizeof text, "%.*f", std::clamp(decimals, 0, 12), value);
-  std::string s = text;
+  const std::string spec = "%." + std::to_string(std::clamp(decimals, 0, 12)) + "f";
+  std::string s = rounded(spec.c_str(), value);
   if (s[0] == '-') {
     s.erase(0, 1);
     if (std::strtod(s.c_str(), nullptr) != 0) s = "\u2212" + s;  // no "−0"

@@ -2,6 +2,7 @@
 // comfort figures.
 #include <stdexcept>
 
+#include "core/text.hpp"
 #include "pipeline/pipeline_run.hpp"
 
 namespace hearthray {
@@ -35,6 +36,44 @@ void build_model(const ThermalInput& thermal, const PipelineOptions& options, So
   factors.max_correction_sigma = correction;
 }
 
+// A surface is refused as flipped when more than this share of the rays reaching it (and at
+// least kBackHitsSeen of them) arrive on its back: its front faces away from the rest of
+// the scene. A smaller share is a surface partly seen from behind (a warning).
+constexpr double kFlippedShare = 0.5;
+constexpr std::uint64_t kBackHitsSeen = 100;
+
+// Throws RefusedInput naming the surfaces whose rays mostly arrive on their back, unless the
+// scene file says so is intended (expect_back_hits = true). Without this, a flipped wall in a
+// scene with [surroundings] sends its heat "to the surroundings" and the solve looks fine.
+void refuse_flipped(const SolvedScene& s) {
+  std::vector<std::string> flipped;
+  std::string first;
+  for (std::size_t i = 0; i < s.run.diagnostics.surfaces.size(); ++i) {
+    const SurfaceRayReport& r = s.run.diagnostics.surfaces[i];
+    if (r.touching || r.back_face_hits < kBackHitsSeen ||
+        !(double(r.back_face_hits) > kFlippedShare * double(r.arrivals)))
+      continue;
+    const SurfaceSpec* spec = s.file.find(r.name);
+    if ((spec && spec->expect_back_hits) || s.file.defaults.expect_back_hits) continue;
+    flipped.push_back("'" + r.name + "' (" +
+                      percent(double(r.back_face_hits) / double(r.arrivals)) + ")");
+    if (first.empty()) first = r.name;
+  }
+  if (flipped.empty()) return;
+  throw RefusedInput(
+      scene_name(s.file) + ": most rays reaching surface(s) " + join(flipped) +
+          " arrive on their back side: their fronts face away from the rest of the scene, so "
+          "they would radiate out of the model and the heat flows would be wrong. Fix the "
+          "normals first: flip the faces of these surfaces in the modelling program (the "
+          "front is the side from which the corners run counter-clockwise; hearthray check "
+          "shows where the rays land). A thin sheet seen from both sides is two_sided = true "
+          "in [surface." +
+          first +
+          "]. Only if the back is meant to be hit, say expect_back_hits = true there; and only "
+          "if radiation really leaves the scene, give [surroundings]",
+      s.run.diagnostics.warnings);
+}
+
 }  // namespace
 
 SolvedScene model_scene(SceneFile file, Scene scene, const PipelineOptions& options) {
@@ -46,6 +85,7 @@ SolvedScene model_scene(SceneFile file, Scene scene, const PipelineOptions& opti
     const ThermalInput thermal = thermal_input(s.file, scene);
     s.run = pipeline_detail::factor_run(s.file, scene, options);
     s.run.tallies = Tallies{};  // smoothed (and cached): the counts are no longer needed
+    refuse_flipped(s);
     Reporter(options).start(PipelineStage::thermal_model);
     build_model(thermal, options, &s);
     // A leak folded back into a closed enclosure is reported by the model's note, not as
@@ -53,7 +93,8 @@ SolvedScene model_scene(SceneFile file, Scene scene, const PipelineOptions& opti
     for (const Warning& w : s.run.warnings) {
       if (!(s.model.leaks_folded && w.kind == WarningKind::leak)) s.warnings.push_back(w);
     }
-    s.notes = s.run.notes;
+    s.notes = defaults_taken(s.file, s.run.scene);
+    s.notes.insert(s.notes.end(), s.run.notes.begin(), s.run.notes.end());
     s.notes.insert(s.notes.end(), s.model.notes.begin(), s.model.notes.end());
     return s;
   });
