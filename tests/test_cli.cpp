@@ -1,6 +1,7 @@
 // The command-line tool end to end: outputs by extension, bitwise-identical files for any
 // thread count, and a clear `error:` with a non-zero exit for bad input.
 #include <catch2/catch.hpp>
+#include <sstream>
 #include <string>
 #include <vector>
 
@@ -118,4 +119,57 @@ TEST_CASE("the version flag prints the version CMake configured", "[cli]") {
   const auto r = run_cli("--version", dir);
   CHECK(r.status == 0);
   CHECK(r.out == std::string("hearthray ") + hearthray::kVersion + "\n");
+}
+
+TEST_CASE("factors writes the patch table and VTU beside the matrix, row i = patch i", "[cli]") {
+  const ScratchDir dir("cli-patches");
+  write_text(dir / "cube.obj", kCubeObj);
+  const auto r = run_cli("factors " + (dir / "cube.obj").string() + " --rays 5000 --quiet -o " +
+                             (dir / "F.csv").string() + " -o " + (dir / "F.mtx").string(),
+                         dir);
+  REQUIRE(r.status == 0);
+  // F.csv and F.mtx share the stem: one patch table and one VTU.
+  const std::string table = slurp(dir / "F.patches.csv");
+  const std::string vtu = slurp(dir / "F.patches.vtu");
+  REQUIRE(!table.empty());
+  CHECK(vtu.find("<DataArray type=\"String\" Name=\"surface_names\"") != std::string::npos);
+  CHECK(vtu.find("Name=\"patch\"") != std::string::npos);
+  // The matrix's rows (first field of each CSV line after the header) are the patches of the
+  // table in the same order; the cube's faces are 1 x 1 m (area 1) with inward normals.
+  std::istringstream matrix(slurp(dir / "F.csv")), patches(table);
+  std::string matrix_line, patch_line;
+  std::getline(matrix, matrix_line);
+  std::getline(patches, patch_line);
+  int row = 0;
+  while (std::getline(matrix, matrix_line)) {
+    REQUIRE(std::getline(patches, patch_line));
+    const std::string name = matrix_line.substr(0, matrix_line.find(','));
+    CHECK(patch_line.rfind(std::to_string(row) + "," + name + "," + name + ",", 0) == 0);
+    CHECK(patch_line.find(",front,1,") != std::string::npos);
+    ++row;
+  }
+  CHECK(row == 6);
+  CHECK(table.find("\n0,floor,floor,0,front,1,0.5,0.5,0,0,0,1,2\n") != std::string::npos);
+  CHECK(table.find("\n5,east,east,5,front,1,1,0.5,0.5,-1,0,0,2\n") != std::string::npos);
+}
+
+TEST_CASE("factors takes its tallies from the cache like solve", "[cli]") {
+  const ScratchDir dir("cli-factors-cache");
+  write_text(dir / "cube.obj", kCubeObj);
+  const std::string base = "factors " + (dir / "cube.obj").string() + " --rays 20000 -o ";
+  const auto first = run_cli(base + (dir / "a.csv").string(), dir);
+  REQUIRE(first.status == 0);
+  CHECK(first.out.find("stored in cache") != std::string::npos);
+  const auto second = run_cli(base + (dir / "b.csv").string(), dir);
+  REQUIRE(second.status == 0);
+  CHECK(second.out.find("view factors: from cache") != std::string::npos);
+  CHECK(slurp(dir / "a.csv") == slurp(dir / "b.csv"));
+  // Another seed is another key: traced again, different factors.
+  const auto other = run_cli(base + (dir / "c.csv").string() + " --seed 7", dir);
+  CHECK(other.out.find("stored in cache") != std::string::npos);
+  CHECK(slurp(dir / "a.csv") != slurp(dir / "c.csv"));
+  const auto uncached = run_cli(base + (dir / "d.csv").string() + " --no-cache", dir);
+  REQUIRE(uncached.status == 0);
+  CHECK(uncached.out.find("cache not used") != std::string::npos);
+  CHECK(slurp(dir / "a.csv") == slurp(dir / "d.csv"));
 }

@@ -250,7 +250,18 @@ TEST_CASE("comfort and compare commands run end to end", "[comfort]") {
 
   r = run_cli("compare " + (dir / "a.toml").string() + " " + (dir / "b.toml").string(), dir);
   REQUIRE(r.status == 0);
-  CHECK_THAT(r.out, Catch::Contains("share within limits") && Catch::Contains("b"));
+  CHECK_THAT(r.out, Catch::Contains("points within both limits") && Catch::Contains("b"));
+  // The named point is listed for each scene, and so are the points over a limit.
+  CHECK_THAT(r.out, Catch::Contains("at middle: t_o (C), limits") &&
+                        Catch::Contains("points over a limit:"));
+  // Maps side by side: every scene's, on one colour range per quantity.
+  r = run_cli("compare " + (dir / "a.toml").string() + " " + (dir / "b.toml").string() + " -q -o " +
+                  (dir / "maps").string() + " --range 15,45",
+              dir);
+  REQUIRE(r.status == 0);
+  CHECK_THAT(r.out, Catch::Contains("maps on one colour range each (mean radiant 15.0 to 45.0 C"));
+  for (const char* name : {"a_map_operative.png", "b_map_operative.png", "b_map_asymmetry.png"})
+    CHECK(std::filesystem::exists(dir / "maps" / name));
 
   write_text(dir / "none.toml", cube_scene(""));
   r = run_cli("comfort " + (dir / "none.toml").string(), dir);
@@ -280,4 +291,37 @@ TEST_CASE("comfort cautions say by their kind which are general", "[comfort]") {
   CHECK(cautions[2].kind == CautionKind::estimates);
   CHECK(cautions[1].general());
   CHECK(cautions[2].text == kComfortCaution);
+}
+
+TEST_CASE("comfort summary gives exact shares and lists the points over a limit", "[comfort]") {
+  // 224 points, one over the warm-ceiling limit: a percentage rounds that to "100 %"; the
+  // summary must say 223 of 224 and name the point.
+  std::vector<PointComfort> points(224);
+  for (std::size_t k = 0; k < points.size(); ++k) {
+    PointComfort& p = points[k];
+    p.point.name = "p_" + std::to_string(k);
+    p.point.grid_i = int(k % 16);
+    p.point.grid_j = int(k / 16);
+    p.point.position = {0.25 * double(k % 16), 0.25 * double(k / 16), 0.6};
+    p.mean_radiant.kelvin = p.operative_K = 295;
+    p.vertical.kind = AsymmetryCase::warm_ceiling;
+    p.vertical.limit_K = asymmetry_limit_K(AsymmetryCase::warm_ceiling);
+    p.vertical.delta_K = 1;
+    p.horizontal.kind = AsymmetryCase::cool_wall;
+    p.horizontal.limit_K = asymmetry_limit_K(AsymmetryCase::cool_wall);
+  }
+  points[17].vertical.delta_K = 5.04;  // just over the 5 K limit (ISO 7730, recalled)
+  const ComfortSummary s = summarise_comfort(points);
+  CHECK(s.count_both == 223);
+  REQUIRE(s.failing.size() == 1);
+  CHECK(s.failing[0] == &points[17]);
+  std::ostringstream out;
+  print_comfort_table(out, points, s);
+  CHECK_THAT(out.str(), Catch::Contains("both: 223 of 224") &&
+                            Catch::Contains("over a limit (1): p_17 (vertical 5.04 K, warm "
+                                            "ceiling, limit 5 K)"));
+  CHECK_THAT(out.str(), !Catch::Contains("100 %"));
+  // The asymmetry map's range reaches the limit, so the limit shows on its colour bar.
+  CHECK(map_range(points, MapQuantity::asymmetry).second >= 5);
+  CHECK(map_range(points, MapQuantity::asymmetry).first <= 0);
 }

@@ -289,6 +289,27 @@ TEST_CASE("colour map: lightness rises strictly, equal steps give nearly equal d
   CHECK(quantised(sequential_colour(7)) == quantised(sequential_colour(1)));
 }
 
+TEST_CASE("colour map: our own blue-teal-sand path, no purple and no saturated yellow",
+          "[render]") {
+  // Design facts of the map (our own; no published map copied): it runs from ink blue through
+  // teal to a pale cream. Hue angles h = atan2(b*, a*) in degrees: purple, magenta and red
+  // (300..360, 0..40) never where the colour has any chroma; the light end nearly neutral, so the
+  // map cannot pass for the common purple-to-yellow plotting default (whose light end is a
+  // saturated yellow, chroma far above 40, and whose middle is no teal).
+  for (int k = 0; k <= 100; ++k) {
+    const Lab c = lab_of(sequential_colour(k / 100.0));
+    const double chroma = std::hypot(c.a, c.b);
+    double hue = std::atan2(c.b, c.a) * 180 / 3.14159265358979323846;
+    if (hue < 0) hue += 360;
+    CAPTURE(k, c.L, c.a, c.b, hue, chroma);
+    CHECK(chroma < 40);
+    if (chroma > 8) CHECK((hue >= 40 && hue < 300));  // no purple, magenta or red
+  }
+  const Lab middle = lab_of(sequential_colour(0.5));
+  CHECK(middle.a < -5);  // teal
+  CHECK(std::hypot(lab_of(sequential_colour(1)).a, lab_of(sequential_colour(1)).b) < 20);
+}
+
 TEST_CASE("category palette: colours clearly apart", "[render]") {
   for (int i = 0; i < kCategoryColours; ++i)
     for (int j = i + 1; j < kCategoryColours; ++j) {
@@ -299,29 +320,46 @@ TEST_CASE("category palette: colours clearly apart", "[render]") {
   CHECK(quantised(category_colour(kCategoryColours)) == quantised(category_colour(0)));
 }
 
-TEST_CASE("render: the default view shows panels that face down from under a ceiling", "[render]") {
-  // Inside a closed box, two squares facing down just under the roof show only from below.
-  // From above three surfaces show (floor, two walls), from below five (roof, two walls, two
-  // panels): two more, so the default view is taken from below.
+TEST_CASE("render: the default view is from above and in front, never from under the hearth",
+          "[render]") {
+  // Inside a closed box, two heating elements face down just under the roof, as in a furnace
+  // with roof elements: they show only from below, where more surfaces show (roof, two walls,
+  // two elements against floor and two walls). The default still looks from above and in
+  // front (-y), at the hearth; a camera placed below shows the elements.
   std::string obj = testing::box_obj(3, 2, 1);
   obj +=
       "v 0.4 0.5 0.9\nv 1.4 0.5 0.9\nv 1.4 1.5 0.9\nv 0.4 1.5 0.9\n"
-      "g panel_1\nf -4 -1 -2 -3\n"  // clockwise seen from above: facing down
+      "g element_1\nf -4 -1 -2 -3\n"  // clockwise seen from above: facing down
       "v 1.6 0.5 0.9\nv 2.6 0.5 0.9\nv 2.6 1.5 0.9\nv 1.6 1.5 0.9\n"
-      "g panel_2\nf -4 -1 -2 -3\n";
-  const Scene scene = testing::load_obj_text(obj, "room");
+      "g element_2\nf -4 -1 -2 -3\n";
+  const Scene scene = testing::load_obj_text(obj, "furnace");
   const PatchSet patches = make_surface_patches(scene);
   const Tracer tracer(scene);
   std::vector<double> value(scene.surfaces.size(), 0.0);
-  for (const char* name : {"panel_1", "panel_2"}) {
+  for (const char* name : {"element_1", "element_2"}) {
     const int s = scene.find_surface(name);
     REQUIRE(s >= 0);
     REQUIRE(scene.normal(scene.surfaces[std::size_t(s)].first_triangle).z < -0.99);
     value[std::size_t(s)] = 1;
   }
-  const Image image =
-      render(scene, patches, tracer, values_field(patches, value), flat_options()).raster();
-  CHECK(pixels_of(image, quantised(sequential_colour(1))) > 200);
+  const Vec3 away = default_view_direction(scene, patches, tracer, flat_options());
+  CHECK(away.z > 0.4);   // above
+  CHECK(away.y < -0.4);  // in front
+  const PatchField field = values_field(patches, value);
+  // Pixels of the elements' colour in the model's part of the picture (the left half; the
+  // colour bar on the right holds every colour).
+  auto element_pixels = [&](const RenderOptions& o) {
+    const Image image = render(scene, patches, tracer, field, o).raster();
+    const Rgb want = quantised(sequential_colour(1));
+    int n = 0;
+    for (int y = 0; y < image.height; ++y)
+      for (int x = 0; x < image.width / 2; ++x) n += image.at(x, y) == want;
+    return n;
+  };
+  CHECK(element_pixels(flat_options()) == 0);
+  RenderOptions below = flat_options();
+  below.camera = Vec3{1.5, -4, -2.5};
+  CHECK(element_pixels(below) > 200);
 }
 
 TEST_CASE("fields: view factor to a surface sums over its patches, both sides", "[render]") {
@@ -377,7 +415,10 @@ TEST_CASE("render command: picture of the requested size, clear errors", "[rende
   CHECK(image.height == 150);
 
   CHECK(run("-o " + out + " --field temperature") == 2);
-  CHECK(err().find("error: unknown --field 'temperature'") != std::string::npos);
+  CHECK(err().find("error: --field temperature is a solved field: give --results DIR") !=
+        std::string::npos);
+  CHECK(run("-o " + out + " --field heat") == 2);
+  CHECK(err().find("error: unknown --field 'heat'") != std::string::npos);
   CHECK(run("-o " + out + " --field view-factor-to=ceiling") == 2);
   CHECK(err().find("floor, roof, south, north, west, east") != std::string::npos);
   CHECK(run("-o " + out + " --hide chimney") == 2);

@@ -258,6 +258,14 @@ power = "-50 kW"
   CHECK(csv.substr(0, csv.find('\n')).find(",converged") != std::string::npos);
   CHECK(csv.find(",yes\n") == std::string::npos);
   CHECK(csv.find(",no\n") != std::string::npos);
+  // A picture drawn later from these results says so in its title.
+  const CliResult pic =
+      run_cli("render " + (dir / "scene.toml").string() + " --results " + (dir / "out").string() +
+                  " --field temperature -o " + (dir / "t.png").string(),
+              dir);
+  CHECK(pic.status == 0);
+  CHECK(pic.out.find("title: Temperature in \u00b0C, scene.toml \u2014 NOT CONVERGED, not an "
+                     "answer") != std::string::npos);
   CHECK(slurp(dir / "out" / "patches.vtu")
             .find("Name=\"converged\" NumberOfTuples=\"1\" "
                   "format=\"ascii\">0<") != std::string::npos);
@@ -351,6 +359,26 @@ adiabatic = true
   CHECK(std::count(csv.begin(), csv.end(), '\n') == 1 + 6);
   CHECK(csv.find("east,east (back),back,") != std::string::npos);
   CHECK(csv.find(",yes\n") != std::string::npos);  // converged, on every row
+
+  // render draws the solved fields from these files, titled with what, where and the status;
+  // the same results on another scene's patches are refused.
+  const std::string render = "render " + (dir / "scene.toml").string() + " --results " +
+                             (dir / "out").string() + " -o " + (dir / "pic.png").string();
+  for (const char* field : {"temperature", "net-flux", "irradiation"}) {
+    const CliResult pic = run_cli(render + " --field " + field + " --units us", dir);
+    INFO(pic.err);
+    CHECK(pic.status == 0);
+    CHECK(pic.out.find("(solve converged)") != std::string::npos);
+  }
+  CHECK(run_cli(render + " --field temperature", dir).out.find("title: Temperature in \u00b0C") !=
+        std::string::npos);
+  write_text(dir / "other.toml", cube_scene(kGoodCube));
+  const CliResult other =
+      run_cli("render " + (dir / "other.toml").string() + " --results " + (dir / "out").string() +
+                  " --field temperature -o " + (dir / "pic.png").string(),
+              dir);
+  CHECK(other.status == 2);
+  CHECK(other.err.find("from another scene or patching") != std::string::npos);
   CHECK(csv.find(",no\n") == std::string::npos);
 }
 

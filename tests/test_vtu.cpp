@@ -122,6 +122,19 @@ TEST_CASE("VTU: cells per patch side, offsets, types, points and cell data", "[v
     CHECK(types.values[c] == 5);                      // VTK_TRIANGLE
   }
 
+  // The surface names as field data: each name's character codes, then a 0.
+  const Array names = data_array(xml, "surface_names");
+  CHECK(names.type == "String");
+  std::vector<std::string> decoded(1);
+  for (double code : names.values) {
+    if (code == 0)
+      decoded.emplace_back();
+    else
+      decoded.back() += char(int(code));
+  }
+  decoded.pop_back();
+  CHECK(decoded == scene.surface_names());
+
   const Array surface = data_array(xml, "surface");
   const Array patch = data_array(xml, "patch");
   const Array side = data_array(xml, "side");

@@ -4,7 +4,9 @@
 #pragma once
 
 #include <iosfwd>
+#include <optional>
 #include <string>
+#include <utility>
 #include <vector>
 
 #include "hearthray/comfort.hpp"
@@ -28,6 +30,10 @@ struct ComfortSummary {
   double within_vertical = 0;    // share of points (0..1) with vertical asymmetry within limit
   double within_horizontal = 0;  // the same, horizontal
   double within_both = 0;
+  // The same as exact counts, so that one point of 224 over its limit reads "223 of 224", not
+  // "100 %"; and the points over a limit, in input order.
+  std::size_t count_vertical = 0, count_horizontal = 0, count_both = 0;
+  std::vector<const PointComfort*> failing;
   const PointComfort* worst = nullptr;  // largest asymmetry relative to its limit
   double worst_ratio = 0;               // that asymmetry / its limit
 };
@@ -70,6 +76,11 @@ struct HeaterSummary {
 HeaterSummary summarise_heaters(const ThermalModel& model,
                                 const std::vector<SurfaceHeat>& surfaces);
 
+// "223 of 224" (an exact share, never rounded to 100 %).
+std::string share_text(std::size_t count, std::size_t of);
+// "g_3_4 (vertical 5.4 K, warm ceiling, limit 5 K)": a point over its limit and why.
+std::string failing_text(const PointComfort& p);
+
 // A floor-plan map of one quantity over the grid points (x right, y up), the room outline and
 // the plan outline of heated surfaces (white with a dark rim) and of surfaces whose name holds
 // "window" or "glass" (light blue) drawn over it; named points with their names; a colour bar
@@ -78,7 +89,14 @@ enum class MapQuantity { mean_radiant, operative, asymmetry };
 struct MapOptions {
   int pixels_per_metre = 100;
   std::vector<std::string> heaters;  // surface names drawn as heaters
+  // Colour range (°C for the temperature maps, K for asymmetry); by default the points' own.
+  // Maps compared side by side are given one range, so equal colours mean equal values.
+  std::optional<double> range_lo, range_hi;
+  std::string title_suffix;  // e.g. the scene's name, after the quantity in the title
 };
+// The points' own range of the map of `q` (the asymmetry map's reaching up to the smallest
+// limit that applies, so the limit shows on its colour bar).
+std::pair<double, double> map_range(const std::vector<PointComfort>& points, MapQuantity q);
 // Throws InputError when no point belongs to a grid.
 Picture comfort_map(const Scene& scene, const std::vector<PointComfort>& points, MapQuantity q,
                     const MapOptions& options);

@@ -41,7 +41,7 @@ void write_factors_npy(std::ostream& out, const ViewFactors& vf);
 void write_factors_json(std::ostream& out, const ViewFactors& vf, const FactorReportInfo& info);
 
 // Writes by extension (.csv, .mtx, .npy, .json); throws InputError for any other extension or
-// a file that cannot be written.
+// a file that cannot be written. The file is written under a temporary name and renamed.
 void write_factors_file(const std::string& path, const ViewFactors& vf,
                         const FactorReportInfo& info);
 

@@ -29,7 +29,9 @@ struct RenderOptions {
   int width = 800;  // pixels, the whole picture (colour bar and title included)
   int height = 600;
   // Camera, in metres in the scene's frame. Without a position the camera looks at the target
-  // from the direction (1, -1.4, 1) at the distance that frames the model's bounding box.
+  // from above and in front (from (+-1, -1.4, 1) for z up: front-right or front-left, whichever
+  // shows more surfaces), at the distance that frames the model's bounding box; never from
+  // below.
   std::optional<Vec3> camera;
   std::optional<Vec3> target;  // default: centre of the model's bounding box
   Vec3 up{0, 0, 1};
@@ -54,6 +56,11 @@ struct RenderOptions {
   bool IsValid(std::string* error) const;
 };
 
+// The direction from the target to the camera that render() takes when no camera position is
+// given (a unit vector).
+Vec3 default_view_direction(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
+                            const RenderOptions& options);
+
 // Throws InputError for invalid options, an unknown hidden surface or a field with the wrong
 // number of values.
 Picture render(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
@@ -63,9 +70,9 @@ Picture render(const Scene& scene, const PatchSet& patches, const Tracer& tracer
 struct Colour {
   double r = 0, g = 0, b = 0;
 };
-// The sequential colour map: t in [0, 1] (clamped) from dark blue-violet through red and
-// orange to pale yellow, with CIELAB lightness rising strictly and equal colour differences
-// for equal steps of t.
+// The sequential colour map: t in [0, 1] (clamped) from ink blue through teal and sand to
+// cream, with CIELAB lightness rising strictly and equal colour differences for equal steps
+// of t.
 Colour sequential_colour(double t);
 // The diverging colour map for signed quantities: t = 0.5 (zero) is a light neutral grey; below
 // it deep blue-green, above it deep copper-red, CIELAB lightness falling equally fast on both

@@ -79,6 +79,16 @@ std::string solved_picture_title(const std::string& quantity, const std::string&
 // with the surroundings [-].
 std::vector<PatchField> solve_fields(const ThermalModel& model, const ExchangeResult& result);
 
+// The solved fields of a solve's surfaces.csv (written with any --units), back on the patches
+// of the scene it solved: temperature [°C], net radiative flux, irradiation and radiosity
+// [W/m²], and whether that solve converged. Throws InputError naming the file when it cannot be
+// read, lacks a column, or its faces are not the patches (another scene or patching).
+struct SolvedFields {
+  std::vector<PatchField> fields;
+  bool converged = false;
+};
+SolvedFields read_solved_fields(const std::string& surfaces_csv, const PatchSet& patches);
+
 // A field of solve_fields in other units: temperature (°C) and heat fluxes (W/m²) converted,
 // the unit renamed ("°F", "Btu/(h·ft²)"); other fields unchanged.
 PatchField shown_in(const PatchField& field, UnitSystem units);

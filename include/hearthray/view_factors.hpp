@@ -24,11 +24,28 @@ struct TraceProgress {
   double seconds = 0;  // since tracing started
 };
 
+// How emitters draw their rays' origins and directions.
+//  stratified: independent random numbers, origins stratified by area along the triangle list
+//    (one stratum per ray); standard errors from the binomial formula.
+//  sobol: randomised quasi-Monte Carlo (sobol.hpp). A patch's N rays are split into
+//    kSobolReplicates consecutive replicates, each an independently Owen-scrambled Sobol'
+//    sequence keyed by (seed, patch, replicate); standard errors from the spread of the
+//    replicates (Owen, "Monte Carlo theory, methods and examples", ch. 17, randomised QMC).
+enum class EmissionSampler { stratified, sobol };
+inline constexpr std::uint32_t kSobolReplicates = 8;
+
+// First ray of replicate r (0..replicates) of a patch emitting `total` rays: floor(r N / R).
+inline std::uint64_t replicate_first_ray(std::uint64_t total, std::uint32_t r) {
+  const std::uint64_t q = total / kSobolReplicates, m = total % kSobolReplicates;
+  return q * r + m * r / kSobolReplicates;  // no overflow for any total
+}
+
 struct ViewFactorOptions {
   std::uint64_t rays_per_patch = kDefaultRaysPerPatch;  // rays emitted by every patch...
   std::vector<std::uint64_t> rays_for_patch;            // ...unless given here, one count per patch
   std::uint64_t seed = kDefaultSeed;                    // results depend on seed and rays only
-  int threads = 0;                                      // worker threads; 0 = all cores
+  EmissionSampler sampler = EmissionSampler::stratified;
+  int threads = 0;                  // worker threads; 0 = all cores
   std::uint32_t emitter_begin = 0;  // emitting patches [begin, end); end 0 = all
   std::uint32_t emitter_end = 0;
   TracerOptions tracer;
@@ -53,6 +70,12 @@ struct Tallies {
   // Per surface: rays from all emitters that arrived on the back of that one-sided surface.
   std::vector<std::uint64_t> back_face_hits_on_surface;
   std::vector<std::uint64_t> hits_on_surface;  // all arrivals (front and back) per surface
+  // Sampler sobol only (empty otherwise): per hit entry, and per row for the escaped and
+  // back-face rays, the sum over the replicates of the squared replicate estimate
+  // (c_r / M_r)^2, accumulated in replicate order (deterministic). With the estimate
+  // F = hits / rays it gives the replicates' spread, hence the standard error.
+  std::vector<double> hit_square;
+  std::vector<double> escaped_square, back_face_square;
 
   std::size_t rows() const { return rays.size(); }
 };
@@ -87,10 +110,13 @@ struct ViewFactors {
   std::vector<double> to_back_faces;    // per patch: fraction absorbed on back faces
   bool smoothed = false;                // reciprocity and closure enforced
   double max_correction_sigma = 0;      // largest smoothing change, in standard errors
+  // Sampler sobol: per row, the replicate standard error over the binomial one
+  // (replicate_error_ratio); empty for the stratified sampler.
+  std::vector<double> error_ratio;
 
   std::size_t size() const { return names.size(); }
   // Standard error of a factor estimated from `rays[i]` rays: sqrt(F(1-F)/N_i)
-  // (factor_standard_error in statistics.hpp).
+  // (factor_standard_error in statistics.hpp), times error_ratio[i] when there is one.
   double standard_error(std::size_t i, double f) const;
 
   // Eigen 3.4's SparseMatrix has no move operations: a "move" would copy a matrix that holds
@@ -110,9 +136,19 @@ struct ViewFactors {
     to_back_faces = std::move(other.to_back_faces);
     smoothed = other.smoothed;
     max_correction_sigma = other.max_correction_sigma;
+    error_ratio = std::move(other.error_ratio);
     return *this;
   }
 };
+
+// Sampler sobol: per row of the tallies, the standard error estimated from the spread of the
+// replicates over the binomial standard error, pooled over the row (escaped and back-face
+// rays included): sqrt(sum_j var_rep(F_ij) / sum_j F_ij (1 - F_ij) / N_i), with
+// var_rep(F) = (sum_r F_r^2 - R F^2) / (R (R - 1)) over the R replicates that have rays.
+// Pooled because one entry's variance from 8 replicates has 7 degrees of freedom (+-27 %);
+// the row's sum is steadier. Kept within [0.01, 100]; 1 where it is undefined (a row whose
+// rays all land in one place, fewer than 2 replicates). Empty for the stratified sampler.
+std::vector<double> replicate_error_ratio(const Tallies& tallies);
 
 // Raw estimate F_ij = hits_ij / N_i (no correction).
 ViewFactors raw_view_factors(const PatchSet& patches, const Tallies& tallies);

@@ -10,7 +10,9 @@
 // Cell data: "surface" (Int32, index into Scene::surfaces), "patch" (Int32, index into
 // PatchSet), "side" (Int32, 0 front, 1 back), then each field as Float64 named
 // "<name> [<unit>]" ("<name>" when the unit is empty). NaN values are written as "nan".
-// The surface names are listed in an XML comment after the header.
+// The surface names travel as field data of the grid: the String array "surface_names", entry
+// k the name of surface k (the cell data "surface"), and are listed in an XML comment after
+// the header. The file is written under a temporary name and renamed: it appears whole.
 #pragma once
 
 #include <string>

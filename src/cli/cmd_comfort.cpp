@@ -5,6 +5,8 @@
 #include <cstdio>
 #include <filesystem>
 #include <iostream>
+#include <map>
+#include <optional>
 #include <sstream>
 
 #include "commands.hpp"
@@ -80,6 +82,97 @@ void print_report(std::ostream& out, const ComfortRun& r) {
   for (const Caution& c : r.cautions) out << "  - " << c.text << "\n";
 }
 
+bool has_grid(const ComfortRun& r) {
+  return std::any_of(r.points.begin(), r.points.end(),
+                     [](const PointComfort& p) { return p.point.grid_i >= 0; });
+}
+
+using MapRanges = std::map<MapQuantity, std::pair<double, double>>;
+
+std::pair<double, double> given_range(const std::vector<double>& range) {
+  if (range.size() != 2 || !(range[0] < range[1]))
+    throw InputError("--range expects two numbers low,high (C) with low below high");
+  return {range[0], range[1]};
+}
+
+const std::pair<MapQuantity, const char*> kMaps[] = {
+    {MapQuantity::mean_radiant, "map_mean_radiant"},
+    {MapQuantity::operative, "map_operative"},
+    {MapQuantity::asymmetry, "map_asymmetry"}};
+
+// The three maps of one scene, named prefix + map name + extension, on the given ranges (the
+// points' own where none is given).
+void write_maps(const fs::path& dir, const std::string& prefix, const ComfortRun& r,
+                const MapRanges& ranges, const std::string& title_suffix,
+                const std::vector<std::string>& extensions, std::vector<std::string>* files) {
+  MapOptions options;
+  options.heaters = r.heater_names;
+  options.title_suffix = title_suffix;
+  for (const auto& [q, name] : kMaps) {
+    const auto it = ranges.find(q);
+    options.range_lo = it == ranges.end() ? std::nullopt : std::optional(it->second.first);
+    options.range_hi = it == ranges.end() ? std::nullopt : std::optional(it->second.second);
+    const Picture map = comfort_map(r.solved.run.scene, r.points, q, options);
+    for (const std::string& extension : extensions) {
+      write_picture((dir / (prefix + name + extension)).string(), map);
+      files->push_back(prefix + name + extension);
+    }
+  }
+}
+
+// compare -o: every scene's maps on one colour range per quantity (the union of the scenes'
+// own ranges, or --range for the temperatures), so equal colours mean equal values.
+void write_compared_maps(const ComfortArgs& args, const std::vector<ComfortRun>& runs,
+                         const std::vector<std::string>& names) {
+  const fs::path dir = make_output_dir(args.output_dir);
+  MapRanges ranges;
+  for (const auto& [q, name] : kMaps) {
+    std::pair<double, double> all{INFINITY, -INFINITY};
+    for (const ComfortRun& r : runs) {
+      if (!has_grid(r)) continue;
+      const auto [lo, hi] = map_range(r.points, q);
+      all = {std::min(all.first, lo), std::max(all.second, hi)};
+    }
+    if (all.first < all.second) ranges[q] = all;
+    if (!args.range.empty() && q != MapQuantity::asymmetry) ranges[q] = given_range(args.range);
+  }
+  std::vector<std::string> files;
+  for (std::size_t k = 0; k < runs.size(); ++k)
+    if (has_grid(runs[k]))
+      write_maps(dir, names[k] + "_", runs[k], ranges, " \u2014 " + names[k], {".png"}, &files);
+  std::cout << "\nmaps on one colour range each (mean radiant "
+            << rounded("%.1f", ranges[MapQuantity::mean_radiant].first) << " to "
+            << rounded("%.1f", ranges[MapQuantity::mean_radiant].second) << " C, operative "
+            << rounded("%.1f", ranges[MapQuantity::operative].first) << " to "
+            << rounded("%.1f", ranges[MapQuantity::operative].second) << " C, asymmetry "
+            << rounded("%.1f", ranges[MapQuantity::asymmetry].first) << " to "
+            << rounded("%.1f", ranges[MapQuantity::asymmetry].second) << " K) in " << dir.string()
+            << ": " << join(files) << "\n";
+}
+
+// Rows of the compare table for the named points (not the grid), by name, in the order they
+// first appear: operative temperature and whether within the limits at each.
+void named_point_rows(const std::vector<ComfortRun>& runs,
+                      std::vector<std::vector<std::string>>* rows) {
+  std::vector<std::string> names;
+  for (const ComfortRun& r : runs)
+    for (const PointComfort& p : r.points)
+      if (p.point.grid_i < 0 && std::find(names.begin(), names.end(), p.point.name) == names.end())
+        names.push_back(p.point.name);
+  for (const std::string& name : names) {
+    std::vector<std::string> row = {"at " + name + ": t_o (C), limits"};
+    for (const ComfortRun& r : runs) {
+      const auto it = std::find_if(r.points.begin(), r.points.end(), [&](const PointComfort& p) {
+        return p.point.grid_i < 0 && p.point.name == name;
+      });
+      row.push_back(it == r.points.end() ? "-"
+                                         : rounded("%.1f", it->operative_K - kZeroCelsius) +
+                                               (it->within_limits() ? ", within" : ", OVER"));
+    }
+    rows->push_back(row);
+  }
+}
+
 }  // namespace
 
 int run_comfort_command(const ComfortArgs& args) {
@@ -104,22 +197,11 @@ int run_comfort_command(const ComfortArgs& args) {
     text << "hearthray comfort " << input << "\n";
     print_report(text, r);
   }
-  const bool grid = std::any_of(r.points.begin(), r.points.end(),
-                                [](const PointComfort& p) { return p.point.grid_i >= 0; });
-  if (grid) {
-    MapOptions options;
-    options.heaters = r.heater_names;
-    const std::pair<MapQuantity, std::string> maps[] = {
-        {MapQuantity::mean_radiant, "map_mean_radiant"},
-        {MapQuantity::operative, "map_operative"},
-        {MapQuantity::asymmetry, "map_asymmetry"}};
-    for (const auto& [q, name] : maps) {  // each as PNG and as SVG
-      const Picture map = comfort_map(r.solved.run.scene, r.points, q, options);
-      for (const char* extension : {".png", ".svg"}) {
-        write_picture((dir / (name + extension)).string(), map);
-        files.push_back(name + extension);
-      }
-    }
+  if (has_grid(r)) {
+    MapRanges ranges;
+    for (MapQuantity q : {MapQuantity::mean_radiant, MapQuantity::operative})
+      if (!args.range.empty()) ranges[q] = given_range(args.range);
+    write_maps(dir, "", r, ranges, "", {".png", ".svg"}, &files);
   }
   if (!args.rays.quiet) {
     std::cout << "\nwrote " << dir.string() << ": ";
@@ -168,8 +250,9 @@ int run_compare_command(const ComfortArgs& args) {
       [](const ComfortRun&, const S& s) { return rounded("%.1f", s.horizontal_K.max); });
   row("worst asymmetry / its limit",
       [](const ComfortRun&, const S& s) { return rounded("%.2f", s.worst_ratio); });
-  row("share within limits",
-      [](const ComfortRun&, const S& s) { return rounded("%.0f %%", 100 * s.within_both); });
+  row("points within both limits",
+      [](const ComfortRun&, const S& s) { return share_text(s.count_both, s.points); });
+  named_point_rows(runs, &rows);
 
   std::vector<std::size_t> width(head.size(), 0);
   for (const auto& r : rows)
@@ -198,6 +281,17 @@ int run_compare_command(const ComfortArgs& args) {
     }
   }
   for (const Caution& c : general) std::cout << "  - " << c.text << "\n";
+  // The points over a limit, by scene: a share alone hides which they are.
+  std::cout << "\npoints over a limit:\n";
+  for (std::size_t k = 0; k < runs.size(); ++k) {
+    std::vector<std::string> over;
+    for (const PointComfort* p : summarise_comfort(runs[k].points).failing)
+      over.push_back(failing_text(*p));
+    std::cout << "  " << head[k + 1] << ": " << (over.empty() ? "none" : join_at_most(over, 20))
+              << "\n";
+  }
+  if (!args.output_dir.empty())
+    write_compared_maps(args, runs, std::vector<std::string>(head.begin() + 1, head.end()));
   return 0;
 }
 

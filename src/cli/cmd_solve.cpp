@@ -7,6 +7,7 @@
 
 #include "commands.hpp"
 #include "hearthray/error.hpp"
+#include "hearthray/patch_geometry.hpp"
 #include "hearthray/render.hpp"
 #include "hearthray/thermal_model.hpp"
 #include "hearthray/thermal_report.hpp"
@@ -80,7 +81,8 @@ void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved, UnitS
   const std::vector<PatchField> fields = solve_fields(model, result);
   write_vtu((dir / "patches.vtu").string(), run.scene, run.patches, fields,
             {{"converged", result.status == ExchangeStatus::converged ? 1 : 0}});
-  info.files = {"surfaces.csv", "patches.vtu"};
+  write_patches_csv_file((dir / "patches.csv").string(), run.scene, run.patches);
+  info.files = {"surfaces.csv", "patches.vtu", "patches.csv"};
   // Pictures of the temperature and the net radiative flux from the default view.
   const Tracer tracer(run.scene);
   const std::string scene_name = fs::path(file.path).stem().string();

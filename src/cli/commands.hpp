@@ -12,6 +12,8 @@ struct FactorsArgs {
   std::string unit;                  // --unit of a bare mesh ("" = m)
   std::vector<std::string> outputs;  // -o, format by extension
   RaySettings rays;
+  std::string cache_dir;  // --cache; "" = default
+  bool no_cache = false;
 };
 int run_factors_command(const FactorsArgs& args);
 
@@ -42,10 +44,11 @@ int run_gas_solve(const SolveArgs& args, const SceneFile& file);
 
 struct ComfortArgs {
   std::vector<std::string> inputs;  // comfort: one scene; compare: two or more
-  std::string output_dir;           // comfort -o: comfort.csv, comfort.txt, maps (PNG)
+  std::string output_dir;           // -o: comfort.csv, comfort.txt, maps; compare: maps
   RaySettings rays;                 // --threads, --quiet; rays and seed from the scene
   std::string cache_dir;            // --cache; "" = default
   bool no_cache = false;
+  std::vector<double> range;  // --range low,high (C) of the temperature maps
 };
 // Exit codes as for solve. `comfort`: table, summary, cautions, files. `compare`: the scenes
 // side by side.
@@ -64,6 +67,8 @@ struct RenderArgs {
   std::string title;                       // "" = file name and field
   bool no_title = false;
   std::vector<double> range;                // low,high of the colour bar
+  std::string results;                      // --results DIR: a solve's output folder
+  std::string units = "si";                 // --units for solved fields
   std::uint64_t rays = kQuickRaysPerPatch;  // per patch, for view-factor-to
   std::uint64_t seed = kDefaultSeed;
   int threads = 0;

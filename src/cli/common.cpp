@@ -124,6 +124,12 @@ std::string cache_log_line(const FactorRun& run) {
   return traced + " (cache not used)";
 }
 
+void print_no_cache_folder(const FactorRun& run) {
+  if (run.cache != CacheOutcome::no_folder) return;
+  std::cerr << "warning: no cache folder: set HEARTHRAY_CACHE (or HOME) or give --cache DIR; "
+               "view factors are traced every time\n";
+}
+
 FactorReportInfo report_info(const SceneFile& file, const FactorRun& run) {
   FactorReportInfo info;
   info.scene = file.path.empty() ? file.mesh_path : file.path;
@@ -196,10 +202,7 @@ int solve_scene_printing(const std::string& input, const RaySettings& settings,
     *out = model_scene(std::move(file), std::move(scene), options);
     end_progress_line();
     print_warnings(out->warnings);
-    if (out->run.cache == CacheOutcome::no_folder) {
-      std::cerr << "warning: no cache folder: set HEARTHRAY_CACHE (or HOME) or give --cache DIR; "
-                   "view factors are traced every time\n";
-    }
+    print_no_cache_folder(out->run);
     if (!settings.quiet) print_notes(out->notes);
     solve_model_exchange(out, options);
   } catch (const RefusedInput& e) {

@@ -49,6 +49,9 @@ void end_progress_line();
 // What happened to the view factors, e.g. "view factors: from cache PATH".
 std::string cache_log_line(const FactorRun& run);
 
+// To stderr, when the cache was asked for but no folder is known: a warning saying how to set one.
+void print_no_cache_folder(const FactorRun& run);
+
 // The report fields for the JSON output.
 FactorReportInfo report_info(const SceneFile& file, const FactorRun& run);
 

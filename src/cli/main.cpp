@@ -33,6 +33,15 @@ struct Commands {
            *cmd_comfort = nullptr, *cmd_compare = nullptr, *cmd_render = nullptr;
 };
 
+// --cache DIR and --no-cache (which exclude each other).
+void add_cache_options(CLI::App* cmd, std::string* dir, bool* no_cache) {
+  CLI::Option* cache_dir = cmd->add_option("--cache", *dir,
+                                           "View-factor cache folder (default: $HEARTHRAY_CACHE, "
+                                           "$XDG_CACHE_HOME/hearthray or ~/.cache/hearthray)");
+  cmd->add_flag("--no-cache", *no_cache, "Always trace; neither read nor write the cache")
+      ->excludes(cache_dir);
+}
+
 CLI::App* add_factors_command(CLI::App& app, FactorsArgs& factors) {
   CLI::App* cmd_factors = app.add_subcommand(
       "factors", "View factors between every pair of surfaces, with standard errors");
@@ -54,7 +63,9 @@ CLI::App* add_factors_command(CLI::App& app, FactorsArgs& factors) {
                         "Run even when the estimated patches, rays or memory are past the limits");
   cmd_factors->add_flag("-q,--quiet", factors.rays.quiet, "No progress line or summary");
   cmd_factors->add_option("-o,--output", factors.outputs,
-                          "Output file: .csv, .mtx, .npy or .json (repeatable)");
+                          "Output file: .csv, .mtx, .npy or .json (repeatable); the patch table "
+                          "and VTU are written beside it");
+  add_cache_options(cmd_factors, &factors.cache_dir, &factors.no_cache);
   return cmd_factors;
 }
 
@@ -97,13 +108,7 @@ CLI::App* add_solve_command(CLI::App& app, SolveArgs& solve) {
       ->check(seed_range());
   cmd_solve->add_option("--threads", solve.rays.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
-  CLI::Option* cache_dir =
-      cmd_solve->add_option("--cache", solve.cache_dir,
-                            "View-factor cache folder (default: $HEARTHRAY_CACHE, "
-                            "$XDG_CACHE_HOME/hearthray or ~/.cache/hearthray)");
-  cmd_solve
-      ->add_flag("--no-cache", solve.no_cache, "Always trace; neither read nor write the cache")
-      ->excludes(cache_dir);
+  add_cache_options(cmd_solve, &solve.cache_dir, &solve.no_cache);
   cmd_solve->add_option("--units", solve.units,
                         "Units of the table, surfaces.csv and pictures: si (C, W, W/m2), us "
                         "(F, Btu/h, Btu/(h ft2)) or kcal (C, kcal/h, kcal/(h m2)); report.json "
@@ -126,7 +131,14 @@ void add_comfort_commands(CLI::App& app, Commands* c) {
                         : "Scene files (.toml) with [comfort] tables")
         ->required()
         ->expected(one ? 1 : 2, one ? 1 : 64);
-    if (one) cmd->add_option("-o,--output", a->output_dir, "Folder for comfort.csv and maps");
+    cmd->add_option("-o,--output", a->output_dir,
+                    one ? "Folder for comfort.csv and maps"
+                        : "Folder for the scenes' maps, side by side on one colour range");
+    cmd->add_option("--range", a->range,
+                    "Colour range low,high in C of the temperature maps (compare: the same for "
+                    "all scenes by default)")
+        ->delimiter(',')
+        ->expected(2);
     cmd->add_flag("-q,--quiet", a->rays.quiet, "No progress, notes or view-factor lines");
     cmd->add_flag("--force", a->rays.force,
                   "Run even when the estimated patches, rays or memory are past the limits");
@@ -144,7 +156,8 @@ CLI::App* add_render_command(CLI::App& app, RenderArgs& render) {
   cmd_render->add_option("--unit", render.unit, kUnitHelp);
   cmd_render->add_option("-o,--output", render.output, "Picture file (.png)")->required();
   cmd_render->add_option("--field", render.field,
-                         "surface, area or view-factor-to=<surface> (default surface)");
+                         "surface, area, view-factor-to=<surface>; with --results: temperature, "
+                         "net-flux, irradiation, radiosity (default surface)");
   cmd_render->add_option("--width", render.width, "Pixels (default 800)")
       ->check(CLI::Range(16, 16384));
   cmd_render->add_option("--height", render.height, "Pixels (default 600)")
@@ -178,6 +191,12 @@ CLI::App* add_render_command(CLI::App& app, RenderArgs& render) {
       ->check(seed_range());
   cmd_render->add_option("--threads", render.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
+  cmd_render->add_option("--results", render.results,
+                         "Folder a solve wrote (-o): draw its temperature, net-flux, irradiation "
+                         "or radiosity");
+  cmd_render->add_option("--units", render.units,
+                         "Units of a solved field: si (C, W/m2), us (F, Btu/(h ft2)) or kcal "
+                         "(C, kcal/(h m2)) (default si)");
   cmd_render->add_flag("-q,--quiet", render.quiet, "No summary line");
   cmd_render->add_flag("--force", render.force,
                        "Run even when the estimated patches, rays or memory are past the limits");

@@ -213,7 +213,42 @@ void draw_legend(Canvas& c, double x, double y, const std::array<bool, 2>& surfa
     });
 }
 
+// The asymmetry limits of the cases that govern the grid points, as marks on the colour bar
+// ("limit, warm ceiling"); none on the temperature maps.
+std::vector<pictures::BarMark> limit_marks(const std::vector<const PointComfort*>& grid,
+                                           MapQuantity q) {
+  std::map<double, std::string> limits;
+  if (q != MapQuantity::asymmetry) return {};
+  for (const PointComfort* p : grid) {
+    const Asymmetry& a =
+        p->vertical.delta_K / p->vertical.limit_K >= p->horizontal.delta_K / p->horizontal.limit_K
+            ? p->vertical
+            : p->horizontal;
+    limits.emplace(a.limit_K, "limit, " + to_string(a.kind));
+  }
+  std::vector<pictures::BarMark> marks;
+  for (const auto& [value, label] : limits) marks.push_back({value, label});
+  return marks;
+}
+
 }  // namespace
+
+std::pair<double, double> map_range(const std::vector<PointComfort>& points, MapQuantity q) {
+  double lo = INFINITY, hi = -INFINITY, smallest_limit = INFINITY;
+  for (const PointComfort& p : points) {
+    if (p.point.grid_i < 0) continue;
+    lo = std::min(lo, value(p, q));
+    hi = std::max(hi, value(p, q));
+    smallest_limit = std::min({smallest_limit, p.vertical.limit_K, p.horizontal.limit_K});
+  }
+  if (!(lo <= hi)) return {0, 1};
+  if (q == MapQuantity::asymmetry && std::isfinite(smallest_limit)) {
+    lo = std::min(lo, 0.0);
+    hi = std::max(hi, 1.1 * smallest_limit);
+  }
+  if (hi - lo < 0.1) lo -= 0.05, hi += 0.05;
+  return {lo, hi};
+}
 
 Picture comfort_map(const Scene& scene, const std::vector<PointComfort>& points, MapQuantity q,
                     const MapOptions& options) {
@@ -221,17 +256,15 @@ Picture comfort_map(const Scene& scene, const std::vector<PointComfort>& points,
   for (const PointComfort& p : points)
     if (p.point.grid_i >= 0) grid.push_back(&p);
   if (grid.empty()) throw InputError("a comfort map needs grid points: add [comfort.grid]");
-  double lo = INFINITY, hi = -INFINITY;
-  for (const PointComfort* p : grid) {
-    lo = std::min(lo, value(*p, q));
-    hi = std::max(hi, value(*p, q));
-  }
-  if (hi - lo < 0.1) lo -= 0.05, hi += 0.05;
-
+  auto [lo, hi] = map_range(points, q);
+  if (options.range_lo) lo = *options.range_lo;
+  if (options.range_hi) hi = *options.range_hi;
+  if (!(lo < hi))
+    throw InputError("the range of a comfort map needs its low end below its high end");
   Plan plan;
   plan.box = scene.bounds;
   plan.ppm = options.pixels_per_metre;
-  const pictures::ColourBar bar{lo, hi, sequential_colour, false};
+  const pictures::ColourBar bar{lo, hi, sequential_colour, false, limit_marks(grid, q)};
   Canvas measure(16, 16);
   const double bar_width = pictures::colour_bar_width(measure, bar, kFont);
   const int width = int(std::ceil(kPad + plan.width() + kBarGap + bar_width + kPad));
@@ -247,7 +280,10 @@ Picture comfort_map(const Scene& scene, const std::vector<PointComfort>& points,
   const double bx = plan.left + plan.width() + kBarGap;
   c.text(bx, plan.top - 8, q == MapQuantity::asymmetry ? "in K" : "in °C", kFont, kInk);
   pictures::draw_colour_bar(c, bar, bx, plan.top, plan.top + plan.height(), kFont, kInk);
-  c.text(kPad, 24, title(q), 1.2 * kFont, kInk, Align::left, Weight::bold);
+  c.text(kPad, 24,
+         pictures::fit_text(c, title(q) + options.title_suffix, width - 2 * kPad, 1.2 * kFont,
+                            Weight::bold),
+         1.2 * kFont, kInk, Align::left, Weight::bold);
   char subtitle[160];
   std::snprintf(subtitle, sizeof subtitle,
                 "Plan %.1f m × %.1f m seen from above, points %.2f m above the floor",

@@ -95,6 +95,10 @@ ComfortSummary summarise_comfort(const std::vector<PointComfort>& points) {
     s.within_vertical += p.vertical.within() / n;
     s.within_horizontal += p.horizontal.within() / n;
     s.within_both += p.within_limits() / n;
+    s.count_vertical += p.vertical.within();
+    s.count_horizontal += p.horizontal.within();
+    s.count_both += p.within_limits();
+    if (!p.within_limits()) s.failing.push_back(&p);
     for (const Asymmetry* a : {&p.vertical, &p.horizontal}) {
       const double ratio = a->delta_K / a->limit_K;
       if (!s.worst || ratio > s.worst_ratio) {
@@ -104,6 +108,19 @@ ComfortSummary summarise_comfort(const std::vector<PointComfort>& points) {
     }
   }
   return s;
+}
+
+std::string share_text(std::size_t count, std::size_t of) {
+  return std::to_string(count) + " of " + std::to_string(of);
+}
+
+std::string failing_text(const PointComfort& p) {
+  std::vector<std::string> why;
+  for (const auto& [a, axis] : {std::pair{&p.vertical, "vertical"}, {&p.horizontal, "horizontal"}})
+    if (!a->within())
+      why.push_back(std::string(axis) + " " + rounded("%.2f K", a->delta_K) + ", " +
+                    to_string(a->kind) + ", limit " + rounded("%.0f K", a->limit_K));
+  return p.point.name + " (" + join(why, "; ") + ")";
 }
 
 void print_comfort_table(std::ostream& out, const std::vector<PointComfort>& points,
@@ -134,9 +151,15 @@ void print_comfort_table(std::ostream& out, const std::vector<PointComfort>& poi
   line("operative temperature (C)", s.operative_K, true);
   line("vertical asymmetry (K)", s.vertical_K, false);
   line("horizontal asymmetry (K)", s.horizontal_K, false);
-  out << "  within the vertical limit: " << rounded("%.0f %%", 100 * s.within_vertical)
-      << "; horizontal: " << rounded("%.0f %%", 100 * s.within_horizontal)
-      << "; both: " << rounded("%.0f %%", 100 * s.within_both) << " of points\n";
+  out << "  within the vertical limit: " << share_text(s.count_vertical, s.points)
+      << " points; horizontal: " << share_text(s.count_horizontal, s.points)
+      << "; both: " << share_text(s.count_both, s.points) << "\n";
+  if (!s.failing.empty()) {
+    std::vector<std::string> names;
+    for (const PointComfort* p : s.failing) names.push_back(failing_text(*p));
+    out << "  over a limit (" << s.failing.size() << "): " << join_at_most(names, 20)
+        << (s.failing.size() > 20 ? " (all in comfort.csv)" : "") << "\n";
+  }
   if (s.worst) {
     const PointComfort& p = *s.worst;
     const Asymmetry& a =

@@ -61,12 +61,18 @@ RayDiagnostics diagnose_rays(const Scene& scene, const PatchSet& patches, const 
                                 "probably point the wrong way (the front is the side from which "
                                 "the corners run counter-clockwise). Flip its faces, or declare "
                                 "it two_sided if it is a thin sheet seen from both sides "
-                                "(hearthray check shows where the rays land)."});
+                                "(hearthray check shows where the rays land)." +
+                                (share > 0.5 ? " A solve refuses it until then, unless its table "
+                                               "says expect_back_hits = true."
+                                             : "")});
     else
       d.warnings.push_back({WarningKind::back_faces,
                             "surface '" + s.name + "': " + std::to_string(s.back_face_hits) +
                                 " rays (" + percent(share) +
-                                " of its arrivals) hit its back side and were absorbed there; "
+                                " of its arrivals) hit its back side and were absorbed there; " +
+                                (contacts ? "probably rays from faces inside a solid (named "
+                                            "above); otherwise "
+                                          : "") +
                                 "declare it two_sided if both sides should take part."});
   }
   if (d.escaped > 0) {

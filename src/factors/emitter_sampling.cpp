@@ -44,12 +44,28 @@ std::vector<EmitterSampler::TriangleFrame> make_frames(const Scene& scene, const
   return frames;
 }
 
+// The ray from barycentric point `bc` of triangle frame `f` in local direction `d` (z along
+// the normal, flipped by `sign` for a back side), lifted off the surface by the frame's offset.
+inline void place_ray(const EmitterSampler::TriangleFrame& f, const Barycentric& bc, const Vec3& d,
+                      float sign, Ray* ray, float* offset) {
+  const float b1 = float(bc.b1), b2 = float(bc.b2);
+  const float dx = float(d.x), dy = float(d.y), dz = float(d.z) * sign;
+  for (int c = 0; c < 3; ++c) {
+    ray->org[c] = f.v0[c] + b1 * f.e1[c] + b2 * f.e2[c] + sign * f.offset * f.n[c];
+    ray->dir[c] = dx * f.t[c] + dy * f.b[c] + dz * f.n[c];
+  }
+  ray->tnear = 0;
+  ray->tfar = 3.0e38f;
+  *offset = f.offset;
+}
+
 }  // namespace
 
 EmitterSampler::EmitterSampler(const Scene& scene, const PatchSet& patches, const Vec3& centre,
-                               std::uint64_t seed)
+                               std::uint64_t seed, EmissionSampler sampler)
     : patches_(&patches),
       seed_(seed),
+      sampler_(sampler),
       frames_(make_frames(scene, centre)),
       cumulative_(patches.triangle_index.size()),
       inverse_area_(patches.triangle_index.size()) {
@@ -72,6 +88,14 @@ EmitterSampler::Cursor EmitterSampler::start(std::uint32_t patch, std::uint64_t 
   c.key = patch_stream_key(seed_, patch);
   const std::uint32_t t_begin = patches_->triangle_offset[patch];
   c.triangle_end = patches_->triangle_offset[patch + 1];
+  if (sampler_ == EmissionSampler::sobol) {
+    std::uint32_t r = 0;
+    while (r + 1 < kSobolReplicates && replicate_first_ray(total, r + 1) <= first) ++r;
+    c.replicate_first = replicate_first_ray(total, r);
+    c.seeds = owen_seeds(mix64(c.key + (r + 1) * 0x3c6ef372fe94f82bull));
+    c.triangle = t_begin;
+    return c;
+  }
   // First triangle of the stratum of ray `first`.
   const double area = cumulative_[c.triangle_end - 1];
   c.triangle = static_cast<std::uint32_t>(std::upper_bound(cumulative_.begin() + t_begin,
@@ -82,8 +106,34 @@ EmitterSampler::Cursor EmitterSampler::start(std::uint32_t patch, std::uint64_t 
   return c;
 }
 
+void EmitterSampler::emit(std::uint32_t p, float sign, double u0, double u1, double u2, double u3,
+                          Ray* ray, float* offset) const {
+  const std::uint32_t t_begin = patches_->triangle_offset[p];
+  const std::uint32_t t_end = patches_->triangle_offset[p + 1];
+  const double target = u0 * cumulative_[t_end - 1];
+  std::uint32_t j = static_cast<std::uint32_t>(
+      std::upper_bound(cumulative_.begin() + t_begin, cumulative_.begin() + t_end, target) -
+      cumulative_.begin());
+  j = std::min(j, t_end - 1);
+  const double below = j > t_begin ? cumulative_[j - 1] : 0.0;
+  const double r = std::min(std::max((target - below) * inverse_area_[j], 0.0), 1.0 - 1e-16);
+  place_ray(frames_[patches_->triangle_index[j]], sample_triangle_uniform(r, u1),
+            sample_cosine_hemisphere(u2, u3), sign, ray, offset);
+}
+
+void EmitterSampler::sample_sobol(Cursor& cursor, std::uint64_t first, std::size_t count, Ray* rays,
+                                  float* offset) const {
+  const std::uint32_t p = cursor.patch;
+  const float sign = patches_->patches[p].side == Side::back ? -1.0f : 1.0f;
+  for (std::size_t i = 0; i < count; ++i) {
+    const auto u = scrambled_sobol(std::uint32_t(first + i - cursor.replicate_first), cursor.seeds);
+    emit(p, sign, u[0], u[1], u[2], u[3], rays + i, offset + i);
+  }
+}
+
 void EmitterSampler::sample(Cursor& cursor, std::uint64_t first, std::size_t count, Ray* rays,
                             float* offset) const {
+  if (sampler_ == EmissionSampler::sobol) return sample_sobol(cursor, first, count, rays, offset);
   const std::uint32_t p = cursor.patch;
   const float sign = patches_->patches[p].side == Side::back ? -1.0f : 1.0f;
   const std::uint32_t t_begin = patches_->triangle_offset[p];
@@ -98,19 +148,8 @@ void EmitterSampler::sample(Cursor& cursor, std::uint64_t first, std::size_t cou
     while (j + 1 < t_end && cumulative_[j] <= target) ++j;
     const double below = j > t_begin ? cumulative_[j - 1] : 0.0;
     const double r = std::min(std::max((target - below) * inverse_area_[j], 0.0), 1.0 - 1e-16);
-    const Barycentric bc = sample_triangle_uniform(r, u[1]);
-    const Vec3 d = sample_cosine_hemisphere(u[2], u[3]);
-    const TriangleFrame& f = frames_[patches_->triangle_index[j]];
-    Ray& ray = rays[i];
-    const float b1 = float(bc.b1), b2 = float(bc.b2);
-    const float dx = float(d.x), dy = float(d.y), dz = float(d.z) * sign;
-    for (int c = 0; c < 3; ++c) {
-      ray.org[c] = f.v0[c] + b1 * f.e1[c] + b2 * f.e2[c] + sign * f.offset * f.n[c];
-      ray.dir[c] = dx * f.t[c] + dy * f.b[c] + dz * f.n[c];
-    }
-    ray.tnear = 0;
-    ray.tfar = 3.0e38f;
-    offset[i] = f.offset;
+    place_ray(frames_[patches_->triangle_index[j]], sample_triangle_uniform(r, u[1]),
+              sample_cosine_hemisphere(u[2], u[3]), sign, rays + i, offset + i);
   }
   cursor.triangle = j;
 }

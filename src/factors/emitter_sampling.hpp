@@ -1,6 +1,17 @@
 // Rays of the emitting patches: origins uniform over a patch's area, stratified along its
 // triangle list, and cosine-weighted directions, each ray a pure function of (seed, patch,
 // ray index) so that results do not depend on how the rays are split among threads.
+//
+// Sampler sobol: ray k of replicate r (rays [first_r, first_{r+1})) is the scrambled Sobol'
+// point j = k - first_r of that replicate's seeds (sobol.hpp), in four dimensions u0..u3.
+// u0 picks the point along the patch's triangle list by area (inverse of the cumulative
+// area: a piecewise linear, increasing map, so an interval of u0 of length L covers a
+// fraction L of the patch's area), and its position inside the chosen triangle together with
+// u1 places the point by Heitz's map (area-preserving); u2, u3 give the direction by Malley's
+// map (r = sqrt(u2), phi = 2 pi u3: a box of (u2, u3) maps to an annular sector of the disk
+// of the same relative area, i.e. the same projected solid angle). Each map sends an
+// elementary interval of [0,1)^4 to a piece of (area x projected solid angle) of the same
+// measure, so the net's stratification carries over to the rays.
 #pragma once
 
 #include <cstddef>
@@ -9,7 +20,9 @@
 
 #include "hearthray/patches.hpp"
 #include "hearthray/scene.hpp"
+#include "hearthray/sobol.hpp"
 #include "hearthray/tracer.hpp"
+#include "hearthray/view_factors.hpp"
 
 namespace hearthray {
 
@@ -17,7 +30,7 @@ class EmitterSampler {
  public:
   // `centre`: origin of the tracer's frame (Tracer::centre()).
   EmitterSampler(const Scene& scene, const PatchSet& patches, const Vec3& centre,
-                 std::uint64_t seed);
+                 std::uint64_t seed, EmissionSampler sampler = EmissionSampler::stratified);
 
   // A walk through the rays of one patch, which emits `total` rays in all, from ray `first`
   // on. Rays are drawn in ascending index order: the stratum walk only moves forward.
@@ -26,6 +39,8 @@ class EmitterSampler {
     std::uint64_t total = 0;
     std::uint64_t key = 0;                         // the patch's random stream
     std::uint32_t triangle = 0, triangle_end = 0;  // current position in the triangle list
+    std::uint64_t replicate_first = 0;             // sobol: first ray of the cursor's replicate
+    OwenSeeds seeds{};                             // sobol: the replicate's scrambling
   };
   Cursor start(std::uint32_t patch, std::uint64_t total, std::uint64_t first) const;
 
@@ -42,8 +57,16 @@ class EmitterSampler {
   };
 
  private:
+  // One ray from a point of the patch's triangle list (u0 in [0,1) by area), u1 the second
+  // coordinate on the triangle, (u2, u3) the direction.
+  void emit(std::uint32_t patch, float sign, double u0, double u1, double u2, double u3, Ray* ray,
+            float* offset) const;
+  void sample_sobol(Cursor& cursor, std::uint64_t first, std::size_t count, Ray* rays,
+                    float* offset) const;
+
   const PatchSet* patches_;
   std::uint64_t seed_;
+  EmissionSampler sampler_;
   std::vector<TriangleFrame> frames_;  // per scene triangle
   // Along each patch's triangle list: cumulative area, and 1 / the triangle's area.
   std::vector<double> cumulative_, inverse_area_;

@@ -47,6 +47,7 @@ namespace {
 struct Chunk {
   std::uint32_t patch;
   std::uint64_t first, last, total;
+  std::uint32_t replicate;  // sampler sobol: the replicate the rays belong to (else 0)
 };
 
 constexpr std::uint64_t kChunkRays = 16384;
@@ -76,12 +77,21 @@ std::uint64_t rays_of(const ViewFactorOptions& options, std::uint32_t patch) {
   return options.rays_for_patch.empty() ? options.rays_per_patch : options.rays_for_patch[patch];
 }
 
+// Chunks in emitter order; with the sobol sampler no chunk straddles two replicates.
 std::vector<Chunk> plan_chunks(const ViewFactorOptions& options, std::uint32_t begin,
                                std::uint32_t end) {
   std::vector<Chunk> chunks;
-  for (std::uint32_t p = begin; p < end; ++p)
-    for (std::uint64_t k = 0, N = rays_of(options, p); k < N; k += kChunkRays)
-      chunks.push_back({p, k, std::min<std::uint64_t>(N, k + kChunkRays), N});
+  const bool sobol = options.sampler == EmissionSampler::sobol;
+  const std::uint32_t replicates = sobol ? kSobolReplicates : 1;
+  for (std::uint32_t p = begin; p < end; ++p) {
+    const std::uint64_t N = rays_of(options, p);
+    for (std::uint32_t r = 0; r < replicates; ++r) {
+      const std::uint64_t a = sobol ? replicate_first_ray(N, r) : 0;
+      const std::uint64_t b = sobol ? replicate_first_ray(N, r + 1) : N;
+      for (std::uint64_t k = a; k < b; k += kChunkRays)
+        chunks.push_back({p, k, std::min<std::uint64_t>(b, k + kChunkRays), N, r});
+    }
+  }
   return chunks;
 }
 
@@ -142,6 +152,77 @@ class ProgressReport {
   double last_ = 0;
 };
 
+// Sums one row's chunk tallies: counts per receiver and, for the sobol sampler, the sum
+// over replicates of the squared replicate estimates (c_r / M_r)^2, added in replicate
+// order. Integer counts and a fixed order of the double sums: the same in any thread order.
+class RowMerger {
+ public:
+  RowMerger(std::size_t n_patches, bool squares)
+      : squares_(squares),
+        count_(n_patches, 0),
+        replicate_(squares ? n_patches : 0, 0),
+        square_(squares ? n_patches : 0, 0.0) {}
+
+  void add_chunk(const HitTally& r) {
+    escaped_ += r.escaped;
+    back_ += r.back_face;
+    rep_escaped_ += r.escaped;
+    rep_back_ += r.back_face;
+    for (std::size_t k = 0; k < r.patch.size(); ++k) {
+      const std::uint32_t q = r.patch[k];
+      if (count_[q] == 0) touched_.push_back(q);
+      count_[q] += r.count[k];
+      if (!squares_) continue;
+      if (replicate_[q] == 0) rep_touched_.push_back(q);
+      replicate_[q] += r.count[k];
+    }
+  }
+
+  // End of a replicate of `rays` rays.
+  void end_replicate(std::uint64_t rays) {
+    if (!squares_ || rays == 0) return;
+    const double m = static_cast<double>(rays);
+    auto sq = [m](std::uint64_t c) { return (double(c) / m) * (double(c) / m); };
+    std::sort(rep_touched_.begin(), rep_touched_.end());
+    for (std::uint32_t q : rep_touched_) {
+      square_[q] += sq(replicate_[q]);
+      replicate_[q] = 0;
+    }
+    rep_touched_.clear();
+    escaped_square_ += sq(rep_escaped_);
+    back_square_ += sq(rep_back_);
+    rep_escaped_ = rep_back_ = 0;
+  }
+
+  void end_row(std::uint64_t rays, Tallies* t) {
+    std::sort(touched_.begin(), touched_.end());
+    for (std::uint32_t q : touched_) {
+      t->hit_patch.push_back(q);
+      t->hit_count.push_back(count_[q]);
+      count_[q] = 0;
+      if (squares_) t->hit_square.push_back(square_[q]);
+      if (squares_) square_[q] = 0;
+    }
+    touched_.clear();
+    t->hit_offset.push_back(t->hit_patch.size());
+    t->rays.push_back(rays);
+    t->escaped.push_back(escaped_);
+    t->back_face.push_back(back_);
+    if (squares_) t->escaped_square.push_back(escaped_square_);
+    if (squares_) t->back_face_square.push_back(back_square_);
+    escaped_ = back_ = 0;
+    escaped_square_ = back_square_ = 0;
+  }
+
+ private:
+  bool squares_;
+  std::vector<std::uint64_t> count_, replicate_;
+  std::vector<double> square_;
+  std::vector<std::uint32_t> touched_, rep_touched_;
+  std::uint64_t escaped_ = 0, back_ = 0, rep_escaped_ = 0, rep_back_ = 0;
+  double escaped_square_ = 0, back_square_ = 0;
+};
+
 // Rows [begin, end) from the chunk tallies (in chunk order, which is emitter order), and the
 // per-surface totals of every thread. Integer sums: the same in any order.
 Tallies merge_rows(const ViewFactorOptions& options, std::uint32_t begin, std::uint32_t end,
@@ -160,32 +241,19 @@ Tallies merge_rows(const ViewFactorOptions& options, std::uint32_t begin, std::u
       tallies.hits_on_surface[i] += s.counter.hits_on_surface()[i];
     }
   }
-  std::vector<std::uint64_t> row_count(n_patches, 0);
-  std::vector<std::uint32_t> touched;
+  const bool sobol = options.sampler == EmissionSampler::sobol;
+  RowMerger row(n_patches, sobol);
   std::size_t c = 0;
   for (std::uint32_t p = begin; p < end; ++p) {
-    std::uint64_t escaped = 0, back = 0;
-    for (; c < chunks.size() && chunks[c].patch == p; ++c) {
-      const HitTally& r = results[c];
-      escaped += r.escaped;
-      back += r.back_face;
-      for (std::size_t k = 0; k < r.patch.size(); ++k) {
-        if (row_count[r.patch[k]] == 0) touched.push_back(r.patch[k]);
-        row_count[r.patch[k]] += r.count[k];
+    const std::uint64_t N = rays_of(options, p);
+    for (std::uint32_t r = 0; r < (sobol ? kSobolReplicates : 1); ++r) {
+      for (; c < chunks.size() && chunks[c].patch == p && chunks[c].replicate == r; ++c) {
+        row.add_chunk(results[c]);
+        results[c] = HitTally{};
       }
-      results[c] = HitTally{};
+      if (sobol) row.end_replicate(replicate_first_ray(N, r + 1) - replicate_first_ray(N, r));
     }
-    std::sort(touched.begin(), touched.end());
-    for (std::uint32_t q : touched) {
-      tallies.hit_patch.push_back(q);
-      tallies.hit_count.push_back(row_count[q]);
-      row_count[q] = 0;
-    }
-    touched.clear();
-    tallies.hit_offset.push_back(tallies.hit_patch.size());
-    tallies.rays.push_back(rays_of(options, p));
-    tallies.escaped.push_back(escaped);
-    tallies.back_face.push_back(back);
+    row.end_row(N, &tallies);
   }
   return tallies;
 }
@@ -195,7 +263,7 @@ Tallies merge_rows(const ViewFactorOptions& options, std::uint32_t begin, std::u
 Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
                       const ViewFactorOptions& options, TraceStats* stats) {
   const auto [begin, end] = checked_emitters(patches, options);
-  const EmitterSampler emitters(scene, patches, tracer.centre(), options.seed);
+  const EmitterSampler emitters(scene, patches, tracer.centre(), options.seed, options.sampler);
   const PatchLookup lookup(scene, patches);
   const std::vector<Chunk> chunks = plan_chunks(options, begin, end);
   std::vector<HitTally> results(chunks.size());
@@ -239,6 +307,7 @@ Tallies merge_shards(const std::vector<Tallies>& shards) {
   std::uint32_t next = merged.emitter_begin;
   for (const Tallies& s : shards) {
     if (s.patch_count != merged.patch_count || s.emitter_begin != next ||
+        s.hit_square.empty() != shards.front().hit_square.empty() ||
         s.hits_on_surface.size() != merged.hits_on_surface.size())
       throw std::invalid_argument(
           "merge_shards: shards must come from one scene and cover consecutive "
@@ -251,6 +320,11 @@ Tallies merge_shards(const std::vector<Tallies>& shards) {
     merged.rays.insert(merged.rays.end(), s.rays.begin(), s.rays.end());
     merged.escaped.insert(merged.escaped.end(), s.escaped.begin(), s.escaped.end());
     merged.back_face.insert(merged.back_face.end(), s.back_face.begin(), s.back_face.end());
+    merged.hit_square.insert(merged.hit_square.end(), s.hit_square.begin(), s.hit_square.end());
+    merged.escaped_square.insert(merged.escaped_square.end(), s.escaped_square.begin(),
+                                 s.escaped_square.end());
+    merged.back_face_square.insert(merged.back_face_square.end(), s.back_face_square.begin(),
+                                   s.back_face_square.end());
     for (std::size_t i = 0; i < s.hits_on_surface.size(); ++i) {
       merged.hits_on_surface[i] += s.hits_on_surface[i];
       merged.back_face_hits_on_surface[i] += s.back_face_hits_on_surface[i];

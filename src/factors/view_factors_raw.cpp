@@ -39,7 +39,10 @@ void check_tallies(const PatchSet& patches, const Tallies& t) {
   }
   if (t.escaped.size() != rows || t.back_face.size() != rows || t.hit_offset.size() != rows + 1 ||
       t.hit_patch.size() != t.hit_count.size() || t.hit_offset.front() != 0 ||
-      t.hit_offset.back() != t.hit_patch.size()) {
+      t.hit_offset.back() != t.hit_patch.size() ||
+      (!t.hit_square.empty() &&
+       (t.hit_square.size() != t.hit_count.size() || t.escaped_square.size() != rows ||
+        t.back_face_square.size() != rows))) {
     throw InputError(
         "view-factor tallies are inconsistent: the per-row arrays (rays, escaped, back faces, "
         "hit offsets) and the hit lists do not have matching sizes");
@@ -73,7 +76,33 @@ void check_tallies(const PatchSet& patches, const Tallies& t) {
 }  // namespace tallies_detail
 
 double ViewFactors::standard_error(std::size_t i, double f) const {
-  return factor_standard_error(f, rays.at(i));
+  const double binomial = factor_standard_error(f, rays.at(i));
+  return error_ratio.empty() ? binomial : binomial * error_ratio.at(i);
+}
+
+std::vector<double> replicate_error_ratio(const Tallies& t) {
+  if (t.hit_square.empty()) return {};
+  std::vector<double> ratio(t.rows(), 1.0);
+  for (std::size_t r = 0; r < t.rows(); ++r) {
+    const std::uint64_t n = t.rays[r];
+    std::uint32_t replicates = 0;
+    for (std::uint32_t k = 0; k < kSobolReplicates; ++k)
+      replicates += replicate_first_ray(n, k + 1) > replicate_first_ray(n, k) ? 1 : 0;
+    if (replicates < 2) continue;
+    const double R = replicates, N = static_cast<double>(n);
+    double spread = 0, binomial = 0;
+    auto add = [&](std::uint64_t count, double square) {
+      const double f = static_cast<double>(count) / N;
+      spread += std::max(0.0, square - R * f * f) / (R * (R - 1));
+      binomial += f * (1 - f) / N;
+    };
+    for (std::uint64_t k = t.hit_offset[r]; k < t.hit_offset[r + 1]; ++k)
+      add(t.hit_count[k], t.hit_square[k]);
+    add(t.escaped[r], t.escaped_square[r]);
+    add(t.back_face[r], t.back_face_square[r]);
+    if (binomial > 0) ratio[r] = std::clamp(std::sqrt(spread / binomial), 0.01, 100.0);
+  }
+  return ratio;
 }
 
 ViewFactors raw_view_factors(const PatchSet& patches, const Tallies& tallies) {
@@ -122,6 +151,7 @@ ViewFactors raw_view_factors(const PatchSet& patches, const Tallies& tallies) {
   }
   vf.smoothed = false;
   vf.max_correction_sigma = 0;
+  vf.error_ratio = replicate_error_ratio(tallies);
   return vf;
 }
 

@@ -425,10 +425,11 @@ void polygon_warnings(const GroupedTriangles& g, std::uint32_t s, const std::str
     std::vector<std::string> lines;
     for (std::size_t line : r.crossing_lines) lines.push_back(std::to_string(line));
     warnings->push_back(at_line(name, r.crossing_lines.front()) + surface +
-                        std::to_string(lines.size()) + " polygon(s) cross themselves (lines " +
+                        std::to_string(lines.size()) + " polygon(s) cross themselves (line(s) " +
                         join_at_most(lines, 5) +
-                        "): no clean cut into triangles exists, the rest of each was cut as a "
-                        "fan and may cover area outside the outline; redraw them");
+                        "): no cut into triangles covers such an outline, and the one made may "
+                        "cover area outside it or leave some out; redraw them without "
+                        "crossing edges");
   }
 }
 

@@ -15,6 +15,7 @@
 
 #include "core/text.hpp"
 #include "hearthray/error.hpp"
+#include "outputs/atomic_file.hpp"
 
 namespace hearthray {
 // RFC 4180: a field with a comma, a double quote or a line break is quoted, quotes doubled.
@@ -193,19 +194,17 @@ void write_factors_file(const std::string& path, const ViewFactors& vf,
                      "'; use one of .csv, .mtx, .npy, .json");
   }
   check_factors(vf);  // before the file is created, so a bad call leaves nothing behind
-  std::ofstream file(path, std::ios::binary | std::ios::trunc);
-  if (!file) throw InputError("cannot open '" + path + "' for writing");
-  if (extension == ".csv") {
-    write_factors_csv(file, vf);
-  } else if (extension == ".mtx") {
-    write_factors_mtx(file, vf);
-  } else if (extension == ".npy") {
-    write_factors_npy(file, vf);
-  } else {
-    write_factors_json(file, vf, info);
-  }
-  file.flush();
-  if (!file) throw InputError("writing '" + path + "' failed (disk full or no permission?)");
+  write_stream_atomically(path, [&](std::ostream& file) {
+    if (extension == ".csv") {
+      write_factors_csv(file, vf);
+    } else if (extension == ".mtx") {
+      write_factors_mtx(file, vf);
+    } else if (extension == ".npy") {
+      write_factors_npy(file, vf);
+    } else {
+      write_factors_json(file, vf, info);
+    }
+  });
 }
 
 namespace {

@@ -11,6 +11,7 @@
 
 #include "core/text.hpp"
 #include "hearthray/error.hpp"
+#include "outputs/atomic_file.hpp"
 
 namespace hearthray {
 namespace {
@@ -152,6 +153,48 @@ void write_cell_data(std::FILE* f, const PatchSet& patches, const std::vector<Pa
   std::fputs("      </CellData>\n", f);
 }
 
+// Field data of the grid: the flags, then the surface names as a String array, which the VTK
+// XML format writes in ASCII as the character codes of each string followed by a 0.
+void write_field_data(std::FILE* f, const Scene& scene, const std::vector<VtuFlag>& field_data) {
+  std::fputs("    <FieldData>\n", f);
+  for (const VtuFlag& flag : field_data)
+    std::fprintf(f,
+                 "      <DataArray type=\"Int32\" Name=\"%s\" NumberOfTuples=\"1\" "
+                 "format=\"ascii\">%ld</DataArray>\n",
+                 xml_escape(flag.name).c_str(), static_cast<long>(flag.value));
+  std::fprintf(f,
+               "      <DataArray type=\"String\" Name=\"surface_names\" NumberOfTuples=\"%zu\" "
+               "format=\"ascii\">\n",
+               scene.surfaces.size());
+  for (const Surface& surface : scene.surfaces) {
+    std::fputs("       ", f);
+    for (char c : surface.name) std::fprintf(f, " %d", int(static_cast<unsigned char>(c)));
+    std::fputs(" 0\n", f);
+  }
+  std::fputs("      </DataArray>\n    </FieldData>\n", f);
+}
+
+void write_grid(std::FILE* f, const Scene& scene, const PatchSet& patches,
+                const std::vector<PatchField>& fields, const std::vector<VtuFlag>& field_data,
+                const Layout& l) {
+  std::fputs("<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n", f);
+  std::fputs("<VTKFile type=\"UnstructuredGrid\" version=\"1.0\" byte_order=\"LittleEndian\">\n",
+             f);
+  std::fputs("<!-- written by hearthray; surfaces:", f);
+  for (std::size_t s = 0; s < scene.surfaces.size(); ++s)
+    std::fprintf(f, " %zu %s%s", s, comment_safe(scene.surfaces[s].name).c_str(),
+                 s + 1 < scene.surfaces.size() ? "," : "");
+  std::fputs(" -->\n", f);
+  std::fputs("  <UnstructuredGrid>\n", f);
+  write_field_data(f, scene, field_data);
+  std::fprintf(f, "    <Piece NumberOfPoints=\"%zu\" NumberOfCells=\"%zu\">\n", l.points.size(),
+               l.cell_patch.size());
+  write_points(f, scene, l);
+  write_cells(f, scene, patches, l);
+  write_cell_data(f, patches, fields, l);
+  std::fputs("    </Piece>\n  </UnstructuredGrid>\n</VTKFile>\n", f);
+}
+
 }  // namespace
 
 std::string vtu_array_name(const PatchField& field) {
@@ -169,37 +212,14 @@ void write_vtu(const std::string& path, const Scene& scene, const PatchSet& patc
   }
   const Layout l = layout(scene, patches);
 
-  File file(std::fopen(path.c_str(), "wb"));
-  if (!file) throw InputError("cannot open '" + path + "' for writing");
-  std::FILE* f = file.get();
-  std::fputs("<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n", f);
-  std::fputs("<VTKFile type=\"UnstructuredGrid\" version=\"1.0\" byte_order=\"LittleEndian\">\n",
-             f);
-  std::fputs("<!-- written by hearthray; surfaces:", f);
-  for (std::size_t s = 0; s < scene.surfaces.size(); ++s)
-    std::fprintf(f, " %zu %s%s", s, comment_safe(scene.surfaces[s].name).c_str(),
-                 s + 1 < scene.surfaces.size() ? "," : "");
-  std::fputs(" -->\n", f);
-  std::fputs("  <UnstructuredGrid>\n", f);
-  if (!field_data.empty()) {
-    std::fputs("    <FieldData>\n", f);
-    for (const VtuFlag& flag : field_data)
-      std::fprintf(f,
-                   "      <DataArray type=\"Int32\" Name=\"%s\" NumberOfTuples=\"1\" "
-                   "format=\"ascii\">%ld</DataArray>\n",
-                   xml_escape(flag.name).c_str(), static_cast<long>(flag.value));
-    std::fputs("    </FieldData>\n", f);
-  }
-  std::fprintf(f, "    <Piece NumberOfPoints=\"%zu\" NumberOfCells=\"%zu\">\n", l.points.size(),
-               l.cell_patch.size());
-  write_points(f, scene, l);
-  write_cells(f, scene, patches, l);
-  write_cell_data(f, patches, fields, l);
-  std::fputs("    </Piece>\n  </UnstructuredGrid>\n</VTKFile>\n", f);
-
-  const bool failed = std::ferror(f) != 0;
-  if (std::fclose(file.release()) != 0 || failed)
-    throw InputError("writing '" + path + "' failed (disk full or no permission?)");
+  write_file_atomically(path, [&](const std::string& temporary) {
+    File file(std::fopen(temporary.c_str(), "wb"));
+    if (!file) throw InputError("cannot open '" + path + "' for writing");
+    write_grid(file.get(), scene, patches, fields, field_data, l);
+    const bool failed = std::ferror(file.get()) != 0;
+    if (std::fclose(file.release()) != 0 || failed)
+      throw InputError("writing '" + path + "' failed (disk full or no permission?)");
+  });
 }
 
 }  // namespace hearthray

@@ -81,10 +81,17 @@ std::string format_number(double value, int decimals);
 
 // A colour bar with its ticks on the right. `zero` marks the value 0 with a longer tick when
 // it is inside the range. Returns the width used (bar, ticks and labels).
+// `marks` are values drawn as a bold line across the bar with a label beyond the tick labels
+// (e.g. a comfort limit, "limit 5 K").
+struct BarMark {
+  double value;
+  std::string label;
+};
 struct ColourBar {
   double lo = 0, hi = 1;
   Colour (*colour)(double) = nullptr;
   bool mark_zero = false;
+  std::vector<BarMark> marks;
 };
 double colour_bar_width(const Canvas& canvas, const ColourBar& bar, double font_size);
 void draw_colour_bar(Canvas& canvas, const ColourBar& bar, double x, double top, double bottom,

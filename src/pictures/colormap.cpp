@@ -19,11 +19,13 @@ struct Lab {
   double L, a, b;
 };
 
-// Control points (L*, a*, b*): dark blue-violet, purple, crimson, orange-red, amber, pale
-// yellow. Chosen by hand so that the whole path stays inside the sRGB gamut (a clipped colour
-// would break the equal steps, which the tests check).
+// Control points (L*, a*, b*) of our sequential map, "deep water to sand": ink blue, slate
+// blue, teal, sage, sand, cream. Chroma stays moderate and falls towards the light end, so the
+// top of the scale is a pale cream rather than a saturated yellow; the hues run blue -> teal ->
+// warm sand, never through purple or green-yellow. Chosen by hand so that the whole path stays
+// inside the sRGB gamut (a clipped colour would break the equal steps, which the tests check).
 constexpr std::array<Lab, 6> kPath{
-    {{14, 22, -38}, {32, 48, -40}, {48, 62, -8}, {62, 46, 42}, {78, 12, 66}, {94, -6, 40}}};
+    {{16, 14, -34}, {32, 0, -28}, {48, -22, -14}, {63, -16, 8}, {78, 4, 28}, {95, 1, 12}}};
 
 // The diverging map's two halves, each from the neutral grey at zero outwards: lightness falls
 // by the same steps on both sides; blue-green below zero, copper-red above. Chosen by hand,

@@ -101,7 +101,10 @@ double colour_bar_width(const Canvas& canvas, const ColourBar& bar, double font_
   double label = 0;
   for (const Tick& t : round_ticks(bar.lo, bar.hi, 7))
     label = std::max(label, canvas.text_width(t.label, font_size));
-  return s.bar + s.tick + s.gap + label;
+  double mark = 0;
+  for (const BarMark& m : bar.marks)
+    mark = std::max(mark, s.gap + canvas.text_width(m.label, font_size, Weight::bold));
+  return s.bar + s.tick + s.gap + label + mark;
 }
 
 void draw_colour_bar(Canvas& canvas, const ColourBar& bar, double x, double top, double bottom,
@@ -118,6 +121,16 @@ void draw_colour_bar(Canvas& canvas, const ColourBar& bar, double x, double top,
     if (zero) canvas.line(x, y, x + s.bar + s.tick, y, 2, ink);
     canvas.text(x + s.bar + s.tick + s.gap, y + digit_middle, t.label, font_size, ink, Align::left,
                 zero ? Weight::bold : Weight::regular);
+  }
+  double label = 0;
+  for (const Tick& t : round_ticks(bar.lo, bar.hi, 7))
+    label = std::max(label, canvas.text_width(t.label, font_size));
+  for (const BarMark& m : bar.marks) {
+    if (!(m.value >= bar.lo && m.value <= bar.hi)) continue;
+    const double y = y_of(m.value);
+    canvas.line(x - 0.3 * s.tick, y, x + s.bar + s.tick, y, 2.5, ink);
+    canvas.text(x + s.bar + s.tick + 2 * s.gap + label, y + digit_middle, m.label, font_size, ink,
+                Align::left, Weight::bold);
   }
 }
 

@@ -155,30 +155,33 @@ void trace_rows(const Scene& scene, const PatchSet& patches, const Tracer& trace
   }
 }
 
-// Default view direction: of the eight diagonal views (+-1, +-1.4, +-1), the one in which the
-// most surfaces show (each on at least 0.5 % of a coarse probe picture). Views from above are
-// preferred: one from below must show two surfaces more; ties go to the first in the list,
-// (1, -1.4, 1) first. A room with heating panels under its ceiling is thus seen from below,
-// where the panels face; a kiln or a furnace from above.
+// Default view direction: from above and in front, as one looks at a furnace or a kiln (its
+// door at the front), never from under the hearth. "Up" is the options' up vector (z by
+// default); "front" is the side towards -y (towards +z when up is y, the usual OBJ frame).
+// Of the two front views from above, front-right and front-left, the one in which more
+// surfaces show (each on at least 0.5 % of a coarse probe picture); a tie goes to the right.
+// To look at something from below (panels under a ceiling), give a camera position.
 Vec3 default_direction(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
                        const RenderOptions& o, const std::vector<char>& hidden, int view_w,
                        int view_h) {
-  static constexpr double kSigns[8][3] = {{1, -1, 1},  {-1, -1, 1},  {1, 1, 1},  {-1, 1, 1},
-                                          {1, -1, -1}, {-1, -1, -1}, {1, 1, -1}, {-1, 1, -1}};
+  const Vec3 up = normalized(o.up);
+  const Vec3 front_hint = std::fabs(up.y) > 0.9 ? Vec3{0, 0, 1} : Vec3{0, -1, 0};
+  const Vec3 front = normalized(front_hint - up * dot(front_hint, up));
+  const Vec3 right = cross(up, front);
   const int columns = 48;
   const int rows = std::max(4, int(std::lround(48.0 * view_h / view_w)));
   std::vector<Sample> probe(std::size_t(columns * rows));
   Vec3 best;
   std::size_t best_count = 0;
-  for (const auto& sign : kSigns) {
-    const Vec3 away = normalized(Vec3{sign[0], 1.4 * sign[1], sign[2]});
+  for (const double side : {1.0, -1.0}) {
+    const Vec3 away = normalized(right * side + front * 1.4 + up);
     const Camera cam = make_camera(scene, o, view_w, view_h, away, columns, rows);
     trace_rows(scene, patches, tracer, cam, hidden, 0, rows, probe.data());
     // A surface counts when it covers at least 0.5 % of the probe.
     std::vector<std::size_t> covered(scene.surfaces.size(), 0);
     for (const Sample& s : probe)
       if (s.patch != kBackground) ++covered[patches.patches[s.patch].surface];
-    std::size_t count = sign[2] > 0 ? 1 : 0;  // a view from below must show two more
+    std::size_t count = 0;
     for (std::size_t c : covered) count += c * 200 >= probe.size();
     if (norm(best) == 0 || count > best_count) {
       best = away;
@@ -398,6 +401,14 @@ Image shade(const Scene& scene, const View& view, const PatchColours& pc, const 
 }
 
 }  // namespace
+
+Vec3 default_view_direction(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
+                            const RenderOptions& options) {
+  std::string problem;
+  if (!options.IsValid(&problem)) throw InputError("picture options: " + problem);
+  return default_direction(scene, patches, tracer, options, hidden_surfaces(scene, options),
+                           options.width, options.height);
+}
 
 Picture render(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
                const PatchField& field, const RenderOptions& options) {

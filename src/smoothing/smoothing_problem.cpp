@@ -525,6 +525,8 @@ void measure_rows(const Problem& p, const Tallies& t, const ViewFactors& vf, Mea
   const Index* column = p.F.innerIndexPtr();
   const double* value = p.F.valuePtr();
   std::vector<double> row_error(blocks, 0.0), correction(blocks, 0.0);
+  // Sampler sobol: standard errors from the replicates (the binomial one times the row's ratio).
+  const std::vector<double> ratio = replicate_error_ratio(t);
   for_each_block(p, [&](std::size_t b, std::size_t first, std::size_t last) {
     double worst_row = 0, worst_correction = 0;
     for (std::size_t i = first; i < last; ++i) {
@@ -532,7 +534,8 @@ void measure_rows(const Problem& p, const Tallies& t, const ViewFactors& vf, Mea
       const double n_i = static_cast<double>(rays);
       auto note = [&](double smoothed, double before) {
         if (smoothed == 0 && before == 0) return;
-        const double sigma = correction_sigma(std::max(smoothed, before), rays);
+        const double sigma =
+            correction_sigma(std::max(smoothed, before), rays) * (ratio.empty() ? 1.0 : ratio[i]);
         worst_correction = std::max(worst_correction, std::abs(smoothed - before) / sigma);
       };
       std::uint64_t r = t.hit_offset[i];  // merge walk: both lists ascend
