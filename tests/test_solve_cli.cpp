@@ -497,3 +497,31 @@ TEST_CASE("solve reuses cached view factors and misses on a changed setting or m
   r = solve(cube_scene(kGoodCube), "other", " --cache " + other);
   CHECK(r.out.find("stored in cache " + other) != std::string::npos);
 }
+
+TEST_CASE("solve writes a large matrix as HDF5, or as Matrix Market text when asked", "[solve]") {
+  const ScratchDir dir("solve-hdf5");
+  set_up_meshes(dir);
+  // 6 faces x 64 patches of 0.125 m: 384 patches, above the 200 of the dense files.
+  write_text(dir / "scene.toml",
+             cube_scene("[rays]\nper_patch = 500\n[defaults]\nemissivity = 0.9\n"
+                        "temperature = \"20 C\"\npatches = \"0.125 m\"\n"
+                        "[surface.floor]\ntemperature = \"300 C\"\n"));
+  const std::string base = "solve " + (dir / "scene.toml").string() + " --quiet -o ";
+  const CliResult r = run_cli(base + (dir / "binary").string(), dir);
+  INFO(r.err);
+  REQUIRE(r.status == 0);
+  // The HDF5 signature (HDF5 File Format Specification, "Format Signature").
+  const std::string h5 = slurp(dir / "binary" / "view_factors.h5");
+  CHECK(h5.substr(0, 8) == std::string("\x89HDF\r\n\x1a\n", 8));
+  CHECK(!fs::exists(dir / "binary" / "view_factors.mtx"));
+  CHECK(!fs::exists(dir / "binary" / "view_factors.csv"));
+  const std::string table = slurp(dir / "binary" / "patches.csv");
+  CHECK(std::count(table.begin(), table.end(), '\n') == 385);  // header and 384 patches
+  const CliResult text = run_cli(base + (dir / "text").string() + " --matrix-text", dir);
+  REQUIRE(text.status == 0);
+  CHECK(slurp(dir / "text" / "view_factors.mtx").rfind("%%MatrixMarket", 0) == 0);
+  CHECK(!fs::exists(dir / "text" / "view_factors.h5"));
+  // Compressed binary against shortest-text Matrix Market: the binary file is the smaller one
+  // although it also holds the standard errors and the geometry.
+  CHECK(h5.size() < slurp(dir / "text" / "view_factors.mtx").size());
+}

@@ -6,6 +6,8 @@
 #include <string>
 #include <vector>
 
+#include "hearthray/patches.hpp"
+#include "hearthray/scene.hpp"
 #include "hearthray/view_factors.hpp"
 
 namespace hearthray {
@@ -40,10 +42,19 @@ void write_factors_npy(std::ostream& out, const ViewFactors& vf);
 // diagnostics and `info`.
 void write_factors_json(std::ostream& out, const ViewFactors& vf, const FactorReportInfo& info);
 
-// Writes by extension (.csv, .mtx, .npy, .json); throws InputError for any other extension or
-// a file that cannot be written. The file is written under a temporary name and renamed.
+// HDF5: F as CSR arrays (N x N+1, the surroundings last) with the standard error of every
+// entry, the patches (names, surfaces, sides, areas, centroids, normals, rays, triangles), the
+// surface names, the mesh and the run, compressed; the layout is in the README ("HDF5 matrix
+// file"). No timings: the same matrix gives the same bytes. Written whole or not at all.
+void write_factors_hdf5(const std::string& path, const ViewFactors& vf, const Scene& scene,
+                        const PatchSet& patches, const FactorReportInfo& info);
+
+// Writes by extension (.csv, .mtx, .npy, .json, and .h5 when `scene` and `patches`, the model
+// of the matrix, are given); throws InputError for any other extension or a file that cannot
+// be written. The file is written under a temporary name and renamed.
 void write_factors_file(const std::string& path, const ViewFactors& vf,
-                        const FactorReportInfo& info);
+                        const FactorReportInfo& info, const Scene* scene = nullptr,
+                        const PatchSet* patches = nullptr);
 
 // A readable table for the terminal: F with standard errors, surroundings column, row sums.
 void print_factors_table(std::ostream& out, const ViewFactors& vf);

@@ -28,7 +28,7 @@ int run_factors_command(const FactorsArgs& args) {
     const FactorReportInfo info = report_info(file, run);
     std::set<std::string> beside;  // patch files written (F.csv and F.json share them)
     for (const std::string& path : args.outputs) {
-      write_factors_file(path, run.factors, info);
+      write_factors_file(path, run.factors, info, &run.scene, &run.patches);
       if (!args.rays.quiet) std::cout << "wrote " << path << "\n";
       for (const std::string& written : write_patch_files_beside(path, run.scene, run.patches))
         if (beside.insert(written).second && !args.rays.quiet)

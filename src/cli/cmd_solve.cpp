@@ -21,8 +21,9 @@ namespace {
 
 namespace fs = std::filesystem;
 
-// Up to this many patches the view factors are also written densely (CSV and JSON); beyond,
-// only as a sparse Matrix Market file (a dense 20k x 20k matrix would be 3 GB of text).
+// Up to this many patches the view factors are written densely (CSV and JSON); beyond, sparse
+// and compressed as HDF5 (a dense 20k x 20k matrix would be 3 GB of text, and even the sparse
+// Matrix Market text of 100k patches is gigabytes), or as Matrix Market text when asked.
 constexpr std::size_t kDenseFactorFileLimit = 200;
 
 // The height of the model's case: its extent along z, the vertical of the scene frame.
@@ -75,9 +76,9 @@ void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved, UnitS
   const bool dense = used.size() <= kDenseFactorFileLimit;
   const std::vector<std::string> factor_files =
       dense ? std::vector<std::string>{"view_factors.csv", "view_factors.json"}
-            : std::vector<std::string>{"view_factors.mtx"};
+            : std::vector<std::string>{args.matrix_text ? "view_factors.mtx" : "view_factors.h5"};
   for (const std::string& name : factor_files)
-    write_factors_file((dir / name).string(), used, factor_info);
+    write_factors_file((dir / name).string(), used, factor_info, &run.scene, &run.patches);
   const std::vector<PatchField> fields = solve_fields(model, result);
   write_vtu((dir / "patches.vtu").string(), run.scene, run.patches, fields,
             {{"converged", result.status == ExchangeStatus::converged ? 1 : 0}});

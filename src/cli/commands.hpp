@@ -35,6 +35,7 @@ struct SolveArgs {
   std::string cache_dir;  // --cache; "" = default
   bool no_cache = false;
   std::string units = "si";  // --units: si | us | kcal, for the table, surfaces.csv, pictures
+  bool matrix_text = false;  // --matrix-text: a large matrix as view_factors.mtx, not .h5
 };
 // Exit codes: 0 solved, 2 bad input, 4 the solver did not converge (outputs still written).
 inline constexpr int kExitNotConverged = 4;

@@ -62,9 +62,10 @@ CLI::App* add_factors_command(CLI::App& app, FactorsArgs& factors) {
   cmd_factors->add_flag("--force", factors.rays.force,
                         "Run even when the estimated patches, rays or memory are past the limits");
   cmd_factors->add_flag("-q,--quiet", factors.rays.quiet, "No progress line or summary");
-  cmd_factors->add_option("-o,--output", factors.outputs,
-                          "Output file: .csv, .mtx, .npy or .json (repeatable); the patch table "
-                          "and VTU are written beside it");
+  cmd_factors->add_option(
+      "-o,--output", factors.outputs,
+      "Output file: .csv, .mtx, .npy, .json or .h5 (repeatable); the patch table "
+      "and VTU are written beside it");
   add_cache_options(cmd_factors, &factors.cache_dir, &factors.no_cache);
   return cmd_factors;
 }
@@ -108,6 +109,9 @@ CLI::App* add_solve_command(CLI::App& app, SolveArgs& solve) {
       ->check(seed_range());
   cmd_solve->add_option("--threads", solve.rays.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
+  cmd_solve->add_flag("--matrix-text", solve.matrix_text,
+                      "Above 200 patches, write the view factors as Matrix Market text "
+                      "(view_factors.mtx) instead of compressed HDF5 (view_factors.h5)");
   add_cache_options(cmd_solve, &solve.cache_dir, &solve.no_cache);
   cmd_solve->add_option("--units", solve.units,
                         "Units of the table, surfaces.csv and pictures: si (C, W, W/m2), us "

@@ -182,16 +182,23 @@ void write_factors_json(std::ostream& out, const ViewFactors& vf, const FactorRe
 }
 
 void write_factors_file(const std::string& path, const ViewFactors& vf,
-                        const FactorReportInfo& info) {
+                        const FactorReportInfo& info, const Scene* scene, const PatchSet* patches) {
   const std::size_t dot = path.find_last_of('.');
   const std::size_t slash = path.find_last_of("/\\");
   const std::string extension =
       (dot == std::string::npos || (slash != std::string::npos && dot < slash))
           ? std::string()
           : lower(path.substr(dot));
+  if (extension == ".h5") {
+    if (!scene || !patches)
+      throw InputError("cannot write '" + path + "': an HDF5 matrix file needs the patches");
+    check_factors(vf);
+    write_factors_hdf5(path, vf, *scene, *patches, info);
+    return;
+  }
   if (extension != ".csv" && extension != ".mtx" && extension != ".npy" && extension != ".json") {
     throw InputError("cannot write '" + path + "': unknown file type '" + extension +
-                     "'; use one of .csv, .mtx, .npy, .json");
+                     "'; use one of .csv, .mtx, .npy, .json, .h5");
   }
   check_factors(vf);  // before the file is created, so a bad call leaves nothing behind
   write_stream_atomically(path, [&](std::ostream& file) {

@@ -1,0 +1,190 @@
+#include "outputs/hdf5_file.hpp"
+
+#include <algorithm>
+
+#include "hearthray/error.hpp"
+
+namespace hearthray::hdf5 {
+
+namespace {
+
+// Rows per chunk of a compressed dataset: 64 Ki rows (512 KiB of doubles) balances the
+// deflate ratio against the memory a reader needs for one chunk.
+constexpr std::uint64_t kChunkRows = 1 << 16;
+
+// Object creation properties without access and modification times: HDF5 records them by
+// default, and they would make two runs of the same matrix differ.
+Handle untimed(const File& file, hid_t property_class) {
+  Handle list(file.check_id(H5Pcreate(property_class), "property list"), H5Pclose);
+  file.check(H5Pset_obj_track_times(list.get(), false), "property list");
+  return list;
+}
+
+Handle utf8_string_type(const File& file) {
+  Handle type(file.check_id(H5Tcopy(H5T_C_S1), "string type"), H5Tclose);
+  file.check(H5Tset_size(type.get(), H5T_VARIABLE), "string type");
+  file.check(H5Tset_cset(type.get(), H5T_CSET_UTF8), "string type");
+  return type;
+}
+
+}  // namespace
+
+Handle& Handle::operator=(Handle&& other) noexcept {
+  if (this != &other) {
+    if (id_ >= 0 && close_) close_(id_);
+    id_ = other.id_;
+    close_ = other.close_;
+    other.id_ = -1;
+  }
+  return *this;
+}
+
+Handle::~Handle() {
+  if (id_ >= 0 && close_) close_(id_);
+}
+
+File::File(const std::string& path, std::string name) : name_(std::move(name)) {
+  // Errors come back as status values and are reported by check(); no printing from HDF5.
+  H5Eset_auto2(H5E_DEFAULT, nullptr, nullptr);
+  file_ = Handle(
+      check_id(H5Fcreate(path.c_str(), H5F_ACC_TRUNC, H5P_DEFAULT, H5P_DEFAULT), "create the file"),
+      H5Fclose);
+}
+
+void File::close() {
+  const hid_t id = file_.get();
+  check(H5Fflush(id, H5F_SCOPE_GLOBAL), "flush");
+  file_ = Handle();  // closes; a failure there shows in the flush above
+}
+
+void File::check(herr_t status, const std::string& what) const {
+  if (status < 0) throw InputError("writing '" + name_ + "' failed (HDF5: " + what + ")");
+}
+
+hid_t File::check_id(hid_t id, const std::string& what) const {
+  if (id < 0) throw InputError("writing '" + name_ + "' failed (HDF5: " + what + ")");
+  return id;
+}
+
+void File::group(const std::string& path) const {
+  const Handle properties = untimed(*this, H5P_GROUP_CREATE);
+  Handle g(
+      check_id(H5Gcreate2(file_.get(), path.c_str(), H5P_DEFAULT, properties.get(), H5P_DEFAULT),
+               "group " + path),
+      H5Gclose);
+}
+
+namespace {
+
+// Writes one attribute of `type` and `count` values (0: a scalar) on the object at `path`.
+void write_attribute(const File& file, const std::string& path, const std::string& name, hid_t type,
+                     const void* value, hsize_t count) {
+  Handle object(file.check_id(H5Oopen(file.get(), path.c_str(), H5P_DEFAULT), "open " + path),
+                H5Oclose);
+  Handle space(
+      file.check_id(count == 0 ? H5Screate(H5S_SCALAR) : H5Screate_simple(1, &count, nullptr),
+                    "attribute space"),
+      H5Sclose);
+  Handle attribute(file.check_id(H5Acreate2(object.get(), name.c_str(), type, space.get(),
+                                            H5P_DEFAULT, H5P_DEFAULT),
+                                 "attribute " + name),
+                   H5Aclose);
+  file.check(H5Awrite(attribute.get(), type, value), "attribute " + name);
+}
+
+}  // namespace
+
+void File::attribute(const std::string& path, const std::string& name,
+                     const std::string& value) const {
+  const Handle type = utf8_string_type(*this);
+  const char* text = value.c_str();
+  write_attribute(*this, path, name, type.get(), &text, 0);
+}
+
+void File::attribute(const std::string& path, const std::string& name, double value) const {
+  write_attribute(*this, path, name, H5T_NATIVE_DOUBLE, &value, 0);
+}
+
+void File::attribute(const std::string& path, const std::string& name, std::int64_t value) const {
+  write_attribute(*this, path, name, H5T_NATIVE_INT64, &value, 0);
+}
+
+void File::attribute(const std::string& path, const std::string& name,
+                     const std::vector<std::int64_t>& values) const {
+  write_attribute(*this, path, name, H5T_NATIVE_INT64, values.data(), values.size());
+}
+
+void File::strings(const std::string& path, const std::vector<std::string>& values) const {
+  const Handle type = utf8_string_type(*this);
+  std::vector<const char*> pointers;
+  pointers.reserve(values.size());
+  for (const std::string& v : values) pointers.push_back(v.c_str());
+  Dataset dataset(*this, path, type.get(), values.size(), 1, false);
+  dataset.append(pointers.data(), values.size(), type.get());
+}
+
+void File::doubles(const std::string& path, const std::vector<double>& values, int columns) const {
+  Dataset d(*this, path, H5T_IEEE_F64LE, values.size() / std::size_t(columns), columns);
+  d.append(values.data(), values.size() / std::size_t(columns), H5T_NATIVE_DOUBLE);
+}
+
+void File::int64s(const std::string& path, const std::vector<std::int64_t>& values,
+                  int columns) const {
+  Dataset d(*this, path, H5T_STD_I64LE, values.size() / std::size_t(columns), columns);
+  d.append(values.data(), values.size() / std::size_t(columns), H5T_NATIVE_INT64);
+}
+
+void File::int32s(const std::string& path, const std::vector<std::int32_t>& values) const {
+  Dataset d(*this, path, H5T_STD_I32LE, values.size());
+  d.append(values.data(), values.size(), H5T_NATIVE_INT32);
+}
+
+void File::uint64s(const std::string& path, const std::vector<std::uint64_t>& values) const {
+  Dataset d(*this, path, H5T_STD_U64LE, values.size());
+  d.append(values.data(), values.size(), H5T_NATIVE_UINT64);
+}
+
+void File::int8s(const std::string& path, const std::vector<std::int8_t>& values) const {
+  Dataset d(*this, path, H5T_STD_I8LE, values.size());
+  d.append(values.data(), values.size(), H5T_NATIVE_INT8);
+}
+
+Dataset::Dataset(const File& file, const std::string& path, hid_t type, std::uint64_t rows,
+                 int columns, bool compress)
+    : file_(&file), path_(path), rows_(rows), columns_(columns) {
+  const hsize_t dims[2] = {rows, hsize_t(columns)};
+  Handle space(
+      file.check_id(H5Screate_simple(columns == 1 ? 1 : 2, dims, nullptr), "space of " + path),
+      H5Sclose);
+  const Handle properties = untimed(file, H5P_DATASET_CREATE);
+  if (compress && rows > 0) {
+    // Chunked, byte-shuffled (the high bytes of similar numbers sit together), deflated.
+    const hsize_t chunk[2] = {std::min<hsize_t>(rows, kChunkRows), hsize_t(columns)};
+    file.check(H5Pset_chunk(properties.get(), columns == 1 ? 1 : 2, chunk), "chunk " + path);
+    file.check(H5Pset_shuffle(properties.get()), "shuffle " + path);
+    file.check(H5Pset_deflate(properties.get(), 4), "deflate " + path);
+  }
+  dataset_ = Handle(file.check_id(H5Dcreate2(file.get(), path.c_str(), type, space.get(),
+                                             H5P_DEFAULT, properties.get(), H5P_DEFAULT),
+                                  "dataset " + path),
+                    H5Dclose);
+}
+
+void Dataset::append(const void* values, std::uint64_t count, hid_t memory_type) {
+  if (count == 0) return;
+  if (written_ + count > rows_)
+    throw std::logic_error("HDF5 dataset " + path_ + ": more rows appended than declared");
+  const hsize_t start[2] = {written_, 0}, size[2] = {count, hsize_t(columns_)};
+  const int rank = columns_ == 1 ? 1 : 2;
+  Handle file_space(file_->check_id(H5Dget_space(dataset_.get()), "space of " + path_), H5Sclose);
+  file_->check(H5Sselect_hyperslab(file_space.get(), H5S_SELECT_SET, start, nullptr, size, nullptr),
+               "select in " + path_);
+  Handle memory_space(file_->check_id(H5Screate_simple(rank, size, nullptr), "memory space"),
+                      H5Sclose);
+  file_->check(H5Dwrite(dataset_.get(), memory_type, memory_space.get(), file_space.get(),
+                        H5P_DEFAULT, values),
+               "write " + path_);
+  written_ += count;
+}
+
+}  // namespace hearthray::hdf5

@@ -1,0 +1,86 @@
+// A thin RAII layer over the HDF5 C API for the matrix file (hdf5_output.cpp): handles closed
+// on scope exit, every call checked (a failed call throws InputError naming the file), no
+// object timestamps (the same matrix gives the same bytes), compressed 1-D and N x 3 datasets
+// written block by block so that a large matrix is never copied whole.
+#pragma once
+
+#include <hdf5.h>
+
+#include <cstdint>
+#include <string>
+#include <vector>
+
+namespace hearthray::hdf5 {
+
+// An HDF5 identifier closed by its close function when the object goes.
+class Handle {
+ public:
+  Handle() = default;
+  Handle(hid_t id, herr_t (*close)(hid_t)) : id_(id), close_(close) {}
+  Handle(Handle&& other) noexcept : id_(other.id_), close_(other.close_) { other.id_ = -1; }
+  Handle& operator=(Handle&& other) noexcept;
+  Handle(const Handle&) = delete;
+  Handle& operator=(const Handle&) = delete;
+  ~Handle();
+  hid_t get() const { return id_; }
+
+ private:
+  hid_t id_ = -1;
+  herr_t (*close_)(hid_t) = nullptr;
+};
+
+class File;
+
+// A dataset of `rows` x `columns` (columns 1: a vector) filled in row order by append().
+class Dataset {
+ public:
+  Dataset(const File& file, const std::string& path, hid_t type, std::uint64_t rows,
+          int columns = 1, bool compress = true);
+  // Appends `count` rows (count x columns values) of the dataset's type.
+  void append(const void* values, std::uint64_t count, hid_t memory_type);
+  std::uint64_t written() const { return written_; }
+  hid_t get() const { return dataset_.get(); }
+
+ private:
+  const File* file_;
+  std::string path_;
+  Handle dataset_;
+  std::uint64_t rows_ = 0, written_ = 0;
+  int columns_ = 1;
+};
+
+class File {
+ public:
+  // Creates (truncates) `path`; `name` is the file named in messages (the final path when
+  // `path` is a temporary one).
+  File(const std::string& path, std::string name);
+  void close();  // flushes and closes; throws when that fails
+  hid_t get() const { return file_.get(); }
+  // Throws InputError "writing NAME failed: what" when `status` is negative.
+  void check(herr_t status, const std::string& what) const;
+  hid_t check_id(hid_t id, const std::string& what) const;
+
+  void group(const std::string& path) const;
+  // Attributes on the object at `path` ("/" for the file).
+  void attribute(const std::string& path, const std::string& name, const std::string& value) const;
+  void attribute(const std::string& path, const std::string& name, double value) const;
+  void attribute(const std::string& path, const std::string& name, std::int64_t value) const;
+  void attribute(const std::string& path, const std::string& name,
+                 const std::vector<std::int64_t>& values) const;
+  // Whole vectors as datasets.
+  void strings(const std::string& path, const std::vector<std::string>& values) const;
+  void doubles(const std::string& path, const std::vector<double>& values, int columns = 1) const;
+  void int64s(const std::string& path, const std::vector<std::int64_t>& values,
+              int columns = 1) const;
+  void int32s(const std::string& path, const std::vector<std::int32_t>& values) const;
+  void uint64s(const std::string& path, const std::vector<std::uint64_t>& values) const;
+  void int8s(const std::string& path, const std::vector<std::int8_t>& values) const;
+
+  const std::string& name() const { return name_; }
+
+ private:
+  std::string name_;
+  Handle file_;
+};
+
+}  // namespace hearthray::hdf5

@@ -1,0 +1,142 @@
+"""The Python module `hearthray`, used as a Python user would, checked against closed forms.
+
+1. View factors of the unit cube (inward normals), the matrix with its geometry in three lines;
+   the faces' factors against Howell, "A Catalog of Radiation Heat Transfer Configuration
+   Factors", C-11 (opposite faces, 0.19982) and C-14 (adjacent faces, 0.20004) (formulas
+   recalled from memory, as in check_hdf5.py), within 4 standard errors sqrt(F(1-F)/N).
+2. A solve of the cube with a black floor at 1000 K and the other faces black at 300 K: the
+   floor sees only the other faces (its factors sum to 1 once closure is enforced), so it
+   loses sigma A (T1^4 - T2^4) by the Stefan-Boltzmann law with no ray noise; checked to
+   1e-9 relative. sigma = 5.670374419e-8 W/(m2 K4) (CODATA 2018).
+3. The example examples/python_view_factors.py runs.
+Exits 77 (ctest: skipped) when numpy, scipy or the module is missing.
+
+usage: check_module.py MODULE_DIR SCRATCH_DIR EXAMPLE
+"""
+import math
+import os
+import shutil
+import subprocess
+import sys
+
+sys.path.insert(0, os.path.abspath(sys.argv[1]))
+try:
+    import numpy as np
+    import scipy.sparse
+except ImportError as missing:
+    print(f"skipped: {missing} (install python3-numpy and python3-scipy, as scripts/setup does)")
+    sys.exit(77)
+import hearthray  # built by CMake when pybind11 is there; a failure here is a real failure
+
+CUBE = """v 0 0 0
+v 1 0 0
+v 1 1 0
+v 0 1 0
+v 0 0 1
+v 1 0 1
+v 1 1 1
+v 0 1 1
+g floor
+f 1 2 3 4
+g roof
+f 5 8 7 6
+g south
+f 1 5 6 2
+g north
+f 4 3 7 8
+g west
+f 1 4 8 5
+g east
+f 2 6 7 3
+"""
+SCENE = """[mesh]
+file = "cube.obj"
+[rays]
+per_patch = 40_000
+seed = 11
+[defaults]
+emissivity = 1
+temperature = "300 K"
+[surface.floor]
+temperature = "1000 K"
+"""
+RAYS = 40_000
+SIGMA = 5.670374419e-8  # W/(m2 K4), CODATA 2018
+
+
+def check(condition, message):
+    if not condition:
+        sys.exit("FAILED: " + message)
+
+
+def main():
+    scratch = os.path.abspath(sys.argv[2])
+    shutil.rmtree(scratch, ignore_errors=True)
+    os.makedirs(scratch)
+    obj = os.path.join(scratch, "cube.obj")
+    with open(obj, "w") as f:
+        f.write(CUBE)
+    scene = os.path.join(scratch, "scene.toml")
+    with open(scene, "w") as f:
+        f.write(SCENE)
+    cache = os.path.join(scratch, "cache")
+
+    # 1. The matrix with its geometry in three lines.
+    vf = hearthray.view_factors(obj, rays=RAYS, seed=3, cache_dir=cache)
+    F, patches = vf["F"], vf["patches"]
+    check(isinstance(F, scipy.sparse.csr_matrix), f"F is a {type(F)}")
+    check(F.shape == (6, 7), f"shape {F.shape}")
+    check(patches["name"] == ["floor", "roof", "south", "north", "west", "east"],
+          f"names {patches['name']}")
+    check(np.allclose(patches["area_m2"], 1, rtol=1e-12), "areas")
+    check(np.allclose(patches["normal"][0], [0, 0, 1]) and
+          np.allclose(patches["centroid_m"][0], [0.5, 0.5, 0]), "floor geometry")
+    check(patches["triangle_offset"][-1] == len(vf["mesh"]["triangles"]), "triangle offsets")
+    dense = F.toarray()
+    check(np.max(np.abs(dense.sum(axis=1) - 1)) < 1e-12, "row sums")
+    opposite, adjacent = 0.19982, 0.20004  # Howell C-11, C-14 for the unit cube (recalled)
+    normals = patches["normal"]
+    for i in range(6):
+        for j in range(6):
+            if i == j:
+                continue
+            ref = opposite if np.dot(normals[i], normals[j]) < 0 else adjacent
+            sigma = math.sqrt(ref * (1 - ref) / RAYS)
+            check(abs(dense[i, j] - ref) < 4 * sigma, f"F[{i},{j}] = {dense[i, j]}, ref {ref}")
+    se = vf["standard_error"].toarray()
+    check(abs(se[0, 1] - math.sqrt(dense[0, 1] * (1 - dense[0, 1]) / RAYS)) < 1e-15,
+          "standard error")
+    again = hearthray.view_factors(obj, rays=RAYS, seed=3, cache_dir=cache, threads=1)
+    check(again["from_cache"], "second call from the cache")
+    check((again["F"] != F).nnz == 0, "cached factors differ")
+    try:
+        hearthray.view_factors(os.path.join(scratch, "missing.obj"))
+        check(False, "a missing mesh raised nothing")
+    except hearthray.InputError as e:
+        check("missing.obj" in str(e), f"message {e}")
+
+    # 2. A solve: the hot black floor against the black 300 K rest of the cube.
+    solved = hearthray.solve(scene, cache_dir=cache)
+    check(solved["converged"], f"status {solved['status']}")
+    surfaces = solved["surfaces"]
+    floor = surfaces["name"].index("floor")
+    expected = SIGMA * 1.0 * (1000.0 ** 4 - 300.0 ** 4)
+    net = surfaces["net_W"][floor]
+    check(abs(net - expected) < 1e-9 * expected, f"floor loses {net} W, expected {expected}")
+    check(isinstance(surfaces["net_W"], np.ndarray) and len(surfaces["net_W"]) == 6, "table")
+    check(abs(sum(surfaces["net_W"])) < 1e-9 * expected, "closed black cube: net sums to 0")
+    check(solved["factors"]["F"].shape == (6, 7), "solve's factors")
+    temperature = next(k for k in solved["patches"] if k.startswith("temperature"))
+    check(len(solved["patches"][temperature]) == 6, "patch fields")
+
+    # 3. The example.
+    done = subprocess.run([sys.executable, sys.argv[3], obj], capture_output=True, text=True,
+                          env=dict(os.environ, PYTHONPATH=os.path.abspath(sys.argv[1]),
+                                   HEARTHRAY_CACHE=cache))
+    check(done.returncode == 0 and "row sum 1.0000" in done.stdout,
+          f"example: {done.stdout} {done.stderr}")
+    print(f"ok: F {F.shape}, floor to roof {dense[0, 1]:.5f} (Howell C-11 {opposite}), "
+          f"floor net {net:.3f} W (Stefan-Boltzmann {expected:.3f} W)")
+
+
+main()
