@@ -69,6 +69,17 @@ TEST_CASE("hearthray solve runs a fired scene through the gas zones", "[gas][cli
   CHECK(report["gas"]["solver"]["converged"].get<bool>());
   CHECK(report["gas"]["zones"].size() == 3);
   CHECK(report["cautions"].dump().find("carbon monoxide") != std::string::npos);
+  // Every file says whether the solve converged: CSV columns and VTU field data.
+  for (const char* f : {"zones.csv", "gas_patches.csv"}) {
+    const std::string csv = slurp(dir / "out" / f);
+    CHECK(csv.substr(0, csv.find('\n')).find(",converged") != std::string::npos);
+    CHECK(csv.find(",yes\n") != std::string::npos);
+    CHECK(csv.find(",no\n") == std::string::npos);
+  }
+  for (const char* f : {"zones.vtu", "patches.vtu"})
+    CHECK(slurp(dir / "out" / f)
+              .find("Name=\"converged\" NumberOfTuples=\"1\" format=\"ascii\">1<") !=
+          std::string::npos);
 }
 
 TEST_CASE("hearthray solve refuses bad gas input with error and exit 2", "[gas][cli]") {

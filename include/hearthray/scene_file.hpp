@@ -29,6 +29,7 @@
 
 #include "hearthray/comfort_input.hpp"
 #include "hearthray/conditions.hpp"
+#include "hearthray/firing_input.hpp"
 #include "hearthray/gas_input.hpp"
 #include "hearthray/patches.hpp"
 #include "hearthray/scene.hpp"
@@ -62,6 +63,7 @@ struct SceneFile {
   std::vector<std::pair<std::string, SurfaceSpec>> surfaces;  // in file order
   std::optional<ComfortInput> comfort;  // [comfort]: points and air for the comfort figures
   std::optional<GasInput> gas;          // [gas]: the radiating gas filling the enclosure
+  std::optional<FiringInput> firing;    // [firing]: a schedule over time (hearthray fire)
 
   const SurfaceSpec* find(const std::string& name) const;
   bool has_thermal_input() const;  // any emissivity or condition given

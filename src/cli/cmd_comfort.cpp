@@ -173,6 +173,18 @@ void named_point_rows(const std::vector<ComfortRun>& runs,
   }
 }
 
+// The points over a limit, by scene: a share alone hides which they are.
+void print_points_over(const std::vector<ComfortRun>& runs, const std::vector<std::string>& names) {
+  std::cout << "\npoints over a limit:\n";
+  for (std::size_t k = 0; k < runs.size(); ++k) {
+    std::vector<std::string> over;
+    for (const PointComfort* p : summarise_comfort(runs[k].points).failing)
+      over.push_back(failing_text(*p));
+    std::cout << "  " << names[k] << ": " << (over.empty() ? "none" : join_at_most(over, 20))
+              << "\n";
+  }
+}
+
 }  // namespace
 
 int run_comfort_command(const ComfortArgs& args) {
@@ -281,15 +293,7 @@ int run_compare_command(const ComfortArgs& args) {
     }
   }
   for (const Caution& c : general) std::cout << "  - " << c.text << "\n";
-  // The points over a limit, by scene: a share alone hides which they are.
-  std::cout << "\npoints over a limit:\n";
-  for (std::size_t k = 0; k < runs.size(); ++k) {
-    std::vector<std::string> over;
-    for (const PointComfort* p : summarise_comfort(runs[k].points).failing)
-      over.push_back(failing_text(*p));
-    std::cout << "  " << head[k + 1] << ": " << (over.empty() ? "none" : join_at_most(over, 20))
-              << "\n";
-  }
+  print_points_over(runs, std::vector<std::string>(head.begin() + 1, head.end()));
   if (!args.output_dir.empty())
     write_compared_maps(args, runs, std::vector<std::string>(head.begin() + 1, head.end()));
   return 0;

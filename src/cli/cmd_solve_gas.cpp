@@ -62,7 +62,8 @@ int run_gas_solve(const SolveArgs& args, const SceneFile& file) {
       temperature.values.push_back(run.solve.patches[p].temperature - kZeroCelsius);
       flux.values.push_back(run.solve.patches[p].net_out / plan.patches.patches[p].area);
     }
-    write_vtu((dir / "patches.vtu").string(), plan.scene, plan.patches, {temperature, flux});
+    write_vtu((dir / "patches.vtu").string(), plan.scene, plan.patches, {temperature, flux},
+              {{"converged", run.solve.converged ? 1 : 0}});
     write_picture((dir / "gas_zones.png").string(), zone_cut_picture(run, plan.scene));
     {
       std::ofstream report = open_output(dir / "report.json");

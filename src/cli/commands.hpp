@@ -42,6 +42,9 @@ inline constexpr int kExitNotConverged = 4;
 int run_solve_command(const SolveArgs& args);
 // The same for a scene with a [gas] table (the zone method).
 int run_gas_solve(const SolveArgs& args, const SceneFile& file);
+// A firing over time (the scene's [firing] table): exit 0 when the schedule ran to its end,
+// 2 for bad input, 4 when it could not be completed (outputs still written).
+int run_fire_command(const SolveArgs& args);
 
 struct ComfortArgs {
   std::vector<std::string> inputs;  // comfort: one scene; compare: two or more

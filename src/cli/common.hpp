@@ -74,7 +74,9 @@ std::ofstream open_output(const std::filesystem::path& path);
 // unless quiet, its notes) to stderr. Returns 0, or 2 after printing `error: ...` and the ray
 // warnings when the thermal model or the exchange refuses the input. `comfort`: the [comfort]
 // table is checked before anything is traced. The result may be unconverged: check its status.
+// `exchange` false: the thermal model only (no steady solve).
 int solve_scene_printing(const std::string& input, const RaySettings& settings,
-                         const CacheChoice& cache, bool comfort, SolvedScene* out);
+                         const CacheChoice& cache, bool comfort, SolvedScene* out,
+                         bool exchange = true);
 
 }  // namespace hearthray::cli

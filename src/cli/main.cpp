@@ -26,11 +26,12 @@ const char* const kUnitHelp = "Unit of a bare mesh's coordinates: mm, cm, m, in 
 struct Commands {
   FactorsArgs factors;
   CheckArgs check;
-  SolveArgs solve;
+  SolveArgs solve, fire;
   ComfortArgs comfort, compare;
   RenderArgs render;
   CLI::App *cmd_factors = nullptr, *cmd_check = nullptr, *cmd_solve = nullptr,
-           *cmd_comfort = nullptr, *cmd_compare = nullptr, *cmd_render = nullptr;
+           *cmd_comfort = nullptr, *cmd_compare = nullptr, *cmd_render = nullptr,
+           *cmd_fire = nullptr;
 };
 
 // --cache DIR and --no-cache (which exclude each other).
@@ -88,13 +89,13 @@ CLI::App* add_check_command(CLI::App& app, CheckArgs& check) {
   return cmd_check;
 }
 
-CLI::App* add_solve_command(CLI::App& app, SolveArgs& solve) {
-  CLI::App* cmd_solve = app.add_subcommand(
-      "solve", "Radiant heat exchange: heat flows and surface temperatures from a scene file");
+// `solve` and `fire` take the same options.
+CLI::App* add_scene_command(CLI::App& app, const std::string& name, const std::string& what,
+                            const std::string& output_help, SolveArgs& solve) {
+  CLI::App* cmd_solve = app.add_subcommand(name, what);
   cmd_solve->add_option("scene", solve.input, "Scene file (.toml) with thermal conditions")
       ->required();
-  cmd_solve->add_option("-o,--output", solve.output_dir,
-                        "Folder for surfaces.csv, report.json and view_factors.csv/.json");
+  cmd_solve->add_option("-o,--output", solve.output_dir, output_help);
   cmd_solve->add_flag("-q,--quiet", solve.rays.quiet, "No progress, notes or summary lines");
   cmd_solve->add_flag("--force", solve.rays.force,
                       "Run even when the estimated patches, rays or memory are past the limits");
@@ -113,10 +114,6 @@ CLI::App* add_solve_command(CLI::App& app, SolveArgs& solve) {
                       "Above 200 patches, write the view factors as Matrix Market text "
                       "(view_factors.mtx) instead of compressed HDF5 (view_factors.h5)");
   add_cache_options(cmd_solve, &solve.cache_dir, &solve.no_cache);
-  cmd_solve->add_option("--units", solve.units,
-                        "Units of the table, surfaces.csv and pictures: si (C, W, W/m2), us "
-                        "(F, Btu/h, Btu/(h ft2)) or kcal (C, kcal/h, kcal/(h m2)); report.json "
-                        "stays SI (default si)");
   return cmd_solve;
 }
 
@@ -247,6 +244,7 @@ int run(const Commands& c) {
     if (*c.cmd_check) return run_check_command(c.check);
     if (*c.cmd_solve) return run_solve_command(c.solve);
     if (*c.cmd_render) return run_render_command(c.render);
+    if (*c.cmd_fire) return run_fire_command(c.fire);
     if (*c.cmd_comfort) return run_comfort_command(c.comfort);
     if (*c.cmd_compare) return run_compare_command(c.compare);
   } catch (const hearthray::InputError& e) {
@@ -275,7 +273,17 @@ int main(int argc, char** argv) {
   Commands c;
   c.cmd_factors = add_factors_command(app, c.factors);
   c.cmd_check = add_check_command(app, c.check);
-  c.cmd_solve = add_solve_command(app, c.solve);
+  c.cmd_solve = add_scene_command(
+      app, "solve", "Radiant heat exchange: heat flows and surface temperatures from a scene file",
+      "Folder for surfaces.csv, report.json and view_factors.csv/.json", c.solve);
+  c.cmd_solve->add_option("--units", c.solve.units,
+                          "Units of the table, surfaces.csv and pictures: si (C, W, W/m2), us "
+                          "(F, Btu/h, Btu/(h ft2)) or kcal (C, kcal/h, kcal/(h m2)); report.json "
+                          "stays SI (default si)");
+  c.cmd_fire = add_scene_command(
+      app, "fire",
+      "A firing over time: the scene's [firing] schedule, walls and loads with heat capacity",
+      "Folder for firing.csv, report.json and the pictures against time", c.fire);
   add_comfort_commands(app, &c);
   c.cmd_render = add_render_command(app, c.render);
   if (unknown_command(app, argc, argv)) return 2;

@@ -20,7 +20,9 @@ void write_zones_vtu(const std::string& path, const GasRun& run) {
     std::ofstream out(part);
     if (!out) throw InputError("cannot write " + path);
     out << "<?xml version=\"1.0\"?>\n<VTKFile type=\"UnstructuredGrid\" version=\"0.1\" "
-           "byte_order=\"LittleEndian\">\n<UnstructuredGrid>\n<Piece NumberOfPoints=\""
+           "byte_order=\"LittleEndian\">\n<UnstructuredGrid>\n<FieldData>\n<DataArray "
+           "type=\"Int32\" Name=\"converged\" NumberOfTuples=\"1\" format=\"ascii\">"
+        << (run.solve.converged ? 1 : 0) << "</DataArray>\n</FieldData>\n<Piece NumberOfPoints=\""
         << 8 * Z << "\" NumberOfCells=\"" << Z << "\">\n";
     out << "<Points>\n<DataArray type=\"Float64\" NumberOfComponents=\"3\" format=\"ascii\">\n";
     for (std::size_t z = 0; z < Z; ++z) {
@@ -129,8 +131,11 @@ Picture zone_cut_picture(const GasRun& run, const Scene& scene, int across) {
   const double bx = left + wu * ppm + kBarGap;
   c.text(bx, top - 8, "in °C", kFont, kInk);
   pictures::draw_colour_bar(c, bar, bx, top, top + wv * ppm, kFont, kInk);
-  c.text(kPad, 24, "Gas temperature in the zones", 1.2 * kFont, kInk, pictures::Align::left,
-         pictures::Weight::bold);
+  c.text(kPad, 24,
+         std::string("Gas temperature in the zones") +
+             (run.solve.converged ? " (zone solve converged)"
+                                  : " \u2014 NOT CONVERGED, not an answer"),
+         1.2 * kFont, kInk, pictures::Align::left, pictures::Weight::bold);
   const char* axis = "xyz";
   char sub[200];
   std::snprintf(sub, sizeof sub,

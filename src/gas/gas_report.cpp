@@ -119,7 +119,8 @@ void print_gas_table(std::ostream& out, const GasRun& run) {
 void write_zones_csv(std::ostream& out, const GasRun& run) {
   const GasExchange& x = run.exchange;
   out << "zone,i,j,k,x_m,y_m,z_m,volume_m3,volume_se_m3,temperature_K,heat_release_W,"
-         "emitted_W,absorbed_W,convection_out_W,enthalpy_in_W,enthalpy_out_W,held_W\n";
+         "emitted_W,absorbed_W,convection_out_W,enthalpy_in_W,enthalpy_out_W,held_W,converged\n";
+  const char* converged = run.solve.converged ? "yes" : "no";  // on every row
   for (std::size_t z = 0; z < x.zone_count(); ++z) {
     const auto c = x.grid.cell_index(x.zone_cell[z]);
     const Box3 b = x.grid.cell_box(x.zone_cell[z]);
@@ -130,18 +131,20 @@ void write_zones_csv(std::ostream& out, const GasRun& run) {
         << shortest(x.volume_error[z]) << ',' << shortest(r.temperature) << ','
         << shortest(r.heat_release) << ',' << shortest(r.emitted) << ',' << shortest(r.absorbed)
         << ',' << shortest(r.convection_out) << ',' << shortest(r.enthalpy_in) << ','
-        << shortest(r.enthalpy_out) << ',' << shortest(r.imbalance) << '\n';
+        << shortest(r.enthalpy_out) << ',' << shortest(r.imbalance) << ',' << converged << '\n';
   }
 }
 
 void write_gas_patches_csv(std::ostream& out, const GasRun& run,
                            const std::vector<std::string>& names) {
-  out << "patch,temperature_K,emitted_W,absorbed_W,net_out_W,convection_in_W,wall_loss_W\n";
+  out << "patch,temperature_K,emitted_W,absorbed_W,net_out_W,convection_in_W,wall_loss_W,"
+         "converged\n";
+  const char* converged = run.solve.converged ? "yes" : "no";  // on every row
   for (std::size_t p = 0; p < run.solve.patches.size(); ++p) {
     const ZonePatchResult& r = run.solve.patches[p];
     out << csv_field(names[p]) << ',' << shortest(r.temperature) << ',' << shortest(r.emitted)
         << ',' << shortest(r.absorbed) << ',' << shortest(r.net_out) << ','
-        << shortest(r.convection_in) << ',' << shortest(r.wall_loss) << '\n';
+        << shortest(r.convection_in) << ',' << shortest(r.wall_loss) << ',' << converged << '\n';
   }
 }
 

@@ -15,6 +15,7 @@
 #include "core/text.hpp"
 #include "gas/gas_input_toml.hpp"
 #include "hearthray/error.hpp"
+#include "transient/firing_input_toml.hpp"
 
 namespace hearthray {
 namespace {
@@ -22,7 +23,7 @@ namespace {
 namespace fs = std::filesystem;
 
 const std::vector<std::string> kTopKeys = {"mesh",    "rays",    "surroundings", "defaults",
-                                           "surface", "comfort", "gas"};
+                                           "surface", "comfort", "gas",          "firing"};
 const std::vector<std::string> kMeshKeys = {"file", "unit", "surfaces_from"};
 const std::vector<std::string> kRaysKeys = {"per_patch", "total", "min_per_patch", "seed"};
 const std::vector<std::string> kSurroundingsKeys = {"temperature"};
@@ -420,6 +421,8 @@ class Reader {
     }
     if (const toml::node* gas = root.get("gas")) file.gas = read_gas_table(*gas, path_);
     check_convection_fluids(file);
+    if (const toml::node* firing = root.get("firing"))
+      file.firing = read_firing_table(*firing, path_);
     if (const toml::node* comfort = root.get("comfort")) {
       file.comfort = read_comfort_table(*comfort, path_);
     }

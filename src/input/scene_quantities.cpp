@@ -139,6 +139,7 @@ constexpr double kKcalPerHour = kJoulesPerKcal / 3600;  // W
 constexpr double kFoot = 0.3048, kSquareFoot = kFoot * kFoot;
 constexpr double kPerFahrenheit = 9.0 / 5.0;  // 1/F in 1/K
 
+// long function: one table of units per quantity, data rather than logic.
 const QuantityDef& definition(Quantity quantity) {
   static const QuantityDef temperature{
       "temperature",

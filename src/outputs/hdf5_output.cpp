@@ -36,7 +36,9 @@ void write_header(const hdf5::File& file, const ViewFactors& vf) {
 }
 
 // F as CSR, N x (N + 1): each row's stored entries, then the surroundings when not zero.
-// standard_error is aligned with data.
+// standard_error is aligned with data, stored as float32: seven significant digits are more
+// than an error estimate needs, and at half the bytes (random mantissas hardly compress) it
+// no longer makes up half the file.
 void write_matrix(const hdf5::File& file, const ViewFactors& vf) {
   const std::size_t n = vf.size();
   std::uint64_t entries = std::uint64_t(vf.F.nonZeros());
@@ -47,7 +49,7 @@ void write_matrix(const hdf5::File& file, const ViewFactors& vf) {
   file.attribute("/F", "max_correction_sigma", vf.max_correction_sigma);
   hdf5::Dataset data(file, "/F/data", H5T_IEEE_F64LE, entries);
   hdf5::Dataset indices(file, "/F/indices", H5T_STD_I32LE, entries);
-  hdf5::Dataset errors(file, "/F/standard_error", H5T_IEEE_F64LE, entries);
+  hdf5::Dataset errors(file, "/F/standard_error", H5T_IEEE_F32LE, entries);
   std::vector<double> values, standard_errors;
   std::vector<std::int32_t> columns;
   std::vector<std::int64_t> indptr{0};
