@@ -64,6 +64,7 @@ struct PipelineOptions {
       sampler;             // over the scene file's; empty: its, else kDefaultSampler
   int threads = 0;         // threads of every stage; 0 = all cores
   bool smooth = true;      // enforce reciprocity and closure (false: raw factors)
+  bool force = false;      // run even when check_run_size refuses the run's size
   bool use_cache = false;  // tallies from the view-factor cache, traced ones stored
   std::string cache_dir;   // "" = default_cache_dir() (cache.hpp)
   TracerOptions tracer;
@@ -108,7 +109,22 @@ struct FactorRun {
   bool from_cache() const { return cache == CacheOutcome::hit; }
 };
 
-// The scene file's patches and rays (rays_per_patch of the options over its [rays]).
+// The size of a run, estimated before anything is subdivided, allocated or traced.
+struct RunSize {
+  double patches = 0;
+  double triangles = 0;     // after subdivision to the patch sizes
+  double rays = 0;          // in all
+  double memory_bytes = 0;  // rough: triangles and an upper bound of the factor matrix
+  double seconds = 0;       // rough: at an order-of-magnitude ray rate
+};
+RunSize estimate_run_size(const Scene& scene, const std::vector<PatchSpec>& specs,
+                          const RayBudget& budget);
+// Throws InputError (naming `what`, e.g. the scene file) with the estimate when a run would
+// exceed the limits of patches, triangles or rays (see run_size.cpp).
+void check_run_size(const RunSize& size, const std::string& what);
+
+// The scene file's patches and rays (rays_per_patch of the options over its [rays]). Unless
+// options.force, refuses (InputError) a run too large to finish: see check_run_size.
 PatchPlan plan_scene(const SceneFile& file, const Scene& scene, const PipelineOptions& options);
 
 // Plans, traces (or reads the cache when options.use_cache), diagnoses and smooths (unless

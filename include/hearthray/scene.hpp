@@ -54,6 +54,11 @@ struct Scene {
   std::vector<std::string> surface_names() const;
 };
 
+// The span of model sizes (bounding-box diagonal, metres) a mesh may have: outside it the
+// tracing loses precision and a mesh is refused with a message about its unit.
+inline constexpr double kMinModelSize_m = 1e-4;
+inline constexpr double kMaxModelSize_m = 1e6;
+
 // Reads an OBJ file. Throws InputError for a missing or unreadable file, NaN/inf coordinates,
 // out-of-range indices, or a mesh with no usable triangle.
 Scene load_obj(const std::string& path, const MeshOptions& options = {});

@@ -106,6 +106,8 @@ ThermalInput thermal_input(const SceneFile& file, const Scene& scene);
 
 // Quantities with units, as written in scene files. Each throws InputError naming `what` and
 // the units it accepts when the text has no unit or the wrong one.
+// Temperatures above this are refused (no solid surface is that hot; a typo or a wrong unit).
+inline constexpr double kMaxTemperatureK = 10000;
 double parse_temperature(const std::string& text, const std::string& what);  // C, K, F -> K
 double parse_power(const std::string& text, const std::string& what);        // W, kW, MW -> W
 double parse_heat_flux(const std::string& text, const std::string& what);    // W/m2, kW/m2

@@ -73,7 +73,7 @@ int run_check_command(const CheckArgs& args) {
         topology.boundary_edges, topology.nonmanifold_edges);
 
   // Quick ray estimate on whole surfaces, raw counts only.
-  const FactorRun run = quick_view_factors(scene, args.rays, args.seed, args.threads);
+  const FactorRun run = quick_view_factors(scene, args.rays, args.seed, args.threads, args.force);
   const RayDiagnostics& d = run.diagnostics;
 
   std::printf("\n%-24s %9s %12s %9s %12s %10s\n", "surface", "triangles", "area m2", "sides",

@@ -64,7 +64,8 @@ Drawing model_field(const SceneFile& file, const RenderArgs& args) {
       throw InputError("--field " + args.field + ": no surface named '" + name +
                        "'; the model has " + known_surfaces(d.scene));
     // A quick raw estimate on whole surfaces (the patches of the picture).
-    const FactorRun run = quick_view_factors(d.scene, args.rays, args.seed, args.threads);
+    const FactorRun run =
+        quick_view_factors(d.scene, args.rays, args.seed, args.threads, args.force);
     d.field = view_factor_to_surface_field(d.scene, d.patches, run.factors, std::uint32_t(target));
   } else if (std::count(std::begin(kSolvedFields), std::end(kSolvedFields), args.field)) {
     throw InputError("--field " + args.field +

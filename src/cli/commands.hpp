@@ -24,6 +24,7 @@ struct CheckArgs {
   std::uint64_t rays = kQuickRaysPerPatch;  // quick estimate
   std::uint64_t seed = kDefaultSeed;
   int threads = 0;
+  bool force = false;  // run even when the estimated size is past the limits
 };
 int run_check_command(const CheckArgs& args);
 
@@ -76,6 +77,7 @@ struct RenderArgs {
   std::uint64_t seed = kDefaultSeed;
   int threads = 0;
   bool quiet = false;
+  bool force = false;  // run even when the estimated size is past the limits
 };
 int run_render_command(const RenderArgs& args);
 

@@ -31,6 +31,26 @@ void show_progress(const PipelineProgress& p) {
   progress_shown = true;
 }
 
+// When stderr is not a terminal (a log file, a pipe): a line every kProgressLineSeconds
+// while tracing, so that a long run shows it is alive without filling the log.
+constexpr double kProgressLineSeconds = 10;
+std::atomic<double> next_progress_line{kProgressLineSeconds};
+
+void log_progress(const PipelineProgress& p) {
+  if (p.stage != PipelineStage::trace) {
+    next_progress_line = kProgressLineSeconds;
+    return;
+  }
+  if (p.seconds < next_progress_line || p.done >= p.total) return;
+  next_progress_line = p.seconds + kProgressLineSeconds;
+  const double fraction = p.total ? double(p.done) / double(p.total) : 1.0;
+  const double rate = p.seconds > 0 ? double(p.done) / p.seconds : 0.0;
+  const double left = rate > 0 ? double(p.total - p.done) / rate : 0.0;
+  std::fprintf(stderr, "progress: tracing %.1f %% of %s rays, %.3g Mrays/s, about %.0f s left\n",
+               100 * fraction, std::to_string(p.total).c_str(), rate / 1e6, std::ceil(left));
+  std::fflush(stderr);
+}
+
 // The refused scene's error, then the ray warnings that may explain it (flipped normals, a
 // leak).
 int refuse(const RefusedInput& e) {
@@ -70,13 +90,15 @@ PipelineOptions pipeline_options(const RaySettings& settings, const CacheChoice*
     options.use_cache = cache->use;
     options.cache_dir = cache->dir;
   }
-  if (!settings.quiet && isatty(fileno(stderr))) options.progress = show_progress;
+  options.force = settings.force;
+  if (!settings.quiet) options.progress = isatty(fileno(stderr)) ? show_progress : log_progress;
   return options;
 }
 
 FactorRun quick_view_factors(const Scene& scene, std::uint64_t rays, std::uint64_t seed,
-                             int threads) {
+                             int threads, bool force) {
   PipelineOptions options;
+  options.force = force;
   options.rays_per_patch = rays;
   options.seed = seed;
   options.threads = threads;

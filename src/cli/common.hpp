@@ -23,6 +23,7 @@ struct RaySettings {
   int threads = 0;
   bool raw = false;    // skip smoothing
   bool quiet = false;  // no progress line, no summary
+  bool force = false;  // run even when the estimated size is past the limits
 };
 
 struct CacheChoice {
@@ -41,7 +42,7 @@ PipelineOptions pipeline_options(const RaySettings& settings, const CacheChoice*
 // A quick raw estimate on whole surfaces (`check`, `render --field view-factor-to=`): no
 // smoothing, no cache, no progress line.
 FactorRun quick_view_factors(const Scene& scene, std::uint64_t rays, std::uint64_t seed,
-                             int threads);
+                             int threads, bool force);
 
 // Clears the progress line if one is shown (call after a pipeline call).
 void end_progress_line();

@@ -1,7 +1,10 @@
 // hearthray: thermal radiation between surfaces. This file only parses arguments; each
 // command calls the library's pipeline (see commands.hpp).
 #include <CLI/CLI.hpp>
+#include <cstdint>
 #include <iostream>
+#include <limits>
+#include <new>
 
 #include "commands.hpp"
 #include "hearthray/error.hpp"
@@ -10,6 +13,12 @@
 using namespace hearthray::cli;
 
 namespace {
+
+// Seeds are whole numbers 0 .. 2^63 - 1 on the command line as in the scene file's [rays]
+// (TOML integers are signed 64-bit): "-1" is refused, not wrapped to 2^64 - 1.
+CLI::Range seed_range() {
+  return CLI::Range(std::int64_t{0}, std::numeric_limits<std::int64_t>::max());
+}
 
 const char* const kUnitHelp = "Unit of a bare mesh's coordinates: mm, cm, m, in or ft (default m)";
 
@@ -52,12 +61,16 @@ CLI::App* add_factors_command(CLI::App& app, FactorsArgs& factors) {
           "--rays", factors.rays.rays,
           "Rays per surface (default " + std::to_string(hearthray::kDefaultRaysPerPatch) + ")")
       ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 40));
-  cmd_factors->add_option("--seed", factors.rays.seed,
-                          "Random seed (default " + std::to_string(hearthray::kDefaultSeed) + ")");
+  cmd_factors
+      ->add_option("--seed", factors.rays.seed,
+                   "Random seed (default " + std::to_string(hearthray::kDefaultSeed) + ")")
+      ->check(seed_range());
   add_sampler_option(cmd_factors, factors.rays);
   cmd_factors->add_option("--threads", factors.rays.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
   cmd_factors->add_flag("--raw", factors.rays.raw, "Skip the reciprocity and closure correction");
+  cmd_factors->add_flag("--force", factors.rays.force,
+                        "Run even when the estimated patches, rays or memory are past the limits");
   cmd_factors->add_flag("-q,--quiet", factors.rays.quiet, "No progress line or summary");
   cmd_factors->add_option(
       "-o,--output", factors.outputs,
@@ -77,9 +90,11 @@ CLI::App* add_check_command(CLI::App& app, CheckArgs& check) {
                         "opens (.obj or .vtu)");
   cmd_check->add_option("--rays", check.rays, "Rays per surface for the quick estimate")
       ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 32));
-  cmd_check->add_option("--seed", check.seed, "Random seed");
+  cmd_check->add_option("--seed", check.seed, "Random seed")->check(seed_range());
   cmd_check->add_option("--threads", check.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
+  cmd_check->add_flag("--force", check.force,
+                      "Run even when the estimated patches, rays or memory are past the limits");
   return cmd_check;
 }
 
@@ -91,14 +106,17 @@ CLI::App* add_scene_command(CLI::App& app, const std::string& name, const std::s
       ->required();
   cmd_solve->add_option("-o,--output", solve.output_dir, output_help);
   cmd_solve->add_flag("-q,--quiet", solve.rays.quiet, "No progress, notes or summary lines");
+  cmd_solve->add_flag("--force", solve.rays.force,
+                      "Run even when the estimated patches, rays or memory are past the limits");
   cmd_solve
       ->add_option("--rays", solve.rays.rays,
                    "Rays per surface (default: scene, " +
                        std::to_string(hearthray::kDefaultRaysPerPatch) + ")")
       ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 40));
-  cmd_solve->add_option(
-      "--seed", solve.rays.seed,
-      "Random seed (default: scene, " + std::to_string(hearthray::kDefaultSeed) + ")");
+  cmd_solve
+      ->add_option("--seed", solve.rays.seed,
+                   "Random seed (default: scene, " + std::to_string(hearthray::kDefaultSeed) + ")")
+      ->check(seed_range());
   add_sampler_option(cmd_solve, solve.rays);
   cmd_solve->add_option("--threads", solve.rays.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
@@ -133,6 +151,8 @@ void add_comfort_commands(CLI::App& app, Commands* c) {
         ->delimiter(',')
         ->expected(2);
     cmd->add_flag("-q,--quiet", a->rays.quiet, "No progress, notes or view-factor lines");
+    cmd->add_flag("--force", a->rays.force,
+                  "Run even when the estimated patches, rays or memory are past the limits");
     cmd->add_option("--threads", a->rays.threads, "Worker threads (default: all)")
         ->check(CLI::Range(0, 1024));
     CLI::Option* dir = cmd->add_option("--cache", a->cache_dir, "View-factor cache folder");
@@ -176,8 +196,10 @@ CLI::App* add_render_command(CLI::App& app, RenderArgs& render) {
                    "Rays per surface for view-factor-to (default " +
                        std::to_string(hearthray::kQuickRaysPerPatch) + ")")
       ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 32));
-  cmd_render->add_option("--seed", render.seed,
-                         "Random seed (default " + std::to_string(hearthray::kDefaultSeed) + ")");
+  cmd_render
+      ->add_option("--seed", render.seed,
+                   "Random seed (default " + std::to_string(hearthray::kDefaultSeed) + ")")
+      ->check(seed_range());
   cmd_render->add_option("--threads", render.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
   cmd_render->add_option("--results", render.results,
@@ -187,6 +209,8 @@ CLI::App* add_render_command(CLI::App& app, RenderArgs& render) {
                          "Units of a solved field: si (C, W/m2), us (F, Btu/(h ft2)) or kcal "
                          "(C, kcal/(h m2)) (default si)");
   cmd_render->add_flag("-q,--quiet", render.quiet, "No summary line");
+  cmd_render->add_flag("--force", render.force,
+                       "Run even when the estimated patches, rays or memory are past the limits");
   return cmd_render;
 }
 
@@ -236,6 +260,10 @@ int run(const Commands& c) {
   } catch (const hearthray::InputError& e) {
     std::cerr << "error: " << e.what() << "\n";
     return 2;
+  } catch (const std::bad_alloc&) {
+    std::cerr << "error: out of memory: the run needs more memory than this machine gives it; "
+                 "use fewer patches (larger patches = \"...\") or fewer surfaces\n";
+    return 3;
   } catch (const std::exception& e) {
     std::cerr << "error: internal: " << e.what() << "\n";
     return 3;

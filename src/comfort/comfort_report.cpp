@@ -24,11 +24,11 @@ constexpr double kHot_C = 40;
 constexpr double kNearGlass_m = 0.6;
 
 std::string pad(const std::string& s, std::size_t w) {
-  return s.size() >= w ? s : std::string(w - s.size(), ' ') + s;
+  return s.size() >= w ? " " + s : std::string(w - s.size(), ' ') + s;  // columns stay apart
 }
 
 std::string name_pad(const std::string& s, std::size_t w) {
-  return s.size() >= w ? s : s + std::string(w - s.size(), ' ');
+  return s.size() >= w ? s + " " : s + std::string(w - s.size(), ' ');
 }
 
 std::string celsius(double K) {

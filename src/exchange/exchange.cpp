@@ -33,6 +33,11 @@ namespace {
 constexpr double kSigma = kStefanBoltzmann;
 // Reciprocal condition number below which a matrix is treated as singular.
 constexpr double kSingularRcond = 1e-14;
+// The energy balance closes when what is unaccounted for is within kBalanceTolerance of the
+// largest net flow plus kRoundOff of the gross emission (sum of A sigma T^4): round numbers of
+// our own, far above double round-off, far below anything a user would read.
+constexpr double kBalanceTolerance = 1e-6;
+constexpr double kRoundOff = 1e-12;
 
 double sigma_t4(double kelvin) {
   return kSigma * std::pow(kelvin, 4);
@@ -268,6 +273,33 @@ Eigen::VectorXd dense_radiosity(const Reduced& r, const Eigen::VectorXd& T) {
 
 }  // namespace
 
+// "Converged" also means the energy balance closed: the radiation leaving all faces, less
+// what the surroundings take, is round-off against the flows. It may not at absurd
+// temperatures or powers, where sigma T^4 swamps every net flow in the last digits.
+void require_closed_balance(const Setup& s, ExchangeResult* result) {
+  if (result->status != ExchangeStatus::converged) return;
+  double largest = std::abs(result->surroundings_W), gross = 0, given = 0;
+  for (std::size_t k = 0; k < s.nodes; ++k) {
+    const NodeResult& n = result->nodes[k];
+    largest = std::max({largest, std::abs(n.net_radiation_W), std::abs(n.convection_W),
+                        std::abs(n.wall_loss_W), std::abs(n.heat_input_W)});
+    gross += n.area * sigma_t4(n.temperature_K);
+    if (!s.fixed[k]) given = std::max(given, std::abs(s.input_W[k]));
+  }
+  const double round_off = kRoundOff * gross;
+  const double allowed = kBalanceTolerance * largest + round_off;
+  // The whole balance and each node's (a given power reproduced) must close, and a given
+  // power must stand above the round-off of the gross flows to be reproduced at all.
+  const double worst = std::max(std::abs(result->balance_W), result->final_residual_W);
+  if (worst <= allowed && !(given > 0 && given < round_off)) return;
+  result->status = ExchangeStatus::not_converged;
+  result->message = "the energy balance does not close: " + rounded("%.6g", worst) +
+                    " W unaccounted for against a largest flow of " + rounded("%.6g", largest) +
+                    " W, where round-off in the gross emission alone is " +
+                    rounded("%.3g", round_off) +
+                    " W; at these temperatures the net flows are lost in round-off";
+}
+
 ExchangeResult solve_exchange(const ExchangeProblem& problem, const ExchangeOptions& options) {
   std::string error;
   if (!options.IsValid(&error)) throw InputError("exchange options: " + error);
@@ -285,13 +317,18 @@ ExchangeResult solve_exchange(const ExchangeProblem& problem, const ExchangeOpti
     Eigen::VectorXd J, node_K;
     exchange_detail::solve_large(s, options, &result, &J, &node_K);
     exchange_detail::fill_results(s, J, node_K, &result);  // the last iterate
+    require_closed_balance(s, &result);
     return result;
   }
   Reduced r;
   if (!reduce(s, &r, &result.status, &result.message)) return result;
   Eigen::VectorXd T;
   std::string infeasible;
-  if (!starting_temperatures(s, r, &T, &infeasible)) {
+  if (r.unknown.empty()) {
+    // Every temperature given: the radiosities are the answer, no Newton step is taken (and
+    // the empty systems of the start and the step are never formed).
+    result.status = ExchangeStatus::converged;
+  } else if (!starting_temperatures(s, r, &T, &infeasible)) {
     result.status = ExchangeStatus::not_converged;
     result.message = infeasible;
   } else {
@@ -299,6 +336,7 @@ ExchangeResult solve_exchange(const ExchangeProblem& problem, const ExchangeOpti
   }
   // The last iterate, also when not converged.
   exchange_detail::fill_results(s, dense_radiosity(r, T), node_temperatures(s, r, T), &result);
+  require_closed_balance(s, &result);
   return result;
 }
 

@@ -214,7 +214,7 @@ std::string gas_report_json(const GasRun& run, const std::vector<std::string>& n
                  {"max_residual_W", s.max_residual},
                  {"message", s.message}};
   j["warnings"] = run.warnings;
-  return j.dump(2);
+  return j.dump(2, ' ', false, json::error_handler_t::replace);
 }
 
 void write_gas_report(std::ostream& out, const GasReportInfo& info, const GasRun& run,
@@ -228,7 +228,7 @@ void write_gas_report(std::ostream& out, const GasReportInfo& info, const GasRun
   j["files"] = info.files;
   j["gas"] = json::parse(gas_report_json(run, patch_names));
   j["cautions"] = {kEngineeringCaution, kFiredEquipmentCaution};
-  out << j.dump(2) << '\n';
+  out << j.dump(2, ' ', false, json::error_handler_t::replace) << '\n';
 }
 
 }  // namespace hearthray

@@ -11,6 +11,7 @@
 #include <sstream>
 
 #include "comfort/comfort_input_toml.hpp"
+#include "core/files.hpp"
 #include "core/text.hpp"
 #include "gas/gas_input_toml.hpp"
 #include "hearthray/error.hpp"
@@ -314,13 +315,10 @@ class Reader {
 
   SceneFile read() const {
     std::error_code ec;
-    if (!fs::exists(path_, ec)) throw InputError("scene file '" + path_ + "' does not exist");
-    if (fs::is_directory(path_, ec)) {
-      throw InputError("scene file '" + path_ + "' is a folder, not a TOML file");
-    }
+    const std::string text = read_regular_file(path_, "scene file", kMaxSceneFileBytes);
     toml::table root;
     try {
-      root = toml::parse_file(path_);
+      root = toml::parse(text, path_);
     } catch (const toml::parse_error& e) {
       fail(e.source(), std::string(e.description()));
     }

@@ -7,6 +7,7 @@
 #include <string>
 #include <vector>
 
+#include "core/text.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/scene_file.hpp"
 #include "hearthray/units.hpp"
@@ -253,6 +254,12 @@ double parse_temperature(const std::string& text, const std::string& what) {
   if (kelvin < 0) {
     throw InputError(what + " \"" + text +
                      "\" is below absolute zero (0 K = -273.15 C = -459.67 F)");
+  }
+  if (kelvin > kMaxTemperatureK) {
+    throw InputError(what + " \"" + text + "\" is " + rounded("%.6g", kelvin) + " K, above the " +
+                     rounded("%.0f", kMaxTemperatureK) +
+                     " K this tool accepts: no solid surface exists that hot (the most "
+                     "refractory materials melt below 4,300 K); is the unit right?");
   }
   return kelvin;
 }

@@ -9,15 +9,17 @@
 #include <tiny_obj_loader.h>
 
 #include <algorithm>
+#include <cerrno>
 #include <cmath>
 #include <cstdlib>
 #include <filesystem>
-#include <fstream>
+#include <map>
 #include <numeric>
 #include <sstream>
 #include <unordered_map>
 #include <unordered_set>
 
+#include "core/files.hpp"
 #include "core/text.hpp"
 #include "hearthray/error.hpp"
 #include "mesh/polygon.hpp"
@@ -47,6 +49,11 @@ std::vector<std::string> split_blanks(const std::string& s) {
   return out;
 }
 
+// "mesh.obj:12: ", the start of a message about one line.
+std::string at_line(const std::string& name, std::size_t line_no) {
+  return name + ":" + std::to_string(line_no) + ": ";
+}
+
 // Whole-token decimal number. strtod also accepts "nan", "inf" and overflows to inf; those are
 // caught by the finiteness check of the caller.
 bool parse_number(const std::string& token, double* out) {
@@ -58,14 +65,62 @@ bool parse_number(const std::string& token, double* out) {
   return true;
 }
 
+// Whole-token integer; false also when it is out of the range of long (strtol would clamp
+// it to LONG_MIN, whose negation overflows).
 bool parse_integer(const std::string& token, long* out) {
   if (token.empty()) return false;
   const char* begin = token.c_str();
   char* end = nullptr;
+  errno = 0;
   const long value = std::strtol(begin, &end, 10);
-  if (end == begin || *end != '\0') return false;
+  if (end == begin || *end != '\0' || errno == ERANGE) return false;
   *out = value;
   return true;
+}
+
+// The position (from 0) of the first byte that does not belong to well-formed UTF-8, or
+// npos. Overlong forms, surrogates and code points past U+10FFFF are not well-formed.
+std::size_t first_non_utf8(const std::string& s) {
+  std::size_t i = 0;
+  while (i < s.size()) {
+    const auto c = static_cast<unsigned char>(s[i]);
+    std::size_t n = 0;
+    unsigned lo = 0x80, hi = 0xBF;  // allowed range of the second byte
+    if (c < 0x80) {
+      ++i;
+      continue;
+    } else if (c >= 0xC2 && c <= 0xDF) {
+      n = 1;
+    } else if (c >= 0xE0 && c <= 0xEF) {
+      n = 2;
+      if (c == 0xE0) lo = 0xA0;
+      if (c == 0xED) hi = 0x9F;
+    } else if (c >= 0xF0 && c <= 0xF4) {
+      n = 3;
+      if (c == 0xF0) lo = 0x90;
+      if (c == 0xF4) hi = 0x8F;
+    } else {
+      return i;
+    }
+    for (std::size_t k = 1; k <= n; ++k) {
+      if (i + k >= s.size()) return i;
+      const auto d = static_cast<unsigned char>(s[i + k]);
+      if (d < (k == 1 ? lo : 0x80) || d > (k == 1 ? hi : 0xBF)) return i;
+    }
+    i += n + 1;
+  }
+  return std::string::npos;
+}
+
+// Surface names go into JSON, VTU and pictures, which are UTF-8: refuse a name that is not.
+void check_name_utf8(const std::string& line, const std::string& name, std::size_t line_no) {
+  const std::size_t bad = first_non_utf8(line);
+  if (bad == std::string::npos) return;
+  char byte[8];
+  std::snprintf(byte, sizeof byte, "0x%02X", static_cast<unsigned char>(line[bad]));
+  throw InputError(at_line(name, line_no) + "the name on this line is not UTF-8 text (byte " +
+                   byte + " at column " + std::to_string(bad + 1) +
+                   "); surface names must be UTF-8: save the file as UTF-8 or rename it");
 }
 
 // What our own pass over the text finds.
@@ -91,11 +146,6 @@ std::vector<std::string> split_lines(const std::string& text) {
   }
   if (start < text.size()) lines.push_back(text.substr(start));
   return lines;
-}
-
-// "mesh.obj:12: ", the start of a message about one line.
-std::string at_line(const std::string& name, std::size_t line_no) {
-  return name + ":" + std::to_string(line_no) + ": ";
 }
 
 // A 'v x y z' line (without its "v "): three finite numbers.
@@ -137,14 +187,14 @@ std::size_t check_face(const std::string& rest, long vertices_so_far, const std:
     long v = 0;
     if (parts.empty() || !parse_integer(parts[0], &v)) {
       throw InputError(at_line(name, line_no) + "face corner '" + corner +
-                       "' does not start with a vertex index (an integer)");
+                       "' does not start with a vertex index (an integer, in range)");
     }
     for (std::size_t k = 0; k < parts.size(); ++k) {
       long index = 0;
       if (k > 0 && parts[k].empty()) continue;
       if (!parse_integer(parts[k], &index)) {
         throw InputError(at_line(name, line_no) + "face corner '" + corner + "' has index '" +
-                         parts[k] + "' that is not an integer");
+                         parts[k] + "' that is not an integer (or is out of range)");
       }
       if (index == 0) {
         throw InputError(at_line(name, line_no) + "face corner '" + corner +
@@ -161,7 +211,7 @@ std::size_t check_face(const std::string& rest, long vertices_so_far, const std:
   return t.size();
 }
 
-PreScan prescan(const std::string& text, const std::string& name) {
+PreScan prescan(const std::string& text, const std::string& name, SurfacesFrom surfaces_from) {
   PreScan scan;
   std::vector<ForwardRef> forward;  // positive indices past the vertices read so far
   std::unordered_set<std::string> seen_materials;
@@ -179,7 +229,10 @@ PreScan prescan(const std::string& text, const std::string& name) {
           line.substr(2), static_cast<long>(scan.vertices.size()), name, n + 1, &forward));
       scan.face_lines.push_back(n + 1);
       ++scan.faces;
+    } else if ((line[0] == 'g' || line[0] == 'o') && blank_after_1) {
+      if (surfaces_from == SurfacesFrom::groups) check_name_utf8(line, name, n + 1);
     } else if (line.compare(0, 6, "usemtl") == 0) {
+      if (surfaces_from == SurfacesFrom::materials) check_name_utf8(line, name, n + 1);
       const std::string material = trim(line.substr(6));
       if (seen_materials.insert(material).second) scan.used_materials.push_back(material);
     } else if (line.compare(0, 6, "mtllib") == 0 && line.size() > 6 &&
@@ -437,6 +490,40 @@ void check_usable(const Scene& scene, const std::string& name) {
   }
 }
 
+// Tracing (single-precision Embree, a self-hit offset relative to the model) is checked
+// scale-free from 10 micrometres to 10,000 km; the span accepted keeps a factor 10 off both.
+void check_scale(double diagonal, const std::string& name, const MeshOptions& options) {
+  if (diagonal >= kMinModelSize_m && diagonal <= kMaxModelSize_m) return;
+  throw InputError(name + ": the model is " + rounded("%.3g", diagonal) +
+                   " m across (bounding-box diagonal, its coordinates read in " +
+                   to_string(options.unit) + "); hearthray handles models from 0.1 mm to " +
+                   "1000 km across. Is the unit right? Set it with [mesh] unit = \"mm\" (or m, " +
+                   "cm, in, ft) in a scene file");
+}
+
+// Reads a material library as tinyobjloader's MaterialFileReader does, but only a regular
+// file of bounded size (an 'mtllib /dev/zero' would never end).
+class CheckedMaterialReader : public tinyobj::MaterialReader {
+ public:
+  explicit CheckedMaterialReader(std::string dir) : dir_(std::move(dir)) {}
+  bool operator()(const std::string& id, std::vector<tinyobj::material_t>* materials,
+                  std::map<std::string, int>* by_name, std::string* warn,
+                  std::string* err) override {
+    const std::string path = dir_.empty() ? id : (std::filesystem::path(dir_) / id).string();
+    std::error_code ec;
+    if (!std::filesystem::exists(path, ec)) {
+      if (warn) *warn += "Material file [ " + path + " ] not found.\n";
+      return false;
+    }
+    std::istringstream in(read_regular_file(path, "material library", kMaxMaterialBytes));
+    tinyobj::LoadMtl(by_name, materials, &in, warn, err);
+    return true;
+  }
+
+ private:
+  std::string dir_;
+};
+
 // Sizes of what the tool models (a small kiln to a large hall), for the size check of the
 // mesh unit: bounding-box diagonals outside this range are taken for a wrong unit (common
 // practice, no source).
@@ -478,7 +565,7 @@ Scene build_scene(const std::string& text, const std::string& name, const std::s
       !std::isfinite(options.degenerate_relative_area)) {
     throw InputError("MeshOptions::degenerate_relative_area must be a finite number >= 0");
   }
-  PreScan scan = prescan(text, name);
+  PreScan scan = prescan(text, name, options.surfaces_from);
   if (scan.faces == 0) {
     throw InputError(name +
                      ": the mesh has no faces; an OBJ mesh needs 'v x y z' vertex lines "
@@ -490,8 +577,10 @@ Scene build_scene(const std::string& text, const std::string& name, const std::s
   std::vector<tinyobj::material_t> materials;
   std::string warn, err;
   std::istringstream in(text);
-  tinyobj::MaterialFileReader file_reader(mtl_dir);
-  tinyobj::MaterialReader* reader = from_file ? &file_reader : nullptr;
+  // The .mtl file is read only when it names the surfaces.
+  CheckedMaterialReader file_reader(mtl_dir);
+  const bool read_materials = from_file && options.surfaces_from == SurfacesFrom::materials;
+  tinyobj::MaterialReader* reader = read_materials ? &file_reader : nullptr;
   const bool ok = tinyobj::LoadObj(&attrib, &shapes, &materials, &warn, &err, &in, reader,
                                    /*triangulate=*/false);
   if (!ok) throw InputError(name + ": cannot read the mesh: " + trim(err));
@@ -515,6 +604,7 @@ Scene build_scene(const std::string& text, const std::string& name, const std::s
 
   // Scale-free threshold: the same mesh in any unit drops the same triangles.
   const double diagonal = grouped.used_bounds.diagonal();
+  check_scale(diagonal, name, options);
   const double threshold = options.degenerate_relative_area * diagonal * diagonal;
   for (std::uint32_t s = 0; s < grouped.names.size(); ++s) {
     polygon_warnings(grouped, s, name, options.unit, &scene.warnings);
@@ -528,19 +618,9 @@ Scene build_scene(const std::string& text, const std::string& name, const std::s
 }  // namespace
 
 Scene load_obj(const std::string& path, const MeshOptions& options) {
-  namespace fs = std::filesystem;
-  std::error_code ec;
-  if (!fs::exists(path, ec)) throw InputError("mesh file '" + path + "' does not exist");
-  if (fs::is_directory(path, ec)) {
-    throw InputError("mesh file '" + path + "' is a folder, not an OBJ file");
-  }
-  std::ifstream file(path, std::ios::binary);
-  if (!file) throw InputError("mesh file '" + path + "' cannot be opened for reading");
-  std::ostringstream buffer;
-  buffer << file.rdbuf();
-  if (file.bad()) throw InputError("mesh file '" + path + "' could not be read");
-  std::string mtl_dir = fs::path(path).parent_path().string();
-  return build_scene(buffer.str(), path, mtl_dir, /*from_file=*/true, options);
+  const std::string text = read_regular_file(path, "mesh file", kMaxMeshBytes);
+  const std::string mtl_dir = std::filesystem::path(path).parent_path().string();
+  return build_scene(text, path, mtl_dir, /*from_file=*/true, options);
 }
 
 Scene load_obj(std::istream& in, const std::string& name, const MeshOptions& options) {

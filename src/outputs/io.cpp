@@ -179,7 +179,7 @@ void write_factors_json(std::ostream& out, const ViewFactors& vf, const FactorRe
       "geometry.";
   // Indented for a small matrix a person may read; compact for large ones (one number per line
   // would multiply the size).
-  out << doc.dump(vf.size() <= 12 ? 2 : -1) << '\n';
+  out << doc.dump(vf.size() <= 12 ? 2 : -1, ' ', false, json::error_handler_t::replace) << '\n';
 }
 
 void write_factors_file(const std::string& path, const ViewFactors& vf,

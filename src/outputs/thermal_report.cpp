@@ -27,8 +27,10 @@ std::string watts(double v) {
   return rounded(std::abs(v) >= 1e8 ? "%.4g" : "%.1f", v);
 }
 
+// A value wider than its column keeps a blank on the side of its neighbour: columns never run
+// together.
 std::string pad(const std::string& s, std::size_t width, bool right) {
-  if (s.size() >= width) return s;
+  if (s.size() >= width) return right ? " " + s : s + " ";
   const std::string fill(width - s.size(), ' ');
   return right ? fill + s : s + fill;
 }
@@ -379,7 +381,7 @@ void write_solve_json(std::ostream& out, const SolveReportInfo& info, const Ther
   doc["balance"] = balance_json(heat_balance(model, result));
   doc["outer_case"] = outer_case_json(outer_cases(model, result, info.model_height_m));
   doc["notes"] = info.notes;
-  out << doc.dump(2) << "\n";
+  out << doc.dump(2, ' ', false, json::error_handler_t::replace) << "\n";
 }
 
 std::vector<PatchField> solve_fields(const ThermalModel& model, const ExchangeResult& result) {

@@ -174,7 +174,12 @@ PatchPlan plan_scene(const SceneFile& file, const Scene& scene, const PipelineOp
     budget = RayBudget{};
     budget.per_patch = *options.rays_per_patch;
   }
-  return plan_patches(scene, patch_specs(file, scene), budget);
+  std::vector<PatchSpec> specs = patch_specs(file, scene);
+  if (!options.force) {
+    const std::string what = !file.path.empty() ? file.path : scene.source;
+    check_run_size(estimate_run_size(scene, specs, budget), what.empty() ? "scene" : what);
+  }
+  return plan_patches(scene, std::move(specs), budget);
 }
 
 FactorRun run_view_factors(const SceneFile& file, const Scene& scene,

@@ -459,6 +459,9 @@ std::vector<Index> final_row_layout(Problem& p) {
   // The weights (values from `pairs` on) are no longer needed.
   for (std::size_t i = n; i-- > 0;) {
     const std::uint64_t from = p.row_begin[i], len = p.row_begin[i + 1] - from;
+    // No pairs: nothing to move (and with no non-zeros at all the arrays are null, which
+    // memmove must not be given even for zero bytes).
+    if (len == 0) continue;
     const std::uint64_t to = static_cast<std::uint64_t>(offset[i] + lower[i] + has_self(p, i));
     std::memmove(column + to, column + from, len * sizeof(Index));
     std::memmove(value + to, value + from, len * sizeof(double));
