@@ -188,6 +188,7 @@ specific_heat = "900 J/kgK"
   REQUIRE(r.status == 0);
   CHECK(r.out.find("schedule completed and followed") != std::string::npos);
   CHECK(r.out.find("carbon monoxide") != std::string::npos);
+  CHECK(r.out.find("outer face of 'floor': up to") != std::string::npos);
   for (const char* f : {"report.json", "firing.csv", "firing_temperatures.png", "firing_power.png",
                         "firing_temperatures.svg", "firing_power.svg"})
     CHECK(std::filesystem::exists(dir / "out" / f));

@@ -7,6 +7,7 @@
 
 #include "core/text.hpp"
 #include "hearthray/io.hpp"
+#include "hearthray/outer_case.hpp"
 #include "hearthray/render.hpp"
 #include "hearthray/thermal_report.hpp"
 #include "hearthray/units.hpp"
@@ -82,6 +83,27 @@ void print_targets(std::ostream& out, const FiringResult& r, const FiringInput& 
   }
 }
 
+// Per wall: its outer face's highest temperature over the firing and, where it burns on touch
+// or contact, the ISO 13732-1 threshold (outer_case.hpp).
+std::vector<std::string> outer_face_lines(const FiringResult& r) {
+  std::vector<std::string> lines;
+  for (std::size_t w = 0; w < r.wall_names.size(); ++w) {
+    double hottest = 0, when = 0;
+    for (const FiringSample& x : r.samples)
+      if (x.case_K[w] > hottest) hottest = x.case_K[w], when = x.time_s;
+    const double C = celsius(hottest);
+    const TouchHazard hazard = C >= kBurnOnTouchC     ? TouchHazard::touch
+                               : C >= kBurnOnContactC ? TouchHazard::contact
+                                                      : TouchHazard::none;
+    std::string line = std::string(hazard == TouchHazard::none ? "" : "warning: ") +
+                       "outer face of '" + r.wall_names[w] + "': up to " + rounded("%.0f C", C) +
+                       " at " + hours(when);
+    if (hazard != TouchHazard::none) line += ": " + hazard_text(hazard);
+    lines.push_back(line);
+  }
+  return lines;
+}
+
 }  // namespace
 
 void print_firing_summary(std::ostream& out, const FiringResult& r, const FiringInput& in) {
@@ -97,13 +119,7 @@ void print_firing_summary(std::ostream& out, const FiringResult& r, const Firing
       << kwh(r.other_loss_J) << " (openings, steady wall losses, held surfaces); residual "
       << rounded("%.2g", r.energy_in_J > 0 ? r.residual_J / r.energy_in_J : 0.0)
       << " of the energy put in\n";
-  if (!r.samples.empty() && !r.samples.back().case_K.empty()) {
-    double hottest = 0;
-    for (const FiringSample& x : r.samples)
-      for (double T : x.case_K) hottest = std::max(hottest, T);
-    out << "hottest outer face of a wall during the firing: " << rounded("%.0f C", celsius(hottest))
-        << "\n";
-  }
+  for (const std::string& line : outer_face_lines(r)) out << line << "\n";
   for (const std::string& n : r.notes) out << "note: " << n << "\n";
   for (const std::string& w : r.warnings) out << "warning: " << w << "\n";
   out << "caution: " << kFiringCaution << "\n";
@@ -156,6 +172,7 @@ std::string firing_report_json(const FiringResult& r, const FiringInput& in) {
                    {"residual", r.residual_J}};
   j["steps"] = r.steps;
   j["rejected_steps"] = r.rejected_steps;
+  j["outer_faces"] = outer_face_lines(r);
   j["notes"] = r.notes;
   j["warnings"] = r.warnings;
   j["cautions"] = {kEngineeringCaution, kFiringCaution};
