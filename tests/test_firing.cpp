@@ -99,7 +99,8 @@ TEST_CASE("a firing follows its schedule and conserves energy", "[firing]") {
   if (std::getenv("DBG"))
     for (std::size_t i = 0; i < r.samples.size(); i += 10) {
       const auto& x = r.samples[i];
-      std::printf("%8.0f sp %7.1f ctl %7.1f P %6.0f", x.time_s, x.set_point_K, x.control_K, x.power_W);
+      std::printf("%8.0f sp %7.1f ctl %7.1f P %6.0f", x.time_s, x.set_point_K, x.control_K,
+                  x.power_W);
       for (double t : x.surface_K) std::printf(" %7.1f", t);
       std::printf("\n");
     }
@@ -181,9 +182,9 @@ mass = "3 kg"
 specific_heat = "900 J/kgK"
 )";
   write_text(dir / "scene.toml", scene);
-  const CliResult r = run_cli("fire '" + (dir / "scene.toml").string() + "' -o '" +
-                                  (dir / "out").string() + "' --no-cache",
-                              dir);
+  const CliResult r = run_cli(
+      "fire '" + (dir / "scene.toml").string() + "' -o '" + (dir / "out").string() + "' --no-cache",
+      dir);
   INFO(r.err);
   REQUIRE(r.status == 0);
   CHECK(r.out.find("schedule completed and followed") != std::string::npos);
