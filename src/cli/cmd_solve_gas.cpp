@@ -24,6 +24,7 @@ int run_gas_solve(const SolveArgs& args, const SceneFile& file) {
   gas_options.seed = args.rays.seed.value_or(file.seed.value_or(kDefaultSeed));
   gas_options.rays_for_patch = plan.rays;
   gas_options.threads = args.rays.threads;
+  gas_options.force = args.rays.force;
   if (file.surroundings_K) gas_options.surroundings_temperature = *file.surroundings_K;
   const GasRun run =
       run_gas(*file.gas, plan.scene, plan.patches, tracer,
