@@ -50,6 +50,9 @@ struct TallyCacheSettings {
 TallyCacheKey tally_cache_key(const std::string& mesh_bytes, const MeshOptions& mesh,
                               const Scene& scene, const TallyCacheSettings& settings);
 
+// The bytes of the mesh file at `path`, for a cache key. Throws InputError when unreadable.
+std::string read_mesh_bytes(const std::string& path);
+
 // $HEARTHRAY_CACHE, else $XDG_CACHE_HOME/hearthray, else $HOME/.cache/hearthray; "" when none of
 // these variables is set.
 std::string default_cache_dir();
