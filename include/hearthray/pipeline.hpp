@@ -143,7 +143,8 @@ struct SolvedScene {
   ThermalModel model;
   ExchangeResult result;  // empty until solve_model_exchange; check its status
   // With [room_air]: the solved air temperature and its balance (set by solve_model_exchange;
-  // the model's room-air films are left at that temperature). Check its `converged` too.
+  // the model's room-air films and file.comfort->air_K are left at that temperature). Check
+  // its `converged` too.
   std::optional<RoomAirResult> room_air;
   std::vector<Warning> warnings;   // as run.warnings, without a leak the model folded back
   std::vector<std::string> notes;  // ray diagnostics, then the thermal model

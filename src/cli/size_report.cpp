@@ -8,6 +8,7 @@
 #include "common.hpp"
 #include "core/text.hpp"
 #include "hearthray/client_report.hpp"
+#include "hearthray/comfort_client_report.hpp"
 #include "hearthray/picture.hpp"
 #include "hearthray/units.hpp"
 
@@ -127,19 +128,13 @@ ReportSection layout_section(const std::string& name, const SizedLayout& l,
                              const std::vector<fs::path>& maps) {
   const HeatingPlan& p = l.plan;
   ReportSection s;
-  s.heading = "Layout " + name;
+  s.heading = "Power needed and comfort: " + name;
   s.paragraphs.push_back((p.reached ? "Power needed: " + rounded("%.0f W", p.power_W) + " in total"
                                     : "The target is not reached: " + p.message) +
                          " (" + std::to_string(p.solves) + " solves; the scene file gives " +
                          rounded("%.0f W", p.scene_power_W) + "). At that power: " + state_line(l) +
                          ".");
-  const Box3& box = l.scene.run.scene.bounds;
-  s.paragraphs.push_back(
-      "Scene " + fs::path(l.scene.file.path).filename().string() + ": a room " +
-      rounded("%.2g", box.hi.x - box.lo.x) + " x " + rounded("%.2g", box.hi.y - box.lo.y) + " x " +
-      rounded("%.2g m", box.hi.z - box.lo.z) + " (the model's extent), " +
-      std::to_string(l.scene.run.scene.surfaces.size()) + " surfaces; " +
-      std::to_string(p.heaters.size()) + " heaters, drawn white with a dark rim on the maps.");
+  s.paragraphs.push_back("On the maps the heaters are drawn white with a dark rim.");
   ReportTable heaters;
   heaters.caption = "Heaters at the power needed";
   heaters.header = {"surface", "power", "surface temperature"};
@@ -252,6 +247,16 @@ std::vector<std::string> write_size_outputs(const fs::path& dir, const HeatingTa
   summary.tables.push_back(summary_table(layouts, names));
   report.sections.push_back(summary);
   for (std::size_t k = 0; k < layouts.size(); ++k) {
+    const SizedLayout& l = layouts[k];
+    ComfortReportInput room;  // the room and its surfaces at the plan's power
+    room.name = names[k];
+    room.scene_path = fs::path(l.scene.file.path).filename().string();
+    room.scene = &l.scene.run.scene;
+    room.comfort = &*l.scene.file.comfort;
+    room.seed = l.scene.run.seed;
+    room.surfaces = l.plan.surfaces;
+    room.heaters = summarise_heaters(l.scene.model, l.plan.surfaces);
+    report.sections.push_back(comfort_room_section(room));
     const auto it = maps.find(names[k]);
     report.sections.push_back(layout_section(
         names[k], layouts[k], it == maps.end() ? std::vector<fs::path>{} : it->second));

@@ -91,6 +91,8 @@ double room_volume(const SolvedScene& s) {
 // The exchange together with the room air's balance; an unsolved balance marks the result.
 void solve_room_air_exchange(SolvedScene* s, const ExchangeOptions& options) {
   s->room_air = solve_room_air(&s->model, *s->file.room_air, room_volume(*s), options, &s->result);
+  // Whoever reads the comfort input's air temperature (reports, summaries) reads the solved one.
+  if (s->file.comfort) s->file.comfort->air_K = s->room_air->air_K;
   if (!s->room_air->converged && s->result.status == ExchangeStatus::converged) {
     s->result.status = ExchangeStatus::not_converged;
     s->result.message = s->room_air->message;
