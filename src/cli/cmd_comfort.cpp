@@ -6,6 +6,7 @@
 #include <filesystem>
 #include <iostream>
 #include <map>
+#include <nlohmann/json.hpp>
 #include <optional>
 #include <sstream>
 
@@ -16,6 +17,7 @@
 #include "hearthray/error.hpp"
 #include "hearthray/thermal_report.hpp"
 #include "hearthray/units.hpp"
+#include "output_folder.hpp"
 
 namespace hearthray::cli {
 
@@ -102,7 +104,7 @@ const std::pair<MapQuantity, const char*> kMaps[] = {
 
 // The three maps of one scene, named prefix + map name + extension, on the given ranges (the
 // points' own where none is given).
-void write_maps(const fs::path& dir, const std::string& prefix, const ComfortRun& r,
+void write_maps(OutputFolder& out, const std::string& prefix, const ComfortRun& r,
                 const MapRanges& ranges, const std::string& title_suffix,
                 const std::vector<std::string>& extensions, std::vector<std::string>* files) {
   MapOptions options;
@@ -114,7 +116,7 @@ void write_maps(const fs::path& dir, const std::string& prefix, const ComfortRun
     options.range_hi = it == ranges.end() ? std::nullopt : std::optional(it->second.second);
     const Picture map = comfort_map(r.solved.run.scene, r.points, q, options);
     for (const std::string& extension : extensions) {
-      write_picture((dir / (prefix + name + extension)).string(), map);
+      write_picture(out.file(prefix + name + extension), map);
       files->push_back(prefix + name + extension);
     }
   }
@@ -124,7 +126,7 @@ void write_maps(const fs::path& dir, const std::string& prefix, const ComfortRun
 // own ranges, or --range for the temperatures), so equal colours mean equal values.
 void write_compared_maps(const ComfortArgs& args, const std::vector<ComfortRun>& runs,
                          const std::vector<std::string>& names) {
-  const fs::path dir = make_output_dir(args.output_dir);
+  OutputFolder out(args.output_dir);
   MapRanges ranges;
   for (const auto& [q, name] : kMaps) {
     std::pair<double, double> all{INFINITY, -INFINITY};
@@ -139,14 +141,21 @@ void write_compared_maps(const ComfortArgs& args, const std::vector<ComfortRun>&
   std::vector<std::string> files;
   for (std::size_t k = 0; k < runs.size(); ++k)
     if (has_grid(runs[k]))
-      write_maps(dir, names[k] + "_", runs[k], ranges, " \u2014 " + names[k], {".png"}, &files);
+      write_maps(out, names[k] + "_", runs[k], ranges, " \u2014 " + names[k], {".png"}, &files);
+  {
+    std::ofstream report = open_output(out.file(kManifestName));  // last: names the files
+    report << folder_manifest("compare", args.inputs, files).dump(2) << '\n';
+    report.close();
+    if (!report) throw InputError("cannot write '" + out.target() + "/report.json'");
+  }
+  out.commit();
   std::cout << "\nmaps on one colour range each (mean radiant "
             << rounded("%.1f", ranges[MapQuantity::mean_radiant].first) << " to "
             << rounded("%.1f", ranges[MapQuantity::mean_radiant].second) << " C, operative "
             << rounded("%.1f", ranges[MapQuantity::operative].first) << " to "
             << rounded("%.1f", ranges[MapQuantity::operative].second) << " C, asymmetry "
             << rounded("%.1f", ranges[MapQuantity::asymmetry].first) << " to "
-            << rounded("%.1f", ranges[MapQuantity::asymmetry].second) << " K) in " << dir.string()
+            << rounded("%.1f", ranges[MapQuantity::asymmetry].second) << " K) in " << out.target()
             << ": " << join(files) << "\n";
 }
 
@@ -188,6 +197,7 @@ void print_points_over(const std::vector<ComfortRun>& runs, const std::vector<st
 }  // namespace
 
 int run_comfort_command(const ComfortArgs& args) {
+  if (!args.output_dir.empty()) check_output_folder(args.output_dir);  // before the work
   const std::string& input = args.inputs.at(0);
   ComfortRun r;
   if (const int status = run_comfort(input, args, &r)) return status;
@@ -198,14 +208,14 @@ int run_comfort_command(const ComfortArgs& args) {
   print_report(std::cout, r);
   if (args.output_dir.empty()) return 0;
 
-  const fs::path dir = make_output_dir(args.output_dir);
+  OutputFolder out(args.output_dir);
   std::vector<std::string> files = {"comfort.csv", "comfort.txt"};
   {
-    std::ofstream csv = open_output(dir / "comfort.csv");
+    std::ofstream csv = open_output(out.file("comfort.csv"));
     write_comfort_csv(csv, r.points);
   }
   {
-    std::ofstream text = open_output(dir / "comfort.txt");
+    std::ofstream text = open_output(out.file("comfort.txt"));
     text << "hearthray comfort " << input << "\n";
     print_report(text, r);
   }
@@ -213,10 +223,17 @@ int run_comfort_command(const ComfortArgs& args) {
     MapRanges ranges;
     for (MapQuantity q : {MapQuantity::mean_radiant, MapQuantity::operative})
       if (!args.range.empty()) ranges[q] = given_range(args.range);
-    write_maps(dir, "", r, ranges, "", {".png", ".svg"}, &files);
+    write_maps(out, "", r, ranges, "", {".png", ".svg"}, &files);
   }
+  {
+    std::ofstream report = open_output(out.file(kManifestName));  // last: names the files
+    report << folder_manifest("comfort", {input}, files).dump(2) << '\n';
+    report.close();
+    if (!report) throw InputError("cannot write '" + out.target() + "/report.json'");
+  }
+  out.commit();
   if (!args.rays.quiet) {
-    std::cout << "\nwrote " << dir.string() << ": ";
+    std::cout << "\nwrote " << out.target() << ": ";
     for (std::size_t k = 0; k < files.size(); ++k) std::cout << (k ? ", " : "") << files[k];
     std::cout << "\n";
   }
@@ -224,6 +241,7 @@ int run_comfort_command(const ComfortArgs& args) {
 }
 
 int run_compare_command(const ComfortArgs& args) {
+  if (!args.output_dir.empty()) check_output_folder(args.output_dir);  // before the work
   std::vector<ComfortRun> runs(args.inputs.size());
   for (std::size_t k = 0; k < args.inputs.size(); ++k) {
     if (const int status = run_comfort(args.inputs[k], args, &runs[k])) return status;

@@ -179,17 +179,6 @@ std::string smoothing_line(const FactorRun& run) {
   return buffer;
 }
 
-std::filesystem::path make_output_dir(const std::string& dir) {
-  const std::filesystem::path path(dir);
-  std::error_code ec;
-  std::filesystem::create_directories(path, ec);
-  if (ec || !std::filesystem::is_directory(path)) {
-    throw InputError("cannot create the output folder '" + path.string() + "'" +
-                     (ec ? ": " + ec.message() : std::string()));
-  }
-  return path;
-}
-
 std::ofstream open_output(const std::filesystem::path& path) {
   std::ofstream out(path, std::ios::binary | std::ios::trunc);
   if (!out) throw InputError("cannot write '" + path.string() + "'");
