@@ -12,7 +12,9 @@
 
 #include "commands.hpp"
 #include "core/text.hpp"
+#include "hearthray/client_report.hpp"
 #include "hearthray/comfort.hpp"
+#include "hearthray/comfort_client_report.hpp"
 #include "hearthray/comfort_report.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/thermal_report.hpp"
@@ -122,11 +124,42 @@ void write_maps(OutputFolder& out, const std::string& prefix, const ComfortRun& 
   }
 }
 
+// The maps of one scene (written by write_maps with `prefix`) as figures of the report.
+std::vector<ReportFigure> map_figures(const fs::path& dir, const std::string& prefix,
+                                      const std::string& scene) {
+  const char* captions[] = {
+      "Mean radiant temperature over the occupied zone",
+      "Operative temperature over the occupied zone",
+      "Radiant asymmetry over the occupied zone, against the limits on the colour bar"};
+  std::vector<ReportFigure> out;
+  for (std::size_t k = 0; k < 3; ++k)
+    out.push_back({std::string(captions[k]) + ", " + scene +
+                       " (plan; heaters outlined, glass "
+                       "in blue, named points marked)",
+                   dir / (prefix + kMaps[k].second + ".png")});
+  return out;
+}
+
+ComfortReportInput report_input(const ComfortRun& r, const std::string& input,
+                                const std::string& name) {
+  ComfortReportInput in;
+  in.name = name;
+  in.scene_path = input;
+  in.scene = &r.solved.run.scene;
+  in.comfort = &*r.solved.file.comfort;
+  in.seed = r.solved.run.seed;
+  in.surfaces = r.surfaces;
+  in.heaters = r.heaters;
+  in.points = r.points;
+  in.cautions = r.cautions;
+  return in;
+}
+
 // compare -o: every scene's maps on one colour range per quantity (the union of the scenes'
 // own ranges, or --range for the temperatures), so equal colours mean equal values.
-void write_compared_maps(const ComfortArgs& args, const std::vector<ComfortRun>& runs,
-                         const std::vector<std::string>& names) {
-  OutputFolder out(args.output_dir);
+std::vector<std::string> write_compared_maps(const ComfortArgs& args, OutputFolder& out,
+                                             const std::vector<ComfortRun>& runs,
+                                             const std::vector<std::string>& names) {
   MapRanges ranges;
   for (const auto& [q, name] : kMaps) {
     std::pair<double, double> all{INFINITY, -INFINITY};
@@ -142,13 +175,6 @@ void write_compared_maps(const ComfortArgs& args, const std::vector<ComfortRun>&
   for (std::size_t k = 0; k < runs.size(); ++k)
     if (has_grid(runs[k]))
       write_maps(out, names[k] + "_", runs[k], ranges, " \u2014 " + names[k], {".png"}, &files);
-  {
-    std::ofstream report = open_output(out.file(kManifestName));  // last: names the files
-    report << folder_manifest("compare", args.inputs, files).dump(2) << '\n';
-    report.close();
-    if (!report) throw InputError("cannot write '" + out.target() + "/report.json'");
-  }
-  out.commit();
   std::cout << "\nmaps on one colour range each (mean radiant "
             << rounded("%.1f", ranges[MapQuantity::mean_radiant].first) << " to "
             << rounded("%.1f", ranges[MapQuantity::mean_radiant].second) << " C, operative "
@@ -157,6 +183,7 @@ void write_compared_maps(const ComfortArgs& args, const std::vector<ComfortRun>&
             << rounded("%.1f", ranges[MapQuantity::asymmetry].first) << " to "
             << rounded("%.1f", ranges[MapQuantity::asymmetry].second) << " K) in " << out.target()
             << ": " << join(files) << "\n";
+  return files;
 }
 
 // Rows of the compare table for the named points (not the grid), by name, in the order they
@@ -194,6 +221,40 @@ void print_points_over(const std::vector<ComfortRun>& runs, const std::vector<st
   }
 }
 
+// A row of the terminal's compare table in the words of a printed one.
+std::vector<std::string> printed_row(std::vector<std::string> row) {
+  const std::pair<const char*, const char*> words[] = {{"(C)", "(\u00b0C)"},
+                                                       {" - ", " to "},
+                                                       {"OVER", "over a limit"},
+                                                       {"temp.", "temperature"},
+                                                       {"t_o", "operative"}};
+  for (std::string& cell : row)
+    for (const auto& [from, to] : words)
+      for (std::size_t at = cell.find(from); at != std::string::npos;
+           at = cell.find(from, at + std::string(to).size()))
+        cell.replace(at, std::string(from).size(), to);
+  return row;
+}
+
+// compare -o: the client report: the side-by-side table (`rows`, the header row first), then
+// each scene's sections with its maps (written by write_compared_maps).
+void write_compare_report(const ComfortArgs& args, OutputFolder& out,
+                          const std::vector<ComfortRun>& runs,
+                          const std::vector<std::vector<std::string>>& rows) {
+  const std::vector<std::string>& head = rows.front();
+  std::vector<ComfortReportInput> reports;
+  for (std::size_t k = 0; k < runs.size(); ++k) {
+    const std::string& name = head[k + 1];
+    reports.push_back(report_input(runs[k], args.inputs[k], name));
+    if (has_grid(runs[k])) reports.back().maps = map_figures(out.folder(), name + "_", name);
+  }
+  ReportTable table;
+  table.caption = "The scenes side by side";
+  table.header = head;
+  for (auto it = rows.begin() + 1; it != rows.end(); ++it) table.rows.push_back(printed_row(*it));
+  write_client_report(compare_client_report(reports, table), out.file("report.html"));
+}
+
 }  // namespace
 
 int run_comfort_command(const ComfortArgs& args) {
@@ -225,13 +286,11 @@ int run_comfort_command(const ComfortArgs& args) {
       if (!args.range.empty()) ranges[q] = given_range(args.range);
     write_maps(out, "", r, ranges, "", {".png", ".svg"}, &files);
   }
-  {
-    std::ofstream report = open_output(out.file(kManifestName));  // last: names the files
-    report << folder_manifest("comfort", {input}, files).dump(2) << '\n';
-    report.close();
-    if (!report) throw InputError("cannot write '" + out.target() + "/report.json'");
-  }
-  out.commit();
+  ComfortReportInput report = report_input(r, input, fs::path(input).stem().string());
+  if (has_grid(r)) report.maps = map_figures(out.folder(), "", report.name);
+  write_client_report(comfort_client_report(report), out.file("report.html"));
+  files.push_back("report.html");
+  write_manifest(out, folder_manifest("comfort", {input}, files));
   if (!args.rays.quiet) {
     std::cout << "\nwrote " << out.target() << ": ";
     for (std::size_t k = 0; k < files.size(); ++k) std::cout << (k ? ", " : "") << files[k];
@@ -312,8 +371,15 @@ int run_compare_command(const ComfortArgs& args) {
   }
   for (const Caution& c : general) std::cout << "  - " << c.text << "\n";
   print_points_over(runs, std::vector<std::string>(head.begin() + 1, head.end()));
-  if (!args.output_dir.empty())
-    write_compared_maps(args, runs, std::vector<std::string>(head.begin() + 1, head.end()));
+  if (!args.output_dir.empty()) {
+    OutputFolder out(args.output_dir);
+    std::vector<std::string> files = write_compared_maps(
+        args, out, runs, std::vector<std::string>(head.begin() + 1, head.end()));
+    write_compare_report(args, out, runs, rows);
+    files.push_back("report.html");
+    write_manifest(out, folder_manifest("compare", args.inputs, files));
+    std::cout << "client report: " << (fs::path(out.target()) / "report.html").string() << "\n";
+  }
   return 0;
 }
 

@@ -201,6 +201,16 @@ void OutputFolder::commit() {
   committed_ = true;
 }
 
+void write_manifest(OutputFolder& out, const json& manifest) {
+  {
+    std::ofstream report(out.file(kManifestName), std::ios::binary | std::ios::trunc);
+    report << manifest.dump(2) << '\n';
+    report.close();
+    if (!report) throw InputError("cannot write '" + out.target() + "/" + kManifestName + "'");
+  }
+  out.commit();
+}
+
 StagedFiles::~StagedFiles() {
   if (committed_) return;
   std::error_code ec;

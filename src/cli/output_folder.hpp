@@ -47,6 +47,8 @@ class OutputFolder {
   // would: no clean-up) once N files have been asked for and the next is asked for, or before
   // the swap; HEARTHRAY_TEST_EXIT_AFTER_SWAP (any value) right after the swap.
   std::string file(const std::string& name);
+  // The folder being written now (the staging folder), for a writer reading back a file of it.
+  const std::filesystem::path& folder() const { return staging_; }
   // The folder as the user named it, for messages.
   const std::string& target() const { return asked_; }
   // Checks that the manifest names exactly the files written (an internal error otherwise),
@@ -59,6 +61,9 @@ class OutputFolder {
   std::size_t files_ = 0;
   bool committed_ = false;
 };
+
+// Writes `manifest` as the folder's report.json (the last file) and commits `out`.
+void write_manifest(OutputFolder& out, const nlohmann::json& manifest);
 
 // Several output files anywhere (factors -o A.csv -o B.h5): each written in a hidden staging
 // folder beside it (".hearthray-partial-PID" in its folder) and all renamed into place at the

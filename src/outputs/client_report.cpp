@@ -85,27 +85,43 @@ struct Counters {
   int table = 0, figure = 0;
 };
 
-void write_table(std::ostream& out, const ReportTable& t, const char* css_class, Counters* n) {
+// Columns (after the first) whose every filled cell is a number are set right-aligned, their
+// heading too.
+std::vector<bool> numeric_columns(const ReportTable& t, std::size_t columns) {
+  std::vector<bool> numeric(columns, false);
+  for (std::size_t c = 1; c < columns; ++c) {
+    bool any = false, all = true;
+    for (const auto& row : t.rows) {
+      if (c >= row.size() || row[c].empty()) continue;
+      any = true;
+      all = all && looks_numeric(row[c]);
+    }
+    numeric[c] = any && all;
+  }
+  return numeric;
+}
+
+void write_table(std::ostream& out, const ReportTable& t, Counters* n) {
   std::size_t columns = t.header.size();
   for (const auto& row : t.rows) columns = std::max(columns, row.size());
-  out << "<table" << (css_class ? std::string(" class=\"") + css_class + "\"" : "") << ">\n";
+  const std::vector<bool> numeric = numeric_columns(t, columns);
+  auto cell = [&](const char* tag, std::size_t c, const std::string& text) {
+    out << "<" << tag << (numeric[c] ? " class=\"num\">" : ">") << html_escape(text) << "</" << tag
+        << ">";
+  };
+  out << "<table>\n";
   if (!t.caption.empty())
     out << "<caption><span class=\"label\">Table " << ++n->table << ".</span> "
         << html_escape(t.caption) << "</caption>\n";
   if (!t.header.empty()) {
     out << "<thead><tr>";
-    for (std::size_t c = 0; c < columns; ++c)
-      out << "<th>" << (c < t.header.size() ? html_escape(t.header[c]) : "") << "</th>";
+    for (std::size_t c = 0; c < columns; ++c) cell("th", c, c < t.header.size() ? t.header[c] : "");
     out << "</tr></thead>\n";
   }
   out << "<tbody>\n";
   for (const auto& row : t.rows) {
     out << "<tr>";
-    for (std::size_t c = 0; c < columns; ++c) {
-      const std::string cell = c < row.size() ? row[c] : "";
-      out << (c > 0 && looks_numeric(cell) ? "<td class=\"num\">" : "<td>") << html_escape(cell)
-          << "</td>";
-    }
+    for (std::size_t c = 0; c < columns; ++c) cell("td", c, c < row.size() ? row[c] : "");
     out << "</tr>\n";
   }
   out << "</tbody></table>\n";
@@ -139,7 +155,7 @@ void write_section(std::ostream& out, const ReportSection& s, std::size_t index,
       << "</span>" << html_escape(s.heading) << "</h2>\n";
   for (const std::string& p : s.paragraphs) out << "<p>" << html_escape(p) << "</p>\n";
   if (!s.verdicts.empty()) write_verdicts(out, s.verdicts);
-  for (const ReportTable& t : s.tables) write_table(out, t, nullptr, n);
+  for (const ReportTable& t : s.tables) write_table(out, t, n);
   for (const ReportFigure& f : s.figures) write_figure(out, f, n);
   out << "</section>\n";
 }
@@ -151,7 +167,8 @@ void write_glance(std::ostream& out, const ClientReport& r) {
     for (const ReportVerdict& v : r.sections[k].verdicts)
       items << "<li class=\"" << (v.pass ? "pass" : "fail") << "\"><span class=\"mark\">"
             << mark(v.pass) << "</span>" << html_escape(v.what) << " <a class=\"where\" href=\"#s"
-            << k + 1 << "\">(section " << k + 1 << ")</a></li>\n";
+            << k + 1 << "\">(" << k + 1 << " " << html_escape(r.sections[k].heading)
+            << ")</a></li>\n";
   if (items.str().empty()) return;
   out << "<div class=\"glance\">\n<h2>At a glance</h2>\n<ul>\n" << items.str() << "</ul>\n</div>\n";
 }

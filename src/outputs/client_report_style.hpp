@@ -43,7 +43,8 @@ th { text-align: left; font-weight: bold; border-bottom: 1.5px solid #1f5a6b;
 td { border-bottom: 1px solid #e1e5e8; padding: 1.1mm 2mm; vertical-align: top; }
 tbody tr:nth-child(even) td { background: #f7f9fa; }
 tr { break-inside: avoid; page-break-inside: avoid; }
-td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
+td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; }
+td { overflow-wrap: break-word; }
 table.verdicts td.result { white-space: nowrap; }
 table.verdicts td.source { color: #55626b; font-size: 8.5pt; }
 figure { margin: 3mm 0 6mm; break-inside: avoid; page-break-inside: avoid; text-align: center; }
