@@ -19,6 +19,10 @@ int run_gas_solve(const SolveArgs& args, const SceneFile& file) {
   namespace fs = std::filesystem;
   const Scene loaded = load_scene(file);
   const PipelineOptions options = pipeline_options(args.rays);
+  if (options.target_error || file.target_error)
+    throw InputError(
+        "a target error (--target-error, [rays] target_error) is not available for a scene "
+        "with [gas] yet: give the rays per patch instead");
   const PatchPlan plan = plan_scene(file, loaded, options);
   const Tracer tracer(plan.scene);
   GasRunOptions gas_options;
