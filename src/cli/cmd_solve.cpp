@@ -16,6 +16,7 @@
 #include "hearthray/units.hpp"
 #include "hearthray/version.hpp"
 #include "hearthray/vtu.hpp"
+#include "output_folder.hpp"
 
 namespace hearthray::cli {
 
@@ -72,7 +73,7 @@ void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved, UnitS
   const FactorRun& run = solved.run;
   const ThermalModel& model = solved.model;
   const ExchangeResult& result = solved.result;
-  const fs::path dir = make_output_dir(args.output_dir);
+  OutputFolder out(args.output_dir);
   const FactorReportInfo factor_info = report_info(file, run);
   SolveReportInfo info = solve_info(file, run, model, solved.warnings);
   // Dense view-factor files for a few surfaces; for many patches only the sparse one.
@@ -82,11 +83,11 @@ void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved, UnitS
       dense ? std::vector<std::string>{"view_factors.csv", "view_factors.json"}
             : std::vector<std::string>{args.matrix_text ? "view_factors.mtx" : "view_factors.h5"};
   for (const std::string& name : factor_files)
-    write_factors_file((dir / name).string(), used, factor_info, &run.scene, &run.patches);
+    write_factors_file(out.file(name), used, factor_info, &run.scene, &run.patches);
   const std::vector<PatchField> fields = solve_fields(model, result);
-  write_vtu((dir / "patches.vtu").string(), run.scene, run.patches, fields,
+  write_vtu(out.file("patches.vtu"), run.scene, run.patches, fields,
             {{"converged", result.status == ExchangeStatus::converged ? 1 : 0}});
-  write_patches_csv_file((dir / "patches.csv").string(), run.scene, run.patches);
+  write_patches_csv_file(out.file("patches.csv"), run.scene, run.patches);
   info.files = {"surfaces.csv", "patches.vtu", "patches.csv"};
   // Pictures of the temperature and the net radiative flux from the default view.
   const Tracer tracer(run.scene);
@@ -104,23 +105,26 @@ void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved, UnitS
       options.diverging = field_name == "net radiative flux";
       const Picture drawn = render(run.scene, run.patches, tracer, shown_in(field, units), options);
       for (const char* extension : {".png", ".svg"}) {
-        write_picture((dir / (picture + extension)).string(), drawn);
+        write_picture(out.file(picture + extension), drawn);
         info.files.push_back(picture + extension);
       }
     }
   }
   info.files.insert(info.files.end(), factor_files.begin(), factor_files.end());
   {
-    std::ofstream csv = open_output(dir / "surfaces.csv");
+    std::ofstream csv = open_output(out.file("surfaces.csv"));
     write_surfaces_csv(csv, model, result, units);
   }
   {
-    std::ofstream report = open_output(dir / "report.json");
+    // Last: report.json names the files of its run.
+    std::ofstream report = open_output(out.file(kManifestName));
     write_solve_json(report, info, model, result);
-    if (!report) throw InputError("cannot write '" + (dir / "report.json").string() + "'");
+    report.close();
+    if (!report) throw InputError("cannot write '" + out.target() + "/report.json'");
   }
+  out.commit();
   if (!args.rays.quiet) {
-    std::cout << "\nwrote " << (dir / "report.json").string();
+    std::cout << "\nwrote " << (fs::path(out.target()) / kManifestName).string();
     for (const std::string& name : info.files) std::cout << ", " << name;
     std::cout << "\n";
   }
@@ -140,6 +144,7 @@ void print_room_air(std::ostream& out, const RoomAirResult& a) {
 }  // namespace
 
 int run_solve_command(const SolveArgs& args) {
+  if (!args.output_dir.empty()) check_output_folder(args.output_dir);  // before the work
   // A scene with a radiating gas goes through the zone method instead (cmd_solve_gas.cpp).
   if (const SceneFile file = open_scene(args.input); file.gas) return run_gas_solve(args, file);
   CacheChoice cache;

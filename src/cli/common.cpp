@@ -5,6 +5,7 @@
 #include <atomic>
 #include <cmath>
 #include <cstdio>
+#include <cstdlib>
 #include <iostream>
 
 #include "commands.hpp"
@@ -33,17 +34,31 @@ void show_progress(const PipelineProgress& p) {
 }
 
 // When stderr is not a terminal (a log file, a pipe): a line every kProgressLineSeconds
-// while tracing, so that a long run shows it is alive without filling the log.
+// (or $HEARTHRAY_PROGRESS_SECONDS) while tracing, so that a long run shows it is alive without
+// filling the log.
 constexpr double kProgressLineSeconds = 10;
+std::atomic<double> progress_line_seconds{kProgressLineSeconds};
 std::atomic<double> next_progress_line{kProgressLineSeconds};
+
+// The interval of the progress lines: $HEARTHRAY_PROGRESS_SECONDS when set, else the default.
+double progress_interval() {
+  const char* text = std::getenv("HEARTHRAY_PROGRESS_SECONDS");
+  if (!text || !*text) return kProgressLineSeconds;
+  char* end = nullptr;
+  const double seconds = std::strtod(text, &end);
+  if (*end || !(seconds > 0) || !std::isfinite(seconds))
+    throw InputError(std::string("HEARTHRAY_PROGRESS_SECONDS = '") + text +
+                     "': give the seconds between progress lines, a number above 0");
+  return seconds;
+}
 
 void log_progress(const PipelineProgress& p) {
   if (p.stage != PipelineStage::trace) {
-    next_progress_line = kProgressLineSeconds;
+    next_progress_line = progress_line_seconds.load();
     return;
   }
   if (p.seconds < next_progress_line || p.done >= p.total) return;
-  next_progress_line = p.seconds + kProgressLineSeconds;
+  next_progress_line = p.seconds + progress_line_seconds;
   const double fraction = p.total ? double(p.done) / double(p.total) : 1.0;
   const double rate = p.seconds > 0 ? double(p.done) / p.seconds : 0.0;
   const double left = rate > 0 ? double(p.total - p.done) / rate : 0.0;
@@ -97,7 +112,13 @@ PipelineOptions pipeline_options(const RaySettings& settings, const CacheChoice*
     options.cache_dir = cache->dir;
   }
   options.force = settings.force;
-  if (!settings.quiet) options.progress = isatty(fileno(stderr)) ? show_progress : log_progress;
+  if (!settings.quiet && isatty(fileno(stderr))) {
+    options.progress = show_progress;
+  } else if (!settings.quiet) {
+    progress_line_seconds = progress_interval();
+    next_progress_line = progress_line_seconds.load();
+    options.progress = log_progress;
+  }
   return options;
 }
 
@@ -229,17 +250,6 @@ std::string smoothing_line(const FactorRun& run) {
                 run.smoothing.iterations, run.smoothing.converged ? "" : " (NOT converged)",
                 run.factors.max_correction_sigma);
   return buffer;
-}
-
-std::filesystem::path make_output_dir(const std::string& dir) {
-  const std::filesystem::path path(dir);
-  std::error_code ec;
-  std::filesystem::create_directories(path, ec);
-  if (ec || !std::filesystem::is_directory(path)) {
-    throw InputError("cannot create the output folder '" + path.string() + "'" +
-                     (ec ? ": " + ec.message() : std::string()));
-  }
-  return path;
 }
 
 std::ofstream open_output(const std::filesystem::path& path) {
