@@ -28,6 +28,14 @@ constexpr double kOnPlane = 1e-7;
 // Normal angles closer than this (rad) belong to one facet of a cylinder.
 constexpr double kFacetAngle = 1e-3;
 
+// Counts of cells, bands, sectors or regions: x rounded, at least 1 (also for NaN), at most
+// kMaxCount (a run that large is refused before, by its size estimate, unless forced).
+constexpr int kMaxCount = 1 << 20;
+int how_many(double x) {
+  const double n = std::round(x);
+  return !(n > 1) ? 1 : static_cast<int>(std::min(n, double(kMaxCount)));
+}
+
 struct UnionFind {
   std::vector<std::uint32_t> parent;
   explicit UnionFind(std::size_t n) : parent(n) { std::iota(parent.begin(), parent.end(), 0u); }
@@ -141,8 +149,8 @@ bool try_rectangle(const Scene& scene, const std::vector<std::uint32_t>& weld, d
   if (!(std::fabs(box - chart->area) <= kRectangleArea * box)) return false;
   chart->kind = ChartKind::rectangle;
   chart->u = u, chart->v = v, chart->u0 = u0, chart->v0 = v0;
-  chart->nu = static_cast<int>(std::max(1.0, std::round((u1 - u0) / size)));
-  chart->nv = static_cast<int>(std::max(1.0, std::round((v1 - v0) / size)));
+  chart->nu = how_many((u1 - u0) / size);
+  chart->nv = how_many((v1 - v0) / size);
   chart->du = (u1 - u0) / chart->nu;
   chart->dv = (v1 - v0) / chart->nv;
   return true;
@@ -245,7 +253,7 @@ void lay_out_sectors(const Scene& scene, const std::vector<std::uint32_t>& weld,
     arc = span + step;
     chart->theta0 = wrap_angle(f[after] - 0.5 * step);
   }
-  chart->sectors = static_cast<int>(std::max(1.0, std::round(arc * radius / size)));
+  chart->sectors = how_many(arc * radius / size);
   chart->sector = arc / chart->sectors;
 }
 
@@ -257,7 +265,7 @@ bool try_cylinder(const Scene& scene, const std::vector<std::uint32_t>& weld, do
   chart->kind = ChartKind::cylinder;
   const auto [t0, t1] = range_along(scene, *chart, chart->axis);
   chart->t0 = t0;
-  chart->bands = static_cast<int>(std::max(1.0, std::round((t1 - t0) / size)));
+  chart->bands = how_many((t1 - t0) / size);
   chart->band = (t1 - t0) / chart->bands;
   lay_out_sectors(scene, weld, size, radius, chart);
   return true;
@@ -295,14 +303,16 @@ void classify(const Scene& scene, const std::vector<std::uint32_t>& weld, double
              : try_cylinder(scene, weld, size, chart))
     return;
   chart->kind = ChartKind::regions;
-  const double target = std::round(chart->area / (size * size));
   chart->regions =
-      static_cast<int>(std::clamp(target, 1.0, static_cast<double>(chart->triangles.size())));
+      std::min(how_many(chart->area / (size * size)),
+               static_cast<int>(std::min<std::size_t>(chart->triangles.size(), kMaxCount)));
 }
 
+// The cell of x on a row of `count` cells of `width` from 0; outside (or NaN): the nearest end.
 std::uint32_t cell(double x, double width, int count) {
   const double i = std::floor(x / width);
-  return static_cast<std::uint32_t>(std::clamp(i, 0.0, static_cast<double>(count - 1)));
+  if (!(i > 0)) return 0;
+  return static_cast<std::uint32_t>(std::min(i, static_cast<double>(count - 1)));
 }
 
 }  // namespace
