@@ -31,8 +31,11 @@ constexpr double kFacetAngle = 1e-3;
 // Counts of cells, bands, sectors or regions: x rounded, at least 1 (also for NaN), at most
 // kMaxCount (a run that large is refused before, by its size estimate, unless forced).
 constexpr int kMaxCount = 1 << 20;
+// Halves round up, and so do values within 1e-4 below a half, so that a length that is an
+// exact 1.5 cells in the drawing but 1.49998 after the rounding of a mesh's coordinates (or of
+// an axis fitted to them) gets the same count as its twin elsewhere in the model.
 int how_many(double x) {
-  const double n = std::round(x);
+  const double n = std::floor(x + 0.5 + 1e-4);
   return !(n > 1) ? 1 : static_cast<int>(std::min(n, double(kMaxCount)));
 }
 
@@ -166,7 +169,9 @@ double normal_angle(const Chart& chart, const Vec3& n) {
 }
 
 // The cylinder's axis: the direction all normals are perpendicular to (the eigenvector of the
-// smallest eigenvalue of sum A n n^T, near zero). Sign fixed by its largest component.
+// smallest eigenvalue of sum A n n^T, near zero), taken as the model axis it is within about
+// 1.4e-4 rad of (the rounding of exported coordinates tilts it). Sign fixed by its largest
+// component.
 bool cylinder_axis(const Scene& scene, Chart* chart) {
   Eigen::Matrix3d m = Eigen::Matrix3d::Zero();
   for (std::uint32_t t : chart->triangles) {
@@ -177,9 +182,10 @@ bool cylinder_axis(const Scene& scene, Chart* chart) {
   const Eigen::SelfAdjointEigenSolver<Eigen::Matrix3d> eigen(m);
   if (eigen.info() != Eigen::Success) return false;
   if (!(eigen.eigenvalues()(0) <= 1e-6 * m.trace())) return false;
-  const Eigen::Vector3d a = eigen.eigenvectors().col(0).normalized();
+  Eigen::Vector3d a = eigen.eigenvectors().col(0).normalized();
   Eigen::Index big = 0;
   a.cwiseAbs().maxCoeff(&big);
+  if (std::fabs(a(big)) >= 1 - kParallel) a = Eigen::Vector3d::Unit(big);  // a model axis
   const double sign = a(big) < 0 ? -1 : 1;
   chart->axis = Vec3(a(0), a(1), a(2)) * sign;
   Eigen::Index small = 0;
