@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <filesystem>
 #include <iostream>
+#include <nlohmann/json.hpp>
 #include <numeric>
 
 #include "commands.hpp"
@@ -13,6 +14,7 @@
 #include "hearthray/comfort_report.hpp"
 #include "hearthray/heating_plan.hpp"
 #include "hearthray/units.hpp"
+#include "output_folder.hpp"
 #include "size_report.hpp"
 
 namespace hearthray::cli {
@@ -90,6 +92,7 @@ void print_ranking(std::ostream& out, const std::vector<SizedLayout>& layouts,
 
 int run_size_command(const SizeArgs& args) {
   const HeatingTarget target = target_from(args);
+  if (!args.output_dir.empty()) check_output_folder(args.output_dir);  // before the work
   CacheChoice cache;
   cache.use = !args.no_cache;
   cache.dir = args.cache_dir;
@@ -117,9 +120,10 @@ int run_size_command(const SizeArgs& args) {
   std::cout << "\ncautions:\n";
   for (const std::string& c : size_cautions(layouts, names)) std::cout << "  - " << c << "\n";
   if (args.output_dir.empty()) return 0;
-  const fs::path dir = make_output_dir(args.output_dir);
-  const std::vector<std::string> files = write_size_outputs(dir, target, layouts, names);
-  std::cout << "\nwrote " << dir.string() << ": " << join_at_most(files, 12) << "\n";
+  OutputFolder out(args.output_dir);  // written whole: see output_folder.hpp
+  std::vector<std::string> files = write_size_outputs(out.folder(), target, layouts, names);
+  write_manifest(out, folder_manifest("size", args.inputs, files));
+  std::cout << "\nwrote " << out.target() << ": " << join_at_most(files, 12) << "\n";
   return 0;
 }
 
