@@ -14,6 +14,7 @@
 #include "hearthray/tracer.hpp"
 #include "hearthray/version.hpp"
 #include "hearthray/vtu.hpp"
+#include "processes.hpp"
 
 namespace hearthray::cli {
 
@@ -127,7 +128,11 @@ void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved, UnitS
 
 int run_solve_command(const SolveArgs& args) {
   // A scene with a radiating gas goes through the zone method instead (cmd_solve_gas.cpp).
-  if (const SceneFile file = open_scene(args.input); file.gas) return run_gas_solve(args, file);
+  // Its tracing is not split over processes: under mpirun, process 0 runs it alone.
+  if (const SceneFile file = open_scene(args.input); file.gas) {
+    set_command_splits(false);
+    return is_helper_process() ? 0 : run_gas_solve(args, file);
+  }
   CacheChoice cache;
   cache.use = !args.no_cache;
   cache.dir = args.cache_dir;

@@ -9,6 +9,7 @@
 
 #include "core/text.hpp"
 #include "hearthray/error.hpp"
+#include "processes.hpp"
 
 namespace hearthray::cli {
 
@@ -92,6 +93,7 @@ PipelineOptions pipeline_options(const RaySettings& settings, const CacheChoice*
   }
   options.force = settings.force;
   if (!settings.quiet) options.progress = isatty(fileno(stderr)) ? show_progress : log_progress;
+  if (command_splits()) prepare_split(&options);
   return options;
 }
 

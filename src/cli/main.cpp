@@ -9,6 +9,7 @@
 #include "commands.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/version.hpp"
+#include "processes.hpp"
 
 using namespace hearthray::cli;
 
@@ -250,6 +251,9 @@ int parse(CLI::App& app, int argc, char** argv) {
 // Runs the command given; bad input is exit 2, anything else an internal failure (exit 3).
 int run(const Commands& c) {
   try {
+    // Under mpirun, commands that do not split their tracing run on process 0 alone.
+    set_command_splits(*c.cmd_factors || *c.cmd_solve);
+    if (is_helper_process() && !command_splits()) return 0;
     if (*c.cmd_factors) return run_factors_command(c.factors);
     if (*c.cmd_check) return run_check_command(c.check);
     if (*c.cmd_solve) return run_solve_command(c.solve);
@@ -257,6 +261,8 @@ int run(const Commands& c) {
     if (*c.cmd_fire) return run_fire_command(c.fire);
     if (*c.cmd_comfort) return run_comfort_command(c.comfort);
     if (*c.cmd_compare) return run_compare_command(c.compare);
+  } catch (const ProcessesStop& stop) {
+    return stop.status;
   } catch (const hearthray::InputError& e) {
     std::cerr << "error: " << e.what() << "\n";
     return 2;
@@ -271,9 +277,7 @@ int run(const Commands& c) {
   return 0;
 }
 
-}  // namespace
-
-int main(int argc, char** argv) {
+int run_command_line(int argc, char** argv) {
   CLI::App app{
       "hearthray: view factors and radiant heat exchange between the surfaces of a 3-D model.\n"
       "Results are engineering estimates; furnace, kiln and heater design follows local codes,\n"
@@ -299,4 +303,12 @@ int main(int argc, char** argv) {
   if (unknown_command(app, argc, argv)) return 2;
   if (const int status = parse(app, argc, argv); status >= 0) return status;
   return run(c);
+}
+
+}  // namespace
+
+// Under an MPI launcher, every process of the job runs this (see processes.hpp).
+int main(int argc, char** argv) {
+  start_processes(&argc, &argv);
+  return finish_processes(run_command_line(argc, argv));
 }

@@ -297,40 +297,37 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
   return tallies;
 }
 
+void append_shard(Tallies* merged, const Tallies& s) {
+  if (s.patch_count != merged->patch_count ||
+      s.emitter_begin != merged->emitter_begin + merged->rows() ||
+      s.hit_square.empty() != merged->hit_square.empty() ||
+      s.escaped_square.empty() != merged->escaped_square.empty() ||
+      s.hits_on_surface.size() != merged->hits_on_surface.size())
+    throw std::invalid_argument(
+        "merge_shards: shards must come from one scene and cover consecutive "
+        "emitter ranges in order");
+  const std::uint64_t base = merged->hit_patch.size();
+  for (std::size_t r = 0; r < s.rows(); ++r)
+    merged->hit_offset.push_back(base + s.hit_offset[r + 1]);
+  auto append = [](auto& to, const auto& from) { to.insert(to.end(), from.begin(), from.end()); };
+  append(merged->hit_patch, s.hit_patch);
+  append(merged->hit_count, s.hit_count);
+  append(merged->rays, s.rays);
+  append(merged->escaped, s.escaped);
+  append(merged->back_face, s.back_face);
+  append(merged->hit_square, s.hit_square);
+  append(merged->escaped_square, s.escaped_square);
+  append(merged->back_face_square, s.back_face_square);
+  for (std::size_t i = 0; i < s.hits_on_surface.size(); ++i) {
+    merged->hits_on_surface[i] += s.hits_on_surface[i];
+    merged->back_face_hits_on_surface[i] += s.back_face_hits_on_surface[i];
+  }
+}
+
 Tallies merge_shards(const std::vector<Tallies>& shards) {
   if (shards.empty()) throw std::invalid_argument("merge_shards: no shards given");
-  Tallies merged;
-  merged.patch_count = shards.front().patch_count;
-  merged.emitter_begin = shards.front().emitter_begin;
-  merged.back_face_hits_on_surface.assign(shards.front().back_face_hits_on_surface.size(), 0);
-  merged.hits_on_surface.assign(shards.front().hits_on_surface.size(), 0);
-  std::uint32_t next = merged.emitter_begin;
-  for (const Tallies& s : shards) {
-    if (s.patch_count != merged.patch_count || s.emitter_begin != next ||
-        s.hit_square.empty() != shards.front().hit_square.empty() ||
-        s.hits_on_surface.size() != merged.hits_on_surface.size())
-      throw std::invalid_argument(
-          "merge_shards: shards must come from one scene and cover consecutive "
-          "emitter ranges in order");
-    const std::uint64_t base = merged.hit_patch.size();
-    for (std::size_t r = 0; r < s.rows(); ++r)
-      merged.hit_offset.push_back(base + s.hit_offset[r + 1]);
-    merged.hit_patch.insert(merged.hit_patch.end(), s.hit_patch.begin(), s.hit_patch.end());
-    merged.hit_count.insert(merged.hit_count.end(), s.hit_count.begin(), s.hit_count.end());
-    merged.rays.insert(merged.rays.end(), s.rays.begin(), s.rays.end());
-    merged.escaped.insert(merged.escaped.end(), s.escaped.begin(), s.escaped.end());
-    merged.back_face.insert(merged.back_face.end(), s.back_face.begin(), s.back_face.end());
-    merged.hit_square.insert(merged.hit_square.end(), s.hit_square.begin(), s.hit_square.end());
-    merged.escaped_square.insert(merged.escaped_square.end(), s.escaped_square.begin(),
-                                 s.escaped_square.end());
-    merged.back_face_square.insert(merged.back_face_square.end(), s.back_face_square.begin(),
-                                   s.back_face_square.end());
-    for (std::size_t i = 0; i < s.hits_on_surface.size(); ++i) {
-      merged.hits_on_surface[i] += s.hits_on_surface[i];
-      merged.back_face_hits_on_surface[i] += s.back_face_hits_on_surface[i];
-    }
-    next += static_cast<std::uint32_t>(s.rows());
-  }
+  Tallies merged = shards.front();
+  for (std::size_t k = 1; k < shards.size(); ++k) append_shard(&merged, shards[k]);
   return merged;
 }
 
