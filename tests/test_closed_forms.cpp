@@ -253,3 +253,35 @@ TEST_CASE("sphere to rectangle: solid angle, closure at a cube centre, limits", 
       0, a, 32);
   CHECK(sphere_to_rectangle_corner(a, b, d) == Approx(omega / (4 * kPi)).epsilon(1e-10));
 }
+
+TEST_CASE("baffled plates: limits and a midpoint sum of Lambert's contour formula",
+          "[closed_forms]") {
+  // A baffle as wide as the plates hides them from each other entirely; a vanishing one hides
+  // nothing (C-11).
+  CHECK(std::fabs(baffled_plates_factor(1, 1, 1)) < 1e-12);
+  CHECK(std::fabs(baffled_plates_factor(1, 1, 1.5)) < 1e-12);
+  CHECK(baffled_plates_factor(1, 1, 1e-4) ==
+        Approx(parallel_rectangles_aligned(1, 1, 1)).epsilon(1e-6));
+  // The quadrature has converged: twice the nodes change nothing.
+  const double f = baffled_plates_factor(1, 1, 0.6);
+  CHECK(baffled_plates_factor(1, 1, 0.6, 48) == Approx(f).epsilon(1e-12));
+  // Independently: the element factor to the upper plate minus that to the hidden rectangle,
+  // both by Lambert's contour formula, summed at the midpoints of a 64 x 64 grid over the
+  // lower plate (the midpoint rule's error here is about 1e-5).
+  const int n = 64;
+  double sum = 0;
+  auto square = [](double x0, double x1, double y0, double y1) {
+    return std::vector<Vec3>{{x0, y0, 1}, {x1, y0, 1}, {x1, y1, 1}, {x0, y1, 1}};
+  };
+  for (int i = 0; i < n; ++i)
+    for (int j = 0; j < n; ++j) {
+      const Vec3 x{-0.5 + (i + 0.5) / n, -0.5 + (j + 0.5) / n, 0};
+      double visible = element_to_polygon(x, {0, 0, 1}, square(-0.5, 0.5, -0.5, 0.5));
+      const double x0 = std::max(-0.5, -0.6 - x.x), x1 = std::min(0.5, 0.6 - x.x);
+      const double y0 = std::max(-0.5, -0.6 - x.y), y1 = std::min(0.5, 0.6 - x.y);
+      if (x1 > x0 && y1 > y0) visible -= element_to_polygon(x, {0, 0, 1}, square(x0, x1, y0, y1));
+      sum += visible / (n * n);
+    }
+  CHECK(f == Approx(sum).margin(1e-4));
+  CHECK(f > 0.01);
+}

@@ -245,6 +245,10 @@ TEST_CASE("comfort and compare commands run end to end", "[comfort]") {
   const std::string csv = slurp(dir / "out" / "comfort.csv");
   CHECK(std::count(csv.begin(), csv.end(), '\n') == 1 + 10);
   CHECK(std::filesystem::exists(dir / "out" / "map_operative.png"));
+  // The client report (its contents: tests/python/check_report_html.py).
+  CHECK_THAT(slurp(dir / "out" / "report.html"), Catch::StartsWith("<!DOCTYPE html>") &&
+                                                     Catch::Contains("middle") &&
+                                                     Catch::Contains("data:image/png;base64,"));
   // Everything at 20 C: t_mr is 20.0 C everywhere.
   CHECK_THAT(csv, Catch::Contains("middle,seated,0.5,0.5,0.5,20,"));
 

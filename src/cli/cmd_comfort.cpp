@@ -11,7 +11,9 @@
 
 #include "commands.hpp"
 #include "core/text.hpp"
+#include "hearthray/client_report.hpp"
 #include "hearthray/comfort.hpp"
+#include "hearthray/comfort_client_report.hpp"
 #include "hearthray/comfort_report.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/thermal_report.hpp"
@@ -67,7 +69,9 @@ int run_comfort(const std::string& input, const ComfortArgs& args, ComfortRun* o
 
 void print_report(std::ostream& out, const ComfortRun& r) {
   const ComfortInput& in = *r.solved.file.comfort;
-  out << "air " << rounded("%.1f C", in.air_K - kZeroCelsius) << ", "
+  const std::optional<RoomAirResult>& air = r.solved.room_air;
+  out << "air " << rounded("%.1f C", (air ? air->air_K : in.air_K) - kZeroCelsius)
+      << (air ? " (solved from the room's heat balance)" : "") << ", "
       << rounded("%.2g m/s", in.air_speed) << "; " << in.rays
       << " rays per point for the body and for each of six planes, seed " << r.solved.run.seed
       << "\n";
@@ -118,6 +122,37 @@ void write_maps(const fs::path& dir, const std::string& prefix, const ComfortRun
       files->push_back(prefix + name + extension);
     }
   }
+}
+
+// The maps of one scene (written by write_maps with `prefix`) as figures of the report.
+std::vector<ReportFigure> map_figures(const fs::path& dir, const std::string& prefix,
+                                      const std::string& scene) {
+  const char* captions[] = {
+      "Mean radiant temperature over the occupied zone",
+      "Operative temperature over the occupied zone",
+      "Radiant asymmetry over the occupied zone, against the limits on the colour bar"};
+  std::vector<ReportFigure> out;
+  for (std::size_t k = 0; k < 3; ++k)
+    out.push_back({std::string(captions[k]) + ", " + scene +
+                       " (plan; heaters outlined, glass "
+                       "in blue, named points marked)",
+                   dir / (prefix + kMaps[k].second + ".png")});
+  return out;
+}
+
+ComfortReportInput report_input(const ComfortRun& r, const std::string& input,
+                                const std::string& name) {
+  ComfortReportInput in;
+  in.name = name;
+  in.scene_path = input;
+  in.scene = &r.solved.run.scene;
+  in.comfort = &*r.solved.file.comfort;
+  in.seed = r.solved.run.seed;
+  in.surfaces = r.surfaces;
+  in.heaters = r.heaters;
+  in.points = r.points;
+  in.cautions = r.cautions;
+  return in;
 }
 
 // compare -o: every scene's maps on one colour range per quantity (the union of the scenes'
@@ -185,6 +220,41 @@ void print_points_over(const std::vector<ComfortRun>& runs, const std::vector<st
   }
 }
 
+// A row of the terminal's compare table in the words of a printed one.
+std::vector<std::string> printed_row(std::vector<std::string> row) {
+  const std::pair<const char*, const char*> words[] = {{"(C)", "(\u00b0C)"},
+                                                       {" - ", " to "},
+                                                       {"OVER", "over a limit"},
+                                                       {"temp.", "temperature"},
+                                                       {"t_o", "operative"}};
+  for (std::string& cell : row)
+    for (const auto& [from, to] : words)
+      for (std::size_t at = cell.find(from); at != std::string::npos;
+           at = cell.find(from, at + std::string(to).size()))
+        cell.replace(at, std::string(from).size(), to);
+  return row;
+}
+
+// compare -o: the client report: the side-by-side table (`rows`, the header row first), then
+// each scene's sections with its maps (written by write_compared_maps).
+void write_compare_report(const ComfortArgs& args, const std::vector<ComfortRun>& runs,
+                          const std::vector<std::vector<std::string>>& rows) {
+  const std::vector<std::string>& head = rows.front();
+  std::vector<ComfortReportInput> reports;
+  for (std::size_t k = 0; k < runs.size(); ++k) {
+    const std::string& name = head[k + 1];
+    reports.push_back(report_input(runs[k], args.inputs[k], name));
+    if (has_grid(runs[k])) reports.back().maps = map_figures(args.output_dir, name + "_", name);
+  }
+  ReportTable table;
+  table.caption = "The scenes side by side";
+  table.header = head;
+  for (auto it = rows.begin() + 1; it != rows.end(); ++it) table.rows.push_back(printed_row(*it));
+  const fs::path html = fs::path(args.output_dir) / "report.html";
+  write_client_report(compare_client_report(reports, table), html);
+  std::cout << "client report: " << html.string() << "\n";
+}
+
 }  // namespace
 
 int run_comfort_command(const ComfortArgs& args) {
@@ -215,6 +285,10 @@ int run_comfort_command(const ComfortArgs& args) {
       if (!args.range.empty()) ranges[q] = given_range(args.range);
     write_maps(dir, "", r, ranges, "", {".png", ".svg"}, &files);
   }
+  ComfortReportInput report = report_input(r, input, fs::path(input).stem().string());
+  if (has_grid(r)) report.maps = map_figures(dir, "", report.name);
+  write_client_report(comfort_client_report(report), dir / "report.html");
+  files.push_back("report.html");
   if (!args.rays.quiet) {
     std::cout << "\nwrote " << dir.string() << ": ";
     for (std::size_t k = 0; k < files.size(); ++k) std::cout << (k ? ", " : "") << files[k];
@@ -294,8 +368,10 @@ int run_compare_command(const ComfortArgs& args) {
   }
   for (const Caution& c : general) std::cout << "  - " << c.text << "\n";
   print_points_over(runs, std::vector<std::string>(head.begin() + 1, head.end()));
-  if (!args.output_dir.empty())
+  if (!args.output_dir.empty()) {
     write_compared_maps(args, runs, std::vector<std::string>(head.begin() + 1, head.end()));
+    write_compare_report(args, runs, rows);
+  }
   return 0;
 }
 

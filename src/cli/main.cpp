@@ -8,6 +8,7 @@
 
 #include "commands.hpp"
 #include "hearthray/error.hpp"
+#include "hearthray/pipeline.hpp"  // the target defaults
 #include "hearthray/version.hpp"
 #include "processes.hpp"
 
@@ -29,10 +30,11 @@ struct Commands {
   CheckArgs check;
   SolveArgs solve, fire;
   ComfortArgs comfort, compare;
+  SizeArgs size;
   RenderArgs render;
   CLI::App *cmd_factors = nullptr, *cmd_check = nullptr, *cmd_solve = nullptr,
            *cmd_comfort = nullptr, *cmd_compare = nullptr, *cmd_render = nullptr,
-           *cmd_fire = nullptr;
+           *cmd_fire = nullptr, *cmd_size = nullptr;
 };
 
 void add_sampler_option(CLI::App* cmd, RaySettings& rays) {
@@ -41,6 +43,21 @@ void add_sampler_option(CLI::App* cmd, RaySettings& rays) {
                               "8 replicates) or stratified (plain Monte Carlo); default: scene, ") +
                       hearthray::sampler_name(hearthray::kDefaultSampler))
       ->check(CLI::IsMember({"sobol", "stratified"}));
+}
+
+// --target-error E, --max-rays N and --time-limit T: rounds of rays until an error wanted.
+void add_target_options(CLI::App* cmd, RaySettings& rays) {
+  cmd->add_option("--target-error", rays.target_error,
+                  "Trace in rounds until every view factor's standard error is at most this "
+                  "(e.g. 0.001); --rays gives the first round (default " +
+                      std::to_string(hearthray::kDefaultTargetFirstRays) + ")");
+  cmd->add_option("--max-rays", rays.max_rays,
+                  "With --target-error: at most this many rays per patch (default " +
+                      std::to_string(hearthray::kDefaultTargetMaxRaysPerPatch) + ")")
+      ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 40));
+  cmd->add_option("--time-limit", rays.time_limit,
+                  "With --target-error: start no round predicted to end after this time, e.g. "
+                  "\"10 min\"");
 }
 
 // --cache DIR and --no-cache (which exclude each other).
@@ -67,6 +84,7 @@ CLI::App* add_factors_command(CLI::App& app, FactorsArgs& factors) {
                    "Random seed (default " + std::to_string(hearthray::kDefaultSeed) + ")")
       ->check(seed_range());
   add_sampler_option(cmd_factors, factors.rays);
+  add_target_options(cmd_factors, factors.rays);
   cmd_factors->add_option("--threads", factors.rays.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
   cmd_factors->add_flag("--raw", factors.rays.raw, "Skip the reciprocity and closure correction");
@@ -119,6 +137,7 @@ CLI::App* add_scene_command(CLI::App& app, const std::string& name, const std::s
                    "Random seed (default: scene, " + std::to_string(hearthray::kDefaultSeed) + ")")
       ->check(seed_range());
   add_sampler_option(cmd_solve, solve.rays);
+  add_target_options(cmd_solve, solve.rays);
   cmd_solve->add_option("--threads", solve.rays.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
   cmd_solve->add_flag("--matrix-text", solve.matrix_text,
@@ -159,6 +178,32 @@ void add_comfort_commands(CLI::App& app, Commands* c) {
     CLI::Option* dir = cmd->add_option("--cache", a->cache_dir, "View-factor cache folder");
     cmd->add_flag("--no-cache", a->no_cache, "Always trace view factors")->excludes(dir);
   }
+}
+
+// `size`: the least heater power for a comfort target, for one or more layouts.
+CLI::App* add_size_command(CLI::App& app, SizeArgs& a) {
+  CLI::App* cmd = app.add_subcommand(
+      "size", "Least heater power meeting a comfort target, per layout, with verdicts and report");
+  cmd->add_option("scene", a.inputs, "Scene files (.toml) with [comfort] tables: the layouts")
+      ->required()
+      ->expected(1, 64);
+  cmd->add_option("--operative", a.operative_C, "Target operative temperature in C");
+  cmd->add_option("--at", a.at,
+                  "Where the operative target applies: zone (mean over the grid, default), "
+                  "points (every named point) or point names")
+      ->delimiter(',');
+  cmd->add_option("--pmv", a.pmv, "Target PMV band low,high, e.g. -0.5,0.5 (every point)")
+      ->delimiter(',')
+      ->expected(2);
+  cmd->add_option("-o,--output", a.output_dir, "Folder for the maps, sizing.csv and report.html");
+  cmd->add_flag("-q,--quiet", a.rays.quiet, "No progress, notes or view-factor lines");
+  cmd->add_flag("--force", a.rays.force,
+                "Run even when the estimated patches, rays or memory are past the limits");
+  cmd->add_option("--threads", a.rays.threads, "Worker threads (default: all)")
+      ->check(CLI::Range(0, 1024));
+  CLI::Option* dir = cmd->add_option("--cache", a.cache_dir, "View-factor cache folder");
+  cmd->add_flag("--no-cache", a.no_cache, "Always trace view factors")->excludes(dir);
+  return cmd;
 }
 
 CLI::App* add_render_command(CLI::App& app, RenderArgs& render) {
@@ -261,6 +306,7 @@ int run(const Commands& c) {
     if (*c.cmd_fire) return run_fire_command(c.fire);
     if (*c.cmd_comfort) return run_comfort_command(c.comfort);
     if (*c.cmd_compare) return run_compare_command(c.compare);
+    if (*c.cmd_size) return run_size_command(c.size);
   } catch (const ProcessesStop& stop) {
     return stop.status;
   } catch (const hearthray::InputError& e) {
@@ -299,6 +345,7 @@ int run_command_line(int argc, char** argv) {
       "A firing over time: the scene's [firing] schedule, walls and loads with heat capacity",
       "Folder for firing.csv, report.json and the pictures against time", c.fire);
   add_comfort_commands(app, &c);
+  c.cmd_size = add_size_command(app, c.size);
   c.cmd_render = add_render_command(app, c.render);
   if (unknown_command(app, argc, argv)) return 2;
   if (const int status = parse(app, argc, argv); status >= 0) return status;

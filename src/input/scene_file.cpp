@@ -15,6 +15,7 @@
 #include "core/text.hpp"
 #include "gas/gas_input_toml.hpp"
 #include "hearthray/error.hpp"
+#include "hearthray/units.hpp"
 #include "transient/firing_input_toml.hpp"
 
 namespace hearthray {
@@ -22,11 +23,12 @@ namespace {
 
 namespace fs = std::filesystem;
 
-const std::vector<std::string> kTopKeys = {"mesh",    "rays",    "surroundings", "defaults",
-                                           "surface", "comfort", "gas",          "firing"};
+const std::vector<std::string> kTopKeys = {"mesh",    "rays", "surroundings", "defaults", "surface",
+                                           "comfort", "gas",  "firing",       "room_air"};
 const std::vector<std::string> kMeshKeys = {"file", "unit", "surfaces_from"};
-const std::vector<std::string> kRaysKeys = {"per_patch", "total", "min_per_patch", "seed",
-                                            "sampler"};
+const std::vector<std::string> kRaysKeys = {"per_patch",     "total",     "min_per_patch",
+                                            "seed",          "sampler",   "target_error",
+                                            "max_per_patch", "time_limit"};
 const std::vector<std::string> kSurroundingsKeys = {"temperature"};
 const std::vector<std::string> kSurfaceKeys = {
     "two_sided", "emissivity", "temperature", "heat_flux", "power",
@@ -145,6 +147,51 @@ class Reader {
     return static_cast<std::uint64_t>(i->get());
   }
 
+  // [rays] target_error, with max_per_patch and time_limit (which need it).
+  void read_target(const toml::table& rays, SceneFile* file) const {
+    if (const toml::node* n = rays.get("target_error")) {
+      std::string text;
+      if (const auto* f = n->as_floating_point())
+        text = shortest(f->get());
+      else if (const auto* i = n->as_integer())
+        text = std::to_string(i->get());
+      else if (const auto* str = n->as_string())
+        text = str->get();
+      else
+        fail(n->source(),
+             "target_error in [rays] must be a number, like target_error = 0.001; "
+             "got " +
+                 type_name(*n));
+      try {
+        file->target_error = parse_target_error(text, "target_error in [rays]");
+      } catch (const InputError& e) {
+        fail(n->source(), e.what());
+      }
+      if (file->rays_total)
+        fail(n->source(),
+             "[rays] gives both total and target_error: give one (target_error "
+             "traces rounds of rays per patch until the error is reached; per_patch "
+             "then sets the first round)");
+    }
+    for (const char* key : {"max_per_patch", "time_limit"}) {
+      const toml::node* n = rays.get(key);
+      if (n && !file->target_error)
+        fail(n->source(), std::string(key) +
+                              " in [rays] limits the rounds of target_error = "
+                              "...; give target_error too");
+    }
+    if (const toml::node* n = rays.get("max_per_patch"))
+      file->target_max_per_patch = whole_number(*n, "max_per_patch", true, "4_000_000");
+    if (const toml::node* n = rays.get("time_limit")) {
+      const std::string text = need_string(*n, "time_limit", "[rays]", "\"10 min\"");
+      try {
+        file->target_time_limit_s = parse_time_limit(text, "time_limit in [rays]");
+      } catch (const InputError& e) {
+        fail(n->source(), e.what());
+      }
+    }
+  }
+
   Convection convection(const toml::node& node, const std::string& table_name) const {
     const std::string name = "'convection' of " + table_name;
     const toml::table& t = need_table(node, name);
@@ -159,8 +206,12 @@ class Reader {
     Convection c;
     c.h = quantity(*h, "h", name, Quantity::heat_transfer_coefficient, "8 W/m2K");
     // fluid = "gas": the radiating gas beside the surface ([gas] scenes; checked in read()).
-    if (const auto* word = fluid->as_string(); word && word->get() == "gas")
+    // fluid = "room_air": the room air, its temperature solved ([room_air]; checked in read()).
+    const auto* word = fluid->as_string();
+    if (word && word->get() == "gas")
       c.fluid_is_gas = true;
+    else if (word && word->get() == "room_air")
+      c.fluid_is_room_air = true, c.fluid_K = kZeroCelsius + 20;  // until the air is solved
     else
       c.fluid_K = quantity(*fluid, "fluid", name, Quantity::temperature, "20 C");
     return c;
@@ -402,6 +453,7 @@ class Reader {
                "patch gets the same rays anyway");
         file.rays_min_per_patch = whole_number(*n, "min_per_patch", true, "1000");
       }
+      read_target(rays, &file);
     }
 
     if (const toml::node* sur_node = root.get("surroundings")) {
@@ -433,11 +485,17 @@ class Reader {
                        [](const auto& a, const auto& b) { return a.second.line < b.second.line; });
     }
     if (const toml::node* gas = root.get("gas")) file.gas = read_gas_table(*gas, path_);
+    if (const toml::node* air = root.get("room_air"))
+      file.room_air = read_room_air_table(*air, path_);
     check_convection_fluids(file);
     if (const toml::node* firing = root.get("firing"))
       file.firing = read_firing_table(*firing, path_);
+    if (file.room_air && file.firing)
+      fail(root.get("room_air")->source(),
+           "[room_air] and [firing] together are not supported: a firing over time holds its "
+           "films' fluid temperatures; give the air's temperature in convection instead");
     if (const toml::node* comfort = root.get("comfort")) {
-      file.comfort = read_comfort_table(*comfort, path_);
+      file.comfort = read_comfort_table(*comfort, path_, file.room_air.has_value());
     }
     return file;
   }
@@ -452,6 +510,15 @@ class Reader {
         throw InputError(path_ + ":" + std::to_string(spec.line) + ": 'convection' of " + table +
                          " has fluid = \"gas\", but the scene has no [gas] table; give the "
                          "fluid's temperature, e.g. fluid = \"20 C\"");
+      if (spec.convection->fluid_is_room_air && !file.room_air)
+        throw InputError(path_ + ":" + std::to_string(spec.line) + ": 'convection' of " + table +
+                         " has fluid = \"room_air\", but the scene has no [room_air] table; "
+                         "add one (ventilation, outside) or give the air's temperature, e.g. "
+                         "fluid = \"20 C\"");
+      if (spec.convection->fluid_is_room_air && file.gas)
+        throw InputError(path_ + ":" + std::to_string(spec.line) + ": 'convection' of " + table +
+                         " has fluid = \"room_air\" in a scene with [gas]: write fluid = "
+                         "\"gas\"");
       if (!spec.convection->fluid_is_gas && file.gas)
         throw InputError(path_ + ":" + std::to_string(spec.line) + ": 'convection' of " + table +
                          " gives a fluid temperature, but in a scene with [gas] the film "

@@ -56,6 +56,37 @@ void draw_series(Canvas& c, const std::vector<std::array<double, 2>>& points, bo
   }
 }
 
+// Ticks of a logarithmic axis over [lo, hi] (log10 values): the powers of ten, written out
+// from 0.001 to 1000 and as 10ⁿ beyond, and when fewer than three decades are shown, 2 and 5
+// times them (labelled within 0.002 .. 5000, grid lines only beyond).
+std::vector<Tick> log_ticks(double lo, double hi) {
+  static const char* kSuperscript[10] = {"⁰", "¹", "²", "³", "⁴", "⁵", "⁶", "⁷", "⁸", "⁹"};
+  auto label = [](int e) {
+    if (e >= -3 && e <= 3) return format_number(std::pow(10.0, e), std::max(0, -e));
+    std::string text = e < 0 ? "10⁻" : "10";
+    for (char d : std::to_string(std::abs(e))) text += kSuperscript[d - '0'];
+    return text;
+  };
+  std::vector<Tick> ticks;
+  const bool minor = hi - lo < 3;
+  for (int e = int(std::floor(lo)); e <= int(std::ceil(hi)); ++e) {
+    if (e >= lo && e <= hi) ticks.push_back({double(e), label(e)});
+    for (double m : {2.0, 5.0}) {
+      const double v = e + std::log10(m);
+      if (!minor || v < lo || v > hi) continue;
+      const bool written = e >= -3 && e < 3;
+      ticks.push_back({v, written ? format_number(m * std::pow(10.0, e), std::max(0, -e)) : ""});
+    }
+  }
+  return ticks;
+}
+
+// A value on an axis: its log10 on a logarithmic one (NaN for values <= 0).
+double axis_value(double v, bool log) {
+  if (!log) return v;
+  return v > 0 ? std::log10(v) : std::numeric_limits<double>::quiet_NaN();
+}
+
 }  // namespace
 
 Picture draw_line_chart(const LineChart& chart) {
@@ -63,11 +94,11 @@ Picture draw_line_chart(const LineChart& chart) {
   c.fill_rect(0, 0, chart.width, chart.height, kWhite);
   Range xr, yr;
   for (const ChartSeries& s : chart.series) {
-    for (double x : s.x) xr.add(x);
-    for (double y : s.y) yr.add(y);
+    for (double x : s.x) xr.add(axis_value(x, chart.log_x));
+    for (double y : s.y) yr.add(axis_value(y, chart.log_y));
   }
-  xr.settle(true);
-  yr.settle(chart.y_from_zero);
+  xr.settle(!chart.log_x);
+  yr.settle(chart.y_from_zero && !chart.log_y);
   const double left = 78, right = chart.width - 24.0, top = chart.subtitle.empty() ? 58 : 80;
   const double legend_rows = std::ceil(double(chart.series.size()) / 3.0);
   const double bottom = chart.height - 58 - legend_rows * 22;
@@ -76,11 +107,15 @@ Picture draw_line_chart(const LineChart& chart) {
     c.text(left, 54, fit_text(c, chart.subtitle, right - left, kFont * 0.9), kFont * 0.9, kSoftInk);
   auto X = [&](double x) { return left + (x - xr.lo) / (xr.hi - xr.lo) * (right - left); };
   auto Y = [&](double y) { return bottom - (y - yr.lo) / (yr.hi - yr.lo) * (bottom - top); };
-  for (const Tick& t : round_ticks(yr.lo, yr.hi, 8)) {
+  const std::vector<Tick> y_ticks =
+      chart.log_y ? log_ticks(yr.lo, yr.hi) : round_ticks(yr.lo, yr.hi, 8);
+  const std::vector<Tick> x_ticks =
+      chart.log_x ? log_ticks(xr.lo, xr.hi) : round_ticks(xr.lo, xr.hi, 10);
+  for (const Tick& t : y_ticks) {
     c.line(left, Y(t.value), right, Y(t.value), 1, kGrid);
     c.text(left - 8, Y(t.value) + kFont * 0.35, t.label, kFont * 0.85, kInk, Align::right);
   }
-  for (const Tick& t : round_ticks(xr.lo, xr.hi, 10)) {
+  for (const Tick& t : x_ticks) {
     c.line(X(t.value), top, X(t.value), bottom, 1, kGrid);
     c.text(X(t.value), bottom + kFont * 1.3, t.label, kFont * 0.85, kInk, Align::centre);
   }
@@ -89,15 +124,23 @@ Picture draw_line_chart(const LineChart& chart) {
   c.text(12, top - 10, chart.y_label, kFont * 0.9, kInk);
   for (const ChartSeries& s : chart.series) {
     std::vector<std::array<double, 2>> points;
-    for (std::size_t i = 0; i < s.x.size() && i < s.y.size(); ++i)
-      points.push_back({X(s.x[i]), std::isfinite(s.y[i]) ? Y(s.y[i]) : NAN});
+    for (std::size_t i = 0; i < s.x.size() && i < s.y.size(); ++i) {
+      const double x = axis_value(s.x[i], chart.log_x), y = axis_value(s.y[i], chart.log_y);
+      points.push_back(
+          {std::isfinite(x) ? X(x) : NAN, std::isfinite(x) && std::isfinite(y) ? Y(y) : NAN});
+    }
     draw_series(c, points, s.dashed, s.colour);
+    if (s.markers)
+      for (const auto& p : points)
+        if (std::isfinite(p[1])) c.circle(p[0], p[1], 3.6, &s.colour, 0, s.colour);
   }
   const double column = (right - left) / 3.0;
   for (std::size_t i = 0; i < chart.series.size(); ++i) {
     const double x = left + column * double(i % 3), y = bottom + kFont * 3.8 + 22.0 * double(i / 3);
     std::vector<std::array<double, 2>> sample{{x, y - 5}, {x + 28, y - 5}};
     draw_series(c, sample, chart.series[i].dashed, chart.series[i].colour);
+    if (chart.series[i].markers)
+      c.circle(x + 14, y - 5, 3.6, &chart.series[i].colour, 0, chart.series[i].colour);
     c.text(x + 36, y, fit_text(c, chart.series[i].name, column - 44, kFont * 0.85), kFont * 0.85,
            kInk);
   }

@@ -15,6 +15,7 @@ struct ChartSeries {
   std::vector<double> x, y;  // a NaN y breaks the line
   Colour colour{0, 0, 0};
   bool dashed = false;
+  bool markers = false;  // a dot at each point (few points, e.g. measurements)
 };
 
 struct LineChart {
@@ -23,6 +24,9 @@ struct LineChart {
   std::vector<ChartSeries> series;
   int width = 960, height = 560;
   bool y_from_zero = false;  // the y axis starts at 0 (powers)
+  // Logarithmic axes (errors against rays): ticks at the powers of ten (with 2 and 5 between
+  // them over a short range), labelled 10ⁿ; values <= 0 are left out.
+  bool log_x = false, log_y = false;
 };
 
 Picture draw_line_chart(const LineChart& chart);

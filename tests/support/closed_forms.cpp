@@ -1,5 +1,6 @@
 #include "support/closed_forms.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <stdexcept>
 
@@ -116,6 +117,40 @@ double parallel_rectangles_exchange_area(const Rect& r1, const Rect& r2, double 
           sum += sign * G(x[i] - xi[k], y[j] - eta[l]);
         }
   return sum;
+}
+
+double baffled_plates_factor(double p, double gap, double q, int nodes) {
+  require_positive(p, "p");
+  require_positive(gap, "gap");
+  require_positive(q, "q");
+  const double h = p / 2;
+  // Element at the origin, a rectangle [x0, x1] x [y0, y1] in a parallel plane at `gap`: B-3
+  // at each corner, odd in each coordinate, so corners on either side of the normal just add.
+  auto to_rectangle = [gap](double x0, double x1, double y0, double y1) {
+    if (x1 <= x0 || y1 <= y0) return 0.0;
+    auto f = [gap](double a, double b) { return element_to_parallel_rectangle_corner(a, b, gap); };
+    return f(x1, y1) - f(x0, y1) - f(x1, y0) + f(x0, y0);
+  };
+  // Along one axis, the hidden interval of the upper plate seen from coordinate u:
+  // [-h, h] ∩ [-q - u, q - u]; its ends switch at u = +-(q - h).
+  std::vector<double> cuts{-h, h};
+  for (double u : {q - h, h - q})
+    if (u > -h && u < h) cuts.push_back(u);
+  std::sort(cuts.begin(), cuts.end());
+  const auto rule = gauss_legendre_01(nodes);
+  double hidden = 0;
+  for (std::size_t a = 0; a + 1 < cuts.size(); ++a)
+    for (std::size_t b = 0; b + 1 < cuts.size(); ++b)
+      for (const auto& [sx, wx] : rule)
+        for (const auto& [sy, wy] : rule) {
+          const double x = cuts[a] + sx * (cuts[a + 1] - cuts[a]);
+          const double y = cuts[b] + sy * (cuts[b + 1] - cuts[b]);
+          const double w = wx * wy * (cuts[a + 1] - cuts[a]) * (cuts[b + 1] - cuts[b]);
+          hidden += w * to_rectangle(std::max(-h, -q - x) - x, std::min(h, q - x) - x,
+                                     std::max(-h, -q - y) - y, std::min(h, q - y) - y);
+        }
+  const Rect plate{-h, h, -h, h};
+  return (parallel_rectangles_exchange_area(plate, plate, gap) - hidden) / plate.area();
 }
 
 double element_to_polygon(const Vec3& point, const Vec3& normal, const std::vector<Vec3>& polygon) {

@@ -59,6 +59,17 @@ struct Rect {
 // for parallel rectangles; recalled from memory).
 double parallel_rectangles_exchange_area(const Rect& r1, const Rect& r2, double c);
 
+// From one plate to the other in baffled_plates_obj (meshes.hpp): p x p plates directly
+// opposed a distance `gap` apart, a centred opaque q x q baffle half-way. A ray from x on the
+// lower plate through the baffle's point b meets the upper plane at 2b - x, so the baffle hides
+// from x exactly the rectangle (2 baffle - x) of that plane, and
+//   A F = A1 F12 (unobstructed, parallel_rectangles_exchange_area)
+//         - integral over the lower plate of F_dA(x -> upper ∩ (2 baffle - x)) dx,
+// the element factor by superposition of B-3 over the rectangle's corners, the area integral by
+// Gauss-Legendre (`nodes` per piece) on the pieces where no edge of the intersection switches,
+// on which the integrand is smooth. Our own construction from those closed forms.
+double baffled_plates_factor(double p, double gap, double q, int nodes = 24);
+
 // Factor from an element at `point` with unit normal `normal` to a planar polygon lying wholly
 // on the element's front side, by Lambert's contour formula (Hottel & Sarofim, "Radiative
 // Transfer", 1967; Siegel & Howell): F = |sum_k gamma_k n . (R_k x R_k+1)/|R_k x R_k+1|| / 2pi.
