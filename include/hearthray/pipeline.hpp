@@ -81,6 +81,18 @@ struct PipelineOptions {
   // Called on stage starts and during tracing (from worker threads, one call at a time); must
   // be cheap. May be empty.
   std::function<void(const PipelineProgress&)> progress;
+  // Tracing split over processes (the tool under mpirun: src/cli/processes.cpp). When set, it
+  // is called instead of tracing every emitter here, with the patch count, the rays of each
+  // patch and `trace`, which traces the emitters [begin, end) in this process (begin < end).
+  // It returns the tallies of all emitters (the ranges' shards appended in order, as
+  // merge_shards does) and fills the stats, or throws to end this process's run. Tallies are a
+  // pure function of (scene, emitter range, seed, rays): any split gives the same numbers.
+  // Empty: every emitter traced here.
+  using TraceRange =
+      std::function<Tallies(std::uint32_t begin, std::uint32_t end, TraceStats* stats)>;
+  std::function<Tallies(const std::vector<std::uint64_t>& rays, const TraceRange& trace,
+                        TraceStats* stats)>
+      split_tracing;
 
   bool IsValid(std::string* error) const;
 };

@@ -17,6 +17,7 @@
 #include "hearthray/version.hpp"
 #include "hearthray/vtu.hpp"
 #include "output_folder.hpp"
+#include "processes.hpp"
 
 namespace hearthray::cli {
 
@@ -146,7 +147,11 @@ void print_room_air(std::ostream& out, const RoomAirResult& a) {
 int run_solve_command(const SolveArgs& args) {
   if (!args.output_dir.empty()) check_output_folder(args.output_dir);  // before the work
   // A scene with a radiating gas goes through the zone method instead (cmd_solve_gas.cpp).
-  if (const SceneFile file = open_scene(args.input); file.gas) return run_gas_solve(args, file);
+  // Its tracing is not split over processes: under mpirun, process 0 runs it alone.
+  if (const SceneFile file = open_scene(args.input); file.gas) {
+    set_command_splits(false);
+    return is_helper_process() ? 0 : run_gas_solve(args, file);
+  }
   CacheChoice cache;
   cache.use = !args.no_cache;
   cache.dir = args.cache_dir;

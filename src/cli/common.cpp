@@ -11,6 +11,7 @@
 #include "commands.hpp"
 #include "core/text.hpp"
 #include "hearthray/error.hpp"
+#include "processes.hpp"
 
 namespace hearthray::cli {
 
@@ -119,6 +120,7 @@ PipelineOptions pipeline_options(const RaySettings& settings, const CacheChoice*
     next_progress_line = progress_line_seconds.load();
     options.progress = log_progress;
   }
+  if (command_splits()) prepare_split(&options);
   return options;
 }
 

@@ -10,6 +10,7 @@
 #include "hearthray/error.hpp"
 #include "hearthray/pipeline.hpp"  // the target defaults
 #include "hearthray/version.hpp"
+#include "processes.hpp"
 
 using namespace hearthray::cli;
 
@@ -295,6 +296,9 @@ int parse(CLI::App& app, int argc, char** argv) {
 // Runs the command given; bad input is exit 2, anything else an internal failure (exit 3).
 int run(const Commands& c) {
   try {
+    // Under mpirun, commands that do not split their tracing run on process 0 alone.
+    set_command_splits(*c.cmd_factors || *c.cmd_solve);
+    if (is_helper_process() && !command_splits()) return 0;
     if (*c.cmd_factors) return run_factors_command(c.factors);
     if (*c.cmd_check) return run_check_command(c.check);
     if (*c.cmd_solve) return run_solve_command(c.solve);
@@ -303,6 +307,8 @@ int run(const Commands& c) {
     if (*c.cmd_comfort) return run_comfort_command(c.comfort);
     if (*c.cmd_compare) return run_compare_command(c.compare);
     if (*c.cmd_size) return run_size_command(c.size);
+  } catch (const ProcessesStop& stop) {
+    return stop.status;
   } catch (const hearthray::InputError& e) {
     std::cerr << "error: " << e.what() << "\n";
     return 2;
@@ -317,9 +323,7 @@ int run(const Commands& c) {
   return 0;
 }
 
-}  // namespace
-
-int main(int argc, char** argv) {
+int run_command_line(int argc, char** argv) {
   CLI::App app{
       "hearthray: view factors and radiant heat exchange between the surfaces of a 3-D model.\n"
       "Results are engineering estimates; furnace, kiln and heater design follows local codes,\n"
@@ -346,4 +350,12 @@ int main(int argc, char** argv) {
   if (unknown_command(app, argc, argv)) return 2;
   if (const int status = parse(app, argc, argv); status >= 0) return status;
   return run(c);
+}
+
+}  // namespace
+
+// Under an MPI launcher, every process of the job runs this (see processes.hpp).
+int main(int argc, char** argv) {
+  start_processes(&argc, &argv);
+  return finish_processes(run_command_line(argc, argv));
 }

@@ -88,7 +88,17 @@ void trace_run(const PipelineOptions& options, const Reporter& reporter, FactorR
   reporter.start(PipelineStage::build_tracer);
   const Tracer tracer(run->scene, vf.tracer);
   reporter.start(PipelineStage::trace);
-  run->tallies = trace_tallies(run->scene, run->patches, tracer, vf, &run->stats);
+  if (!options.split_tracing) {
+    run->tallies = trace_tallies(run->scene, run->patches, tracer, vf, &run->stats);
+    return;
+  }
+  const auto trace_range = [&](std::uint32_t begin, std::uint32_t end, TraceStats* stats) {
+    ViewFactorOptions range = vf;
+    range.emitter_begin = begin;
+    range.emitter_end = end;
+    return trace_tallies(run->scene, run->patches, tracer, range, stats);
+  };
+  run->tallies = options.split_tracing(run->rays, trace_range, &run->stats);
 }
 
 // Diagnoses and (unless raw) smooths the run's tallies.
