@@ -22,7 +22,7 @@ namespace hearthray {
 
 // Part of every key. Change it whenever tracing or sampling changes what (mesh, rays, seed)
 // produce, or when the file layout changes: old files then simply stop matching.
-inline constexpr const char* kTallyCacheFormat = "hearthray-tallies/4";
+inline constexpr const char* kTallyCacheFormat = "hearthray-tallies/5";
 
 // 128 bits from two unrelated 64-bit hashes of the same bytes (FNV-1a and a word-wise
 // multiply-xorshift mix), so an accidental collision needs both to collide at once.
@@ -49,6 +49,9 @@ struct TallyCacheSettings {
 // of every patch, seed, smoothing and kTallyCacheFormat.
 TallyCacheKey tally_cache_key(const std::string& mesh_bytes, const MeshOptions& mesh,
                               const Scene& scene, const TallyCacheSettings& settings);
+
+// The bytes of the mesh file at `path`, for a cache key. Throws InputError when unreadable.
+std::string read_mesh_bytes(const std::string& path);
 
 // $HEARTHRAY_CACHE, else $XDG_CACHE_HOME/hearthray, else $HOME/.cache/hearthray; "" when none of
 // these variables is set.

@@ -25,6 +25,7 @@
 #include "hearthray/error.hpp"
 #include "hearthray/exchange.hpp"
 #include "hearthray/patches.hpp"
+#include "hearthray/room_air.hpp"
 #include "hearthray/scene.hpp"
 #include "hearthray/scene_file.hpp"
 #include "hearthray/smoothing.hpp"
@@ -208,7 +209,11 @@ struct SolvedScene {
   SceneFile file;
   FactorRun run;  // its tallies emptied, its factors moved into the model (sizes kept)
   ThermalModel model;
-  ExchangeResult result;           // empty until solve_model_exchange; check its status
+  ExchangeResult result;  // empty until solve_model_exchange; check its status
+  // With [room_air]: the solved air temperature and its balance (set by solve_model_exchange;
+  // the model's room-air films and file.comfort->air_K are left at that temperature). Check
+  // its `converged` too.
+  std::optional<RoomAirResult> room_air;
   std::vector<Warning> warnings;   // as run.warnings, without a leak the model folded back
   std::vector<std::string> notes;  // ray diagnostics, then the thermal model
 };
@@ -229,8 +234,10 @@ class RefusedInput : public InputError {
 // the cache when asked) and builds the thermal model. Throws InputError for bad input,
 // RefusedInput when the model refuses the scene.
 SolvedScene model_scene(SceneFile file, Scene scene, const PipelineOptions& options);
-// Solves the exchange of a modelled scene into scene->result. Throws RefusedInput when the
-// exchange refuses it; non-convergence is the result's status.
+// Solves the exchange of a modelled scene into scene->result (with [room_air]: together with
+// the air's heat balance, into scene->room_air; an unsolved air balance leaves the result
+// marked not_converged). Throws RefusedInput when the exchange refuses it; non-convergence is
+// the result's status.
 void solve_model_exchange(SolvedScene* scene, const PipelineOptions& options);
 // open_scene + load_scene + model_scene + solve_model_exchange.
 SolvedScene solve_scene(const std::string& path, const PipelineOptions& options);
@@ -244,8 +251,18 @@ struct SceneComfort {
 // Throws InputError when the scene file has no [comfort] table or a point is not usable.
 // Call before model_scene: a typo costs no tracing time.
 void check_comfort_input(const SceneFile& file, const Scene& scene);
-// Angle factors from every point, radiant temperatures from the solved radiosities. Throws
-// std::logic_error when the exchange has not converged.
+// Angle factors from every point, radiant temperatures from the solved radiosities (the air
+// temperature from [comfort], or the solved one with [room_air]). Throws std::logic_error when
+// the exchange has not converged.
 SceneComfort scene_comfort(const SolvedScene& solved, const PipelineOptions& options);
+// The two halves of scene_comfort, for callers that solve again at other conditions (goal
+// seek): the angle factors of `points` traced once (in the options' arena), and the figures at
+// the scene's current solution (its radiosities and air temperature), no ray traced.
+std::vector<PointFactors> trace_scene_angle_factors(const SolvedScene& solved,
+                                                    const std::vector<ComfortPoint>& points,
+                                                    const PipelineOptions& options);
+std::vector<PointComfort> evaluate_scene_comfort(const SolvedScene& solved,
+                                                 const std::vector<ComfortPoint>& points,
+                                                 const std::vector<PointFactors>& factors);
 
 }  // namespace hearthray

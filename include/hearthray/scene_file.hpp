@@ -19,6 +19,9 @@
 //                   (otherwise a solve refuses such a surface as flipped)
 //   [comfort]   air_temperature, air_speed, rays, [comfort.point.NAME], [comfort.grid]
 //               (see comfort_input.hpp)
+//   [room_air]  ventilation, outside, gains, volume, density, heat_capacity: the room air's
+//               temperature solved from its heat balance, with fluid = "room_air" in
+//               convection (see room_air.hpp)
 //   [gas]       a radiating combustion gas in zones: cells, properties, temperature or flow,
 //               [gas.firing] (see gas_input.hpp)
 #pragma once
@@ -34,6 +37,7 @@
 #include "hearthray/firing_input.hpp"
 #include "hearthray/gas_input.hpp"
 #include "hearthray/patches.hpp"
+#include "hearthray/room_air.hpp"
 #include "hearthray/scene.hpp"
 #include "hearthray/view_factors.hpp"  // EmissionSampler
 
@@ -69,9 +73,10 @@ struct SceneFile {
   std::optional<double> surroundings_K;
   SurfaceSpec defaults;
   std::vector<std::pair<std::string, SurfaceSpec>> surfaces;  // in file order
-  std::optional<ComfortInput> comfort;  // [comfort]: points and air for the comfort figures
-  std::optional<GasInput> gas;          // [gas]: the radiating gas filling the enclosure
-  std::optional<FiringInput> firing;    // [firing]: a schedule over time (hearthray fire)
+  std::optional<ComfortInput> comfort;   // [comfort]: points and air for the comfort figures
+  std::optional<GasInput> gas;           // [gas]: the radiating gas filling the enclosure
+  std::optional<FiringInput> firing;     // [firing]: a schedule over time (hearthray fire)
+  std::optional<RoomAirInput> room_air;  // [room_air]: the air temperature solved
 
   const SurfaceSpec* find(const std::string& name) const;
   bool has_thermal_input() const;  // any emissivity or condition given

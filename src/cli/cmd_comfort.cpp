@@ -69,7 +69,9 @@ int run_comfort(const std::string& input, const ComfortArgs& args, ComfortRun* o
 
 void print_report(std::ostream& out, const ComfortRun& r) {
   const ComfortInput& in = *r.solved.file.comfort;
-  out << "air " << rounded("%.1f C", in.air_K - kZeroCelsius) << ", "
+  const std::optional<RoomAirResult>& air = r.solved.room_air;
+  out << "air " << rounded("%.1f C", (air ? air->air_K : in.air_K) - kZeroCelsius)
+      << (air ? " (solved from the room's heat balance)" : "") << ", "
       << rounded("%.2g m/s", in.air_speed) << "; " << in.rays
       << " rays per point for the body and for each of six planes, seed " << r.solved.run.seed
       << "\n";

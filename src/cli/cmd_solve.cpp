@@ -6,12 +6,14 @@
 #include <iostream>
 
 #include "commands.hpp"
+#include "core/text.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/patch_geometry.hpp"
 #include "hearthray/render.hpp"
 #include "hearthray/thermal_model.hpp"
 #include "hearthray/thermal_report.hpp"
 #include "hearthray/tracer.hpp"
+#include "hearthray/units.hpp"
 #include "hearthray/version.hpp"
 #include "hearthray/vtu.hpp"
 
@@ -124,6 +126,17 @@ void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved, UnitS
   }
 }
 
+// The solved room air ([room_air]): its temperature and what flows through it (SI).
+void print_room_air(std::ostream& out, const RoomAirResult& a) {
+  out << "\nroom air: " << rounded("%.2f C", a.air_K - kZeroCelsius) << " (solved"
+      << (a.converged ? "" : ", NOT CONVERGED") << ", " << a.iterations
+      << " exchange solves): convection from the surfaces " << rounded("%.1f W", a.convection_W)
+      << " + gains " << rounded("%.1f W", a.gains_W) << " = ventilation "
+      << rounded("%.1f W", a.ventilation_W) << " (" << rounded("%.3g m3/h", a.flow_m3_s * 3600)
+      << (a.volume_m3 > 0 ? " of a " + rounded("%.3g m3", a.volume_m3) + " room" : "")
+      << "), residual " << rounded("%.2g W", a.residual_W) << "\n";
+}
+
 }  // namespace
 
 int run_solve_command(const SolveArgs& args) {
@@ -150,6 +163,7 @@ int run_solve_command(const SolveArgs& args) {
   if (!args.rays.quiet || args.output_dir.empty()) {
     print_solve_table(std::cout, surface_heat(model, result), heat_balance(model, result), result,
                       outer_cases(model, result, model_height(run.scene)), units);
+    if (solved.room_air) print_room_air(std::cout, *solved.room_air);
   }
 
   if (!args.output_dir.empty()) write_solve_outputs(args, solved, units);

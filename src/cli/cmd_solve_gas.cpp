@@ -5,6 +5,7 @@
 #include <iostream>
 
 #include "commands.hpp"
+#include "hearthray/cache.hpp"
 #include "hearthray/gas_report.hpp"
 #include "hearthray/gas_run.hpp"
 #include "hearthray/thermal_report.hpp"
@@ -13,6 +14,21 @@
 #include "hearthray/vtu.hpp"
 
 namespace hearthray::cli {
+
+namespace {
+
+// The gas cache: --cache DIR, else the default folder; none with --no-cache.
+void use_gas_cache(const SolveArgs& args, const SceneFile& file, const PatchPlan& plan,
+                   GasRunOptions& options) {
+  if (args.no_cache) return;
+  options.cache_dir = args.cache_dir.empty() ? default_cache_dir() : args.cache_dir;
+  if (options.cache_dir.empty()) return;
+  options.mesh_bytes = read_mesh_bytes(file.mesh_path);
+  options.mesh = file.mesh;
+  options.patch_specs = plan.specs;
+}
+
+}  // namespace
 
 int run_gas_solve(const SolveArgs& args, const SceneFile& file) {
   namespace fs = std::filesystem;
@@ -28,6 +44,8 @@ int run_gas_solve(const SolveArgs& args, const SceneFile& file) {
   gas_options.seed = args.rays.seed.value_or(file.seed.value_or(kDefaultSeed));
   gas_options.rays_for_patch = plan.rays;
   gas_options.threads = args.rays.threads;
+  gas_options.force = args.rays.force;
+  use_gas_cache(args, file, plan, gas_options);
   if (file.surroundings_K) gas_options.surroundings_temperature = *file.surroundings_K;
   const GasRun run =
       run_gas(*file.gas, plan.scene, plan.patches, tracer,
@@ -43,6 +61,7 @@ int run_gas_solve(const SolveArgs& args, const SceneFile& file) {
     std::cout << "\n";
     print_gas_table(std::cout, run);
     std::cout << kEngineeringCaution << "\n";
+    std::cout << run.cache_note << "\n";
   }
   if (!args.output_dir.empty()) {
     const fs::path dir = make_output_dir(args.output_dir);

@@ -107,15 +107,6 @@ void finish_run(const PipelineOptions& options, const Reporter& reporter, Factor
       smooth_view_factors(run->patches, run->tallies, options.smoothing, &run->smoothing);
 }
 
-// The bytes of the mesh file, for the cache key.
-std::string mesh_bytes(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) throw InputError("cannot read the mesh file '" + path + "' to hash it");
-  std::string bytes((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
-  if (in.bad()) throw InputError("error reading the mesh file '" + path + "'");
-  return bytes;
-}
-
 // Tallies from the cache folder `dir`, else traced and stored there.
 FactorRun cached_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options,
                      const std::string& dir, const Reporter& reporter) {
@@ -127,7 +118,7 @@ FactorRun cached_run(const SceneFile& file, const Scene& scene, const PipelineOp
   key_settings.sampler = run.sampler;
   key_settings.smoothed = options.smooth;
   const TallyCacheKey key =
-      tally_cache_key(mesh_bytes(file.mesh_path), file.mesh, scene, key_settings);
+      tally_cache_key(read_mesh_bytes(file.mesh_path), file.mesh, scene, key_settings);
   reporter.start(PipelineStage::read_cache);
   CachedTallies cached = load_cached_tallies(dir, key, run.scene, run.patches, run.rays);
   std::vector<Warning> cache_warnings;
