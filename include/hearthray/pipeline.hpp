@@ -67,6 +67,7 @@ struct PipelineOptions {
   // [rays] target_error, max_per_patch and time_limit. With a target, rays_per_patch (or the
   // file's per_patch) is the first round's rays.
   std::optional<double> target_error;
+  bool target_on_heat_flows = false;  // target_error is relative on the surfaces' heat flows
   std::optional<std::uint64_t> max_rays_per_patch;
   std::optional<double> time_limit_s;
   int threads = 0;         // threads of every stage; 0 = all cores
@@ -115,15 +116,43 @@ enum class CacheOutcome {
 // points of the next round's sequences and every round keeps whole nets. Rounds are decided on
 // the tallies only (deterministic); only the time limit depends on the clock: a round whose
 // predicted end (from the last round's time) is past it is not started.
-enum class TargetStop { reached, ray_cap, run_size, time_limit };
+//
+// A target on heat flows (target_on_heat_flows, "0.5 %") judges each round instead by the
+// standard errors of the surfaces' net radiative heat flows (HeatFlowErrors): met when, for
+// every surface k, error_k / max(|Q_k|, floor) <= the target, the floor being
+// kHeatFlowFloorShare of the largest |Q| of any surface. Only model_scene (solve, comfort,
+// fire) can judge it; run_view_factors refuses it (InputError).
+enum class TargetStop { reached, ray_cap, run_size, time_limit, not_solved };
 std::string to_string(TargetStop stop);  // "target reached", "ray cap", ...
 inline constexpr std::uint64_t kDefaultTargetFirstRays = 8192;
 inline constexpr std::uint64_t kDefaultTargetMaxRaysPerPatch = std::uint64_t(1) << 24;
 
+// The standard errors of the surfaces' net radiative heat flows that follow from the view
+// factors' standard errors (first-order: the spread of kHeatFlowSamples solves with the factors
+// perturbed as their sampling distribution says; see pipeline_heat_error.cpp and README,
+// "Heat flows to an error wanted").
+inline constexpr int kHeatFlowSamples = 32;
+// Flows below this share of the largest are judged against that share of it: a surface near
+// radiative balance (Q ~ 0) would otherwise ask for unlimited rays.
+inline constexpr double kHeatFlowFloorShare = 0.05;
+struct HeatFlowErrors {
+  bool judged = false;          // the exchange converged (and at least 2 perturbed solves did)
+  int samples = 0;              // perturbed solves that converged
+  double floor_W = 0;           // kHeatFlowFloorShare x the largest |net_W|
+  double largest_relative = 0;  // max over surfaces of error / max(|net_W|, floor_W)
+  std::size_t worst = 0;        // the surface with that largest relative error
+  std::vector<std::string> surfaces;        // per surface, as surface_heat lists them
+  std::vector<double> net_W;                // net radiation leaving, of the factors returned
+  std::vector<double> net_error_W;          // its standard error
+  std::vector<double> temperature_error_K;  // standard error of the mean temperature
+};
+
 struct RayTarget {
   bool used = false;
-  double error = 0;     // the largest standard error wanted
-  double achieved = 0;  // the largest standard error of the factors returned
+  bool heat_flows = false;  // relative on heat flows: error, achieved are fractions of the flows
+  HeatFlowErrors heat;      // heat_flows: those of the last round
+  double error = 0;         // the largest standard error wanted
+  double achieved = 0;      // the largest standard error of the factors returned
   TargetStop stop = TargetStop::reached;
   std::uint64_t max_rays_per_patch = kDefaultTargetMaxRaysPerPatch;
   double time_limit_s = 0;                // 0: none

@@ -101,8 +101,11 @@ PipelineOptions pipeline_options(const RaySettings& settings, const CacheChoice*
   if (settings.sampler)
     options.sampler =
         *settings.sampler == "sobol" ? EmissionSampler::sobol : EmissionSampler::stratified;
-  if (settings.target_error)
-    options.target_error = parse_target_error(*settings.target_error, "--target-error");
+  if (settings.target_error) {
+    const TargetError target = parse_target_error(*settings.target_error, "--target-error");
+    options.target_error = target.value;
+    options.target_on_heat_flows = target.heat_flows;
+  }
   options.max_rays_per_patch = settings.max_rays;
   if (settings.time_limit)
     options.time_limit_s = parse_time_limit(*settings.time_limit, "--time-limit");
@@ -170,13 +173,21 @@ std::string rays_list(const std::vector<std::uint64_t>& rays) {
   return join(items);
 }
 
+std::string target_errors(const RayTarget& t) {
+  if (!t.heat_flows)
+    return "largest standard error " + rounded("%.3g", t.achieved) + " (wanted " +
+           rounded("%.3g", t.error) + ")";
+  if (!t.heat.judged) return "heat-flow errors unknown";
+  return "largest standard error of a heat flow " + rounded("%.2g %%", 100 * t.achieved) + " ('" +
+         t.heat.surfaces[t.heat.worst] + "'; wanted " + rounded("%.2g %%", 100 * t.error) + ")";
+}
+
 }  // namespace
 
 std::string target_line(const FactorRun& run) {
   const RayTarget& t = run.target;
   if (!t.used) return "";
-  const std::string errors = "largest standard error " + rounded("%.3g", t.achieved) + " (wanted " +
-                             rounded("%.3g", t.error) + ")";
+  const std::string errors = target_errors(t);
   std::string line = t.reached() ? "ray target: reached, " + errors + " with " +
                                        std::to_string(t.round_rays.back()) + " rays per patch"
                                  : "ray target NOT reached: " + errors + " with " +
@@ -226,6 +237,15 @@ FactorReportInfo report_info(const SceneFile& file, const FactorRun& run) {
   info.target.max_rays_per_patch = t.max_rays_per_patch;
   info.target.time_limit_s = t.time_limit_s;
   info.target.rays_all_rounds = t.rays_all_rounds;
+  info.target.heat_flows = t.heat_flows;
+  if (t.heat_flows && t.heat.judged) {
+    info.target.heat_samples = t.heat.samples;
+    info.target.heat_floor_W = t.heat.floor_W;
+    info.target.surfaces = t.heat.surfaces;
+    info.target.net_W = t.heat.net_W;
+    info.target.net_error_W = t.heat.net_error_W;
+    info.target.temperature_error_K = t.heat.temperature_error_K;
+  }
   return info;
 }
 

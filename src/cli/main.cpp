@@ -49,7 +49,8 @@ void add_sampler_option(CLI::App* cmd, RaySettings& rays) {
 void add_target_options(CLI::App* cmd, RaySettings& rays) {
   cmd->add_option("--target-error", rays.target_error,
                   "Trace in rounds until every view factor's standard error is at most this "
-                  "(e.g. 0.001); --rays gives the first round (default " +
+                  "(e.g. 0.001), or with solve every surface's net heat flow is within this "
+                  "percentage (e.g. 0.5%); --rays gives the first round (default " +
                       std::to_string(hearthray::kDefaultTargetFirstRays) + ")");
   cmd->add_option("--max-rays", rays.max_rays,
                   "With --target-error: at most this many rays per patch (default " +

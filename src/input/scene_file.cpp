@@ -159,11 +159,13 @@ class Reader {
         text = str->get();
       else
         fail(n->source(),
-             "target_error in [rays] must be a number, like target_error = 0.001; "
-             "got " +
+             "target_error in [rays] must be a number, like target_error = 0.001, or a "
+             "percentage, like target_error = \"0.5 %\"; got " +
                  type_name(*n));
       try {
-        file->target_error = parse_target_error(text, "target_error in [rays]");
+        const TargetError target = parse_target_error(text, "target_error in [rays]");
+        file->target_error = target.value;
+        file->target_on_heat_flows = target.heat_flows;
       } catch (const InputError& e) {
         fail(n->source(), e.what());
       }

@@ -159,8 +159,9 @@ FactorRun cached_run(const SceneFile& file, const Scene& scene, const PipelineOp
 
 }  // namespace
 
-FactorRun factor_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options) {
-  if (options.target_error || file.target_error) return target_run(file, scene, options);
+FactorRun factor_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options,
+                     const HeatFlowJudge& judge) {
+  if (options.target_error || file.target_error) return target_run(file, scene, options, judge);
   if (options.max_rays_per_patch || options.time_limit_s)
     throw InputError(
         "a ray cap or a time limit limits the rounds of a target error: give the target too "

@@ -115,7 +115,15 @@ SolvedScene model_scene(SceneFile file, Scene scene, const PipelineOptions& opti
     s.file = std::move(file);
     // Thermal input checked before any ray is traced: a typo costs no tracing time.
     const ThermalInput thermal = thermal_input(s.file, scene);
-    s.run = pipeline_detail::factor_run(s.file, scene, options);
+    // A target on heat flows judges each round by a solve of its factors.
+    const pipeline_detail::HeatFlowJudge judge = [&](const FactorRun& run) {
+      try {
+        return pipeline_detail::heat_flow_errors(thermal, run, options);
+      } catch (const InputError& e) {
+        throw RefusedInput(e.what(), run.diagnostics.warnings);
+      }
+    };
+    s.run = pipeline_detail::factor_run(s.file, scene, options, judge);
     s.run.tallies = Tallies{};  // smoothed (and cached): the counts are no longer needed
     refuse_flipped(s);
     Reporter(options).start(PipelineStage::thermal_model);
