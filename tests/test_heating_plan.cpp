@@ -3,6 +3,7 @@
 // validation/test_heating_plan_validation.cpp.
 #include <catch2/catch.hpp>
 #include <cmath>
+#include <sstream>
 
 #include "hearthray/heating_plan.hpp"
 #include "hearthray/units.hpp"
@@ -119,4 +120,41 @@ TEST_CASE("size prints the power per layout, ranks them and writes the report",
   CHECK(run_cli("size " + scenes + "' -q", dir).status == 2);
   CHECK(run_cli("size " + scenes + "' --operative 20 --pmv -0.5,0.5 -q", dir).status == 2);
   CHECK(run_cli("size " + scenes + "' --pmv 0.5,-0.5 -q", dir).status == 2);
+  CHECK(run_cli("size " + scenes + "' --operative 20 --split evenly -q", dir).status == 2);
+}
+
+TEST_CASE("size --split: two panels shared for the least power, or kept in proportion",
+          "[heating_plan][cli]") {
+  // The heating room with a second panel on the north wall (validation/
+  // test_heating_plan_validation.cpp checks the split against a scan of the splits).
+  ScratchDir dir("size_split");
+  write_text(dir / "mesh.obj", box_obj(4, 3, 2.5));
+  write_text(dir / "two.toml", "[mesh]\nfile = \"mesh.obj\"\n" + heating_room_scene("400 W") +
+                                   "[surface.north]\npower = \"400 W\"\nemissivity = 0.95\n");
+  const std::string base =
+      "size '" + (dir / "two.toml").string() + "' --operative 21 --at chair --threads 1 -q -o '";
+  const CliResult least = run_cli(base + (dir / "least").string() + "'", dir);
+  const CliResult kept = run_cli(base + (dir / "kept").string() + "' --split proportional", dir);
+  INFO(least.out << kept.out);
+  REQUIRE(least.status == 0);
+  REQUIRE(kept.status == 0);
+  CHECK_THAT(least.out, Catch::Contains("split: least total power"));
+  CHECK_THAT(kept.out, !Catch::Contains("split:"));
+  // sizing.csv: power_W is the third column, split and proportional_power_W the 8th and 9th.
+  auto row = [&](const char* folder) {
+    std::istringstream csv(slurp(dir / folder / "sizing.csv"));
+    std::string header, line, cell;
+    std::getline(csv, header);
+    std::getline(csv, line);
+    std::vector<std::string> cells;
+    std::istringstream in(line);
+    while (std::getline(in, cell, ',')) cells.push_back(cell);
+    REQUIRE(cells.size() == 10);
+    return cells;
+  };
+  const auto l = row("least"), k = row("kept");
+  CHECK(l[7] == "least");
+  CHECK(k[7] == "proportional");
+  CHECK(std::stod(l[8]) == Approx(std::stod(k[2])).epsilon(1e-9));  // same proportional answer
+  CHECK(std::stod(l[2]) <= std::stod(k[2]) * (1 + 1e-9));           // never more power
 }

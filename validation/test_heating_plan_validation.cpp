@@ -10,6 +10,7 @@
 // about 1e-4 W at the slope here (about 0.015 K/W, 0.6 kW); we allow 1e-6 relative (6e-4 W),
 // far below any difference a wrong search would make. (Measured: 634.51276435 W against
 // 634.51276452 W by bisection, 6 solves against 34 full runs.)
+#include <algorithm>
 #include <catch2/catch.hpp>
 #include <cmath>
 
@@ -88,4 +89,57 @@ TEST_CASE("goal seek reproduces the power bisection finds on full runs",
     INFO("goal seek " << P << " W in " << solves << " solves, bisection " << reference << " W");
     CHECK(P == Approx(reference).epsilon(1e-6));
   }
+}
+
+// The least-power split (PowerSplit::least) against a scan: the same room with a second panel,
+// the north wall, beside the ceiling. For each ceiling share in a scan of 41 splits the
+// proportional goal seek (checked above against full runs) gives the least power along that
+// split and whether the comfort limits hold there; the split search must find a power no
+// higher than the best feasible split of the scan (within what the scan's spacing leaves,
+// 0.5 %), with the limits held. Our own invented case; the scan is the reference.
+TEST_CASE("least-power split is no worse than a scan of the splits of two panels",
+          "[validation][heating_plan]") {
+  ScratchDir dir("heating_plan_split");
+  // A colder design day (-15 C outside) and a wall panel that loses heat through the wall
+  // behind it: the ceiling is the cheaper heater until the warm-ceiling asymmetry limit (5 K)
+  // stops it, so the least split lies inside the scan, not at an end.
+  std::string scene =
+      heating_room_scene("400 W") + "[surface.north]\npower = \"400 W\"\nemissivity = 0.95\n";
+  for (std::size_t at; (at = scene.find("outside = \"0 C\"")) != std::string::npos;)
+    scene.replace(at, 15, "outside = \"-15 C\"");
+  const LoadedScene l = load_scene_text(dir, box_obj(4, 3, 2.5), scene);
+  HeatingTarget target;
+  target.kind = TargetKind::operative_points;  // the chair: 21 C operative
+  target.operative_K = kZeroCelsius + 21;
+  SolvedScene s = model_scene(l.file, l.scene, quiet_options());
+  solve_model_exchange(&s, quiet_options());
+  std::size_t roof = 0, north = 0;
+  for (std::size_t k = 0; k < s.model.surface_names.size(); ++k) {
+    if (s.model.surface_names[k] == "roof") roof = k;
+    if (s.model.surface_names[k] == "north") north = k;
+  }
+  double best_scan = INFINITY, best_share = NAN;
+  for (int i = 0; i <= 40; ++i) {
+    const double share = std::clamp(i / 40.0, 1e-3, 1 - 1e-3);  // a heater needs power > 0
+    SolvedScene trial = s;
+    trial.model.surface_conditions[roof].value = 1000 * share;
+    trial.model.surface_conditions[north].value = 1000 * (1 - share);
+    const HeatingPlan plan = plan_heating(&trial, target, quiet_options());
+    if (plan.reached && plan.limits_met && plan.power_W < best_scan)
+      best_scan = plan.power_W, best_share = share;
+  }
+  HeatingPlanOptions least;
+  least.split = PowerSplit::least;
+  SolvedScene t = s;
+  const HeatingPlan plan = plan_heating(&t, target, quiet_options(), least);
+  REQUIRE(plan.reached);
+  INFO("split search " << plan.power_W << " W (" << plan.heaters[0] << " " << plan.heater_power_W[0]
+                       << " W, " << plan.heaters[1] << " " << plan.heater_power_W[1] << " W; "
+                       << plan.split_note << "), scan " << best_scan << " W at ceiling share "
+                       << best_share << ", proportional " << plan.proportional_power_W << " W");
+  REQUIRE(std::isfinite(best_scan));
+  CHECK(plan.limits_met);
+  CHECK(plan.power_W <= best_scan * 1.005);
+  CHECK(plan.power_W <= plan.proportional_power_W * (1 + 1e-9));
+  CHECK(target_value(plan.points, target) == Approx(target.operative_K).margin(1e-5));
 }

@@ -1,10 +1,25 @@
 // Goal seek for radiant heating: the least heater power that brings a room to a comfort
 // target, and the comfort verdicts at that power.
 //
-// The heaters are the surfaces given a positive `power`. Their powers are scaled together,
-// keeping the layout's proportions (each panel keeps its share of the total), so the least
-// total power meeting the target is the smallest scale at which it is met: the target
-// quantity rises with the power, and the answer is the root of target(P) = wanted.
+// The heaters are the surfaces given a positive `power`. First their powers are scaled
+// together, keeping the layout's proportions (each panel keeps its share of the total): the
+// least total power meeting the target along those shares is the smallest scale at which it is
+// met (the target quantity rises with the power): the root of target(P) = wanted.
+//
+// Split (PowerSplit::least, the command line's default): then the shares themselves are
+// sought, for the least total power that meets the target with the comfort limits held:
+// radiant asymmetry at every point under its limit, the floor surface at most 29 C, and PMV at
+// most the band's top. The response of the target and of each limit's margin to each heater's
+// power is linearised by finite differences (one solve per heater, 2 % of the total power);
+// a linear program (core/linear_program.hpp, simplex) gives the least total power meeting the
+// linearised target and limits within a trust region around the current powers (50 % of the
+// total, halved after a round that does not help); along the new shares the target is met
+// exactly by the secant above; the round is kept when it lowers the power with the limits
+// met (or first meets them). The response being nearly linear, a few rounds settle it; the
+// answer is a local minimum of a nearly convex problem, checked in
+// validation/test_heating_plan_validation.cpp against a scan of the splits of two panels.
+// When no split meets the limits, the proportional answer is kept and the verdicts say which
+// limit fails. The floor's lower bound (19 C) is a verdict only: panels overhead barely move it.
 //
 // Method. View factors and the angle factors from the comfort points do not change with
 // power: both are traced once. Each trial power is then one solve of the small non-linear
@@ -82,9 +97,14 @@ std::vector<ComfortVerdict> comfort_verdicts(const Scene& scene,
                                              const std::vector<PointComfort>& points,
                                              const HeatingTarget& target);
 
+// How the power is shared between the heaters: in the scene's proportions, or the split of
+// least total power that holds the comfort limits (see above).
+enum class PowerSplit { proportional, least };
+
 struct HeatingPlanOptions {
   double max_power_factor = 10;  // search up to this times the scene's heater power
-  int max_solves = 60;
+  int max_solves = 60;           // per secant search
+  PowerSplit split = PowerSplit::proportional;
   bool IsValid(std::string* error) const;
 };
 
@@ -97,6 +117,10 @@ struct HeatingPlan {
   std::vector<double> heater_power_W;  // each at power_W
   double value = 0;                    // target_value at power_W
   int solves = 0;                      // exchange (+ air) solves, trial powers
+  PowerSplit split = PowerSplit::proportional;
+  double proportional_power_W = 0;  // the answer in the scene's proportions
+  bool limits_met = false;          // asymmetry, floor <= 29 C, PMV <= band top at power_W
+  std::string split_note;           // least: how the split search ended
   // The state at power_W.
   ExchangeResult result;
   std::optional<RoomAirResult> room_air;
@@ -115,6 +139,17 @@ HeatingPlan plan_heating(SolvedScene* scene, const HeatingTarget& target,
 // Sets the heaters of a modelled scene to `power_W` in total, in the scene's proportions, and
 // solves it (with the room air when it has [room_air]). Returns false when it did not converge.
 bool solve_at_power(SolvedScene* scene, double power_W, const PipelineOptions& options);
+// The same with each heater's power given (W, one per heater in scene order: the surfaces with
+// a positive power in the scene file).
+bool solve_at_heater_powers(SolvedScene* scene, const std::vector<double>& heater_power_W,
+                            const PipelineOptions& options);
+// The comfort limits' margins at a solved state, each <= 0 when its limit holds: per point the
+// vertical and the horizontal radiant asymmetry less their limits (K), PMV less the band's top
+// (PMV targets), per floor surface its highest temperature less 29 C (K).
+std::vector<double> comfort_margins(const Scene& scene, const std::vector<SurfaceHeat>& surfaces,
+                                    const std::vector<PointComfort>& points,
+                                    const HeatingTarget& target);
+std::string to_string(PowerSplit split);  // "proportional", "least"
 // The total power the scene file gives its heaters (surfaces with a positive power).
 double scene_heater_power(const SolvedScene& scene);
 

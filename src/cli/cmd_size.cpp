@@ -59,6 +59,9 @@ void print_plan(std::ostream& out, const std::string& name, const SizedLayout& l
       << join_at_most(each, 6) << "; the scene gives " << rounded("%.0f W", p.scene_power_W)
       << "), " << p.solves << " solves\n";
   if (!p.message.empty()) out << "  " << p.message << "\n";
+  if (p.split == PowerSplit::least && p.reached)
+    out << "  split: " << p.split_note << "; in the scene's proportions "
+        << rounded("%.0f W", p.proportional_power_W) << "\n";
   out << "  " << state_line(l) << "\n";
   for (const ComfortVerdict& v : p.verdicts)
     out << "  ["
@@ -103,7 +106,10 @@ int run_size_command(const SizeArgs& args) {
     SolvedScene& s = layouts[k].scene;
     if (const int status = solve_scene_printing(args.inputs[k], args.rays, cache, true, &s))
       return status;
-    layouts[k].plan = plan_heating(&s, target, pipeline_options(args.rays));
+    HeatingPlanOptions plan_options;
+    plan_options.split =
+        args.split == "proportional" ? PowerSplit::proportional : PowerSplit::least;
+    layouts[k].plan = plan_heating(&s, target, pipeline_options(args.rays), plan_options);
     end_progress_line();
     layouts[k].cautions = comfort_cautions(s.run.scene, layouts[k].plan.surfaces);
   }

@@ -69,6 +69,7 @@ struct SizeArgs {
   std::optional<double> operative_C;  // --operative: target operative temperature (C)
   std::vector<std::string> at;        // --at: zone (default), points, or point names
   std::vector<double> pmv;            // --pmv low,high
+  std::string split = "least";        // --split: least | proportional (HeatingPlanOptions)
   RaySettings rays;                   // --threads, --quiet; rays and seed from the scenes
   std::string cache_dir;              // --cache; "" = default
   bool no_cache = false;

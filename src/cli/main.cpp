@@ -196,6 +196,11 @@ CLI::App* add_size_command(CLI::App& app, SizeArgs& a) {
   cmd->add_option("--pmv", a.pmv, "Target PMV band low,high, e.g. -0.5,0.5 (every point)")
       ->delimiter(',')
       ->expected(2);
+  cmd->add_option("--split", a.split,
+                  "How the power is shared between the panels: least (the split of least total "
+                  "power holding the comfort limits, default) or proportional (the scene's "
+                  "proportions)")
+      ->check(CLI::IsMember({"least", "proportional"}));
   cmd->add_option("-o,--output", a.output_dir, "Folder for the maps, sizing.csv and report.html");
   cmd->add_flag("-q,--quiet", a.rays.quiet, "No progress, notes or view-factor lines");
   cmd->add_flag("--force", a.rays.force,

@@ -166,9 +166,15 @@ std::vector<std::string> assumptions(const std::vector<SizedLayout>& layouts) {
   std::vector<std::string> a = {
       "Steady state at one design condition; surfaces gray, diffuse and opaque; view factors "
       "and angle factors by Monte Carlo ray tracing (standard errors in the tool's output).",
-      "The heaters' powers are scaled together: each panel keeps its share of the layout's "
-      "total. The least total power is the smallest that meets the target; other splits "
-      "between panels are not searched.",
+      layouts.front().plan.split == PowerSplit::least
+          ? "The split of the power between the panels is sought too: the least total power "
+            "that meets the target while holding the radiant asymmetry limits, the floor's "
+            "29 C and the PMV band's top, found by linear programs on the response to each "
+            "panel's power (a local optimum of a nearly linear problem). When no split holds "
+            "the limits, the scene's proportions are kept and the verdicts say what fails."
+          : "The heaters' powers are scaled together: each panel keeps its share of the "
+            "layout's total. The least total power is the smallest that meets the target; "
+            "other splits between panels are not searched.",
       std::string(kSizeMethod) + ".",
       "Limits and curves of ISO 7730:2005 and ASHRAE 55 as recalled from memory; check them "
       "against the printed standards before relying on them."};
@@ -224,14 +230,16 @@ std::vector<std::string> write_size_outputs(const fs::path& dir, const HeatingTa
   const auto maps = write_maps(dir, layouts, names, &files);
   {
     std::ofstream csv = open_output(dir / "sizing.csv");
-    csv << "layout,reached,power_W,scene_power_W,target_value,air_C,solves\n";
+    csv << "layout,reached,power_W,scene_power_W,target_value,air_C,solves,split,"
+           "proportional_power_W,limits_met\n";
     for (std::size_t k = 0; k < layouts.size(); ++k) {
       const HeatingPlan& p = layouts[k].plan;
       const double air = p.room_air ? p.room_air->air_K : layouts[k].scene.file.comfort->air_K;
       csv << names[k] << "," << (p.reached ? "yes" : "no") << "," << shortest(p.power_W) << ","
           << shortest(p.scene_power_W) << ","
           << shortest(target.kind == TargetKind::pmv_band ? p.value : p.value - kZeroCelsius) << ","
-          << shortest(air - kZeroCelsius) << "," << p.solves << "\n";
+          << shortest(air - kZeroCelsius) << "," << p.solves << "," << to_string(p.split) << ","
+          << shortest(p.proportional_power_W) << "," << (p.limits_met ? "yes" : "no") << "\n";
     }
   }
   files.push_back("sizing.csv");

@@ -18,10 +18,11 @@ struct SizedLayout {
 };
 
 inline constexpr const char* kSizeMethod =
-    "method: view factors and the comfort points' angle factors traced once; the heaters' "
-    "powers scaled together (each keeps its share) and the total found by the secant method, "
-    "each step one solve of the radiosity exchange (with the room air's balance where the "
-    "scene has [room_air]) and of the comfort figures, no ray traced again";
+    "method: view factors and the comfort points' angle factors traced once; the total power "
+    "found by the secant method with the heaters' shares fixed (the scene's, then, with "
+    "--split least, those of linear programs on the response to each heater's power), each "
+    "step one solve of the radiosity exchange (with the room air's balance where the scene "
+    "has [room_air]) and of the comfort figures, no ray traced again";
 
 // "air 19.6 C (solved: ventilation 231 W, gains 150 W); panels up to 61.2 C; t_o 20.4 to 21.6 C"
 std::string state_line(const SizedLayout& layout);

@@ -3,10 +3,12 @@
 
 #include <algorithm>
 #include <cmath>
+#include <numeric>
 
 #include "core/text.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/units.hpp"
+#include "pipeline/heating_split.hpp"
 #include "pipeline/pipeline_run.hpp"
 
 namespace hearthray {
@@ -150,17 +152,61 @@ double scene_heater_power(const SolvedScene& s) {
   return total;
 }
 
-bool solve_at_power(SolvedScene* s, double power_W, const PipelineOptions& options) {
-  const double scene_W = scene_heater_power(*s);
-  if (!(scene_W > 0)) throw InputError("the scene has no heater: no surface has a positive power");
+namespace {
+
+std::vector<std::size_t> heater_surfaces(const SolvedScene& s) {
+  std::vector<std::size_t> out;
+  for (std::size_t k = 0; k < s.model.surface_conditions.size(); ++k)
+    if (is_heater(s.model.surface_conditions[k])) out.push_back(k);
+  return out;
+}
+
+}  // namespace
+
+bool solve_at_heater_powers(SolvedScene* s, const std::vector<double>& heater_power_W,
+                            const PipelineOptions& options) {
+  const std::vector<std::size_t> heaters = heater_surfaces(*s);
+  if (heaters.empty()) throw InputError("the scene has no heater: no surface has a positive power");
+  if (heater_power_W.size() != heaters.size())
+    throw std::invalid_argument("solve_at_heater_powers: one power per heater");
+  std::vector<double> surface_W(s->model.surface_conditions.size(), 0.0);
+  for (std::size_t i = 0; i < heaters.size(); ++i) surface_W[heaters[i]] = heater_power_W[i];
   const std::vector<double> share = node_shares(s->model);
   for (std::size_t k = 0; k < s->model.nodes.size(); ++k) {
-    const NodeCondition& given = s->model.surface_conditions[s->model.node_surface[k]];
-    if (is_heater(given))
-      s->model.nodes[k].condition.value = given.value / scene_W * power_W * share[k];
+    const std::size_t surface = s->model.node_surface[k];
+    if (is_heater(s->model.surface_conditions[surface]))
+      s->model.nodes[k].condition.value = surface_W[surface] * share[k];
   }
   solve_model_exchange(s, options);
   return s->result.status == ExchangeStatus::converged;
+}
+
+bool solve_at_power(SolvedScene* s, double power_W, const PipelineOptions& options) {
+  const double scene_W = scene_heater_power(*s);
+  if (!(scene_W > 0)) throw InputError("the scene has no heater: no surface has a positive power");
+  std::vector<double> powers;
+  for (std::size_t k : heater_surfaces(*s))
+    powers.push_back(s->model.surface_conditions[k].value / scene_W * power_W);
+  return solve_at_heater_powers(s, powers, options);
+}
+
+std::vector<double> comfort_margins(const Scene& scene, const std::vector<SurfaceHeat>& surfaces,
+                                    const std::vector<PointComfort>& points,
+                                    const HeatingTarget& target) {
+  std::vector<double> m;
+  for (const PointComfort& p : points) {
+    m.push_back(p.vertical.delta_K - p.vertical.limit_K);
+    m.push_back(p.horizontal.delta_K - p.horizontal.limit_K);
+    if (target.kind == TargetKind::pmv_band && p.pmv) m.push_back(p.pmv->pmv - target.pmv_high);
+  }
+  for (std::size_t k : floor_surfaces(scene))
+    if (k < surfaces.size())
+      m.push_back(surfaces[k].temperature_max_K - (kFloorHigh_C + kZeroCelsius));
+  return m;
+}
+
+std::string to_string(PowerSplit split) {
+  return split == PowerSplit::least ? "least" : "proportional";
 }
 
 bool HeatingPlanOptions::IsValid(std::string* error) const {
@@ -168,6 +214,48 @@ bool HeatingPlanOptions::IsValid(std::string* error) const {
   if (error) *error = "HeatingPlanOptions: max_power_factor > 1 and max_solves >= 3 are needed";
   return false;
 }
+
+namespace {
+
+// The least-power split (PowerSplit::least) from the proportional answer `start`: solves and
+// comfort evaluations for pipeline_detail::least_power_split. Returns the powers per heater.
+std::vector<double> least_split(SolvedScene* s, const std::vector<ComfortPoint>& points,
+                                const std::vector<PointFactors>& factors,
+                                const HeatingTarget& target, const PipelineOptions& options,
+                                const HeatingPlanOptions& plan_options,
+                                const std::vector<double>& start, HeatingPlan* plan) {
+  pipeline_detail::SplitSearch search;
+  search.wanted = target_wanted(target);
+  search.evaluate = [&](const std::vector<double>& powers) {
+    pipeline_detail::SplitState state;
+    ++plan->solves;
+    if (!solve_at_heater_powers(s, powers, options)) return state;
+    const std::vector<PointComfort> comfort = evaluate_scene_comfort(*s, points, factors);
+    state.solved = true;
+    state.value = target_value(comfort, target);
+    state.margins =
+        comfort_margins(s->run.scene, surface_heat(s->model, s->result), comfort, target);
+    return state;
+  };
+  search.seek = [&](const std::vector<double>& shares, double guess, double* power) {
+    auto value = [&](double P, double* v) {
+      std::vector<double> powers(shares);
+      for (double& p : powers) p *= P;
+      ++plan->solves;
+      if (!solve_at_heater_powers(s, powers, options)) return false;
+      *v = target_value(evaluate_scene_comfort(*s, points, factors), target);
+      return true;
+    };
+    std::string why;
+    return seek_power(guess, plan_options.max_power_factor * plan->scene_power_W, search.wanted,
+                      plan_options.max_solves, value, power, &why);
+  };
+  const pipeline_detail::SplitAnswer answer = pipeline_detail::least_power_split(search, start);
+  plan->split_note = answer.note;
+  return answer.powers_W;
+}
+
+}  // namespace
 
 HeatingPlan plan_heating(SolvedScene* s, const HeatingTarget& target,
                          const PipelineOptions& options, const HeatingPlanOptions& plan_options) {
@@ -192,23 +280,36 @@ HeatingPlan plan_heating(SolvedScene* s, const HeatingTarget& target,
   plan.reached = seek_power(plan.scene_power_W, plan_options.max_power_factor * plan.scene_power_W,
                             wanted, plan_options.max_solves, value, &plan.power_W, &plan.message);
   if (plan.reached && plan.power_W == 0) plan.message = "the target is met with the heaters off";
+  plan.split = plan_options.split;
+  plan.proportional_power_W = plan.power_W;
+  std::vector<double> powers;  // per heater at the answer
+  for (std::size_t k : heater_surfaces(*s))
+    powers.push_back(s->model.surface_conditions[k].value / plan.scene_power_W * plan.power_W);
+  if (plan.reached && plan.power_W > 0 && plan_options.split == PowerSplit::least) {
+    powers = least_split(s, points, factors, target, options, plan_options, powers, &plan);
+    plan.power_W = std::accumulate(powers.begin(), powers.end(), 0.0);
+  }
   // The state at the answer (the search's last solve may have been elsewhere).
   if (plan.reached) {
     ++plan.solves;
-    solve_at_power(s, plan.power_W, options);
+    solve_at_heater_powers(s, powers, options);
   }
   plan.result = s->result;
   plan.room_air = s->room_air;
   plan.surfaces = surface_heat(s->model, s->result);
   plan.points = evaluate_scene_comfort(*s, points, factors);
   plan.value = target_value(plan.points, target);
-  for (std::size_t k = 0; k < s->model.surface_conditions.size(); ++k) {
-    if (!is_heater(s->model.surface_conditions[k])) continue;
-    plan.heaters.push_back(s->model.surface_names[k]);
-    plan.heater_power_W.push_back(s->model.surface_conditions[k].value / plan.scene_power_W *
-                                  plan.power_W);
+  const std::vector<std::size_t> heaters = heater_surfaces(*s);
+  for (std::size_t i = 0; i < heaters.size(); ++i) {
+    plan.heaters.push_back(s->model.surface_names[heaters[i]]);
+    plan.heater_power_W.push_back(plan.reached ? powers[i]
+                                               : s->model.surface_conditions[heaters[i]].value /
+                                                     plan.scene_power_W * plan.power_W);
   }
   plan.verdicts = comfort_verdicts(s->run.scene, plan.surfaces, plan.points, target);
+  const std::vector<double> margins =
+      comfort_margins(s->run.scene, plan.surfaces, plan.points, target);
+  plan.limits_met = std::all_of(margins.begin(), margins.end(), [](double m) { return m < 0; });
   return plan;
 }
 
