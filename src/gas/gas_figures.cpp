@@ -88,7 +88,7 @@ Picture zone_cut_picture(const GasRun& run, const Scene& scene, int across) {
     hi = std::max(hi, z.temperature - kZeroCelsius);
   }
   if (hi - lo < 1) lo -= 0.5, hi += 0.5;
-  const pictures::ColourBar bar{lo, hi, sequential_colour, false};
+  const pictures::ColourBar bar{lo, hi, sequential_colour, false, {}};
   Canvas measure(16, 16);
   const double bar_width = pictures::colour_bar_width(measure, bar, kFont);
   const double left = kPad, top = kTop;
