@@ -9,6 +9,7 @@
 
 #include "hearthray/units.hpp"
 #include "mesh/topology.hpp"
+#include "patches/clipped.hpp"
 #include "patches/regions.hpp"
 
 namespace hearthray::patch_layout {
@@ -126,31 +127,63 @@ std::pair<double, double> range_along(const Scene& scene, const Chart& chart, co
   return {lo, hi};
 }
 
-// A planar chart filling its bounding rectangle, taken along the direction of the longest
-// total run of parallel boundary edges, becomes a grid of near-square cells.
-bool try_rectangle(const Scene& scene, const std::vector<std::uint32_t>& weld, double size,
-                   const Vec3& normal, Chart* chart) {
-  std::vector<std::pair<Vec3, double>> classes;  // direction, total length
-  for (const auto& [d, length] : boundary_edges(scene, *chart, weld)) {
-    auto it = std::find_if(classes.begin(), classes.end(), [&](const auto& c) {
+// d or -d, whichever has its first clearly non-zero component positive.
+Vec3 canonical(const Vec3& d) {
+  for (double c : {d.x, d.y, d.z})
+    if (std::fabs(c) > 1e-9) return c < 0 ? d * -1.0 : d;
+  return d;
+}
+
+// Whether direction a comes before b (both canonical): by x, then y, then z, each clearly.
+bool before(const Vec3& a, const Vec3& b) {
+  for (int k = 0; k < 3; ++k)
+    if (std::fabs(a[k] - b[k]) > 1e-9) return a[k] > b[k];
+  return false;
+}
+
+// The direction of the longest total run of parallel boundary edges: the classes' length-
+// weighted mean directions, ties (1e-9) going to the first by `before`, so that neither the
+// order of the edges nor cutting them (which keeps every class's directions and total length)
+// changes the choice. Zero when the chart has no boundary edge.
+Vec3 grid_direction(const Scene& scene, const Chart& chart,
+                    const std::vector<std::uint32_t>& weld) {
+  struct Class {
+    Vec3 first, sum;
+    double length = 0;
+  };
+  std::vector<Class> classes;
+  for (const auto& [d, length] : boundary_edges(scene, chart, weld)) {
+    auto it = std::find_if(classes.begin(), classes.end(), [&](const Class& c) {
       return std::fabs(dot(c.first, d)) >= 1 - kParallel;
     });
-    if (it == classes.end()) {
-      classes.push_back({d, length});
-    } else {
-      it->second += length;
-    }
+    if (it == classes.end()) it = classes.insert(classes.end(), Class{d, Vec3{}, 0});
+    it->sum += (dot(it->first, d) < 0 ? d * -1.0 : d) * length;
+    it->length += length;
   }
-  if (classes.empty()) return false;
-  auto longest = classes.begin();
-  for (auto it = classes.begin(); it != classes.end(); ++it)
-    if (it->second > longest->second * (1 + 1e-9)) longest = it;
-  const Vec3 u = longest->first, v = normalized(cross(normal, u));
+  Vec3 best;
+  double best_length = 0;
+  for (const Class& c : classes) {
+    const Vec3 d = canonical(normalized(c.sum));
+    if (c.length > best_length * (1 + 1e-9) ||
+        (c.length >= best_length * (1 - 1e-9) && before(d, best)))
+      best = d, best_length = c.length;
+  }
+  return best;
+}
+
+// A planar chart becomes a grid of near-square cells over its bounding rectangle, taken along
+// grid_direction: a rectangle when it fills that rectangle, else cells clipped to it. False
+// for a chart without boundary edges.
+bool lay_out_grid(const Scene& scene, const std::vector<std::uint32_t>& weld, double size,
+                  const Vec3& normal, Chart* chart) {
+  const Vec3 u = grid_direction(scene, *chart, weld);
+  if (!(norm(u) > 0.5)) return false;
+  const Vec3 v = normalized(cross(normal, u));
   const auto [u0, u1] = range_along(scene, *chart, u);
   const auto [v0, v1] = range_along(scene, *chart, v);
   const double box = (u1 - u0) * (v1 - v0);
-  if (!(std::fabs(box - chart->area) <= kRectangleArea * box)) return false;
-  chart->kind = ChartKind::rectangle;
+  const bool fills = std::fabs(box - chart->area) <= kRectangleArea * box;
+  chart->kind = fills ? ChartKind::rectangle : ChartKind::clipped;
   chart->u = u, chart->v = v, chart->u0 = u0, chart->v0 = v0;
   chart->nu = how_many((u1 - u0) / size);
   chart->nv = how_many((v1 - v0) / size);
@@ -305,7 +338,7 @@ void classify(const Scene& scene, const std::vector<std::uint32_t>& weld, double
   const bool planar =
       std::all_of(chart->triangles.begin(), chart->triangles.end(),
                   [&](std::uint32_t t) { return dot(scene.normal(t), normal) >= 1 - kParallel; });
-  if (planar ? try_rectangle(scene, weld, size, normal, chart)
+  if (planar ? lay_out_grid(scene, weld, size, normal, chart)
              : try_cylinder(scene, weld, size, chart))
     return;
   chart->kind = ChartKind::regions;
@@ -345,7 +378,7 @@ std::vector<Chart> lay_out(const Scene& scene, std::uint32_t surface, double siz
 std::vector<CutPlane> cut_planes(const Chart& chart) {
   std::vector<CutPlane> planes;
   const double tolerance = kOnPlane * chart.extent;
-  if (chart.kind == ChartKind::rectangle) {
+  if (chart.kind == ChartKind::rectangle || chart.kind == ChartKind::clipped) {
     for (int i = 1; i < chart.nu; ++i)
       planes.push_back({chart.u, chart.u0 + i * chart.du, tolerance});
     for (int j = 1; j < chart.nv; ++j)
@@ -376,6 +409,9 @@ std::vector<std::uint32_t> pieces(const Scene& scene, const Chart& chart,
         out[k] = cell(along, chart.band, chart.bands) * chart.sectors +
                  cell(around, chart.sector, chart.sectors);
       }
+      break;
+    case ChartKind::clipped:
+      out = clipped_cells(scene, chart, weld);
       break;
     case ChartKind::regions:
       if (chart.regions > 1) out = grow_regions(scene, chart, weld);
