@@ -141,42 +141,25 @@ Layout grid_cells(const Scene& base) {
 // The grouping before compact patches (one-sided surfaces): bisection to the patch size, then
 // the triangles of each surface grouped by the grid cell of their centroid.
 Layout centroid_grid(const Scene& base) {
-  Layout l;
-  l.scene = split_long_edges(base, std::vector<double>(base.surfaces.size(), kSize));
-  PatchSet& set = l.patches;
-  set.front_patch_of_triangle.assign(l.scene.triangles.size(), PatchSet::kNoPatch);
-  set.back_patch_of_triangle.assign(l.scene.triangles.size(), PatchSet::kNoPatch);
-  set.triangle_offset.push_back(0);
-  for (std::uint32_t s = 0; s < l.scene.surfaces.size(); ++s) {
-    const Surface& surface = l.scene.surfaces[s];
-    std::map<std::tuple<long, long, long>, std::vector<std::uint32_t>> cells;
-    std::vector<std::tuple<long, long, long>> order;
+  Scene scene = split_long_edges(base, std::vector<double>(base.surfaces.size(), kSize));
+  std::vector<std::vector<std::vector<std::uint32_t>>> by(scene.surfaces.size());
+  for (std::uint32_t s = 0; s < scene.surfaces.size(); ++s) {
+    const Surface& surface = scene.surfaces[s];
+    std::map<std::tuple<long, long, long>, std::size_t> cell_group;
     for (std::uint32_t t = surface.first_triangle;
          t < surface.first_triangle + surface.triangle_count; ++t) {
-      const Triangle& tri = l.scene.triangles[t];
+      const Triangle& tri = scene.triangles[t];
       const Vec3 c =
-          (l.scene.vertices[tri.v[0]] + l.scene.vertices[tri.v[1]] + l.scene.vertices[tri.v[2]]) /
+          (scene.vertices[tri.v[0]] + scene.vertices[tri.v[1]] + scene.vertices[tri.v[2]]) /
           (3.0 * kSize);
       const auto key = std::make_tuple(std::lround(std::floor(c.x)), std::lround(std::floor(c.y)),
                                        std::lround(std::floor(c.z)));
-      if (cells[key].empty()) order.push_back(key);
-      cells[key].push_back(t);
-    }
-    for (const auto& key : order) {
-      Patch patch;
-      patch.surface = s;
-      patch.piece = static_cast<std::uint32_t>(set.patches.size());
-      patch.name = surface.name + "#" + std::to_string(patch.piece);
-      for (std::uint32_t t : cells[key]) {
-        patch.area += l.scene.triangle_area(t);
-        set.triangle_index.push_back(t);
-        set.front_patch_of_triangle[t] = static_cast<std::uint32_t>(set.patches.size());
-      }
-      set.triangle_offset.push_back(static_cast<std::uint32_t>(set.triangle_index.size()));
-      set.patches.push_back(patch);
+      const auto [it, inserted] = cell_group.emplace(key, by[s].size());
+      if (inserted) by[s].emplace_back();
+      by[s][it->second].push_back(t);
     }
   }
-  return l;
+  return from_groups(std::move(scene), by);
 }
 
 std::vector<std::uint32_t> triangles_of(const Layout& l, std::size_t p) {

@@ -11,15 +11,6 @@ namespace hearthray::patch_layout {
 
 namespace {
 
-struct Sets {
-  std::vector<std::uint32_t> parent;
-  explicit Sets(std::size_t n) : parent(n) { std::iota(parent.begin(), parent.end(), 0u); }
-  std::uint32_t find(std::uint32_t a) {
-    while (parent[a] != a) a = parent[a] = parent[parent[a]];
-    return a;
-  }
-};
-
 // Area, first moments and polar moment about the origin of a plane figure, in the chart's
 // (u, v) coordinates; they add up over the parts of a figure.
 struct Moments {
@@ -88,12 +79,10 @@ std::vector<std::uint32_t> cell_pieces(const Scene& scene, const Chart& chart,
     cell[k] = cell_of(dot(c, chart.v) - chart.v0, chart.dv, chart.nv) * std::uint64_t(chart.nu) +
               cell_of(dot(c, chart.u) - chart.u0, chart.du, chart.nu);
   }
-  Sets sets(n);
-  for (const Edge& e : edges) {
-    if (e.users.size() != 2 || cell[e.users[0]] != cell[e.users[1]]) continue;
-    const std::uint32_t a = sets.find(e.users[0]), b = sets.find(e.users[1]);
-    sets.parent[std::max(a, b)] = std::min(a, b);
-  }
+  UnionFind sets(n);
+  for (const Edge& e : edges)
+    if (e.users.size() == 2 && cell[e.users[0]] == cell[e.users[1]])
+      sets.unite(e.users[0], e.users[1]);
   std::unordered_map<std::uint32_t, std::uint32_t> number;
   std::vector<std::uint32_t> piece(n);
   for (std::uint32_t k = 0; k < n; ++k)
@@ -123,7 +112,7 @@ std::vector<std::uint32_t> clipped_cells(const Scene& scene, const Chart& chart,
   std::iota(order.begin(), order.end(), 0u);
   std::stable_sort(order.begin(), order.end(),
                    [&](std::uint32_t a, std::uint32_t b) { return group[a].area < group[b].area; });
-  Sets groups(m);
+  UnionFind groups(m);
   std::vector<std::vector<std::uint32_t>> members(m);
   for (std::uint32_t p = 0; p < m; ++p) members[p] = {p};
   for (std::uint32_t p : order) {

@@ -40,19 +40,6 @@ int how_many(double x) {
   return !(n > 1) ? 1 : static_cast<int>(std::min(n, double(kMaxCount)));
 }
 
-struct UnionFind {
-  std::vector<std::uint32_t> parent;
-  explicit UnionFind(std::size_t n) : parent(n) { std::iota(parent.begin(), parent.end(), 0u); }
-  std::uint32_t find(std::uint32_t a) {
-    while (parent[a] != a) a = parent[a] = parent[parent[a]];
-    return a;
-  }
-  void unite(std::uint32_t a, std::uint32_t b) {
-    a = find(a), b = find(b);
-    if (a != b) parent[std::max(a, b)] = std::min(a, b);
-  }
-};
-
 // Welded edge -> the triangles (of `triangles`) using it, in order.
 std::unordered_map<std::uint64_t, std::vector<std::uint32_t>> edge_users(
     const Scene& scene, const std::vector<std::uint32_t>& triangles,

@@ -26,7 +26,9 @@
 // patches on any machine and thread count.
 #pragma once
 
+#include <algorithm>
 #include <cstdint>
+#include <numeric>
 #include <vector>
 
 #include "hearthray/scene.hpp"
@@ -53,6 +55,20 @@ struct Chart {
   int bands = 1, sectors = 1;
   // regions
   int regions = 1;
+};
+
+// Disjoint sets of 0 .. n - 1; unite keeps the lower root.
+struct UnionFind {
+  std::vector<std::uint32_t> parent;
+  explicit UnionFind(std::size_t n) : parent(n) { std::iota(parent.begin(), parent.end(), 0u); }
+  std::uint32_t find(std::uint32_t a) {
+    while (parent[a] != a) a = parent[a] = parent[parent[a]];
+    return a;
+  }
+  void unite(std::uint32_t a, std::uint32_t b) {
+    a = find(a), b = find(b);
+    if (a != b) parent[std::max(a, b)] = std::min(a, b);
+  }
 };
 
 // Weld ids (vertices at exactly the same position share one) and the key of a welded edge.
