@@ -229,6 +229,47 @@ TEST_CASE("a cylinder is cut into bands of one height and sectors of whole facet
   CHECK(quarters == 8);
 }
 
+TEST_CASE("a cylinder whose facets do not split into the sectors asked for gets equal sectors",
+          "[patches]") {
+  // Radius 0.25 m, 20 facets (apothem 0.25 cos 9 deg = 0.2469 m), patches of 0.25 m:
+  // round(2 pi 0.2469 / 0.25) = round(6.2) = 6 sectors would hold 3 or 4 facets; 5, the
+  // divisor of 20 nearest 6.2, holds 4 each: 4 bands x 5 sectors of one area.
+  const Scene cyl = load_obj_text(cylinder_obj(0.25, 1.0, 20), "cylinder");
+  const std::vector<PatchSpec> specs(cyl.surfaces.size(), {PatchSpec::Mode::size, 0.25});
+  const Cut c = cut(cyl, specs);
+  check_partition(c);
+  const std::uint32_t side = std::uint32_t(c.scene.find_surface("side"));
+  int count = 0;
+  for (const Patch& p : c.patches.patches) {
+    if (p.surface != side) continue;
+    ++count;
+    CHECK(p.area == Approx(c.scene.surfaces[side].area / 20).epsilon(1e-9));
+  }
+  CHECK(count == 20);
+}
+
+TEST_CASE("the caps of a thin post join the bands they close", "[patches]") {
+  // A post of radius 0.05 m and height 0.5 m, side and caps one surface, patches of 0.25 m:
+  // round(0.5 / 0.25) = 2 bands of one sector (round(2 pi 0.048 / 0.25) = 1); each cap
+  // (0.0075 m^2) is under a quarter of a patch (0.0156 m^2) and joins the band it touches:
+  // two patches, each half the side and one cap, the lower reaching from z = 0 to 0.25 m.
+  std::string obj = cylinder_obj(0.05, 0.5, 12);
+  obj.erase(obj.find("g caps\n"), 7);
+  const Scene post = load_obj_text(obj, "post");
+  REQUIRE(post.surfaces.size() == 1);
+  const std::vector<PatchSpec> specs{{PatchSpec::Mode::size, 0.25}};
+  const Cut c = cut(post, specs);
+  check_partition(c);
+  REQUIRE(c.patches.size() == 2);
+  const double cap = 0.5 * 12 * 0.05 * 0.05 * std::sin(2 * kPi / 12);  // a regular 12-gon
+  const double side = c.scene.surfaces[0].area - 2 * cap;
+  for (std::size_t p = 0; p < 2; ++p) {
+    CHECK(c.patches.patches[p].area == Approx(side / 2 + cap).epsilon(1e-9));
+    const auto [z0, z1] = patch_range(c, p, {0, 0, 1});
+    CHECK(z1 - z0 == Approx(0.25).epsilon(1e-9));
+  }
+}
+
 // Checks that every patch of surface s is connected over shared edges and compact: its polar
 // moment about its centroid over its area squared, I / A^2, is 1 / 6 for a square and
 // 1 / (2 pi) for a disc; a 4 : 1 strip has 0.35. Every region must be under 0.3. Returns the

@@ -258,6 +258,22 @@ std::vector<double> facet_angles(const Scene& scene, const Chart& chart) {
   return facets;
 }
 
+// Sectors of whole facets are equal only when their count divides the facets': the divisor
+// of `facets` nearest to `wanted` (by ratio; ties: the larger), when within 1.5 times it, else
+// how_many(wanted) (unequal sectors, rather than patches far from the size asked for).
+int sector_count(double wanted, std::size_t facets) {
+  const int plain = how_many(wanted);
+  if (facets == 0 || facets % std::size_t(plain) == 0) return plain;
+  int best = plain;
+  double best_ratio = 1.5 * (1 + 1e-9);
+  for (std::size_t d = 1; d <= facets && d <= std::size_t(kMaxCount); ++d) {
+    if (facets % d != 0) continue;
+    const double ratio = std::max(double(d) / wanted, wanted / double(d));
+    if (ratio <= best_ratio) best = int(d), best_ratio = ratio;
+  }
+  return best;
+}
+
 // Sectors around the axis: a closed cylinder (no boundary edge along the axis) from the facet
 // corner nearest the zero angle; an open one from the start of its arc.
 void lay_out_sectors(const Scene& scene, const std::vector<std::uint32_t>& weld, double size,
@@ -279,7 +295,7 @@ void lay_out_sectors(const Scene& scene, const std::vector<std::uint32_t>& weld,
     arc = span + step;
     chart->theta0 = wrap_angle(f[after] - 0.5 * step);
   }
-  chart->sectors = how_many(arc * radius / size);
+  chart->sectors = sector_count(arc * radius / size, f.size());
   chart->sector = arc / chart->sectors;
 }
 

@@ -8,18 +8,22 @@
 //  - clipped: any other planar chart (a wall with a door or window cut out, an L, a disc): the
 //    same grid over its bounding rectangle, taken the same way, cut along the grid lines; each
 //    cell's part of the chart (each edge-connected part, where a hole splits a cell) is a
-//    patch, and one under half a cell's area joins the neighbour it shares the longest edge
-//    with (clipped.hpp);
+//    patch, and one under half a cell's area joins the neighbour that makes the most compact
+//    patch with it, unless all would make a long strip (clipped.hpp);
 //  - cylinder: a curved chart whose normals are all perpendicular to one axis and whose facets
 //    are tangent to one circle about it (within 2 % of its radius): bands of equal height along
 //    the axis (cut by `subdivide` along planes across the axis) and sectors around it, whole
 //    facets going to the sector their normal points into, so sector edges follow facet edges;
+//    the sector count is the divisor of the facet count nearest the size's (within 1.5 times),
+//    so sectors are equal;
 //  - regions: any other chart (curved, not a cylinder): round(area / size^2)
 //    compact regions grown over its triangles from seeds spread by farthest-point sampling and
 //    moved to their regions' centres (Lloyd's iteration on the triangle graph); `subdivide`
 //    first splits its triangles to half the size;
-//  - small: a chart under a quarter of a patch's area stays whole and joins the other small
-//    charts of its surface on a grid of the patch size.
+//  - small: a chart under a quarter of a patch's area stays whole and joins the piece of a
+//    larger chart of its surface it shares the longest edge with (a post's cap, the band it
+//    closes); one touching no larger chart shares a cell of a grid of the patch size with the
+//    other such charts of its surface (patches.cpp).
 // The layout depends only on what cutting leaves unchanged (triangle normals, areas, extents,
 // the boundary's directions), so the layout of the cut mesh is the layout the cuts came from.
 // Everything here is sequential and ordered by triangle index: the same mesh gives the same
