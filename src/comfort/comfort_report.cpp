@@ -28,7 +28,7 @@ std::string pad(const std::string& s, std::size_t w) {
 }
 
 std::string name_pad(const std::string& s, std::size_t w) {
-  return s.size() >= w ? s + " " : s + std::string(w - s.size(), ' ');
+  return s.size() > w ? s + " " : s + std::string(w - s.size(), ' ');
 }
 
 std::string celsius(double K) {
