@@ -210,6 +210,15 @@ TallyCacheKey tally_cache_key(const std::string& mesh_bytes, const MeshOptions& 
     h.u64(static_cast<std::uint64_t>(spec.mode));
     h.real(spec.size);
   }
+  h.u64(settings.panels.size());
+  for (const PanelPlacement& p : settings.panels) {
+    h.text(p.name);
+    h.text(p.host);
+    for (const double v : {p.centre.x, p.centre.y, p.centre.z, p.length, p.width}) h.real(v);
+    h.u64(p.along ? 1 : 0);
+    if (p.along)
+      for (const double v : {p.along->x, p.along->y, p.along->z}) h.real(v);
+  }
   h.u64(settings.rays.size());
   for (std::uint64_t n : settings.rays) h.u64(n);
   h.u64(settings.seed);
