@@ -179,15 +179,20 @@ TEST_CASE("gas exchange input is checked", "[gas]") {
   CHECK_THROWS_AS(trace_gas_exchange(cube, patches, tracer, {1, 1, 1}, {-1.0}, options),
                   InputError);
   CHECK_THROWS_AS(trace_gas_exchange(cube, patches, tracer, {0, 1, 1}, {1.0}, options), InputError);
-  options.max_rows = 10;
+  // A run estimated past the memory limit is refused with the estimate, unless forced.
+  options.memory_limit_bytes = 1000;
+  options.rays_per_patch = options.rays_per_cell = 100;
   CHECK_THROWS_WITH(trace_gas_exchange(cube, patches, tracer, {2, 2, 2}, {1.0}, options),
-                    Catch::Contains("dense limit"));
+                    Catch::Contains("of memory") && Catch::Contains("--force"));
+  options.force = true;
+  CHECK(trace_gas_exchange(cube, patches, tracer, {2, 2, 2}, {1.0}, options).zone_count() == 8);
+  options.force = false;
+  options.memory_limit_bytes = 0;
   // Fronts facing away from the gas: no point is found inside.
   const Scene outside = load_obj_text(box_with_load_obj(3, 2, 1.5, 1, 0.5, 0.5, 0.5), "x");
   const Scene load_only = keep_surfaces(outside, {"load"});
   const PatchSet lp = make_surface_patches(load_only);
   const Tracer lt(load_only);
-  options.max_rows = 2000;
   options.rays_per_cell = 100;
   options.rays_per_patch = 100;
   CHECK_THROWS_WITH(trace_gas_exchange(load_only, lp, lt, {1, 1, 1}, {1.0}, options),

@@ -1,7 +1,19 @@
-// Patches: conforming subdivision, grouping by size, per-triangle patches, ray budgets.
+// Patches: cutting surfaces for patches of a size (grids on rectangles, bands and sectors on
+// cylinders, compact regions elsewhere), per-triangle patches, ray budgets. The shapes are
+// checked against elementary geometry: a cell of an a x b rectangle cut into nu x nv equal
+// cells is a rectangle of (a / nu) x (b / nv); a band of a cylinder of height H cut into n
+// bands has height H / n (common practice, no source needed).
 #include <catch2/catch.hpp>
+#include <cmath>
+#include <functional>
+#include <map>
+#include <set>
+#include <sstream>
 
 #include "hearthray/patches.hpp"
+#include "hearthray/tracer.hpp"
+#include "hearthray/units.hpp"
+#include "hearthray/view_factors.hpp"
 #include "support/meshes.hpp"
 
 using namespace hearthray;
@@ -9,63 +21,305 @@ using namespace hearthray::testing;
 
 namespace {
 
-double longest_edge(const Scene& scene, std::uint32_t t) {
+std::string obj_vertex(const Vec3& p) {
+  std::ostringstream out;
+  out.precision(17);
+  out << "v " << p.x << " " << p.y << " " << p.z << "\n";
+  return out.str();
+}
+
+// A rectangle origin + s u + t v (s, t in [0, 1]) as a fan from an inner point to twelve
+// points on its edge at uneven spacing: an irregular triangulation, front along u x v.
+std::string fan_rectangle_obj(const Vec3& origin, const Vec3& u, const Vec3& v) {
+  const double edge[][2] = {{0, 0}, {0.31, 0}, {0.77, 0}, {1, 0}, {1, 0.18}, {1, 0.64},
+                            {1, 1}, {0.58, 1}, {0.12, 1}, {0, 1}, {0, 0.71}, {0, 0.22}};
+  std::string text = "g plate\n" + obj_vertex(origin + u * 0.37 + v * 0.41);
+  for (const auto& st : edge) text += obj_vertex(origin + u * st[0] + v * st[1]);
+  for (int k = 0; k < 12; ++k)
+    text += "f 1 " + std::to_string(2 + k) + " " + std::to_string(2 + (k + 1) % 12) + "\n";
+  return text;
+}
+
+// A closed cylinder about the z axis, radius r, height h, `segments` quads round, outward
+// normals, caps as one polygon each (the loader cuts them into triangles); surfaces "side"
+// and "caps".
+std::string cylinder_obj(double r, double h, int segments) {
+  std::string text;
+  for (int z = 0; z < 2; ++z)
+    for (int i = 0; i < segments; ++i) {
+      const double a = 2 * kPi * i / segments;
+      text += obj_vertex({r * std::cos(a), r * std::sin(a), z * h});
+    }
+  text += "g side\n";
+  for (int i = 0; i < segments; ++i) {
+    const int j = (i + 1) % segments;
+    text += "f " + std::to_string(1 + i) + " " + std::to_string(1 + j) + " " +
+            std::to_string(1 + segments + j) + " " + std::to_string(1 + segments + i) + "\n";
+  }
+  text += "g caps\nf";
+  for (int i = segments - 1; i >= 0; --i) text += " " + std::to_string(1 + i);
+  text += "\nf";
+  for (int i = 0; i < segments; ++i) text += " " + std::to_string(1 + segments + i);
+  return text + "\n";
+}
+
+Vec3 centroid(const Scene& scene, std::uint32_t t) {
   const Triangle& tri = scene.triangles[t];
-  double best = 0;
-  for (int k = 0; k < 3; ++k)
-    best = std::max(best, norm(scene.vertices[tri.v[k]] - scene.vertices[tri.v[(k + 1) % 3]]));
-  return best;
+  return (scene.vertices[tri.v[0]] + scene.vertices[tri.v[1]] + scene.vertices[tri.v[2]]) / 3.0;
+}
+
+struct Cut {
+  Scene scene;
+  PatchSet patches;
+};
+
+Cut cut(const Scene& scene, const std::vector<PatchSpec>& specs) {
+  Cut c;
+  c.scene = subdivide(scene, specs);
+  c.patches = make_patches(c.scene, specs);
+  return c;
+}
+
+// Every triangle of surfaces with a front belongs to exactly one front patch, the patch's
+// triangle list holds it once, and each surface's patch areas add up to the surface's area.
+void check_partition(const Cut& c) {
+  std::vector<int> listed(c.scene.triangles.size(), 0);
+  for (std::size_t p = 0; p < c.patches.size(); ++p) {
+    if (c.patches.patches[p].side != Side::front) continue;
+    for (std::uint32_t k = c.patches.triangle_offset[p]; k < c.patches.triangle_offset[p + 1];
+         ++k) {
+      const std::uint32_t t = c.patches.triangle_index[k];
+      ++listed[t];
+      CHECK(c.patches.front_patch_of_triangle[t] == p);
+    }
+  }
+  for (int n : listed) CHECK(n == 1);
+  for (std::uint32_t s = 0; s < c.scene.surfaces.size(); ++s) {
+    double area = 0;
+    for (const Patch& p : c.patches.patches)
+      if (p.surface == s && p.side == Side::front) area += p.area;
+    CHECK(area == Approx(c.scene.surfaces[s].area).epsilon(1e-12));
+  }
+}
+
+// The range of dot(d, x) over the vertices of patch p's triangles.
+std::pair<double, double> patch_range(const Cut& c, std::size_t p, const Vec3& d) {
+  double lo = INFINITY, hi = -INFINITY;
+  for (std::uint32_t k = c.patches.triangle_offset[p]; k < c.patches.triangle_offset[p + 1]; ++k)
+    for (std::uint32_t v : c.scene.triangles[c.patches.triangle_index[k]].v) {
+      lo = std::min(lo, dot(d, c.scene.vertices[v]));
+      hi = std::max(hi, dot(d, c.scene.vertices[v]));
+    }
+  return {lo, hi};
+}
+
+// Every patch of surface s is a rectangle along u and v of width a / nu and height b / nv: it
+// fills the box its triangles span along u and v, and the box has the cell's size.
+void check_cells(const Cut& c, std::uint32_t s, const Vec3& u, const Vec3& v, double a, double b,
+                 int nu, int nv) {
+  int cells = 0;
+  for (std::size_t p = 0; p < c.patches.size(); ++p) {
+    if (c.patches.patches[p].surface != s || c.patches.patches[p].side != Side::front) continue;
+    ++cells;
+    const auto [u0, u1] = patch_range(c, p, u);
+    const auto [v0, v1] = patch_range(c, p, v);
+    INFO("patch " << c.patches.patches[p].name);
+    CHECK(u1 - u0 == Approx(a / nu).epsilon(1e-9));
+    CHECK(v1 - v0 == Approx(b / nv).epsilon(1e-9));
+    CHECK(c.patches.patches[p].area == Approx((u1 - u0) * (v1 - v0)).epsilon(1e-9));
+  }
+  CHECK(cells == nu * nv);
 }
 
 }  // namespace
 
-TEST_CASE("subdivision splits long edges, keeps areas and stays conforming", "[patches]") {
+TEST_CASE("a cube's faces are cut along grids and the mesh stays closed", "[patches]") {
   const Scene cube = load_obj_text(unit_cube_obj(), "cube");
   REQUIRE(analyse_topology(cube).closed);
   std::vector<PatchSpec> specs(cube.surfaces.size(), {PatchSpec::Mode::size, 0.3});
-  specs[0] = {};  // the first face keeps its triangles unless a neighbour's split reaches it
-  const Scene fine = subdivide(cube, specs);
-  CHECK(fine.triangles.size() > cube.triangles.size() * 10);
-  for (std::uint32_t s = 1; s < fine.surfaces.size(); ++s) {
-    double area = 0;
-    const Surface& surface = fine.surfaces[s];
-    for (std::uint32_t t = surface.first_triangle;
-         t < surface.first_triangle + surface.triangle_count; ++t) {
-      CHECK(longest_edge(fine, t) <= 0.3 + 1e-12);
-      CHECK(fine.triangles[t].surface == s);
-      area += fine.triangle_area(t);
-    }
-    CHECK(area == Approx(1.0).epsilon(1e-12));
-    // Normals keep their direction: every piece faces the way its face did.
+  specs[0] = {};  // the first face stays whole; its neighbours' cuts add vertices to its edges
+  const Cut c = cut(cube, specs);
+  check_partition(c);
+  CHECK(c.patches.size() == 1 + 5 * 9);  // round(1 / 0.3) = 3 cells each way
+  for (std::uint32_t s = 1; s < c.scene.surfaces.size(); ++s) {
     const Vec3 n = cube.normal(cube.surfaces[s].first_triangle);
-    for (std::uint32_t t = surface.first_triangle;
-         t < surface.first_triangle + surface.triangle_count; ++t)
-      CHECK(dot(fine.normal(t), n) == Approx(1.0).margin(1e-12));
+    const Vec3 u = std::fabs(n.x) > 0.5 ? Vec3{0, 1, 0} : Vec3{1, 0, 0};
+    check_cells(c, s, u, cross(n, u), 1, 1, 3, 3);
+    for (std::uint32_t t = c.scene.surfaces[s].first_triangle;
+         t < c.scene.surfaces[s].first_triangle + c.scene.surfaces[s].triangle_count; ++t)
+      CHECK(dot(c.scene.normal(t), n) == Approx(1.0).margin(1e-12));
   }
   // Splitting an edge in every triangle that shares it leaves no T-junction: still closed.
-  const MeshTopology topology = analyse_topology(fine);
+  const MeshTopology topology = analyse_topology(c.scene);
   CHECK(topology.closed);
   CHECK(topology.boundary_edges == 0);
 }
 
-TEST_CASE("patches by size group triangles on a grid and keep the surface area", "[patches]") {
-  const Scene square = load_obj_text(parallel_rectangles_obj(1, 1, 1), "plates");
-  std::vector<PatchSpec> specs(square.surfaces.size(), {PatchSpec::Mode::size, 0.25});
-  const Scene fine = subdivide(square, specs);
-  const PatchSet patches = make_patches(fine, specs);
-  // A 1 x 1 m plate on a 0.25 m grid: 16 cells, each holding pieces whose centroids fall in it.
-  std::size_t lower = 0;
-  double area = 0;
-  for (const Patch& p : patches.patches)
-    if (p.surface == 0) ++lower, area += p.area;
-  CHECK(lower == 16);
-  CHECK(area == Approx(1.0).epsilon(1e-12));
-  CHECK(patches.patches[0].name == "lower#1");
-  // Every triangle belongs to exactly one front patch; one-sided: no back patch.
-  for (std::size_t t = 0; t < fine.triangles.size(); ++t) {
-    CHECK(patches.front_patch_of_triangle[t] != PatchSet::kNoPatch);
-    CHECK(patches.back_patch_of_triangle[t] == PatchSet::kNoPatch);
+TEST_CASE("cells of a tilted rectangle are equal rectangles along its edges", "[patches]") {
+  // 1.3 x 0.55 m, turned 30 degrees about z and tilted 20 degrees, triangulated as an uneven
+  // fan; patches of 0.25 m: round(5.2) = 5 by round(2.2) = 2 cells of 0.26 x 0.275 m.
+  const double a = 1.3, b = 0.55, turn = 30 * kPi / 180, tilt = 20 * kPi / 180;
+  const Vec3 u{std::cos(turn), std::sin(turn), 0};
+  const Vec3 v =
+      Vec3{-std::sin(turn) * std::cos(tilt), std::cos(turn) * std::cos(tilt), std::sin(tilt)};
+  const Scene plate = load_obj_text(fan_rectangle_obj({0.2, -0.1, 0.4}, u * a, v * b), "plate");
+  const std::vector<PatchSpec> specs{{PatchSpec::Mode::size, 0.25}};
+  const Cut c = cut(plate, specs);
+  check_partition(c);
+  check_cells(c, 0, u, v, a, b, 5, 2);
+  CHECK(c.patches.patches[0].name == "plate#1");
+}
+
+TEST_CASE("every face of a box gets its own grid of equal cells", "[patches]") {
+  const double a = 2, b = 3, h = 4;  // faces meshed as 3 x 3 quads; patches of 0.7 m
+  const Scene box = load_obj_text(box_obj(a, b, h, 3), "box");
+  const std::vector<PatchSpec> specs(box.surfaces.size(), {PatchSpec::Mode::size, 0.7});
+  const Cut c = cut(box, specs);
+  check_partition(c);
+  CHECK(analyse_topology(c.scene).closed);
+  const Vec3 x{1, 0, 0}, y{0, 1, 0}, z{0, 0, 1};
+  // round(2 / 0.7) = 3, round(3 / 0.7) = 4, round(4 / 0.7) = 6 cells along each edge.
+  check_cells(c, std::uint32_t(c.scene.find_surface("floor")), x, y, a, b, 3, 4);
+  check_cells(c, std::uint32_t(c.scene.find_surface("roof")), x, y, a, b, 3, 4);
+  check_cells(c, std::uint32_t(c.scene.find_surface("south")), x, z, a, h, 3, 6);
+  check_cells(c, std::uint32_t(c.scene.find_surface("west")), y, z, b, h, 4, 6);
+}
+
+TEST_CASE("a cylinder is cut into bands of one height and sectors of whole facets", "[patches]") {
+  // Radius 0.25 m, height 1 m, 24 facets; patches of 0.25 m: round(1 / 0.25) = 4 bands and
+  // round(2 pi 0.25 cos(7.5 deg) / 0.25) = round(6.23) = 6 sectors of 4 facets.
+  const int segments = 24;
+  const Scene cyl = load_obj_text(cylinder_obj(0.25, 1.0, segments), "cylinder");
+  const std::vector<PatchSpec> specs(cyl.surfaces.size(), {PatchSpec::Mode::size, 0.25});
+  const Cut c = cut(cyl, specs);
+  check_partition(c);
+  CHECK(analyse_topology(c.scene).closed);
+  const std::uint32_t side = std::uint32_t(c.scene.find_surface("side"));
+  int count = 0;
+  for (std::size_t p = 0; p < c.patches.size(); ++p) {
+    if (c.patches.patches[p].surface != side) continue;
+    ++count;
+    INFO("patch " << c.patches.patches[p].name);
+    const auto [z0, z1] = patch_range(c, p, {0, 0, 1});
+    CHECK(z1 - z0 == Approx(0.25).epsilon(1e-9));
+    CHECK(std::fabs(z0 / 0.25 - std::round(z0 / 0.25)) < 1e-9);
+    CHECK(c.patches.patches[p].area == Approx(c.scene.surfaces[side].area / 24).epsilon(1e-9));
+    // Whole facets: four distinct normal directions, each facet's whole band height.
+    std::set<long> facets;
+    for (std::uint32_t k = c.patches.triangle_offset[p]; k < c.patches.triangle_offset[p + 1];
+         ++k) {
+      const Vec3 n = c.scene.normal(c.patches.triangle_index[k]);
+      facets.insert(std::lround(std::atan2(n.y, n.x) / (2 * kPi / segments) * 2));
+    }
+    CHECK(facets.size() == 4);
   }
+  CHECK(count == 4 * 6);
+  // Caps: discs of 0.196 m^2 are round(0.196 / 0.0625) = 3 compact regions each.
+  const std::uint32_t caps = std::uint32_t(c.scene.find_surface("caps"));
+  int regions = 0;
+  for (const Patch& p : c.patches.patches) {
+    if (p.surface != caps) continue;
+    ++regions;
+    CHECK(p.area > 0.5 * c.scene.surfaces[caps].area / 6);
+  }
+  CHECK(regions == 6);
+}
+
+TEST_CASE("an irregular surface is grouped into connected compact regions", "[patches]") {
+  // A sphere of radius 1 (an icosphere of 320 triangles, area 12.3 m^2 against 4 pi for the
+  // sphere), patches of 0.5 m: round(12.3 / 0.25) = 49 regions. Each region is connected over
+  // shared edges, and compact: its polar moment about its centroid over its area squared, I / A^2,
+  // is 1 / 6 for a square and 1 / (2 pi) for a disc; a 4 : 1 strip has 0.35. Every region must be
+  // under 0.3.
+  const Scene sphere = load_obj_text(concentric_spheres_obj(1.0, 2.0, 2), "spheres");
+  std::vector<PatchSpec> specs(sphere.surfaces.size());
+  const std::uint32_t inner = std::uint32_t(sphere.find_surface("inner"));
+  specs[inner] = {PatchSpec::Mode::size, 0.5};
+  const Cut c = cut(sphere, specs);
+  check_partition(c);
+  CHECK(analyse_topology(c.scene).closed);
+  int count = 0;
+  for (std::size_t p = 0; p < c.patches.size(); ++p) {
+    if (c.patches.patches[p].surface != inner) continue;
+    ++count;
+    std::vector<std::uint32_t> tris(
+        c.patches.triangle_index.begin() + c.patches.triangle_offset[p],
+        c.patches.triangle_index.begin() + c.patches.triangle_offset[p + 1]);
+    Vec3 moment;
+    double area = 0;
+    for (std::uint32_t t : tris) {
+      const Vec3 m = centroid(c.scene, t);
+      moment += m * c.scene.triangle_area(t);
+      area += c.scene.triangle_area(t);
+    }
+    const Vec3 centre = moment / area;
+    double polar = 0;
+    for (std::uint32_t t : tris) {
+      const Vec3 m = centroid(c.scene, t);
+      polar += c.scene.triangle_area(t) * dot(m - centre, m - centre);
+    }
+    INFO("patch " << c.patches.patches[p].name << ", " << tris.size() << " triangles");
+    CHECK(polar / (area * area) < 0.3);
+    // Connected: a walk over shared vertex positions from the first triangle reaches all.
+    std::vector<bool> reached(tris.size(), false);
+    reached[0] = true;
+    for (bool grew = true; grew;) {
+      grew = false;
+      for (std::size_t i = 0; i < tris.size(); ++i) {
+        if (reached[i]) continue;
+        for (std::size_t j = 0; j < tris.size() && !reached[i]; ++j) {
+          if (!reached[j]) continue;
+          int shared = 0;
+          for (std::uint32_t a : c.scene.triangles[tris[i]].v)
+            for (std::uint32_t b : c.scene.triangles[tris[j]].v)
+              shared += c.scene.vertices[a] == c.scene.vertices[b];
+          if (shared >= 2) reached[i] = grew = true;
+        }
+      }
+    }
+    for (bool r : reached) CHECK(r);
+  }
+  CHECK(count == std::lround(c.scene.surfaces[inner].area / 0.25));
+  CHECK(count == 49);
+}
+
+TEST_CASE("patches and their tallies are the same for any thread count", "[patches]") {
+  // A cylinder inside a box: grids, bands and sectors, and regions on the caps; the layout is
+  // made twice, and the tallies traced on 1 and on 2 threads are identical to the last count.
+  const std::string obj = box_obj(1, 1, 1.2, 2), cyl = cylinder_obj(0.2, 0.6, 16);
+  const Scene box = load_obj_text(obj, "box");
+  std::string shifted;  // the cylinder moved into the box, its vertex numbers after the box's
+  std::istringstream in(cyl);
+  for (std::string line; std::getline(in, line);) {
+    if (line.rfind("f", 0) == 0) {
+      std::istringstream f(line.substr(1));
+      shifted += "f";
+      for (int i; f >> i;) shifted += " " + std::to_string(i + int(box.vertices.size()));
+      shifted += "\n";
+    } else if (line.rfind("v ", 0) == 0) {
+      double x, y, z;
+      std::istringstream(line.substr(2)) >> x >> y >> z;
+      shifted += obj_vertex({x + 0.5, y + 0.5, z + 0.3});
+    } else {
+      shifted += line + "\n";
+    }
+  }
+  const Scene scene = load_obj_text(obj + shifted, "box and cylinder");
+  const std::vector<PatchSpec> specs(scene.surfaces.size(), {PatchSpec::Mode::size, 0.3});
+  const Cut a = cut(scene, specs), b = cut(scene, specs);
+  check_partition(a);
+  CHECK(a.patches.triangle_index == b.patches.triangle_index);
+  CHECK(a.patches.triangle_offset == b.patches.triangle_offset);
+  const Tracer tracer(a.scene);
+  ViewFactorOptions options;
+  options.rays_per_patch = 2000;
+  options.seed = 11;
+  options.threads = 1;
+  const Tallies one = trace_tallies(a.scene, a.patches, tracer, options);
+  options.threads = 2;
+  const Tallies two = trace_tallies(a.scene, a.patches, tracer, options);
+  CHECK(one.hit_count == two.hit_count);
+  CHECK(one.hit_patch == two.hit_patch);
 }
 
 TEST_CASE("one patch per triangle, two-sided surfaces get both sides", "[patches]") {
@@ -77,6 +331,27 @@ TEST_CASE("one patch per triangle, two-sided surfaces get both sides", "[patches
   CHECK(patches.size() == n0 + 2 * n1);
   CHECK(patches.patches[n0].name == "upper#1 (front)");
   CHECK(patches.patches[n0 + n1].name == "upper#1 (back)");
+}
+
+TEST_CASE("longest-edge bisection keeps areas and stays conforming", "[patches]") {
+  const Scene cube = load_obj_text(unit_cube_obj(), "cube");
+  std::vector<double> limit(cube.surfaces.size(), 0.3);
+  limit[0] = INFINITY;
+  const Scene fine = split_long_edges(cube, limit);
+  CHECK(fine.triangles.size() > cube.triangles.size() * 10);
+  for (std::uint32_t s = 1; s < fine.surfaces.size(); ++s) {
+    double area = 0;
+    const Surface& surface = fine.surfaces[s];
+    for (std::uint32_t t = surface.first_triangle;
+         t < surface.first_triangle + surface.triangle_count; ++t) {
+      const Triangle& tri = fine.triangles[t];
+      for (int k = 0; k < 3; ++k)
+        CHECK(norm(fine.vertices[tri.v[k]] - fine.vertices[tri.v[(k + 1) % 3]]) <= 0.3 + 1e-12);
+      area += fine.triangle_area(t);
+    }
+    CHECK(area == Approx(1.0).epsilon(1e-12));
+  }
+  CHECK(analyse_topology(fine).closed);
 }
 
 TEST_CASE("a ray budget is spread by area with a floor", "[patches]") {

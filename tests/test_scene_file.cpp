@@ -225,8 +225,8 @@ TEST_CASE("unknown and misspelled keys are errors", "[scene_file]") {
   CHECK_THROWS_WITH(read("units = \"mm\"\n"),
                     Catch::Contains("scene.toml:3:") && Catch::Contains("'units' in [mesh]"));
   CHECK_THROWS_WITH(
-      read("[rays]\ntarget_error = 0.01\n"),
-      Catch::Contains("'target_error' in [rays]") && Catch::Contains("per_patch, seed"));
+      read("[rays]\ntarget_eror = 0.01\n"),
+      Catch::Contains("'target_eror' in [rays]") && Catch::Contains("did you mean 'target_error'"));
   CHECK_THROWS_WITH(
       read("[defaults]\ntwo_sided = true\n"),
       Catch::Contains("'two_sided' in [defaults]") && Catch::Contains("set per surface"));
@@ -346,11 +346,40 @@ TEST_CASE("bad patch and budget settings are errors saying what to write", "[sce
       {"[rays]\nper_patch = 1000\ntotal = 5000\n", "both per_patch and total"},
       {"[rays]\nmin_per_patch = 10\n", "goes with total"},
       {"[rays]\ntotal = 0\n", "positive"},
+      {"[rays]\ntarget_error = 0\n", "out of range"},
+      {"[rays]\ntarget_error = 0.7\n", "out of range"},
+      {"[rays]\ntarget_error = -0.001\n", "out of range"},
+      {"[rays]\ntarget_error = \"small\"\n", "not a plain number"},
+      {"[rays]\ntarget_error = \"0.5 %\"\n", "not available yet"},
+      {"[rays]\ntarget_error = true\n", "must be a number"},
+      {"[rays]\ntotal = 5000\ntarget_error = 0.01\n", "both total and target_error"},
+      {"[rays]\nmax_per_patch = 1000\n", "give target_error too"},
+      {"[rays]\ntime_limit = \"1 h\"\n", "give target_error too"},
+      {"[rays]\ntarget_error = 0.01\nmax_per_patch = 0\n", "positive"},
+      {"[rays]\ntarget_error = 0.01\ntime_limit = \"10\"\n", "has no unit"},
+      {"[rays]\ntarget_error = 0.01\ntime_limit = \"3 kW\"\n", "not a unit of time"},
+      {"[rays]\ntarget_error = 0.01\ntime_limit = \"0 s\"\n", "above zero"},
+      {"[rays]\ntarget_error = 0.01\ntime_limit = 600\n", "must be a string"},
   };
   for (const Case& c : cases) {
     INFO(c.body);
     CHECK_THROWS_WITH(read_scene_file(dir.scene(c.body)), Catch::Contains(c.expect));
   }
+}
+
+TEST_CASE("a target error and its caps are read from [rays]", "[scene_file]") {
+  SceneDir dir;
+  const SceneFile f = read_scene_file(
+      dir.scene("[rays]\nper_patch = 4096\ntarget_error = 0.001\nmax_per_patch = 4_000_000\n"
+                "time_limit = \"10 min\"\n"));
+  CHECK(f.rays_per_patch == std::uint64_t{4096});
+  CHECK(f.target_error == 0.001);
+  CHECK(f.target_max_per_patch == std::uint64_t{4000000});
+  CHECK(f.target_time_limit_s == 600.0);
+  CHECK(read_scene_file(dir.scene("[rays]\ntarget_error = \"0.002\"\n")).target_error == 0.002);
+  const SceneFile plain = read_scene_file(dir.scene("[rays]\nper_patch = 4096\n"));
+  CHECK_FALSE(plain.target_error);
+  CHECK_FALSE(plain.target_max_per_patch);
 }
 
 TEST_CASE("a default wall or convection can be switched off per surface", "[scene_file]") {

@@ -24,6 +24,10 @@ struct GasRunOptions {
   std::vector<std::uint64_t> rays_for_patch;  // one per patch
   int threads = 0;
   double surroundings_temperature = 293.15;  // K
+  // Exchange-area storage (dense up to 2000 rows, sparse above, unless given) and whether to
+  // run past the memory estimate (GasTraceOptions).
+  GasStorage storage = GasStorage::automatic;
+  bool force = false;
 };
 
 struct GasRun {

@@ -46,6 +46,7 @@
 #include "hearthray/patches.hpp"
 #include "hearthray/scene.hpp"
 #include "hearthray/tracer.hpp"
+#include "hearthray/view_factors.hpp"
 
 namespace hearthray {
 
@@ -85,17 +86,42 @@ class ZoneGrid {
 // theorem over the triangles; a solid load inside with outward fronts is subtracted), m^3.
 double gas_volume_by_divergence(const Scene& scene);
 
+// How the exchange areas are stored, and so which smoothing and solve they get: dense
+// (patches + zones)^2 matrices per gray gas, smoothed and solved by dense linear algebra, or
+// sparse rows (only the pairs some ray joined), smoothed and solved at a cost that grows with
+// the non-zeros (zone_solve.hpp).
+enum class GasStorage { automatic, dense, sparse };
+
 struct GasTraceOptions {
   std::uint64_t rays_per_patch = 100000;      // surface rays per patch...
   std::vector<std::uint64_t> rays_for_patch;  // ...or one count per patch
   std::uint64_t rays_per_cell = 100000;       // zone rays per grid cell
   std::uint64_t seed = 1;
   int threads = 0;  // 0 = all cores
-  // Dense matrices of (patches + zones)^2 per gray gas: refused above this many rows.
-  std::size_t max_rows = 2000;
+  // automatic: dense up to dense_row_limit rows (patches + grid cells), sparse above.
+  GasStorage storage = GasStorage::automatic;
+  std::size_t dense_row_limit = 2000;
+  // Runs whose estimated memory (gas_exchange_memory) exceeds this are refused unless
+  // forced; 0: the machine's physical memory.
+  double memory_limit_bytes = 0;
+  bool force = false;
 
   bool IsValid(std::string* error) const;
 };
+
+// Estimated peak memory of tracing, smoothing and solving the exchange areas, bytes, and the
+// storage it assumes. Sparse: the non-zeros of a row of n rays are estimated as the patches
+// n rays spread over would reach, P (1 - exp(-n / P)), plus the cells they cross (at most
+// n (nx + ny + nz)); a furnace whose patches all see one another comes near that.
+struct GasMemoryEstimate {
+  GasStorage storage = GasStorage::dense;
+  double non_zeros = 0;  // per gray gas
+  double bytes = 0;
+};
+GasMemoryEstimate gas_exchange_memory(std::size_t patches, std::array<int, 3> cells,
+                                      std::size_t gray_gases,
+                                      const std::vector<std::uint64_t>& rays_per_row,
+                                      const GasTraceOptions& options);
 
 // Direct exchange areas for every gray gas, rows and columns: patches 0..P-1, zones P..P+Z-1.
 struct GasExchange {
@@ -107,8 +133,13 @@ struct GasExchange {
   std::vector<double> volume_error;      // per zone: standard error, m^3
   std::vector<std::uint64_t> rays;       // per row: rays traced
   std::vector<double> k;                 // per gray gas: absorption coefficient, 1/m
-  std::vector<Eigen::MatrixXd> S;        // per gray gas: exchange areas, m^2
-  std::vector<Eigen::MatrixXd> sigma;    // per gray gas: standard error of the raw S, m^2
+  // Dense storage: per gray gas, exchange areas and the standard error of the raw ones, m^2.
+  std::vector<Eigen::MatrixXd> S;
+  std::vector<Eigen::MatrixXd> sigma;
+  // Sparse storage (S and sigma empty): the same, row-major, only entries some ray scored
+  // (smoothing adds the transposed pattern).
+  std::vector<SparseMatrix> sparse_S;
+  std::vector<SparseMatrix> sparse_sigma;
   // Per gray gas and row: exchange area of rays that escaped or ended on the back of a
   // one-sided surface (0 in a closed enclosure with fronts facing the gas), m^2.
   std::vector<Eigen::VectorXd> lost;
@@ -118,12 +149,19 @@ struct GasExchange {
   std::size_t zone_count() const { return volume.size(); }
   std::size_t rows() const { return patch_count + zone_count(); }
   std::size_t gas_count() const { return k.size(); }
+  bool dense() const { return !S.empty(); }
+  // S^g_ij and the row sum of S^g, whichever the storage.
+  double entry(std::size_t g, std::size_t i, std::size_t j) const;
+  double row_sum(std::size_t g, std::size_t i) const;
+  // Stored entries of S (all of them when dense), summed over the gray gases.
+  std::size_t non_zeros() const;
   // What a row should sum to: A_p for a patch, 4 k_g V_z for a zone.
   double row_target(std::size_t g, std::size_t row) const;
 };
 
 // Traces the exchange areas of `k` (one entry per gray gas) through the zones of `cells` over
-// the scene's bounding box. Throws InputError for invalid options or too many rows.
+// the scene's bounding box. Throws InputError for invalid options or a run whose estimated
+// memory exceeds the limit (unless forced).
 GasExchange trace_gas_exchange(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
                                std::array<int, 3> cells, const std::vector<double>& k,
                                const GasTraceOptions& options);

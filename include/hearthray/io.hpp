@@ -12,6 +12,21 @@
 
 namespace hearthray {
 
+// A ray budget set by the error wanted, as the reports echo it (RayTarget, pipeline.hpp):
+// JSON "target" with these names (null when no target was set).
+struct TargetReportInfo {
+  bool used = false;
+  double error_wanted = 0;    // largest standard error of any factor asked for
+  double error_achieved = 0;  // that of the factors returned
+  bool reached = false;
+  std::string stopped_by;  // "target reached", "ray cap", "run-size limit", "time limit"
+  std::vector<std::uint64_t> round_rays_per_patch;
+  std::vector<double> round_errors;
+  std::uint64_t max_rays_per_patch = 0;
+  double time_limit_s = 0;  // 0: none
+  std::uint64_t rays_all_rounds = 0;
+};
+
 // What a report carries besides the matrix (echoed into JSON).
 struct FactorReportInfo {
   std::string scene;  // scene or mesh file
@@ -26,6 +41,7 @@ struct FactorReportInfo {
   double max_row_error = 0;
   double max_reciprocity_error = 0;
   std::vector<std::string> warnings;
+  TargetReportInfo target;
 };
 
 // A CSV field quoted as RFC 4180 asks: with a comma, a double quote or a line break it is

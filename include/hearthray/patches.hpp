@@ -1,8 +1,9 @@
 // Patches: the units that emit and receive rays and appear as rows and columns of the
 // view-factor matrix. A patch is a set of triangles of one surface seen from one side. By
 // default every surface side is one patch (a two-sided surface gives a front and a back
-// patch); finer patches come from splitting large triangles (`subdivide`) and grouping
-// triangles on a grid of the patch size (`make_patches`), or one patch per triangle.
+// patch); finer patches come from cutting the surface (`subdivide`) and laying its pieces out
+// by their shape: grids on rectangles, bands and sectors on cylinders, compact regions
+// elsewhere (`make_patches`), or one patch per triangle.
 #pragma once
 
 #include <cstdint>
@@ -43,22 +44,33 @@ struct PatchSet {
 PatchSet make_surface_patches(const Scene& scene);
 
 // How a surface is cut into patches: whole, one per mesh triangle, or pieces of about `size`
-// metres (triangles longer than `size` are split first, see `subdivide`).
+// metres (the surface is cut for them first, see `subdivide`).
 struct PatchSpec {
   enum class Mode { whole, per_triangle, size } mode = Mode::whole;
   double size = 0;  // m, for Mode::size
 };
 
-// Splits, by longest-edge bisection, every triangle whose longest edge exceeds the size of its
-// surface's spec until none does. A split edge is split in every triangle that shares it
-// (vertices welded by position), so the mesh stays conforming: no T-junctions, no cracks.
-// `specs` has one entry per surface. Surfaces, names and areas are unchanged.
+// Cuts the surfaces whose spec has a size for their patches (see make_patches). Each such
+// surface falls into charts, edge-connected pieces bending by less than 40 degrees between
+// neighbouring triangles; a planar chart filling a rectangle is cut along the lines of a grid
+// of near-square cells aligned with its edges, a cylinder along planes across its axis into
+// bands of equal height, and a chart of any other shape has its triangles split (longest-edge
+// bisection) to half the patch size. Every split edge is split in every triangle that shares
+// it (vertices welded by position), so the mesh stays conforming: no T-junctions, no cracks.
+// `specs` has one entry per surface. Surfaces, names, areas and normals are unchanged.
 Scene subdivide(const Scene& scene, const std::vector<PatchSpec>& specs);
 
-// Patches by spec, per surface side, in surface order (front before back). Mode::size groups
-// the surface's triangles by the cell of a grid of that size their centroid falls in (a
-// finely meshed surface is not left with one patch per tiny triangle); run `subdivide` first
-// so that no triangle is larger than its patch should be.
+// Longest-edge bisection alone: splits every triangle of surface s whose longest edge exceeds
+// limit[s] (INFINITY: none) until none does, conforming as above.
+Scene split_long_edges(const Scene& scene, const std::vector<double>& limit);
+
+// Patches by spec, per surface side, in surface order (front before back). Mode::size lays
+// each chart of the surface out by its shape: a rectangle as a grid of cells of about `size`
+// (nu x nv equal rectangles aligned with its edges), a cylinder (facets tangent to one circle)
+// as bands along its axis times sectors around it, a chart of other shape as compact regions
+// of about size^2 grown over its triangles, and a chart under a quarter of size^2 whole,
+// sharing a cell of a grid of `size` with the other small charts of its surface. Run
+// `subdivide` first, so that patch boundaries are straight and follow the grid.
 PatchSet make_patches(const Scene& scene, const std::vector<PatchSpec>& specs);
 
 // Rays per patch from a total budget spread in proportion to area, with a floor per patch.

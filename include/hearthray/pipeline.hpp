@@ -61,7 +61,13 @@ struct PipelineOptions {
   std::optional<std::uint64_t> rays_per_patch;
   std::optional<std::uint64_t> seed;  // over the scene file's seed; empty: its, else kDefaultSeed
   std::optional<EmissionSampler>
-      sampler;             // over the scene file's; empty: its, else kDefaultSampler
+      sampler;  // over the scene file's; empty: its, else kDefaultSampler
+  // A ray budget set by the error wanted (see RayTarget below), over the scene file's
+  // [rays] target_error, max_per_patch and time_limit. With a target, rays_per_patch (or the
+  // file's per_patch) is the first round's rays.
+  std::optional<double> target_error;
+  std::optional<std::uint64_t> max_rays_per_patch;
+  std::optional<double> time_limit_s;
   int threads = 0;         // threads of every stage; 0 = all cores
   bool smooth = true;      // enforce reciprocity and closure (false: raw factors)
   bool force = false;      // run even when check_run_size refuses the run's size
@@ -87,6 +93,35 @@ enum class CacheOutcome {
   not_stored,  // traced; storing failed (a warning says why)
 };
 
+// A ray budget set by the error wanted: tracing in rounds until the largest standard error of
+// any view factor (to a patch or to the surroundings, as ViewFactors::standard_error gives it
+// for the factors returned) is at most `error`. The first round's rays per patch are rounded
+// up to a power of two (at least 8: with the sobol sampler, 8 replicates of 2^m points, each
+// an Owen-scrambled (t, m, 4)-net); each further round multiplies them by the power of two
+// that the 1/sqrt(N) law predicts is enough (at least 2), so a round's rays are the first
+// points of the next round's sequences and every round keeps whole nets. Rounds are decided on
+// the tallies only (deterministic); only the time limit depends on the clock: a round whose
+// predicted end (from the last round's time) is past it is not started.
+enum class TargetStop { reached, ray_cap, run_size, time_limit };
+std::string to_string(TargetStop stop);  // "target reached", "ray cap", ...
+inline constexpr std::uint64_t kDefaultTargetFirstRays = 8192;
+inline constexpr std::uint64_t kDefaultTargetMaxRaysPerPatch = std::uint64_t(1) << 24;
+
+struct RayTarget {
+  bool used = false;
+  double error = 0;     // the largest standard error wanted
+  double achieved = 0;  // the largest standard error of the factors returned
+  TargetStop stop = TargetStop::reached;
+  std::uint64_t max_rays_per_patch = kDefaultTargetMaxRaysPerPatch;
+  double time_limit_s = 0;                // 0: none
+  std::vector<std::uint64_t> round_rays;  // rays per patch of each round
+  std::vector<double> round_errors;       // largest standard error after each round
+  std::uint64_t rays_all_rounds = 0;      // rays of every round, traced or from the cache
+  double seconds = 0;                     // all rounds, wall clock
+
+  bool reached() const { return used && stop == TargetStop::reached; }
+};
+
 // View factors of a scene, with everything needed to use and report them.
 struct FactorRun {
   Scene scene;  // as traced: surfaces cut into patches where asked
@@ -105,6 +140,7 @@ struct FactorRun {
   std::string cache_path;          // the cache file read or written ("" when none)
   std::vector<Warning> warnings;   // mesh, then ray diagnostics, then cache
   std::vector<std::string> notes;  // from the ray diagnostics
+  RayTarget target;                // rounds to an error wanted (target.used), else unused
 
   bool from_cache() const { return cache == CacheOutcome::hit; }
 };
@@ -122,6 +158,9 @@ RunSize estimate_run_size(const Scene& scene, const std::vector<PatchSpec>& spec
 // Throws InputError (naming `what`, e.g. the scene file) with the estimate when a run would
 // exceed the limits of patches, triangles or rays (see run_size.cpp).
 void check_run_size(const RunSize& size, const std::string& what);
+
+// The largest standard error of any factor (to a patch or to the surroundings).
+double largest_standard_error(const ViewFactors& factors);
 
 // The scene file's patches and rays (rays_per_patch of the options over its [rays]). Unless
 // options.force, refuses (InputError) a run too large to finish: see check_run_size.

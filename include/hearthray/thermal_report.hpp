@@ -11,6 +11,7 @@
 
 #include "hearthray/exchange.hpp"
 #include "hearthray/fields.hpp"
+#include "hearthray/io.hpp"  // TargetReportInfo
 #include "hearthray/outer_case.hpp"
 #include "hearthray/thermal_model.hpp"
 #include "hearthray/units.hpp"
@@ -46,6 +47,7 @@ struct SolveReportInfo {
   std::vector<std::string> notes;     // choices made (e.g. leaks folded back)
   std::vector<std::string> files;     // other files written with the report
   double model_height_m = 0;          // vertical extent of the model: the height of its case
+  TargetReportInfo target;            // rounds to an error wanted (target.used)
 };
 
 // Per-surface table, energy balance, outer case temperatures (when walls lose heat) and solver

@@ -20,6 +20,13 @@
 // Newton's method with the exact Jacobian: for each gray gas the radiosity matrix
 // diag(A) - diag(rho) S_ss is factored once; dJ/dT follows from the same factors, and
 // d a_g/dT and the products' heat capacity enter exactly. Dense: for a few thousand patches.
+//
+// On sparse exchange areas (GasStorage::sparse) the same equations are solved at a cost that
+// grows with the non-zeros: each radiosity system (diagonally dominant: rows of S_ss sum to at
+// most A) by GMRES with a diagonal preconditioner, and each Newton step by GMRES on
+// Jacobian-vector products (matrix-free: one radiosity solve per gray gas per product, the
+// exact derivative), preconditioned by an estimate of the Jacobian's diagonal
+// (zone_solve_large.cpp). Results agree with the dense path to the solver tolerances.
 #pragma once
 
 #include <string>
@@ -93,6 +100,11 @@ struct ZoneGasResult {
 struct ZoneSolveResult {
   bool converged = false;
   int iterations = 0;
+  // The sparse path (exchange areas stored sparse): GMRES iterations of all Newton steps,
+  // and the relative residual of the last step's linear solve.
+  bool iterative = false;
+  int linear_iterations = 0;
+  double linear_residual = 0;
   double max_residual = 0;  // W, largest energy-equation residual at the end
   std::string message;
   std::vector<ZonePatchResult> patches;

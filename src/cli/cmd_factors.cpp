@@ -44,8 +44,9 @@ int run_factors_command(const FactorsArgs& args) {
                 << " s (" << rounded("%.3g", run.stats.rays_per_second / 1e6) << " Mrays/s on "
                 << run.stats.threads << " threads)";
     std::cout << "\n" << smoothing_line(run) << "\n";
+    if (run.target.used) std::cout << target_line(run) << "\n";
   }
-  return 0;
+  return target_status(run);
 }
 
 }  // namespace hearthray::cli

@@ -66,7 +66,9 @@ int run_fire_command(const SolveArgs& args) {
   const FiringResult r = run_firing(solved.model, *solved.file.firing, options);
   if (!args.rays.quiet || args.output_dir.empty()) {
     std::cout << "hearthray fire " << solved.file.path << "\n"
-              << cache_log_line(solved.run) << "\n\n";
+              << cache_log_line(solved.run) << "\n";
+    if (solved.run.target.used) std::cout << target_line(solved.run) << "\n";
+    std::cout << "\n";
     print_firing_summary(std::cout, r, *solved.file.firing);
   }
   if (!args.output_dir.empty()) write_fire_outputs(args, solved, r);
@@ -74,7 +76,7 @@ int run_fire_command(const SolveArgs& args) {
     std::cerr << "error: the firing could not be completed: " << r.message << "\n";
     return kExitNotConverged;
   }
-  return 0;
+  return target_status(solved.run);
 }
 
 }  // namespace hearthray::cli

@@ -56,6 +56,7 @@ SolveReportInfo solve_info(const SceneFile& file, const FactorRun& run, const Th
   for (const Warning& w : warnings)
     if (w.kind != WarningKind::cache) info.warnings.push_back(w.text);
   info.notes = model.notes;
+  info.target = factor_info.target;
   info.model_height_m = model_height(run.scene);
   info.notes.push_back(
       "report.json is in SI units (keys name them); the table, surfaces.csv and "
@@ -143,6 +144,7 @@ int run_solve_command(const SolveArgs& args) {
   if (!args.rays.quiet) {
     std::cout << "hearthray solve " << file.path << "\n";
     std::cout << cache_log_line(run) << "\n";
+    if (run.target.used) std::cout << target_line(run) << "\n";
     std::cout << smoothing_line(run) << "\n\n";
   }
   if (!args.rays.quiet || args.output_dir.empty()) {
@@ -152,12 +154,13 @@ int run_solve_command(const SolveArgs& args) {
 
   if (!args.output_dir.empty()) write_solve_outputs(args, solved, units);
 
+  const int target = target_status(run);  // the warning, also when the solve failed
   if (result.status != ExchangeStatus::converged) {
     std::cerr << "error: the exchange solve did not converge (" << to_string(result.status)
               << " after " << result.iterations << " iterations): " << result.message << "\n";
     return kExitNotConverged;
   }
-  return 0;
+  return target;
 }
 
 }  // namespace hearthray::cli

@@ -18,12 +18,17 @@ int run_gas_solve(const SolveArgs& args, const SceneFile& file) {
   namespace fs = std::filesystem;
   const Scene loaded = load_scene(file);
   const PipelineOptions options = pipeline_options(args.rays);
+  if (options.target_error || file.target_error)
+    throw InputError(
+        "a target error (--target-error, [rays] target_error) is not available for a scene "
+        "with [gas] yet: give the rays per patch instead");
   const PatchPlan plan = plan_scene(file, loaded, options);
   const Tracer tracer(plan.scene);
   GasRunOptions gas_options;
   gas_options.seed = args.rays.seed.value_or(file.seed.value_or(kDefaultSeed));
   gas_options.rays_for_patch = plan.rays;
   gas_options.threads = args.rays.threads;
+  gas_options.force = args.rays.force;
   if (file.surroundings_K) gas_options.surroundings_temperature = *file.surroundings_K;
   const GasRun run =
       run_gas(*file.gas, plan.scene, plan.patches, tracer,

@@ -37,8 +37,11 @@ struct SolveArgs {
   std::string units = "si";  // --units: si | us | kcal, for the table, surfaces.csv, pictures
   bool matrix_text = false;  // --matrix-text: a large matrix as view_factors.mtx, not .h5
 };
-// Exit codes: 0 solved, 2 bad input, 4 the solver did not converge (outputs still written).
+// Exit codes: 0 solved, 2 bad input, 4 the solver did not converge (outputs still written),
+// 5 a target error was not reached (a cap stopped the rounds; outputs still written, from the
+// last round; 4 wins when both happen).
 inline constexpr int kExitNotConverged = 4;
+inline constexpr int kExitTargetNotReached = 5;
 int run_solve_command(const SolveArgs& args);
 // The same for a scene with a [gas] table (the zone method).
 int run_gas_solve(const SolveArgs& args, const SceneFile& file);

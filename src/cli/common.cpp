@@ -7,6 +7,7 @@
 #include <cstdio>
 #include <iostream>
 
+#include "commands.hpp"
 #include "core/text.hpp"
 #include "hearthray/error.hpp"
 
@@ -84,6 +85,11 @@ PipelineOptions pipeline_options(const RaySettings& settings, const CacheChoice*
   if (settings.sampler)
     options.sampler =
         *settings.sampler == "sobol" ? EmissionSampler::sobol : EmissionSampler::stratified;
+  if (settings.target_error)
+    options.target_error = parse_target_error(*settings.target_error, "--target-error");
+  options.max_rays_per_patch = settings.max_rays;
+  if (settings.time_limit)
+    options.time_limit_s = parse_time_limit(*settings.time_limit, "--time-limit");
   options.threads = settings.threads;
   options.smooth = !settings.raw;
   if (cache) {
@@ -133,6 +139,41 @@ void print_no_cache_folder(const FactorRun& run) {
                "view factors are traced every time\n";
 }
 
+namespace {
+
+std::string rays_list(const std::vector<std::uint64_t>& rays) {
+  std::vector<std::string> items;
+  for (std::uint64_t n : rays) items.push_back(std::to_string(n));
+  return join(items);
+}
+
+}  // namespace
+
+std::string target_line(const FactorRun& run) {
+  const RayTarget& t = run.target;
+  if (!t.used) return "";
+  const std::string errors = "largest standard error " + rounded("%.3g", t.achieved) + " (wanted " +
+                             rounded("%.3g", t.error) + ")";
+  std::string line = t.reached() ? "ray target: reached, " + errors + " with " +
+                                       std::to_string(t.round_rays.back()) + " rays per patch"
+                                 : "ray target NOT reached: " + errors + " with " +
+                                       std::to_string(t.round_rays.back()) +
+                                       " rays per patch, stopped by the " + to_string(t.stop);
+  if (!t.reached() && t.stop == TargetStop::ray_cap)
+    line += " of " + std::to_string(t.max_rays_per_patch) + " rays per patch";
+  if (!t.reached() && t.stop == TargetStop::time_limit)
+    line += " of " + rounded("%.3g", t.time_limit_s) + " s (the next round would pass it)";
+  return line + "; rounds of " + rays_list(t.round_rays) + " rays per patch, " +
+         std::to_string(t.rays_all_rounds) + " rays in all";
+}
+
+int target_status(const FactorRun& run) {
+  if (!run.target.used || run.target.reached()) return 0;
+  std::cerr << "warning: " << target_line(run)
+            << "; the results are those of the last round, with the errors reported\n";
+  return kExitTargetNotReached;
+}
+
 FactorReportInfo report_info(const SceneFile& file, const FactorRun& run) {
   FactorReportInfo info;
   info.scene = file.path.empty() ? file.mesh_path : file.path;
@@ -151,6 +192,17 @@ FactorReportInfo report_info(const SceneFile& file, const FactorRun& run) {
     info.smoothing = "none (raw)";
   }
   info.warnings = warning_texts(run.diagnostics.warnings);
+  const RayTarget& t = run.target;
+  info.target.used = t.used;
+  info.target.error_wanted = t.error;
+  info.target.error_achieved = t.achieved;
+  info.target.reached = t.reached();
+  info.target.stopped_by = to_string(t.stop);
+  info.target.round_rays_per_patch = t.round_rays;
+  info.target.round_errors = t.round_errors;
+  info.target.max_rays_per_patch = t.max_rays_per_patch;
+  info.target.time_limit_s = t.time_limit_s;
+  info.target.rays_all_rounds = t.rays_all_rounds;
   return info;
 }
 

@@ -19,7 +19,10 @@ namespace hearthray::cli {
 struct RaySettings {
   std::optional<std::uint64_t> rays;  // command line over scene file over default
   std::optional<std::uint64_t> seed;
-  std::optional<std::string> sampler;  // "sobol" or "stratified" (checked by CLI11)
+  std::optional<std::string> sampler;       // "sobol" or "stratified" (checked by CLI11)
+  std::optional<std::string> target_error;  // --target-error (parse_target_error)
+  std::optional<std::uint64_t> max_rays;    // --max-rays: cap per patch of the rounds
+  std::optional<std::string> time_limit;    // --time-limit "10 min" (parse_time_limit)
   int threads = 0;
   bool raw = false;    // skip smoothing
   bool quiet = false;  // no progress line, no summary
@@ -52,6 +55,14 @@ std::string cache_log_line(const FactorRun& run);
 
 // To stderr, when the cache was asked for but no folder is known: a warning saying how to set one.
 void print_no_cache_folder(const FactorRun& run);
+
+// With a target error: one line saying whether it was reached, the error achieved and the
+// rays used, e.g. "ray target: reached, largest standard error 0.00087 (wanted 0.001) with
+// 65536 rays per patch; rounds of 8192, 65536 rays per patch". "" without a target.
+std::string target_line(const FactorRun& run);
+// After a run with a target that was not reached: a warning on stderr (always, even quiet).
+// Returns the exit status for it: kExitTargetNotReached, or 0.
+int target_status(const FactorRun& run);
 
 // The report fields for the JSON output.
 FactorReportInfo report_info(const SceneFile& file, const FactorRun& run);

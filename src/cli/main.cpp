@@ -8,6 +8,7 @@
 
 #include "commands.hpp"
 #include "hearthray/error.hpp"
+#include "hearthray/pipeline.hpp"  // the target defaults
 #include "hearthray/version.hpp"
 
 using namespace hearthray::cli;
@@ -42,6 +43,21 @@ void add_sampler_option(CLI::App* cmd, RaySettings& rays) {
       ->check(CLI::IsMember({"sobol", "stratified"}));
 }
 
+// --target-error E, --max-rays N and --time-limit T: rounds of rays until an error wanted.
+void add_target_options(CLI::App* cmd, RaySettings& rays) {
+  cmd->add_option("--target-error", rays.target_error,
+                  "Trace in rounds until every view factor's standard error is at most this "
+                  "(e.g. 0.001); --rays gives the first round (default " +
+                      std::to_string(hearthray::kDefaultTargetFirstRays) + ")");
+  cmd->add_option("--max-rays", rays.max_rays,
+                  "With --target-error: at most this many rays per patch (default " +
+                      std::to_string(hearthray::kDefaultTargetMaxRaysPerPatch) + ")")
+      ->check(CLI::Range(std::uint64_t{1}, std::uint64_t{1} << 40));
+  cmd->add_option("--time-limit", rays.time_limit,
+                  "With --target-error: start no round predicted to end after this time, e.g. "
+                  "\"10 min\"");
+}
+
 // --cache DIR and --no-cache (which exclude each other).
 void add_cache_options(CLI::App* cmd, std::string* dir, bool* no_cache) {
   CLI::Option* cache_dir = cmd->add_option("--cache", *dir,
@@ -66,6 +82,7 @@ CLI::App* add_factors_command(CLI::App& app, FactorsArgs& factors) {
                    "Random seed (default " + std::to_string(hearthray::kDefaultSeed) + ")")
       ->check(seed_range());
   add_sampler_option(cmd_factors, factors.rays);
+  add_target_options(cmd_factors, factors.rays);
   cmd_factors->add_option("--threads", factors.rays.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
   cmd_factors->add_flag("--raw", factors.rays.raw, "Skip the reciprocity and closure correction");
@@ -118,6 +135,7 @@ CLI::App* add_scene_command(CLI::App& app, const std::string& name, const std::s
                    "Random seed (default: scene, " + std::to_string(hearthray::kDefaultSeed) + ")")
       ->check(seed_range());
   add_sampler_option(cmd_solve, solve.rays);
+  add_target_options(cmd_solve, solve.rays);
   cmd_solve->add_option("--threads", solve.rays.threads, "Worker threads (default: all)")
       ->check(CLI::Range(0, 1024));
   cmd_solve->add_flag("--matrix-text", solve.matrix_text,

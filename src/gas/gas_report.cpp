@@ -111,7 +111,10 @@ void print_gas_table(std::ostream& out, const GasRun& run) {
   out << "energy balance: release + air - load - other held - walls - surroundings - flue = "
       << rounded("%.3g W", f.balance) << "\n";
   out << "zone solve: " << (s.converged ? "converged" : "NOT converged: " + s.message) << " in "
-      << s.iterations << " Newton iterations\n";
+      << s.iterations << " Newton iterations";
+  if (s.iterative)
+    out << " (sparse exchange areas: " << s.linear_iterations << " GMRES iterations)";
+  out << "\n";
   for (const std::string& w : run.warnings) out << "warning: " << w << "\n";
   if (run.combustion) out << kFiredEquipmentCaution << "\n";
 }
@@ -159,7 +162,9 @@ std::string gas_report_json(const GasRun& run, const std::vector<std::string>& n
     gases.push_back({{"absorption_coefficient_per_m", run.gases.absorption_coefficient(g)}});
   j["gray_gases"] = gases;
   j["cells"] = {x.grid.cells()[0], x.grid.cells()[1], x.grid.cells()[2]};
-  j["exchange_areas"] = {{"smoothed", x.smoothed},
+  j["exchange_areas"] = {{"storage", x.dense() ? "dense" : "sparse"},
+                         {"stored_areas", x.non_zeros()},
+                         {"smoothed", x.smoothed},
                          {"smoothing_iterations", run.smoothing.iterations},
                          {"max_row_error", run.smoothing.max_row_error},
                          {"max_reciprocity_error", run.smoothing.max_reciprocity_error},
@@ -210,7 +215,9 @@ std::string gas_report_json(const GasRun& run, const std::vector<std::string>& n
                   {"flue_enthalpy_W", f.flue},   {"flue_temperature_K", s.flue_temperature},
                   {"efficiency", f.efficiency},  {"error_W", f.balance}};
   j["solver"] = {{"converged", s.converged},
+                 {"method", s.iterative ? "Newton-Krylov (GMRES), sparse" : "Newton, dense LU"},
                  {"iterations", s.iterations},
+                 {"linear_iterations", s.linear_iterations},
                  {"max_residual_W", s.max_residual},
                  {"message", s.message}};
   j["warnings"] = run.warnings;

@@ -171,6 +171,8 @@ GasRun run_gas(const GasInput& input, const Scene& scene, const PatchSet& patche
   trace.rays_per_cell = input.rays_per_cell;
   trace.seed = options.seed;
   trace.threads = options.threads;
+  trace.storage = options.storage;
+  trace.force = options.force;
   run.exchange = trace_gas_exchange(scene, patches, tracer, input.cells,
                                     run.gases.absorption_coefficients(), trace);
   run.smoothing = smooth_gas_exchange(run.exchange);

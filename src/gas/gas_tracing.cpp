@@ -3,13 +3,16 @@
 #include <tbb/info.h>
 #include <tbb/parallel_for.h>
 #include <tbb/task_arena.h>
+#include <unistd.h>
 
 #include <algorithm>
 #include <cmath>
 #include <limits>
 
+#include "core/text.hpp"
 #include "factors/emitter_sampling.hpp"
 #include "factors/hit_counter.hpp"
+#include "gas/gas_raw.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/gas_zones.hpp"
 #include "hearthray/sampling.hpp"
@@ -26,6 +29,8 @@ bool GasTraceOptions::IsValid(std::string* error) const {
   for (std::uint64_t n : rays_for_patch)
     if (n == 0) return fail("every patch needs at least 1 ray");
   if (threads < 0) return fail("threads must be 0 (all cores) or a positive count");
+  if (!std::isfinite(memory_limit_bytes) || memory_limit_bytes < 0)
+    return fail("memory_limit_bytes must be finite and >= 0");
   return true;
 }
 
@@ -252,37 +257,6 @@ class ChunkTracer {
   std::size_t columns_;
 };
 
-// Nearest kept cell (by centre distance, lowest index on ties) for every cell.
-std::vector<std::uint32_t> nearest_kept(const ZoneGrid& grid, const std::vector<bool>& kept) {
-  const std::size_t C = grid.cell_count();
-  std::vector<std::uint32_t> to(C);
-  for (std::size_t c = 0; c < C; ++c) {
-    if (kept[c]) {
-      to[c] = std::uint32_t(c);
-      continue;
-    }
-    const auto a = grid.cell_index(c);
-    const Vec3 h = grid.cell_size();
-    double best = std::numeric_limits<double>::infinity();
-    for (std::size_t e = 0; e < C; ++e) {
-      if (!kept[e]) continue;
-      const auto b = grid.cell_index(e);
-      const Vec3 dv{(a[0] - b[0]) * h.x, (a[1] - b[1]) * h.y, (a[2] - b[2]) * h.z};
-      const double dist = dot(dv, dv);
-      if (dist < best) best = dist, to[c] = std::uint32_t(e);
-    }
-  }
-  return to;
-}
-
-// Raw per-cell sums of every chunk, merged in the chunks' fixed order (so the result does not
-// depend on the thread count).
-struct RawScores {
-  std::vector<Eigen::MatrixXd> sum, sq;  // per gray gas: (P + C)^2 sums of scores and squares
-  std::vector<Eigen::VectorXd> lost;     // per gray gas and row: escaped or back-side score
-  std::vector<std::uint64_t> inside;     // per cell: its points that lay in the gas
-};
-
 void check_gas_trace_input(const PatchSet& patches, const std::vector<double>& k,
                            const GasTraceOptions& options) {
   std::string why;
@@ -295,14 +269,59 @@ void check_gas_trace_input(const PatchSet& patches, const std::vector<double>& k
     throw InputError("gas exchange: rays_for_patch needs one count per patch");
 }
 
-template <class RaysOf>
-RawScores trace_raw_scores(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
-                           const ZoneGrid& grid, const std::vector<double>& k,
-                           const GasTraceOptions& options, const RaysOf& rays_of) {
+// Every chunk's scores, merged row by row in the chunks' fixed order (so the sums do not depend
+// on the thread count); each chunk's scores are freed once merged.
+gas_detail::RawScores merge_chunks(const std::vector<Chunk>& chunks,
+                                   std::vector<ChunkScores>& results, std::size_t P, std::size_t N,
+                                   std::size_t G) {
+  gas_detail::RawScores raw;
+  raw.gases = G;
+  raw.offset.push_back(0);
+  raw.lost.assign(N * G, 0.0);
+  raw.inside.assign(N - P, 0);
+  std::vector<double> sum(N * G, 0.0), sq(N * G, 0.0);
+  std::vector<char> seen(N, 0);
+  std::vector<std::uint32_t> touched;
+  std::size_t c = 0;
+  for (std::size_t row = 0; row < N; ++row) {
+    for (; c < chunks.size() && chunks[c].row == row; ++c) {
+      ChunkScores& r = results[c];
+      if (row >= P) raw.inside[row - P] += r.inside;
+      for (std::size_t g = 0; g < G; ++g) raw.lost[row * G + g] += r.lost[g];
+      for (std::size_t i = 0; i < r.column.size(); ++i) {
+        const std::uint32_t col = r.column[i];
+        if (!seen[col]) seen[col] = 1, touched.push_back(col);
+        for (std::size_t g = 0; g < G; ++g) {
+          sum[col * G + g] += r.sum[i * G + g];
+          sq[col * G + g] += r.sum_sq[i * G + g];
+        }
+      }
+      r = ChunkScores{};
+    }
+    std::sort(touched.begin(), touched.end());
+    for (std::uint32_t col : touched) {
+      raw.column.push_back(col);
+      for (std::size_t g = 0; g < G; ++g) {
+        raw.sum.push_back(sum[col * G + g]);
+        raw.sq.push_back(sq[col * G + g]);
+        sum[col * G + g] = sq[col * G + g] = 0;
+      }
+      seen[col] = 0;
+    }
+    touched.clear();
+    raw.offset.push_back(raw.column.size());
+  }
+  return raw;
+}
+
+gas_detail::RawScores trace_raw_scores(const Scene& scene, const PatchSet& patches,
+                                       const Tracer& tracer, const ZoneGrid& grid,
+                                       const std::vector<double>& k, const GasTraceOptions& options,
+                                       const std::vector<std::uint64_t>& rays) {
   const std::size_t P = patches.size(), C = grid.cell_count(), N = P + C, G = k.size();
   std::vector<Chunk> chunks;
   for (std::size_t row = 0; row < N; ++row)
-    for (std::uint64_t f = 0, n = rays_of(row); f < n; f += kChunkRays)
+    for (std::uint64_t f = 0, n = rays[row]; f < n; f += kChunkRays)
       chunks.push_back({std::uint32_t(row), f, std::min(n, f + kChunkRays), n});
   std::vector<ChunkScores> results(chunks.size());
 
@@ -317,79 +336,33 @@ RawScores trace_raw_scores(const Scene& scene, const PatchSet& patches, const Tr
                           results[c] = chunk_tracer.run(chunks[c], scratch.local());
                       });
   });
-
-  RawScores raw;
-  raw.sum.assign(G, Eigen::MatrixXd::Zero(N, N));
-  raw.sq = raw.sum;
-  raw.lost.assign(G, Eigen::VectorXd::Zero(N));
-  raw.inside.assign(C, 0);
-  for (std::size_t c = 0; c < chunks.size(); ++c) {
-    const ChunkScores& r = results[c];
-    const std::size_t row = chunks[c].row;
-    if (row >= P) raw.inside[row - P] += r.inside;
-    for (std::size_t g = 0; g < G; ++g) raw.lost[g](row) += r.lost[g];
-    for (std::size_t i = 0; i < r.column.size(); ++i)
-      for (std::size_t g = 0; g < G; ++g) {
-        raw.sum[g](row, r.column[i]) += r.sum[i * G + g];
-        raw.sq[g](row, r.column[i]) += r.sum_sq[i * G + g];
-      }
-  }
-  return raw;
+  return merge_chunks(chunks, results, P, N, G);
 }
 
-// Zones are the cells with points in the gas; rows of dropped cells go, their columns move to
-// the nearest zone. Scores become exchange areas (scale A_i or 4 k V_cell) with standard errors.
-template <class RaysOf>
-void assemble_zones(GasExchange& x, const RawScores& raw, const PatchSet& patches,
-                    const RaysOf& rays_of) {
-  const ZoneGrid& grid = x.grid;
-  const std::size_t P = patches.size(), C = grid.cell_count(), N = P + C, G = x.k.size();
-  std::vector<bool> kept(C);
-  for (std::size_t c = 0; c < C; ++c) kept[c] = raw.inside[c] > 0;
-  if (std::none_of(kept.begin(), kept.end(), [](bool b) { return b; }))
-    throw InputError(
-        "gas zones: no sampled point lies in the gas. The gas needs a closed enclosure whose "
-        "surfaces face it with their fronts (normals pointing into the gas)");
-  const std::vector<std::uint32_t> to = nearest_kept(grid, kept);
-  std::vector<std::size_t> zone_of_cell(C, 0);
-  for (std::size_t c = 0; c < C; ++c) {
-    if (!kept[c]) continue;
-    zone_of_cell[c] = x.zone_cell.size();
-    x.zone_cell.push_back(std::uint32_t(c));
-    const double p = double(raw.inside[c]) / double(rays_of(P + c));
-    x.volume.push_back(grid.cell_volume() * p);
-    x.volume_error.push_back(grid.cell_volume() * std::sqrt(p * (1 - p) / double(rays_of(P + c))));
-  }
-  const std::size_t Z = x.zone_cell.size(), R = P + Z;
-  for (std::size_t p = 0; p < P; ++p) x.areas.push_back(patches.patches[p].area);
-  std::vector<std::size_t> row_of(N), col_of(N);  // raw index -> final index
-  for (std::size_t i = 0; i < N; ++i) {
-    row_of[i] = i < P ? i : (kept[i - P] ? P + zone_of_cell[i - P] : R);
-    col_of[i] = i < P ? i : P + zone_of_cell[to[i - P]];
-  }
-  for (std::size_t i = 0; i < N; ++i)
-    if (row_of[i] < R) x.rays.push_back(rays_of(i));
-  for (std::size_t g = 0; g < G; ++g) {
-    Eigen::MatrixXd S = Eigen::MatrixXd::Zero(R, R), var = S;
-    Eigen::VectorXd L = Eigen::VectorXd::Zero(R);
-    for (std::size_t i = 0; i < N; ++i) {
-      if (row_of[i] == R) continue;
-      const double n = double(rays_of(i));
-      const double scale = i < P ? patches.patches[i].area : 4 * x.k[g] * grid.cell_volume();
-      L(row_of[i]) = scale * raw.lost[g](i) / n;
-      for (std::size_t j = 0; j < N; ++j) {
-        const double s = raw.sum[g](i, j);
-        if (s == 0) continue;
-        const double mean = s / n;
-        S(row_of[i], col_of[j]) += scale * mean;
-        var(row_of[i], col_of[j]) +=
-            scale * scale * std::max(0.0, raw.sq[g](i, j) / n - mean * mean) / n;
-      }
-    }
-    x.S.push_back(std::move(S));
-    x.sigma.push_back(var.cwiseSqrt());
-    x.lost.push_back(std::move(L));
-  }
+double physical_memory_bytes() {
+  const long pages = ::sysconf(_SC_PHYS_PAGES), size = ::sysconf(_SC_PAGE_SIZE);
+  return pages > 0 && size > 0 ? double(pages) * double(size) : 0.0;
+}
+
+std::string gigabytes(double bytes) {
+  return rounded("%.3g", bytes / 1e9) + " GB";
+}
+
+// Refuses a run whose estimated memory exceeds the limit, unless forced.
+void check_memory(std::size_t P, std::size_t C, std::size_t G, const GasMemoryEstimate& e,
+                  const GasTraceOptions& options) {
+  const double limit =
+      options.memory_limit_bytes > 0 ? options.memory_limit_bytes : physical_memory_bytes();
+  if (options.force || !(limit > 0) || e.bytes <= limit) return;
+  throw InputError(
+      "gas exchange: " + std::to_string(P) + " patches, " + std::to_string(C) + " grid cells and " +
+      std::to_string(G) + " gray gases would need about " + gigabytes(e.bytes) + " of memory (" +
+      (e.storage == GasStorage::dense
+           ? std::string("dense matrices")
+           : "about " + rounded("%.3g", e.non_zeros) + " exchange areas per gray gas") +
+      "), more than the " + gigabytes(limit) +
+      " available. Use larger patches, fewer cells or fewer rays, or give --force to run it "
+      "anyway");
 }
 
 }  // namespace
@@ -403,20 +376,18 @@ GasExchange trace_gas_exchange(const Scene& scene, const PatchSet& patches, cons
   // nearest cell.
   const ZoneGrid grid(scene.bounds, cells);
   const std::size_t C = grid.cell_count(), N = P + C;
-  if (N > options.max_rows)
-    throw InputError("gas exchange: " + std::to_string(P) + " patches and " + std::to_string(C) +
-                     " grid cells exceed the dense limit of " + std::to_string(options.max_rows) +
-                     " rows; use fewer patches or cells");
-  auto rays_of = [&](std::size_t row) -> std::uint64_t {
-    if (row >= P) return options.rays_per_cell;
-    return options.rays_for_patch.empty() ? options.rays_per_patch : options.rays_for_patch[row];
-  };
-  const RawScores raw = trace_raw_scores(scene, patches, tracer, grid, k, options, rays_of);
+  std::vector<std::uint64_t> rays(N, options.rays_per_cell);
+  for (std::size_t p = 0; p < P; ++p)
+    rays[p] = options.rays_for_patch.empty() ? options.rays_per_patch : options.rays_for_patch[p];
+  const GasMemoryEstimate memory = gas_exchange_memory(P, cells, k.size(), rays, options);
+  check_memory(P, C, k.size(), memory, options);
+  const gas_detail::RawScores raw =
+      trace_raw_scores(scene, patches, tracer, grid, k, options, rays);
   GasExchange x;
   x.grid = grid;
   x.patch_count = P;
   x.k = k;
-  assemble_zones(x, raw, patches, rays_of);
+  gas_detail::assemble_zones(x, raw, patches, rays, memory.storage);
   return x;
 }
 

@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "gas/zone_system.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/units.hpp"
 
@@ -61,11 +62,192 @@ bool ZoneSolveInput::IsValid(std::string* error) const {
   return true;
 }
 
+namespace gas_detail {
+
+ZoneTerms::ZoneTerms(const ZoneSolveInput& in)
+    : in_(in), x_(*in.exchange), P_(x_.patch_count), Z_(x_.zone_count()) {
+  for (std::size_t i = 0; i < P_; ++i)
+    if (!in.patches[i].known_temperature) unknown_.push_back(i);
+  for (std::size_t z = 0; z < Z_; ++z)
+    if (!in.zones[z].known_temperature) unknown_.push_back(P_ + z);
+  column_of_.assign(P_ + Z_, -1);
+  for (std::size_t u = 0; u < unknown_.size(); ++u) column_of_[unknown_[u]] = int(u);
+  upstream_.assign(Z_, -1);
+  in_flow_.assign(Z_, false);
+  for (std::size_t m = 0; m < in.flow_order.size(); ++m) {
+    in_flow_[in.flow_order[m]] = true;
+    if (m > 0) upstream_[in.flow_order[m]] = int(in.flow_order[m - 1]);
+  }
+  if (!in.flow_order.empty()) first_ = int(in.flow_order.front());
+  for (std::size_t i = 0; i < P_; ++i) {
+    const ZonePatchCondition& c = in.patches[i];
+    if (c.convection_h > 0 && c.convection_zone >= 0)
+      films_.push_back({i, std::size_t(c.convection_zone), c.convection_h * x_.areas[i]});
+  }
+}
+
+void ZoneTerms::finish(const Eigen::VectorXd& T, ZoneState& s) const {
+  const std::size_t U = unknown_.size();
+  s.residual.resize(Eigen::Index(U));
+  s.convection = Eigen::VectorXd::Zero(Eigen::Index(P_ + Z_));
+  for (const Film& f : films_) {
+    const double q = f.hA * (T(P_ + f.zone) - T(f.patch));
+    s.convection(f.patch) += q;
+    s.convection(P_ + f.zone) += q;
+  }
+  for (std::size_t u = 0; u < U; ++u) {
+    const std::size_t r = unknown_[u];
+    if (r < P_) {
+      // Net radiation out plus the wall loss equals the power put in.
+      const ZonePatchCondition& c = in_.patches[r];
+      s.residual(u) = s.emitted(r) - s.absorbed(r) + wall_loss(r, T(r)) - c.power - s.convection(r);
+    } else {
+      s.residual(u) = gas_balance(r - P_, T, s);
+    }
+  }
+}
+
+void ZoneTerms::jacobian(const Eigen::VectorXd& T, const Eigen::MatrixXd& d_net,
+                         Eigen::MatrixXd* jacobian) const {
+  const std::size_t U = unknown_.size();
+  *jacobian = Eigen::MatrixXd::Zero(U, U);
+  for (std::size_t u = 0; u < U; ++u) {
+    const std::size_t r = unknown_[u];
+    if (r < P_) {
+      jacobian->row(u) = d_net.row(r);
+      (*jacobian)(u, u) += in_.patches[r].wall_U * x_.areas[r];
+      continue;
+    }
+    const std::size_t z = r - P_;
+    jacobian->row(u) = -d_net.row(r);
+    if (in_flow_[z]) {
+      (*jacobian)(u, u) -= in_.combustion->products_heat_capacity(T(r));
+      const int up = upstream_[z];
+      if (up >= 0 && column_of_[P_ + up] >= 0)
+        (*jacobian)(u, column_of_[P_ + up]) += in_.combustion->products_heat_capacity(T(P_ + up));
+    }
+  }
+  // The films, q = hA (T_zone - T_patch): a patch's residual (net out + losses - power) holds
+  // -q, a zone's (gains - losses) holds -q as well, as it loses what the patch gains.
+  for (const Film& f : films_) {
+    const int up = column_of_[f.patch], uz = column_of_[P_ + f.zone];
+    if (up >= 0) {
+      (*jacobian)(up, up) += f.hA;
+      if (uz >= 0) (*jacobian)(up, uz) -= f.hA;
+    }
+    if (uz >= 0) {
+      (*jacobian)(uz, uz) -= f.hA;
+      if (up >= 0) (*jacobian)(uz, up) += f.hA;
+    }
+  }
+}
+
+Eigen::VectorXd ZoneTerms::apply(const Eigen::VectorXd& T, const Eigen::VectorXd& d_net_v,
+                                 const Eigen::VectorXd& v) const {
+  const std::size_t U = unknown_.size();
+  Eigen::VectorXd out(U);
+  for (std::size_t u = 0; u < U; ++u) {
+    const std::size_t r = unknown_[u];
+    if (r < P_) {
+      out(u) = d_net_v(r) + in_.patches[r].wall_U * x_.areas[r] * v(u);
+      continue;
+    }
+    const std::size_t z = r - P_;
+    out(u) = -d_net_v(r);
+    if (in_flow_[z]) {
+      out(u) -= in_.combustion->products_heat_capacity(T(r)) * v(u);
+      const int up = upstream_[z];
+      if (up >= 0 && column_of_[P_ + up] >= 0)
+        out(u) += in_.combustion->products_heat_capacity(T(P_ + up)) * v(column_of_[P_ + up]);
+    }
+  }
+  for (const Film& f : films_) {
+    const int up = column_of_[f.patch], uz = column_of_[P_ + f.zone];
+    const double vp = up >= 0 ? v(up) : 0.0, vz = uz >= 0 ? v(uz) : 0.0;
+    if (up >= 0) out(up) += f.hA * (vp - vz);
+    if (uz >= 0) out(uz) += f.hA * (vp - vz);
+  }
+  return out;
+}
+
+Eigen::VectorXd ZoneTerms::diagonal(const Eigen::VectorXd& T,
+                                    const Eigen::VectorXd& d_net_diag) const {
+  const std::size_t U = unknown_.size();
+  Eigen::VectorXd out(U);
+  for (std::size_t u = 0; u < U; ++u) {
+    const std::size_t r = unknown_[u];
+    if (r < P_) {
+      out(u) = d_net_diag(u) + in_.patches[r].wall_U * x_.areas[r];
+    } else {
+      out(u) = -d_net_diag(u);
+      if (in_flow_[r - P_]) out(u) -= in_.combustion->products_heat_capacity(T(r));
+    }
+  }
+  for (const Film& f : films_) {
+    const int up = column_of_[f.patch], uz = column_of_[P_ + f.zone];
+    if (up >= 0) out(up) += f.hA;
+    if (uz >= 0) out(uz) -= f.hA;
+  }
+  return out;
+}
+
+double ZoneTerms::wall_loss(std::size_t patch, double T) const {
+  const ZonePatchCondition& c = in_.patches[patch];
+  return c.wall_U * x_.areas[patch] * (T - c.outside_temperature);
+}
+
+double ZoneTerms::enthalpy_in(std::size_t z, const Eigen::VectorXd& T) const {
+  if (!in_flow_[z]) return 0;
+  if (int(z) == first_) return in_.combustion->air_enthalpy_in;
+  return in_.combustion->products_enthalpy(T(P_ + upstream_[z]));
+}
+
+double ZoneTerms::enthalpy_out(std::size_t z, const Eigen::VectorXd& T) const {
+  return in_flow_[z] ? in_.combustion->products_enthalpy(T(P_ + z)) : 0.0;
+}
+
+double ZoneTerms::gas_balance(std::size_t z, const Eigen::VectorXd& T, const ZoneState& s) const {
+  const double release = in_.zones[z].known_temperature ? 0.0 : in_.zones[z].heat_release;
+  return release + enthalpy_in(z, T) - enthalpy_out(z, T) + s.absorbed(P_ + z) - s.emitted(P_ + z) -
+         s.convection(P_ + z);
+}
+
+double ZoneTerms::heat_scale() const {
+  double scale = 0;
+  for (std::size_t i = 0; i < P_; ++i) scale += std::fabs(in_.patches[i].power);
+  for (std::size_t z = 0; z < Z_; ++z) scale += in_.zones[z].heat_release;
+  if (in_.combustion) scale += in_.combustion->air_enthalpy_in;
+  return scale;
+}
+
+bool newton_done(const ZoneSolveInput& in, int it, double scale, ZoneSolveResult& result) {
+  result.iterations = it;
+  if (result.max_residual <= in.tolerance * scale) {
+    result.converged = true;
+    result.message = "converged";
+    return true;
+  }
+  if (it < in.max_iterations) return false;
+  result.message = "Newton's method did not converge in " + std::to_string(it) +
+                   " iterations (largest residual " + std::to_string(result.max_residual) + " W)";
+  return true;
+}
+
+void damped_step(const std::vector<std::size_t>& unknown, const Eigen::VectorXd& step,
+                 Eigen::VectorXd& T) {
+  for (std::size_t u = 0; u < unknown.size(); ++u) {
+    const double t = T(unknown[u]);
+    T(unknown[u]) = std::min(std::max(t + step(u), 0.5 * t), 2 * t);
+  }
+}
+
 namespace {
 
-class ZoneSystem {
+// Radiation on dense exchange areas: for each gray gas the radiosity matrix
+// diag(A) - diag(rho) S_ss factored once; dJ/dT from the same factors.
+class DenseRadiation {
  public:
-  explicit ZoneSystem(const ZoneSolveInput& in)
+  explicit DenseRadiation(const ZoneSolveInput& in)
       : in_(in), x_(*in.exchange), P_(x_.patch_count), Z_(x_.zone_count()), G_(x_.gas_count()) {
     for (std::size_t g = 0; g < G_; ++g) {
       Eigen::MatrixXd M = -x_.S[g].topLeftCorner(P_, P_);
@@ -75,41 +257,16 @@ class ZoneSystem {
       }
       lu_.emplace_back(M);
     }
-    for (std::size_t i = 0; i < P_; ++i)
-      if (!in.patches[i].known_temperature) unknown_.push_back(i);
-    for (std::size_t z = 0; z < Z_; ++z)
-      if (!in.zones[z].known_temperature) unknown_.push_back(P_ + z);
-    upstream_.assign(Z_, -1);
-    in_flow_.assign(Z_, false);
-    for (std::size_t m = 0; m < in.flow_order.size(); ++m) {
-      in_flow_[in.flow_order[m]] = true;
-      if (m > 0) upstream_[in.flow_order[m]] = int(in.flow_order[m - 1]);
-    }
-    if (!in.flow_order.empty()) first_ = int(in.flow_order.front());
-    for (std::size_t i = 0; i < P_; ++i) {
-      const ZonePatchCondition& c = in.patches[i];
-      if (c.convection_h > 0 && c.convection_zone >= 0)
-        films_.push_back({i, std::size_t(c.convection_zone), c.convection_h * x_.areas[i]});
-    }
   }
 
-  const std::vector<std::size_t>& unknowns() const { return unknown_; }
-
-  // Everything at temperatures T (patches then zones): per-row net quantities, and, when
-  // `jacobian` is given, the derivatives of the residuals of the unknowns.
-  struct State {
-    Eigen::VectorXd emitted, absorbed;  // per row (patches then zones), W
-    Eigen::VectorXd convection;         // per row: into a patch (> 0), out of a zone (> 0), W
-    double to_surroundings = 0;
-    Eigen::VectorXd residual;  // per unknown
-  };
-  State evaluate(const Eigen::VectorXd& T, Eigen::MatrixXd* jacobian) const {
+  // Emission, absorption and what the surroundings take at temperatures T; with `jacobian`
+  // (d_net), d(emitted - absorbed of row) / d(T of unknown), N x U.
+  void evaluate(const Eigen::VectorXd& T, const std::vector<std::size_t>& unknown_, ZoneState& s,
+                Eigen::MatrixXd* jacobian) const {
     const std::size_t N = P_ + Z_, U = unknown_.size();
-    State s;
     s.emitted = Eigen::VectorXd::Zero(N);
     s.absorbed = Eigen::VectorXd::Zero(N);
-    Eigen::MatrixXd d_net;  // d(emitted - absorbed of row) / d(T of unknown), N x U
-    if (jacobian) d_net = Eigen::MatrixXd::Zero(N, U);
+    if (jacobian) *jacobian = Eigen::MatrixXd::Zero(N, U);
     const double Tsur = in_.surroundings_temperature;
     for (std::size_t g = 0; g < G_; ++g) {
       const GrayGasSet& gas = *in_.gases;
@@ -143,6 +300,7 @@ class ZoneSystem {
       s.absorbed.tail(Z_) += Szp * J + Szz * Ez + L.tail(Z_) * Esur;
       s.to_surroundings += L.head(P_).dot(J) + L.tail(Z_).dot(Ez) - L.sum() * Esur;
       if (!jacobian) continue;
+      Eigen::MatrixXd& d_net = *jacobian;
       // dJ/dT_u = M^-1 db/dT_u: a patch's own emission, or a zone's through the reflections.
       const std::size_t U = unknown_.size();
       Eigen::MatrixXd B = Eigen::MatrixXd::Zero(P_, U);
@@ -170,80 +328,6 @@ class ZoneSystem {
       d_net.topRows(P_) -= eps.asDiagonal() * dAH;
       d_net.bottomRows(Z_) -= dAbsZ;
     }
-    s.residual.resize(U);
-    if (jacobian) *jacobian = Eigen::MatrixXd::Zero(U, U);
-    std::vector<int> column_of(P_ + Z_, -1);
-    for (std::size_t u = 0; u < U; ++u) column_of[unknown_[u]] = int(u);
-    s.convection = Eigen::VectorXd::Zero(N);
-    for (const Film& f : films_) {
-      const double q = f.hA * (T(P_ + f.zone) - T(f.patch));
-      s.convection(f.patch) += q;
-      s.convection(P_ + f.zone) += q;
-    }
-    for (std::size_t u = 0; u < U; ++u) {
-      const std::size_t r = unknown_[u];
-      if (r < P_) {
-        // Net radiation out plus the wall loss equals the power put in.
-        const ZonePatchCondition& c = in_.patches[r];
-        s.residual(u) =
-            s.emitted(r) - s.absorbed(r) + wall_loss(r, T(r)) - c.power - s.convection(r);
-        if (jacobian) {
-          jacobian->row(u) = d_net.row(r);
-          (*jacobian)(u, u) += c.wall_U * x_.areas[r];
-        }
-      } else {
-        const std::size_t z = r - P_;
-        s.residual(u) = gas_balance(z, T, s);
-        if (!jacobian) continue;
-        jacobian->row(u) = -d_net.row(r);
-        if (in_flow_[z]) {
-          (*jacobian)(u, u) -= in_.combustion->products_heat_capacity(T(r));
-          const int up = upstream_[z];
-          if (up >= 0 && column_of[P_ + up] >= 0)
-            (*jacobian)(u, column_of[P_ + up]) +=
-                in_.combustion->products_heat_capacity(T(P_ + up));
-        }
-      }
-    }
-    if (jacobian) add_film_derivatives(column_of, *jacobian);
-    return s;
-  }
-
-  // d(residual)/dT of the films, q = hA (T_zone - T_patch): a patch's residual (net out +
-  // losses - power) holds -q, a zone's (gains - losses) holds -q as well, as it loses what the
-  // patch gains.
-  void add_film_derivatives(const std::vector<int>& column_of, Eigen::MatrixXd& jacobian) const {
-    for (const Film& f : films_) {
-      const int up = column_of[f.patch], uz = column_of[P_ + f.zone];
-      if (up >= 0) {
-        jacobian(up, up) += f.hA;
-        if (uz >= 0) jacobian(up, uz) -= f.hA;
-      }
-      if (uz >= 0) {
-        jacobian(uz, uz) -= f.hA;
-        if (up >= 0) jacobian(uz, up) += f.hA;
-      }
-    }
-  }
-
-  double wall_loss(std::size_t patch, double T) const {
-    const ZonePatchCondition& c = in_.patches[patch];
-    return c.wall_U * x_.areas[patch] * (T - c.outside_temperature);
-  }
-  double enthalpy_in(std::size_t z, const Eigen::VectorXd& T) const {
-    if (!in_flow_[z]) return 0;
-    if (int(z) == first_) return in_.combustion->air_enthalpy_in;
-    return in_.combustion->products_enthalpy(T(P_ + upstream_[z]));
-  }
-  double enthalpy_out(std::size_t z, const Eigen::VectorXd& T) const {
-    return in_flow_[z] ? in_.combustion->products_enthalpy(T(P_ + z)) : 0.0;
-  }
-  // Release + enthalpy in - out + absorbed - emitted - convection to the patches (the
-  // residual of an unknown zone).
-  double gas_balance(std::size_t z, const Eigen::VectorXd& T, const State& s) const {
-    const double release = in_.zones[z].known_temperature ? 0.0 : in_.zones[z].heat_release;
-    return release + enthalpy_in(z, T) - enthalpy_out(z, T) + s.absorbed(P_ + z) -
-           s.emitted(P_ + z) - s.convection(P_ + z);
   }
 
  private:
@@ -251,45 +335,25 @@ class ZoneSystem {
   const GasExchange& x_;
   std::size_t P_, Z_, G_;
   std::vector<Eigen::PartialPivLU<Eigen::MatrixXd>> lu_;
-  std::vector<std::size_t> unknown_;  // rows (patches then zones) of unknown temperature
-  std::vector<int> upstream_;
-  std::vector<bool> in_flow_;
-  int first_ = -1;
-  struct Film {
-    std::size_t patch, zone;
-    double hA;  // W/K
-  };
-  std::vector<Film> films_;  // convection between a patch and its zone
 };
 
 // Newton's method on the unknown temperatures, damped; fills converged, iterations, message
 // and max_residual, and leaves T and the state at the last iterate.
-void newton(const ZoneSolveInput& in, const ZoneSystem& system, Eigen::VectorXd& T,
-            ZoneSystem::State& state, ZoneSolveResult& result) {
-  const std::size_t P = in.exchange->patch_count, Z = in.exchange->zone_count();
-  const auto& unknown = system.unknowns();
-  double heat_scale = 0;  // what the residuals are measured against
-  for (std::size_t i = 0; i < P; ++i) heat_scale += std::fabs(in.patches[i].power);
-  for (std::size_t z = 0; z < Z; ++z) heat_scale += in.zones[z].heat_release;
-  if (in.combustion) heat_scale += in.combustion->air_enthalpy_in;
+void newton(const ZoneSolveInput& in, const ZoneTerms& terms, Eigen::VectorXd& T, ZoneState& state,
+            ZoneSolveResult& result) {
+  const DenseRadiation radiation(in);
+  const auto& unknown = terms.unknowns();
+  const double heat_scale = terms.heat_scale();  // what the residuals are measured against
   for (int it = 0;; ++it) {
-    Eigen::MatrixXd jacobian;
-    state = system.evaluate(T, unknown.empty() ? nullptr : &jacobian);
-    const double radiation = state.emitted.cwiseAbs().sum();
-    const double scale = std::max(heat_scale + radiation, 1e-300);
+    Eigen::MatrixXd d_net, jacobian;
+    state = ZoneState{};
+    radiation.evaluate(T, unknown, state, unknown.empty() ? nullptr : &d_net);
+    terms.finish(T, state);
+    if (!unknown.empty()) terms.jacobian(T, d_net, &jacobian);
+    const double radiation_sum = state.emitted.cwiseAbs().sum();
+    const double scale = std::max(heat_scale + radiation_sum, 1e-300);
     result.max_residual = unknown.empty() ? 0.0 : state.residual.cwiseAbs().maxCoeff();
-    result.iterations = it;
-    if (result.max_residual <= in.tolerance * scale) {
-      result.converged = true;
-      result.message = "converged";
-      return;
-    }
-    if (it == in.max_iterations) {
-      result.message = "Newton's method did not converge in " + std::to_string(it) +
-                       " iterations (largest residual " + std::to_string(result.max_residual) +
-                       " W)";
-      return;
-    }
+    if (newton_done(in, it, scale, result)) return;
     Eigen::FullPivLU<Eigen::MatrixXd> lu(jacobian);
     if (!lu.isInvertible()) {
       result.message =
@@ -297,18 +361,15 @@ void newton(const ZoneSolveInput& in, const ZoneSystem& system, Eigen::VectorXd&
           "exchanges no heat (clear gas with no flow, or isolated)";
       return;
     }
-    const Eigen::VectorXd step = lu.solve(-state.residual);
-    // Damped: no temperature falls below half or rises above twice its value in one step.
-    for (std::size_t u = 0; u < unknown.size(); ++u) {
-      const double t = T(unknown[u]);
-      T(unknown[u]) = std::min(std::max(t + step(u), 0.5 * t), 2 * t);
-    }
+    damped_step(unknown, lu.solve(-state.residual), T);
   }
 }
 
+}  // namespace
+
 // Per-patch and per-zone results at the solution, the flue and the energy balance.
-void collect_results(const ZoneSolveInput& in, const ZoneSystem& system, const Eigen::VectorXd& T,
-                     const ZoneSystem::State& state, ZoneSolveResult& result) {
+void collect_results(const ZoneSolveInput& in, const ZoneTerms& system, const Eigen::VectorXd& T,
+                     const ZoneState& state, ZoneSolveResult& result) {
   const std::size_t P = in.exchange->patch_count, Z = in.exchange->zone_count();
   result.patches.resize(P);
   for (std::size_t i = 0; i < P; ++i) {
@@ -348,21 +409,24 @@ void collect_results(const ZoneSolveInput& in, const ZoneSystem& system, const E
                          result.to_surroundings - result.flue_enthalpy;
 }
 
-}  // namespace
+}  // namespace gas_detail
 
 ZoneSolveResult solve_zones(const ZoneSolveInput& in) {
   std::string why;
   if (!in.IsValid(&why)) throw InputError("zone solve: " + why);
   const GasExchange& x = *in.exchange;
   const std::size_t P = x.patch_count, Z = x.zone_count(), N = P + Z;
-  const ZoneSystem system(in);
+  const gas_detail::ZoneTerms terms(in);
   Eigen::VectorXd T(N);
   for (std::size_t i = 0; i < P; ++i) T(i) = in.patches[i].temperature;
   for (std::size_t z = 0; z < Z; ++z) T(P + z) = in.zones[z].temperature;
   ZoneSolveResult result;
-  ZoneSystem::State state;
-  newton(in, system, T, state, result);
-  collect_results(in, system, T, state, result);
+  gas_detail::ZoneState state;
+  if (x.dense())
+    gas_detail::newton(in, terms, T, state, result);
+  else
+    gas_detail::solve_large(in, terms, T, state, result);
+  gas_detail::collect_results(in, terms, T, state, result);
   return result;
 }
 

@@ -27,8 +27,9 @@ const std::vector<std::string> kTopKeys = {"mesh",    "rays",  "surroundings", "
                                            "surface", "panel", "panel_group",  "comfort",
                                            "gas",     "firing"};
 const std::vector<std::string> kMeshKeys = {"file", "unit", "surfaces_from"};
-const std::vector<std::string> kRaysKeys = {"per_patch", "total", "min_per_patch", "seed",
-                                            "sampler"};
+const std::vector<std::string> kRaysKeys = {"per_patch",     "total",     "min_per_patch",
+                                            "seed",          "sampler",   "target_error",
+                                            "max_per_patch", "time_limit"};
 const std::vector<std::string> kSurroundingsKeys = {"temperature"};
 const std::vector<std::string> kSurfaceKeys = {
     "two_sided", "emissivity", "temperature", "heat_flux", "power",
@@ -145,6 +146,51 @@ class Reader {
                               (i ? std::to_string(i->get()) : type_name(node)));
     }
     return static_cast<std::uint64_t>(i->get());
+  }
+
+  // [rays] target_error, with max_per_patch and time_limit (which need it).
+  void read_target(const toml::table& rays, SceneFile* file) const {
+    if (const toml::node* n = rays.get("target_error")) {
+      std::string text;
+      if (const auto* f = n->as_floating_point())
+        text = shortest(f->get());
+      else if (const auto* i = n->as_integer())
+        text = std::to_string(i->get());
+      else if (const auto* str = n->as_string())
+        text = str->get();
+      else
+        fail(n->source(),
+             "target_error in [rays] must be a number, like target_error = 0.001; "
+             "got " +
+                 type_name(*n));
+      try {
+        file->target_error = parse_target_error(text, "target_error in [rays]");
+      } catch (const InputError& e) {
+        fail(n->source(), e.what());
+      }
+      if (file->rays_total)
+        fail(n->source(),
+             "[rays] gives both total and target_error: give one (target_error "
+             "traces rounds of rays per patch until the error is reached; per_patch "
+             "then sets the first round)");
+    }
+    for (const char* key : {"max_per_patch", "time_limit"}) {
+      const toml::node* n = rays.get(key);
+      if (n && !file->target_error)
+        fail(n->source(), std::string(key) +
+                              " in [rays] limits the rounds of target_error = "
+                              "...; give target_error too");
+    }
+    if (const toml::node* n = rays.get("max_per_patch"))
+      file->target_max_per_patch = whole_number(*n, "max_per_patch", true, "4_000_000");
+    if (const toml::node* n = rays.get("time_limit")) {
+      const std::string text = need_string(*n, "time_limit", "[rays]", "\"10 min\"");
+      try {
+        file->target_time_limit_s = parse_time_limit(text, "time_limit in [rays]");
+      } catch (const InputError& e) {
+        fail(n->source(), e.what());
+      }
+    }
   }
 
   Convection convection(const toml::node& node, const std::string& table_name) const {
@@ -404,6 +450,7 @@ class Reader {
                "patch gets the same rays anyway");
         file.rays_min_per_patch = whole_number(*n, "min_per_patch", true, "1000");
       }
+      read_target(rays, &file);
     }
 
     if (const toml::node* sur_node = root.get("surroundings")) {

@@ -291,3 +291,38 @@ double parse_conductivity(const std::string& text, const std::string& what) {
 }
 
 }  // namespace hearthray
+
+namespace hearthray {
+
+double parse_target_error(const std::string& raw, const std::string& what) {
+  const std::string text = trim(raw);
+  const std::string example =
+      " (a number such as 0.001: every view factor to within a standard error of 0.001)";
+  if (text.find('%') != std::string::npos) {
+    throw InputError(what + " \"" + raw +
+                     "\": a relative target on heat flows is not available yet; give the "
+                     "largest standard error wanted of the view factors as a plain number" +
+                     example);
+  }
+  const std::size_t n = number_prefix(text);
+  if (n == 0 || n != text.size())
+    throw InputError(what + " \"" + raw + "\" is not a plain number" + example);
+  const double value = std::strtod(text.c_str(), nullptr);
+  if (!(value > 0 && value < 0.5)) {
+    throw InputError(what + " \"" + raw +
+                     "\" is out of range: the standard error of a view factor lies between 0 "
+                     "and 0.5, so give a number above 0 and below 0.5" +
+                     example);
+  }
+  return value;
+}
+
+double parse_time_limit(const std::string& text, const std::string& what) {
+  static const QuantityDef time{
+      "time", "10", "min", "s, min, h", {{"s", 1.0}, {"min", 60.0}, {"h", 3600.0}}};
+  const double seconds = parse_with(time, text, what);
+  if (!(seconds > 0)) throw InputError(what + " \"" + text + "\" must be above zero");
+  return seconds;
+}
+
+}  // namespace hearthray

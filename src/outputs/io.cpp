@@ -16,6 +16,7 @@
 #include "core/text.hpp"
 #include "hearthray/error.hpp"
 #include "outputs/atomic_file.hpp"
+#include "outputs/target_json.hpp"
 
 namespace hearthray {
 // RFC 4180: a field with a comma, a double quote or a line break is quoted, quotes doubled.
@@ -172,7 +173,8 @@ void write_factors_json(std::ostream& out, const ViewFactors& vf, const FactorRe
                  {"smoothing_iterations", info.smoothing_iterations},
                  {"max_row_error", info.max_row_error},
                  {"max_reciprocity_error", info.max_reciprocity_error},
-                 {"warnings", info.warnings}};
+                 {"warnings", info.warnings},
+                 {"target", target_json(info.target)}};
   doc["caution"] =
       "Engineering estimate only. View factors are Monte Carlo estimates for the mesh as given: "
       "each carries the standard error listed beside it, and the mesh approximates the real "

@@ -12,6 +12,7 @@
 #include "hearthray/io.hpp"
 #include "hearthray/outer_case.hpp"
 #include "hearthray/units.hpp"
+#include "outputs/target_json.hpp"
 
 namespace hearthray {
 namespace {
@@ -284,6 +285,7 @@ json view_factors_json(const SolveReportInfo& info, const ThermalModel& model) {
   vf["leaks_folded"] = model.leaks_folded;
   vf["warnings"] = info.warnings;
   vf["files"] = info.files;
+  vf["target"] = target_json(info.target);
   return vf;
 }
 

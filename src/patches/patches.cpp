@@ -4,8 +4,10 @@
 #include <cmath>
 #include <map>
 #include <tuple>
+#include <unordered_map>
 
 #include "hearthray/error.hpp"
+#include "patches/layout.hpp"
 
 namespace hearthray {
 
@@ -38,6 +40,44 @@ void add_groups(const Scene& scene, std::uint32_t s,
   }
 }
 
+// The patches of a surface cut by size, laid out chart by chart (patches/layout.hpp): groups
+// in the order their first triangle appears, so patch numbers follow the mesh. Small charts
+// share the cell of a grid of the patch size their centroid falls in.
+std::vector<std::vector<std::uint32_t>> size_groups(const Scene& scene, std::uint32_t s,
+                                                    double size,
+                                                    const std::vector<std::uint32_t>& weld) {
+  const Surface& surface = scene.surfaces[s];
+  if (!(size > 0) || !std::isfinite(size))
+    throw InputError("surface '" + surface.name + "': patch size must be positive");
+  std::vector<std::uint64_t> key(surface.triangle_count);
+  std::map<std::tuple<long long, long long, long long>, std::uint64_t> small_cells;
+  const auto charts = patch_layout::lay_out(scene, s, size, weld);
+  for (std::size_t c = 0; c < charts.size(); ++c) {
+    const patch_layout::Chart& chart = charts[c];
+    std::vector<std::uint32_t> piece(chart.triangles.size(), 0);
+    std::uint64_t base = std::uint64_t(c) << 32;
+    if (chart.kind == patch_layout::ChartKind::small) {
+      const Vec3 m = chart.centroid / size;
+      const auto cell = std::make_tuple(static_cast<long long>(std::floor(m.x)),
+                                        static_cast<long long>(std::floor(m.y)),
+                                        static_cast<long long>(std::floor(m.z)));
+      base = small_cells.emplace(cell, (charts.size() + small_cells.size()) << 32).first->second;
+    } else {
+      piece = patch_layout::pieces(scene, chart, weld);
+    }
+    for (std::size_t k = 0; k < piece.size(); ++k)
+      key[chart.triangles[k] - surface.first_triangle] = base | piece[k];
+  }
+  std::vector<std::vector<std::uint32_t>> groups;
+  std::unordered_map<std::uint64_t, std::size_t> group_of_key;
+  for (std::uint32_t i = 0; i < surface.triangle_count; ++i) {
+    const auto [it, inserted] = group_of_key.emplace(key[i], groups.size());
+    if (inserted) groups.emplace_back();
+    groups[it->second].push_back(surface.first_triangle + i);
+  }
+  return groups;
+}
+
 }  // namespace
 
 PatchSet make_patches(const Scene& scene, const std::vector<PatchSpec>& specs) {
@@ -48,6 +88,7 @@ PatchSet make_patches(const Scene& scene, const std::vector<PatchSpec>& specs) {
   set.front_patch_of_triangle.assign(n_tri, PatchSet::kNoPatch);
   set.back_patch_of_triangle.assign(n_tri, PatchSet::kNoPatch);
   set.triangle_offset.push_back(0);
+  std::vector<std::uint32_t> weld;  // welded vertex ids, made when a surface needs them
   for (std::uint32_t s = 0; s < scene.surfaces.size(); ++s) {
     const Surface& surface = scene.surfaces[s];
     const std::uint32_t t0 = surface.first_triangle, t1 = t0 + surface.triangle_count;
@@ -63,24 +104,8 @@ PatchSet make_patches(const Scene& scene, const std::vector<PatchSpec>& specs) {
         break;
       }
       case PatchSpec::Mode::size: {
-        const double size = specs[s].size;
-        if (!(size > 0) || !std::isfinite(size))
-          throw InputError("surface '" + surface.name + "': patch size must be positive");
-        // Grid cells keyed by the integer cell of each triangle's centroid; groups in the
-        // order their first triangle appears, so patch numbers follow the mesh.
-        std::map<std::tuple<long long, long long, long long>, std::size_t> cell_group;
-        for (std::uint32_t t = t0; t < t1; ++t) {
-          const Triangle& tri = scene.triangles[t];
-          const Vec3 c =
-              (scene.vertices[tri.v[0]] + scene.vertices[tri.v[1]] + scene.vertices[tri.v[2]]) /
-              3.0;
-          const auto key = std::make_tuple(static_cast<long long>(std::floor(c.x / size)),
-                                           static_cast<long long>(std::floor(c.y / size)),
-                                           static_cast<long long>(std::floor(c.z / size)));
-          const auto [it, inserted] = cell_group.emplace(key, groups.size());
-          if (inserted) groups.emplace_back();
-          groups[it->second].push_back(t);
-        }
+        if (weld.empty()) weld = patch_layout::weld_ids(scene.vertices);
+        groups = size_groups(scene, s, specs[s].size, weld);
         break;
       }
     }

@@ -1,72 +1,93 @@
-// Conforming longest-edge bisection (after Rivara, "Algorithms for refining triangular grids
-// suitable for adaptive and multigrid techniques", Int. J. Numer. Meth. Eng. 20, 1984): the
-// edge chosen for a triangle is split in every triangle that shares it.
+// Cutting a mesh for its patches (see patches.hpp and patches/layout.hpp): rectangle and
+// cylinder charts are cut along planes (grid lines, band boundaries), charts of other shapes
+// split by conforming longest-edge bisection (after Rivara, "Algorithms for refining
+// triangular grids suitable for adaptive and multigrid techniques", Int. J. Numer. Meth. Eng.
+// 20, 1984). Both split an edge in every triangle that shares it, so the mesh stays conforming.
 #include <algorithm>
 #include <cmath>
-#include <map>
-#include <numeric>
 #include <queue>
 #include <unordered_map>
 
 #include "hearthray/error.hpp"
 #include "hearthray/patches.hpp"
+#include "patches/layout.hpp"
 
 namespace hearthray {
 
 namespace {
 
-// Weld ids: vertices at exactly the same position share an id.
-std::vector<std::uint32_t> weld_ids(const std::vector<Vec3>& vertices) {
-  std::vector<std::uint32_t> order(vertices.size());
-  std::iota(order.begin(), order.end(), 0u);
-  std::sort(order.begin(), order.end(), [&](std::uint32_t a, std::uint32_t b) {
-    const Vec3 &p = vertices[a], &q = vertices[b];
-    if (p.x != q.x) return p.x < q.x;
-    if (p.y != q.y) return p.y < q.y;
-    return p.z < q.z;
-  });
-  std::vector<std::uint32_t> id(vertices.size());
-  std::uint32_t next = 0;
-  for (std::size_t i = 0; i < order.size(); ++i) {
-    if (i > 0 && !(vertices[order[i]] == vertices[order[i - 1]])) ++next;
-    id[order[i]] = next;
-  }
-  return id;
-}
+using patch_layout::edge_key;
 
-std::uint64_t edge_key(std::uint32_t a, std::uint32_t b) {
-  if (a > b) std::swap(a, b);
-  return (std::uint64_t(a) << 32) | b;
-}
-
-// Longest-edge bisection of a welded mesh: splitting an edge splits every triangle that uses
-// it, at one shared midpoint, so the mesh stays conforming (no T-junctions).
-class Bisection {
+// A welded mesh whose edges are split at a point in every triangle that uses them: no
+// T-junctions. Each triangle carries a tag (its chart, or kNoTag) and a longest-edge limit,
+// which its pieces inherit.
+class Refiner {
  public:
-  explicit Bisection(const Scene& scene)
+  static constexpr std::uint32_t kNoTag = 0xffffffffu;
+
+  explicit Refiner(const Scene& scene)
       : vertices_(scene.vertices),
-        weld_(weld_ids(vertices_)),
+        weld_(patch_layout::weld_ids(vertices_)),
         tris_(scene.triangles),
-        alive_(tris_.size(), true) {
+        alive_(tris_.size(), true),
+        tag_(tris_.size(), kNoTag),
+        limit_(tris_.size(), INFINITY) {
     next_weld_ = weld_.empty() ? 0 : *std::max_element(weld_.begin(), weld_.end()) + 1;
     for (std::uint32_t t = 0; t < tris_.size(); ++t) add_uses(t);
   }
 
-  // Splits until no edge is longer than its surface's limit.
-  void run(const std::vector<double>& limit) {
+  void set(std::uint32_t t, std::uint32_t tag, double limit) {
+    tag_[t] = tag;
+    limit_[t] = limit;
+    if (tag == kNoTag) return;
+    if (tag >= members_.size()) members_.resize(tag + 1);
+    members_[tag].push_back(t);
+  }
+
+  // Cuts the triangles tagged `tag` along `plane`: every edge of theirs whose ends lie
+  // strictly on opposite sides is split where it crosses, until none crosses. Each split
+  // leaves edges ending on the plane, so this ends, and the plane is then made of edges.
+  void cut(std::uint32_t tag, const patch_layout::CutPlane& plane) {
     std::queue<std::uint32_t> work;
-    for (std::uint32_t t = 0; t < tris_.size(); ++t) work.push(t);
+    for (std::uint32_t t : members_[tag])
+      if (alive_[t]) work.push(t);
+    auto side = [&](std::uint32_t v) {
+      const double d = dot(plane.normal, vertices_[v]) - plane.offset;
+      return std::fabs(d) <= plane.tolerance ? 0.0 : d;
+    };
+    while (!work.empty()) {
+      const std::uint32_t t = work.front();
+      work.pop();
+      if (!alive_[t] || tag_[t] != tag) continue;
+      for (int k = 0; k < 3; ++k) {
+        const std::uint32_t a = tris_[t].v[k], b = tris_[t].v[(k + 1) % 3];
+        const double da = side(a), db = side(b);
+        if (!((da < 0 && db > 0) || (da > 0 && db < 0))) continue;
+        const Vec3 at = vertices_[a] + (vertices_[b] - vertices_[a]) * (da / (da - db));
+        split(a, b, at, &work);
+        break;
+      }
+    }
+  }
+
+  // Splits every triangle whose longest edge exceeds its limit until none does.
+  void bisect() {
+    std::queue<std::uint32_t> work;
+    for (std::uint32_t t = 0; t < tris_.size(); ++t)
+      if (alive_[t] && std::isfinite(limit_[t])) work.push(t);
     while (!work.empty()) {
       const std::uint32_t t = work.front();
       work.pop();
       if (!alive_[t]) continue;
       const auto [k, len2] = longest(t);
-      const double lim = limit[tris_[t].surface];
-      if (len2 > lim * lim) split(tris_[t].v[k], tris_[t].v[(k + 1) % 3], &work);
+      if (len2 > limit_[t] * limit_[t]) {
+        const std::uint32_t a = tris_[t].v[k], b = tris_[t].v[(k + 1) % 3];
+        split(a, b, (vertices_[a] + vertices_[b]) * 0.5, &work);
+      }
     }
   }
 
-  // The scene with the split triangles grouped by surface, in the original order.
+  // The refined scene, triangles grouped by surface in their order of creation.
   Scene result(const Scene& scene) {
     Scene out;
     out.source = scene.source;
@@ -109,12 +130,12 @@ class Bisection {
     }
     return {best, best_len};
   }
-  // Splits the edge a-b at one midpoint vertex shared by every triangle that uses it; the
-  // halves join the work queue.
-  void split(std::uint32_t a, std::uint32_t b, std::queue<std::uint32_t>* work) {
+  // Splits the edge a-b at one new vertex `at` shared by every triangle that uses it; the
+  // halves inherit their parent's tag and limit and join the work queue.
+  void split(std::uint32_t a, std::uint32_t b, const Vec3& at, std::queue<std::uint32_t>* work) {
     const std::uint64_t edge = edge_key(weld_[a], weld_[b]);
     const std::uint32_t m = static_cast<std::uint32_t>(vertices_.size());
-    vertices_.push_back((vertices_[a] + vertices_[b]) * 0.5);
+    vertices_.push_back(at);
     weld_.push_back(next_weld_++);
     const std::vector<std::uint32_t> sharing = users_[edge];
     for (std::uint32_t u : sharing) {
@@ -131,6 +152,9 @@ class Bisection {
         const auto id = static_cast<std::uint32_t>(tris_.size());
         tris_.push_back(child);
         alive_.push_back(true);
+        tag_.push_back(tag_[u]);
+        limit_.push_back(limit_[u]);
+        if (tag_[u] != kNoTag) members_[tag_[u]].push_back(id);
         add_uses(id);
         work->push(id);
       }
@@ -142,25 +166,51 @@ class Bisection {
   std::uint32_t next_weld_ = 0;
   std::vector<Triangle> tris_;
   std::vector<bool> alive_;
+  std::vector<std::uint32_t> tag_;
+  std::vector<double> limit_;
+  std::vector<std::vector<std::uint32_t>> members_;  // triangles ever tagged with each tag
   // Welded edge -> triangles using it (a handful each).
   std::unordered_map<std::uint64_t, std::vector<std::uint32_t>> users_;
 };
 
+void check_size(const Scene& scene, const std::vector<PatchSpec>& specs, std::size_t s) {
+  if (!(specs[s].size > 0) || !std::isfinite(specs[s].size))
+    throw InputError("surface '" + scene.surfaces[s].name + "': patch size must be positive");
+}
+
 }  // namespace
+
+Scene split_long_edges(const Scene& scene, const std::vector<double>& limit) {
+  if (limit.size() != scene.surfaces.size())
+    throw InputError("split_long_edges: one limit per surface expected");
+  Refiner refiner(scene);
+  for (std::uint32_t t = 0; t < scene.triangles.size(); ++t)
+    refiner.set(t, Refiner::kNoTag, limit[scene.triangles[t].surface]);
+  refiner.bisect();
+  return refiner.result(scene);
+}
 
 Scene subdivide(const Scene& scene, const std::vector<PatchSpec>& specs) {
   if (specs.size() != scene.surfaces.size())
     throw InputError("subdivide: one patch spec per surface expected");
-  std::vector<double> limit(scene.surfaces.size(), INFINITY);
-  for (std::size_t s = 0; s < specs.size(); ++s) {
+  const std::vector<std::uint32_t> weld = patch_layout::weld_ids(scene.vertices);
+  Refiner refiner(scene);
+  std::vector<std::vector<patch_layout::CutPlane>> planes;  // per tag
+  for (std::uint32_t s = 0; s < scene.surfaces.size(); ++s) {
     if (specs[s].mode != PatchSpec::Mode::size) continue;
-    if (!(specs[s].size > 0) || !std::isfinite(specs[s].size))
-      throw InputError("surface '" + scene.surfaces[s].name + "': patch size must be positive");
-    limit[s] = specs[s].size;
+    check_size(scene, specs, s);
+    for (const patch_layout::Chart& chart : patch_layout::lay_out(scene, s, specs[s].size, weld)) {
+      const bool split = chart.kind == patch_layout::ChartKind::regions && chart.regions > 1;
+      const auto tag = static_cast<std::uint32_t>(planes.size());
+      for (std::uint32_t t : chart.triangles)
+        refiner.set(t, tag, split ? 0.5 * specs[s].size : INFINITY);
+      planes.push_back(patch_layout::cut_planes(chart));
+    }
   }
-  Bisection bisection(scene);
-  bisection.run(limit);
-  return bisection.result(scene);
+  for (std::uint32_t tag = 0; tag < planes.size(); ++tag)
+    for (const patch_layout::CutPlane& plane : planes[tag]) refiner.cut(tag, plane);
+  refiner.bisect();
+  return refiner.result(scene);
 }
 
 }  // namespace hearthray

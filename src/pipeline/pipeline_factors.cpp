@@ -39,6 +39,11 @@ bool PipelineOptions::IsValid(std::string* error) const {
   };
   if (rays_per_patch && *rays_per_patch == 0) return fail("rays_per_patch must be at least 1");
   if (threads < 0) return fail("threads must be 0 (all cores) or a positive count");
+  if (target_error && !(*target_error > 0 && *target_error < 0.5))
+    return fail("target_error must be above 0 and below 0.5");
+  if (max_rays_per_patch && *max_rays_per_patch == 0)
+    return fail("max_rays_per_patch must be at least 1");
+  if (time_limit_s && !(*time_limit_s > 0)) return fail("time_limit_s must be above 0");
   std::string why;
   if (!smoothing.IsValid(&why)) return fail("smoothing: " + why);
   if (!thermal_model.IsValid(&why)) return fail("thermal_model: " + why);
@@ -155,6 +160,15 @@ FactorRun cached_run(const SceneFile& file, const Scene& scene, const PipelineOp
 }  // namespace
 
 FactorRun factor_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options) {
+  if (options.target_error || file.target_error) return target_run(file, scene, options);
+  if (options.max_rays_per_patch || options.time_limit_s)
+    throw InputError(
+        "a ray cap or a time limit limits the rounds of a target error: give the target too "
+        "(--target-error, or target_error in [rays])");
+  return one_run(file, scene, options);
+}
+
+FactorRun one_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options) {
   const Reporter reporter(options);
   if (options.use_cache) {
     const std::string dir = options.cache_dir.empty() ? default_cache_dir() : options.cache_dir;

@@ -45,7 +45,12 @@ class Reporter {
 // Throws std::invalid_argument naming the field when the options are not valid.
 void check_options(const PipelineOptions& options);
 
-// run_view_factors without an arena of its own (the caller runs it in one).
+// run_view_factors without an arena of its own (the caller runs it in one): target_run when
+// the options or the file set a target error, else one_run.
 FactorRun factor_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options);
+// One run at the planned rays (through the cache when asked), no target.
+FactorRun one_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options);
+// Rounds of one_run until the target error (pipeline_target.cpp).
+FactorRun target_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options);
 
 }  // namespace hearthray::pipeline_detail
