@@ -3,8 +3,9 @@
 // gases of the WSGG model for natural-gas products. Goal (issue 9): no more than 2x the
 // gas-free time for the same rays. Then the two paths of smoothing and zone solve (dense below
 // 2000 rows, sparse above) on an empty box furnace of 4 x 3 x 2.5 m cut into n x n patches a
-// wall, 8 zones, plug flow: time, stored exchange areas and the largest temperature difference,
-// the dense path at n = 15 (1350 patches), the sparse path also at n = 22 (2904 patches).
+// wall (two patches a cell), 8 zones, plug flow: time, stored exchange areas and the largest
+// temperature difference; both paths at n = 10 (1200 patches), the sparse one also at n = 22
+// (5808 patches).
 //   hearthray_bench_gas [rays per surface] [threads]
 #include <tbb/info.h>
 #include <tbb/task_arena.h>
@@ -26,7 +27,8 @@ using namespace hearthray;
 
 namespace {
 
-// The empty box furnace, walls n x n triangle pairs with fronts inward, one patch a triangle.
+// The empty box furnace, walls n x n cells of two triangles with fronts inward, one patch a
+// triangle.
 struct BoxFurnace {
   Scene scene;
   PatchSet patches;
@@ -112,7 +114,7 @@ void large_path_lines(int threads) {
   std::printf(
       "gas solve paths: box furnace 4 x 3 x 2.5 m, 8 zones, 4 gray gases, 2000 rays per "
       "patch, 20000 per cell\n");
-  const BoxFurnace medium(15);
+  const BoxFurnace medium(10);
   const PathRun dense = run_path(medium, GasStorage::dense, threads);
   const PathRun sparse = run_path(medium, GasStorage::sparse, threads);
   print_path("dense", medium.patches.size(), dense);

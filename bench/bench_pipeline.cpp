@@ -50,22 +50,6 @@ class Stages {
   std::chrono::steady_clock::time_point start_, last_;
 };
 
-// The scene file of the benchmark furnace: patches of `size` (or "triangles"), `rays` per
-// patch, invented conditions.
-std::string furnace_toml(const std::string& size, std::uint64_t rays) {
-  const std::string patches = size == "triangles" ? "\"triangles\"" : "\"" + size + " m\"";
-  std::ostringstream out;
-  out << "[mesh]\nfile = \"furnace.obj\"\n"
-      << "[rays]\nper_patch = " << rays << "\nseed = 1\n"
-      << "[defaults]\nemissivity = 0.85\nadiabatic = true\npatches = " << patches << "\n"
-      << "[surface.roof]\ntemperature = \"1250 C\"\n"
-      << "[surface.hearth]\nwall = { U = \"1.2 W/m2K\", outside = \"30 C\" }\n";
-  for (const char* wall : {"wall_south", "wall_north", "wall_east", "wall_west"})
-    out << "[surface." << wall << "]\nwall = { U = \"1.5 W/m2K\", outside = \"30 C\" }\n";
-  for (int k = 0; k < 6; ++k) out << "[surface.tile_" << k << "]\npower = \"4 kW\"\n";
-  return out.str();
-}
-
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -77,7 +61,7 @@ int main(int argc, char** argv) {
       fs::temp_directory_path() / ("hearthray-bench-pipeline-" + std::to_string(::getpid()));
   fs::create_directories(dir);
   std::ofstream(dir / "furnace.obj") << bench::furnace_obj(true);
-  std::ofstream(dir / "furnace.toml") << furnace_toml(size, rays);
+  std::ofstream(dir / "furnace.toml") << bench::furnace_toml(size, rays);
 
   std::printf("pipeline benchmark: furnace, patches %s, %llu rays per patch, %d threads\n",
               size.c_str(), static_cast<unsigned long long>(rays), threads);
@@ -115,7 +99,11 @@ int main(int argc, char** argv) {
   write_vtu((dir / "patches.vtu").string(), run.scene, run.patches, solve_fields(model, result));
   stages.done("write patches.vtu",
               std::to_string(fs::file_size(dir / "patches.vtu") / (1024 * 1024)) + " MiB");
-  std::printf("  total %.1f s, peak memory %.2f GiB\n", stages.total(), peak_gib());
+  const double nonzeros = double(model.factors.F.nonZeros());
+  std::printf(
+      "  total %.1f s, peak memory %.2f GiB, %.1f bytes per stored non-zero of F "
+      "(%.1f M non-zeros)\n",
+      stages.total(), peak_gib(), peak_gib() * 1024 * 1024 * 1024 / nonzeros, nonzeros / 1e6);
   fs::remove_all(dir);
   return result.status == ExchangeStatus::converged ? 0 : 1;
 }

@@ -89,4 +89,20 @@ inline std::string furnace_obj(bool with_roof, int n = 64) {
   return w.out.str();
 }
 
+// The scene file of the benchmark furnace (mesh file furnace.obj beside it): patches of `size` (or
+// "triangles"), `rays` per patch, invented conditions.
+inline std::string furnace_toml(const std::string& size, std::uint64_t rays) {
+  const std::string patches = size == "triangles" ? "\"triangles\"" : "\"" + size + " m\"";
+  std::ostringstream out;
+  out << "[mesh]\nfile = \"furnace.obj\"\n"
+      << "[rays]\nper_patch = " << rays << "\nseed = 1\n"
+      << "[defaults]\nemissivity = 0.85\nadiabatic = true\npatches = " << patches << "\n"
+      << "[surface.roof]\ntemperature = \"1250 C\"\n"
+      << "[surface.hearth]\nwall = { U = \"1.2 W/m2K\", outside = \"30 C\" }\n";
+  for (const char* wall : {"wall_south", "wall_north", "wall_east", "wall_west"})
+    out << "[surface." << wall << "]\nwall = { U = \"1.5 W/m2K\", outside = \"30 C\" }\n";
+  for (int k = 0; k < 6; ++k) out << "[surface.tile_" << k << "]\npower = \"4 kW\"\n";
+  return out.str();
+}
+
 }  // namespace hearthray::bench

@@ -3,12 +3,14 @@
 // checked against elementary geometry: a cell of an a x b rectangle cut into nu x nv equal
 // cells is a rectangle of (a / nu) x (b / nv); a band of a cylinder of height H cut into n
 // bands has height H / n (common practice, no source needed).
+#include <algorithm>
 #include <catch2/catch.hpp>
 #include <cmath>
 #include <functional>
 #include <map>
 #include <set>
 #include <sstream>
+#include <tuple>
 
 #include "hearthray/patches.hpp"
 #include "hearthray/tracer.hpp"
@@ -225,22 +227,14 @@ TEST_CASE("a cylinder is cut into bands of one height and sectors of whole facet
   CHECK(regions == 6);
 }
 
-TEST_CASE("an irregular surface is grouped into connected compact regions", "[patches]") {
-  // A sphere of radius 1 (an icosphere of 320 triangles, area 12.3 m^2 against 4 pi for the
-  // sphere), patches of 0.5 m: round(12.3 / 0.25) = 49 regions. Each region is connected over
-  // shared edges, and compact: its polar moment about its centroid over its area squared, I / A^2,
-  // is 1 / 6 for a square and 1 / (2 pi) for a disc; a 4 : 1 strip has 0.35. Every region must be
-  // under 0.3.
-  const Scene sphere = load_obj_text(concentric_spheres_obj(1.0, 2.0, 2), "spheres");
-  std::vector<PatchSpec> specs(sphere.surfaces.size());
-  const std::uint32_t inner = std::uint32_t(sphere.find_surface("inner"));
-  specs[inner] = {PatchSpec::Mode::size, 0.5};
-  const Cut c = cut(sphere, specs);
-  check_partition(c);
-  CHECK(analyse_topology(c.scene).closed);
+// Checks that every patch of surface s is connected over shared edges and compact: its polar
+// moment about its centroid over its area squared, I / A^2, is 1 / 6 for a square and
+// 1 / (2 pi) for a disc; a 4 : 1 strip has 0.35. Every region must be under 0.3. Returns the
+// number of patches.
+int check_regions(const Cut& c, std::uint32_t s) {
   int count = 0;
   for (std::size_t p = 0; p < c.patches.size(); ++p) {
-    if (c.patches.patches[p].surface != inner) continue;
+    if (c.patches.patches[p].surface != s) continue;
     ++count;
     std::vector<std::uint32_t> tris(
         c.patches.triangle_index.begin() + c.patches.triangle_offset[p],
@@ -248,8 +242,7 @@ TEST_CASE("an irregular surface is grouped into connected compact regions", "[pa
     Vec3 moment;
     double area = 0;
     for (std::uint32_t t : tris) {
-      const Vec3 m = centroid(c.scene, t);
-      moment += m * c.scene.triangle_area(t);
+      moment += centroid(c.scene, t) * c.scene.triangle_area(t);
       area += c.scene.triangle_area(t);
     }
     const Vec3 centre = moment / area;
@@ -260,27 +253,72 @@ TEST_CASE("an irregular surface is grouped into connected compact regions", "[pa
     }
     INFO("patch " << c.patches.patches[p].name << ", " << tris.size() << " triangles");
     CHECK(polar / (area * area) < 0.3);
-    // Connected: a walk over shared vertex positions from the first triangle reaches all.
-    std::vector<bool> reached(tris.size(), false);
-    reached[0] = true;
-    for (bool grew = true; grew;) {
-      grew = false;
-      for (std::size_t i = 0; i < tris.size(); ++i) {
-        if (reached[i]) continue;
-        for (std::size_t j = 0; j < tris.size() && !reached[i]; ++j) {
-          if (!reached[j]) continue;
-          int shared = 0;
-          for (std::uint32_t a : c.scene.triangles[tris[i]].v)
-            for (std::uint32_t b : c.scene.triangles[tris[j]].v)
-              shared += c.scene.vertices[a] == c.scene.vertices[b];
-          if (shared >= 2) reached[i] = grew = true;
-        }
+    // Connected: growing over triangles that share an edge (two vertex positions) from the
+    // first triangle reaches all.
+    std::map<std::pair<std::tuple<double, double, double>, std::tuple<double, double, double>>,
+             std::vector<std::size_t>>
+        edges;
+    auto pos = [&](std::uint32_t v) {
+      const Vec3& x = c.scene.vertices[v];
+      return std::make_tuple(x.x, x.y, x.z);
+    };
+    for (std::size_t i = 0; i < tris.size(); ++i)
+      for (int k = 0; k < 3; ++k) {
+        auto a = pos(c.scene.triangles[tris[i]].v[k]),
+             b = pos(c.scene.triangles[tris[i]].v[(k + 1) % 3]);
+        if (b < a) std::swap(a, b);
+        edges[{a, b}].push_back(i);
       }
+    std::vector<std::vector<std::size_t>> next(tris.size());
+    for (const auto& [edge, users] : edges)
+      for (std::size_t i : users)
+        for (std::size_t j : users)
+          if (i != j) next[i].push_back(j);
+    std::vector<bool> reached(tris.size(), false);
+    std::vector<std::size_t> stack{0};
+    reached[0] = true;
+    while (!stack.empty()) {
+      const std::size_t i = stack.back();
+      stack.pop_back();
+      for (std::size_t j : next[i])
+        if (!reached[j]) reached[j] = true, stack.push_back(j);
     }
-    for (bool r : reached) CHECK(r);
+    CHECK(std::count(reached.begin(), reached.end(), false) == 0);
   }
+  return count;
+}
+
+TEST_CASE("an irregular surface is grouped into connected compact regions", "[patches]") {
+  // A sphere of radius 1 (an icosphere of 320 triangles, area 12.3 m^2 against 4 pi for the
+  // sphere), patches of 0.5 m: round(12.3 / 0.25) = 49 regions.
+  const Scene sphere = load_obj_text(concentric_spheres_obj(1.0, 2.0, 2), "spheres");
+  std::vector<PatchSpec> specs(sphere.surfaces.size());
+  const std::uint32_t inner = std::uint32_t(sphere.find_surface("inner"));
+  specs[inner] = {PatchSpec::Mode::size, 0.5};
+  const Cut c = cut(sphere, specs);
+  check_partition(c);
+  CHECK(analyse_topology(c.scene).closed);
+  const int count = check_regions(c, inner);
   CHECK(count == std::lround(c.scene.surfaces[inner].area / 0.25));
   CHECK(count == 49);
+}
+
+TEST_CASE("a large irregular surface is seeded on a grid and still compact", "[patches]") {
+  // An icosphere of 5120 triangles, patches of 0.1 m: about 1250 regions over some 20,000
+  // triangles, past the farthest-point sampling's budget, so the seeds come from a grid of
+  // the regions' size (more seeds than the area asks for, as cells along the surface are cut
+  // by it: at most twice as many here).
+  const Scene sphere = load_obj_text(concentric_spheres_obj(1.0, 2.0, 4), "spheres");
+  std::vector<PatchSpec> specs(sphere.surfaces.size());
+  const std::uint32_t inner = std::uint32_t(sphere.find_surface("inner"));
+  specs[inner] = {PatchSpec::Mode::size, 0.1};
+  const Cut c = cut(sphere, specs);
+  check_partition(c);
+  const double target = c.scene.surfaces[inner].area / 0.01;
+  REQUIRE(target * c.scene.surfaces[inner].triangle_count > 2e7);
+  const int count = check_regions(c, inner);
+  CHECK(count >= target);
+  CHECK(count <= 2 * target);
 }
 
 TEST_CASE("patches and their tallies are the same for any thread count", "[patches]") {

@@ -154,7 +154,7 @@ TEST_CASE("bad target values are refused with exit 2", "[ray_target]") {
       {"--target-error 0.5", "out of range"},
       {"--target-error -0.01", "out of range"},
       {"--target-error abc", "not a plain number"},
-      {"--target-error 0.5%", "not available yet"},
+      {"--target-error 0.5%", "only a solve"},
       {"--max-rays 100000", "give the target too"},
       {"--target-error 0.01 --time-limit 10", "has no unit"},
       {"--target-error 0.01 --time-limit \"3 kW\"", "not a unit of time"},

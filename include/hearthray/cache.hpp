@@ -49,10 +49,14 @@ struct TallyCacheSettings {
 
 // Hashes the mesh file's bytes (`mesh_bytes`, as read from the file the scene was loaded
 // from), the mesh options it was loaded with (unit, surfaces_from, the degenerate-triangle
-// threshold), the number of surfaces and the two-sided flag and patch spec of each, the rays
-// of every patch, seed, smoothing and kTallyCacheFormat.
+// threshold), the panels placed on it (`settings.panels`), the number of surfaces and the
+// two-sided flag and patch spec of each, the rays of every patch, seed, smoothing and
+// kTallyCacheFormat.
 TallyCacheKey tally_cache_key(const std::string& mesh_bytes, const MeshOptions& mesh,
                               const Scene& scene, const TallyCacheSettings& settings);
+
+// The bytes of the mesh file at `path`, for a cache key. Throws InputError when unreadable.
+std::string read_mesh_bytes(const std::string& path);
 
 // $HEARTHRAY_CACHE, else $XDG_CACHE_HOME/hearthray, else $HOME/.cache/hearthray; "" when none of
 // these variables is set.

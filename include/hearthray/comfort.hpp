@@ -34,6 +34,7 @@
 #include "hearthray/comfort_input.hpp"
 #include "hearthray/geometry.hpp"
 #include "hearthray/patches.hpp"
+#include "hearthray/pmv.hpp"
 #include "hearthray/scene.hpp"
 #include "hearthray/statistics.hpp"  // factor_standard_error
 #include "hearthray/tracer.hpp"
@@ -148,13 +149,15 @@ struct PointComfort {
   Asymmetry vertical;                       // +z (up-facing element: ceiling side) against -z
   Asymmetry horizontal;                     // the larger of x and y
   double operative_K = 0;
-  double lost_fraction = 0;  // of the body's rays: left the scene or met a back face
+  double lost_fraction = 0;      // of the body's rays: left the scene or met a back face
+  std::optional<PmvResult> pmv;  // when the conditions give activity and clothing
   bool within_limits() const { return vertical.within() && horizontal.within(); }
 };
 
 struct ComfortConditions {
   double air_K = 293.15;
-  double air_speed = 0.1;  // m/s
+  double air_speed = 0.1;             // m/s
+  std::optional<PersonInput> person;  // PMV and PPD at the point from t_a, t_mr, speed
 };
 
 // Figures at one point. Vertical: the up-facing element's t_pr (radiation from above) minus the

@@ -2,9 +2,12 @@
 // comfort figures of a heated room (include/hearthray/comfort.hpp).
 //
 //   [comfort]
-//   air_temperature = "20 C"          # required
+//   air_temperature = "20 C"          # required (unless [room_air] solves it)
 //   air_speed = "0.1 m/s"             # optional (default 0.1 m/s), at most 1 m/s
 //   rays = 50_000                     # optional: rays per point for each estimator
+//   metabolic_rate = "1.2 met"        # optional, all three together: PMV and PPD at every
+//   clothing = "1.0 clo"              #   point (ISO 7730; hearthray/pmv.hpp); "W/m2" for
+//   relative_humidity = "50 %"        #   the rate and "m2K/W" for clothing also taken
 //   [comfort.point.desk]              # named points, any number
 //   position = ["1.2 m", "2.0 m", "0.6 m"]   # x, y, z with units, in the mesh's frame
 //   kind = "seated"                   # sphere (default) | seated | standing
@@ -48,6 +51,14 @@ struct ComfortGridSpec {
   int line = 0;
 };
 
+// Activity, clothing and humidity for PMV and PPD (pmv.hpp), within ISO 7730's ranges.
+struct PersonInput {
+  double met = 1.2;
+  double clo = 1.0;
+  double relative_humidity = 0.5;  // 0..1
+  int line = 0;
+};
+
 struct ComfortInput {
   double air_K = 293.15;
   double air_speed = 0.1;  // m/s
@@ -55,6 +66,7 @@ struct ComfortInput {
       kDefaultComfortRays;               // per point, for the body and for each of the six planes
   std::vector<ComfortPointSpec> points;  // in file order
   std::optional<ComfortGridSpec> grid;
+  std::optional<PersonInput> person;  // PMV and PPD when given
   int line = 0;
 };
 

@@ -23,6 +23,10 @@ struct Convection {
   // In a scene with a radiating gas: the fluid is the gas zone beside the surface, whose
   // temperature is solved (scene file: fluid = "gas").
   bool fluid_is_gas = false;
+  // In a scene with [room_air]: the fluid is the room air, whose temperature is solved from
+  // its heat balance (scene file: fluid = "room_air"; see room_air.hpp). fluid_K holds the
+  // air temperature of the latest solve.
+  bool fluid_is_room_air = false;
 };
 
 // Conduction through the wall to an outside temperature, as an overall coefficient

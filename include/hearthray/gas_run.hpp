@@ -7,6 +7,7 @@
 #include <string>
 #include <vector>
 
+#include "hearthray/cache.hpp"
 #include "hearthray/combustion.hpp"
 #include "hearthray/gas_input.hpp"
 #include "hearthray/gas_properties.hpp"
@@ -28,6 +29,14 @@ struct GasRunOptions {
   // run past the memory estimate (GasTraceOptions).
   GasStorage storage = GasStorage::automatic;
   bool force = false;
+  // The gas cache (gas_cache.hpp): scores read from and stored in cache_dir ("" = not used),
+  // keyed with the mesh file's bytes and options, the panels placed on it and the surfaces'
+  // patch specs.
+  std::string cache_dir;
+  std::string mesh_bytes;
+  MeshOptions mesh;
+  std::vector<PanelPlacement> panels;  // the scene file's [panel.NAME]
+  std::vector<PatchSpec> patch_specs;  // per surface
 };
 
 struct GasRun {
@@ -41,6 +50,11 @@ struct GasRun {
   std::vector<bool> load_patch;             // per patch: part of the load ([gas] load)
   ZoneSolveResult solve;
   std::vector<std::string> warnings;  // gas properties out of their fit's range, ...
+  // Where the exchange areas came from, for the terminal: traced, from the cache file, stored
+  // in it, or why a cache file was ignored or not written (kept out of the result files, which
+  // are the same whether traced or cached).
+  bool from_cache = false;
+  std::string cache_note;
 
   // Heat into the load's patches, W (0 when [gas] names no load).
   double heat_to_load() const;

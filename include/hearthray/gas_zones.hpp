@@ -159,8 +159,35 @@ struct GasExchange {
   double row_target(std::size_t g, std::size_t row) const;
 };
 
-// Traces the exchange areas of `k` (one entry per gray gas) through the zones of `cells` over
-// the scene's bounding box. Throws InputError for invalid options or a run whose estimated
+// The raw Monte Carlo scores of a trace, before zones are chosen: sums of the scores and of
+// their squares per row (patches 0..P-1, then every grid cell) in sparse columns (ascending),
+// `gases` values per entry, chunks merged in a fixed order (so they do not depend on the thread
+// count). What the gas cache keeps (gas_cache.hpp): the exchange areas follow from them exactly.
+struct GasScores {
+  std::size_t gases = 0;
+  std::vector<std::uint64_t> rays;    // per row
+  std::vector<std::size_t> offset;    // per row, and one past the last: into column
+  std::vector<std::uint32_t> column;  // patches, then grid cells
+  std::vector<double> sum, sq;        // column.size() x gases
+  std::vector<double> lost;           // rows x gases: escaped or back-side score
+  std::vector<std::uint64_t> inside;  // per cell: its points that lay in the gas
+  std::size_t rows() const { return rays.size(); }
+};
+
+// The scores of `k` (one entry per gray gas) through the grid `cells` over the scene's
+// bounding box. Throws InputError for invalid options or a run whose estimated memory exceeds
+// the limit (unless forced).
+GasScores trace_gas_scores(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
+                           std::array<int, 3> cells, const std::vector<double>& k,
+                           const GasTraceOptions& options);
+
+// The zones and raw exchange areas from scores (stored as options.storage says).
+GasExchange gas_exchange_from_scores(const Scene& scene, const PatchSet& patches,
+                                     std::array<int, 3> cells, const std::vector<double>& k,
+                                     const GasScores& scores, const GasTraceOptions& options);
+
+// Both: traces the exchange areas of `k` through the zones of `cells` over the scene's
+// bounding box. Throws InputError for invalid options or a run whose estimated
 // memory exceeds the limit (unless forced).
 GasExchange trace_gas_exchange(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
                                std::array<int, 3> cells, const std::vector<double>& k,

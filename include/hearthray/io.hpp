@@ -25,6 +25,13 @@ struct TargetReportInfo {
   std::uint64_t max_rays_per_patch = 0;
   double time_limit_s = 0;  // 0: none
   std::uint64_t rays_all_rounds = 0;
+  // A target on heat flows (errors are then fractions of the flows), with the surfaces' net
+  // radiative heat flows and their standard errors after the last round (HeatFlowErrors).
+  bool heat_flows = false;
+  int heat_samples = 0;
+  double heat_floor_W = 0;
+  std::vector<std::string> surfaces;
+  std::vector<double> net_W, net_error_W, temperature_error_K;
 };
 
 // What a report carries besides the matrix (echoed into JSON).

@@ -25,6 +25,7 @@
 #include "hearthray/error.hpp"
 #include "hearthray/exchange.hpp"
 #include "hearthray/patches.hpp"
+#include "hearthray/room_air.hpp"
 #include "hearthray/scene.hpp"
 #include "hearthray/scene_file.hpp"
 #include "hearthray/smoothing.hpp"
@@ -66,6 +67,7 @@ struct PipelineOptions {
   // [rays] target_error, max_per_patch and time_limit. With a target, rays_per_patch (or the
   // file's per_patch) is the first round's rays.
   std::optional<double> target_error;
+  bool target_on_heat_flows = false;  // target_error is relative on the surfaces' heat flows
   std::optional<std::uint64_t> max_rays_per_patch;
   std::optional<double> time_limit_s;
   int threads = 0;         // threads of every stage; 0 = all cores
@@ -80,6 +82,18 @@ struct PipelineOptions {
   // Called on stage starts and during tracing (from worker threads, one call at a time); must
   // be cheap. May be empty.
   std::function<void(const PipelineProgress&)> progress;
+  // Tracing split over processes (the tool under mpirun: src/cli/processes.cpp). When set, it
+  // is called instead of tracing every emitter here, with the patch count, the rays of each
+  // patch and `trace`, which traces the emitters [begin, end) in this process (begin < end).
+  // It returns the tallies of all emitters (the ranges' shards appended in order, as
+  // merge_shards does) and fills the stats, or throws to end this process's run. Tallies are a
+  // pure function of (scene, emitter range, seed, rays): any split gives the same numbers.
+  // Empty: every emitter traced here.
+  using TraceRange =
+      std::function<Tallies(std::uint32_t begin, std::uint32_t end, TraceStats* stats)>;
+  std::function<Tallies(const std::vector<std::uint64_t>& rays, const TraceRange& trace,
+                        TraceStats* stats)>
+      split_tracing;
 
   bool IsValid(std::string* error) const;
 };
@@ -102,15 +116,43 @@ enum class CacheOutcome {
 // points of the next round's sequences and every round keeps whole nets. Rounds are decided on
 // the tallies only (deterministic); only the time limit depends on the clock: a round whose
 // predicted end (from the last round's time) is past it is not started.
-enum class TargetStop { reached, ray_cap, run_size, time_limit };
+//
+// A target on heat flows (target_on_heat_flows, "0.5 %") judges each round instead by the
+// standard errors of the surfaces' net radiative heat flows (HeatFlowErrors): met when, for
+// every surface k, error_k / max(|Q_k|, floor) <= the target, the floor being
+// kHeatFlowFloorShare of the largest |Q| of any surface. Only model_scene (solve, comfort,
+// fire) can judge it; run_view_factors refuses it (InputError).
+enum class TargetStop { reached, ray_cap, run_size, time_limit, not_solved };
 std::string to_string(TargetStop stop);  // "target reached", "ray cap", ...
 inline constexpr std::uint64_t kDefaultTargetFirstRays = 8192;
 inline constexpr std::uint64_t kDefaultTargetMaxRaysPerPatch = std::uint64_t(1) << 24;
 
+// The standard errors of the surfaces' net radiative heat flows that follow from the view
+// factors' standard errors (first-order: the spread of kHeatFlowSamples solves with the factors
+// perturbed as their sampling distribution says; see pipeline_heat_error.cpp and README,
+// "Heat flows to an error wanted").
+inline constexpr int kHeatFlowSamples = 32;
+// Flows below this share of the largest are judged against that share of it: a surface near
+// radiative balance (Q ~ 0) would otherwise ask for unlimited rays.
+inline constexpr double kHeatFlowFloorShare = 0.05;
+struct HeatFlowErrors {
+  bool judged = false;          // the exchange converged (and at least 2 perturbed solves did)
+  int samples = 0;              // perturbed solves that converged
+  double floor_W = 0;           // kHeatFlowFloorShare x the largest |net_W|
+  double largest_relative = 0;  // max over surfaces of error / max(|net_W|, floor_W)
+  std::size_t worst = 0;        // the surface with that largest relative error
+  std::vector<std::string> surfaces;        // per surface, as surface_heat lists them
+  std::vector<double> net_W;                // net radiation leaving, of the factors returned
+  std::vector<double> net_error_W;          // its standard error
+  std::vector<double> temperature_error_K;  // standard error of the mean temperature
+};
+
 struct RayTarget {
   bool used = false;
-  double error = 0;     // the largest standard error wanted
-  double achieved = 0;  // the largest standard error of the factors returned
+  bool heat_flows = false;  // relative on heat flows: error, achieved are fractions of the flows
+  HeatFlowErrors heat;      // heat_flows: those of the last round
+  double error = 0;         // the largest standard error wanted
+  double achieved = 0;      // the largest standard error of the factors returned
   TargetStop stop = TargetStop::reached;
   std::uint64_t max_rays_per_patch = kDefaultTargetMaxRaysPerPatch;
   double time_limit_s = 0;                // 0: none
@@ -179,7 +221,11 @@ struct SolvedScene {
   SceneFile file;
   FactorRun run;  // its tallies emptied, its factors moved into the model (sizes kept)
   ThermalModel model;
-  ExchangeResult result;           // empty until solve_model_exchange; check its status
+  ExchangeResult result;  // empty until solve_model_exchange; check its status
+  // With [room_air]: the solved air temperature and its balance (set by solve_model_exchange;
+  // the model's room-air films and file.comfort->air_K are left at that temperature). Check
+  // its `converged` too.
+  std::optional<RoomAirResult> room_air;
   std::vector<Warning> warnings;   // as run.warnings, without a leak the model folded back
   std::vector<std::string> notes;  // ray diagnostics, then the thermal model
 };
@@ -200,8 +246,10 @@ class RefusedInput : public InputError {
 // the cache when asked) and builds the thermal model. Throws InputError for bad input,
 // RefusedInput when the model refuses the scene.
 SolvedScene model_scene(SceneFile file, Scene scene, const PipelineOptions& options);
-// Solves the exchange of a modelled scene into scene->result. Throws RefusedInput when the
-// exchange refuses it; non-convergence is the result's status.
+// Solves the exchange of a modelled scene into scene->result (with [room_air]: together with
+// the air's heat balance, into scene->room_air; an unsolved air balance leaves the result
+// marked not_converged). Throws RefusedInput when the exchange refuses it; non-convergence is
+// the result's status.
 void solve_model_exchange(SolvedScene* scene, const PipelineOptions& options);
 // open_scene + load_scene + model_scene + solve_model_exchange.
 SolvedScene solve_scene(const std::string& path, const PipelineOptions& options);
@@ -215,8 +263,18 @@ struct SceneComfort {
 // Throws InputError when the scene file has no [comfort] table or a point is not usable.
 // Call before model_scene: a typo costs no tracing time.
 void check_comfort_input(const SceneFile& file, const Scene& scene);
-// Angle factors from every point, radiant temperatures from the solved radiosities. Throws
-// std::logic_error when the exchange has not converged.
+// Angle factors from every point, radiant temperatures from the solved radiosities (the air
+// temperature from [comfort], or the solved one with [room_air]). Throws std::logic_error when
+// the exchange has not converged.
 SceneComfort scene_comfort(const SolvedScene& solved, const PipelineOptions& options);
+// The two halves of scene_comfort, for callers that solve again at other conditions (goal
+// seek): the angle factors of `points` traced once (in the options' arena), and the figures at
+// the scene's current solution (its radiosities and air temperature), no ray traced.
+std::vector<PointFactors> trace_scene_angle_factors(const SolvedScene& solved,
+                                                    const std::vector<ComfortPoint>& points,
+                                                    const PipelineOptions& options);
+std::vector<PointComfort> evaluate_scene_comfort(const SolvedScene& solved,
+                                                 const std::vector<ComfortPoint>& points,
+                                                 const std::vector<PointFactors>& factors);
 
 }  // namespace hearthray

@@ -24,6 +24,9 @@
 //   [panel_group.NAME] offset = ["0 m", "-1.25 m", "0 m"]: moves the panels of group NAME
 //   [comfort]   air_temperature, air_speed, rays, [comfort.point.NAME], [comfort.grid]
 //               (see comfort_input.hpp)
+//   [room_air]  ventilation, outside, gains, volume, density, heat_capacity: the room air's
+//               temperature solved from its heat balance, with fluid = "room_air" in
+//               convection (see room_air.hpp)
 //   [gas]       a radiating combustion gas in zones: cells, properties, temperature or flow,
 //               [gas.firing] (see gas_input.hpp)
 #pragma once
@@ -40,6 +43,7 @@
 #include "hearthray/gas_input.hpp"
 #include "hearthray/panels.hpp"
 #include "hearthray/patches.hpp"
+#include "hearthray/room_air.hpp"
 #include "hearthray/scene.hpp"
 #include "hearthray/view_factors.hpp"  // EmissionSampler
 
@@ -69,6 +73,7 @@ struct SceneFile {
   std::optional<std::uint64_t> rays_total;            // budget spread over patches by area
   std::optional<std::uint64_t> rays_min_per_patch;    // floor per patch with rays_total
   std::optional<double> target_error;                 // [rays] target_error (RayTarget)
+  bool target_on_heat_flows = false;                  // target_error was a percentage
   std::optional<std::uint64_t> target_max_per_patch;  // [rays] max_per_patch, with a target
   std::optional<double> target_time_limit_s;          // [rays] time_limit, with a target
   std::optional<double> surroundings_K;
@@ -77,9 +82,10 @@ struct SceneFile {
   // [panel.NAME], in file order (their surface keys are in `surfaces` too); load_scene cuts
   // them out of their hosts.
   std::vector<PanelPlacement> panels;
-  std::optional<ComfortInput> comfort;  // [comfort]: points and air for the comfort figures
-  std::optional<GasInput> gas;          // [gas]: the radiating gas filling the enclosure
-  std::optional<FiringInput> firing;    // [firing]: a schedule over time (hearthray fire)
+  std::optional<ComfortInput> comfort;   // [comfort]: points and air for the comfort figures
+  std::optional<GasInput> gas;           // [gas]: the radiating gas filling the enclosure
+  std::optional<FiringInput> firing;     // [firing]: a schedule over time (hearthray fire)
+  std::optional<RoomAirInput> room_air;  // [room_air]: the air temperature solved
 
   const SurfaceSpec* find(const std::string& name) const;
   bool has_thermal_input() const;  // any emissivity or condition given
@@ -130,10 +136,15 @@ double parse_heat_transfer_coefficient(const std::string& text, const std::strin
 double parse_length(const std::string& text, const std::string& what);        // mm..ft -> m
 double parse_conductivity(const std::string& text, const std::string& what);  // W/mK
 
-// The error wanted of a ray budget set by the error ([rays] target_error, --target-error): a
-// plain number in (0, 0.5), the largest standard error of any view factor. A relative target
-// on heat flows ("0.5 %") is refused with a message saying it is not available yet.
-double parse_target_error(const std::string& text, const std::string& what);
+// The error wanted of a ray budget set by the error ([rays] target_error, --target-error):
+// a plain number in (0, 0.5), the largest standard error of any view factor; or a percentage
+// in (0 %, 100 %) ("0.5 %"), the largest standard error of a surface's net heat flow relative
+// to that flow (see RayTarget, pipeline.hpp), returned as a fraction (0.005).
+struct TargetError {
+  double value = 0;
+  bool heat_flows = false;  // relative on the surfaces' net heat flows
+};
+TargetError parse_target_error(const std::string& text, const std::string& what);
 // A time limit with its unit: "90 s", "10 min", "2 h" -> seconds, above 0.
 double parse_time_limit(const std::string& text, const std::string& what);
 

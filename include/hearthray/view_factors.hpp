@@ -103,6 +103,9 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
 // Concatenates shards (tallies of consecutive emitter ranges) into one. Shards of different
 // scenes, or out of order, are a programming mistake: std::invalid_argument.
 Tallies merge_shards(const std::vector<Tallies>& shards);
+// Appends the shard that follows `merged` (its emitter range starts where merged's ends), as
+// merge_shards does, without copying what is already merged.
+void append_shard(Tallies* merged, const Tallies& shard);
 
 using SparseMatrix = Eigen::SparseMatrix<double, Eigen::RowMajor>;
 

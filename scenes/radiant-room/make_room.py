@@ -148,6 +148,39 @@ PANEL_GROUP = """
 offset = ["{dx:g} m", "{dy:g} m", "{dz:g} m"]
 """
 
+# The planner's variant of each layout (plan-a.toml, plan-b.toml for hearthray size): the same
+# mesh, but the room air is solved from its heat balance instead of held at 20 C -- every film
+# exchanges with "room_air", outside air comes in at 0.5 air changes per hour, people and
+# appliances give 100 W -- and PMV is figured for a seated person in winter clothing.
+# Derived from SCENE by the replacements below, so both stay in step.
+PLAN_REPLACE = [
+    ("(-5 C outside, air held at 20 C)",
+     "(-5 C outside, air temperature solved)"),
+    ("temperature is solved. Heat convected into the air stands for what ventilation carries off.",
+     "temperature is solved. The air takes the surfaces' convection and 100 W of gains and\n"
+     "# loses heat to 0.5 air changes per hour of outside air.\n"
+     "# Sized by hearthray size: the panels' powers below are a starting point, scaled together."),
+    ('fluid = "20 C" }', 'fluid = "room_air" }'),
+    ('air_temperature = "20 C"\n',
+     'metabolic_rate = "1.2 met"                            # seated, light activity\n'
+     'clothing = "1.0 clo"                                  # winter indoor clothing\n'
+     'relative_humidity = "40 %"\n'),
+    ("# Comfort figures (hearthray comfort / compare)",
+     "[room_air]\n"
+     'ventilation = "0.5 1/h"                               # infiltration, of the room volume\n'
+     'outside = "-5 C"\n'
+     'gains = "100 W"                                       # people, lights, appliances\n'
+     "\n# Comfort figures (hearthray comfort / compare / size)"),
+]
+
+
+def plan_scene(text):
+    for old, new in PLAN_REPLACE:
+        if old not in text:
+            sys.exit(f"make_room.py: PLAN_REPLACE: '{old}' is not in SCENE")
+        text = text.replace(old, new)
+    return text
+
 
 def inside(a, lo, hi):
     return all(l < v < h for v, l, h in zip(a, lo, hi))
@@ -200,8 +233,11 @@ def main():
         o.write(os.path.join(here, f"{name}.obj"))
         blocks = "".join(PANEL.format(name=f"panel_{k + 1}", power=PANEL_POWER)
                          for k in range(len(panels)))
+        text = SCENE.format(mesh=f"{name}.obj", title=layout["title"], panels=blocks)
         with open(os.path.join(here, f"{name}.toml"), "w") as f:
-            f.write(SCENE.format(mesh=f"{name}.obj", title=layout["title"], panels=blocks))
+            f.write(text)
+        with open(os.path.join(here, name.replace("layout", "plan") + ".toml"), "w") as f:
+            f.write(plan_scene(text))
     o = Obj(__doc__.split("\n\n")[0] + "\n\nroom-bare.obj: the radiant room without panels (the "
             "ceiling whole),\nfor layouts placed by their scene files. Units: metres. Room "
             "sides face inward.")

@@ -6,6 +6,7 @@
 #include <filesystem>
 #include <iostream>
 #include <map>
+#include <nlohmann/json.hpp>
 #include <optional>
 #include <sstream>
 
@@ -18,6 +19,7 @@
 #include "hearthray/error.hpp"
 #include "hearthray/thermal_report.hpp"
 #include "hearthray/units.hpp"
+#include "output_folder.hpp"
 
 namespace hearthray::cli {
 
@@ -69,7 +71,9 @@ int run_comfort(const std::string& input, const ComfortArgs& args, ComfortRun* o
 
 void print_report(std::ostream& out, const ComfortRun& r) {
   const ComfortInput& in = *r.solved.file.comfort;
-  out << "air " << rounded("%.1f C", in.air_K - kZeroCelsius) << ", "
+  const std::optional<RoomAirResult>& air = r.solved.room_air;
+  out << "air " << rounded("%.1f C", (air ? air->air_K : in.air_K) - kZeroCelsius)
+      << (air ? " (solved from the room's heat balance)" : "") << ", "
       << rounded("%.2g m/s", in.air_speed) << "; " << in.rays
       << " rays per point for the body and for each of six planes, seed " << r.solved.run.seed
       << "\n";
@@ -104,7 +108,7 @@ const std::pair<MapQuantity, const char*> kMaps[] = {
 
 // The three maps of one scene, named prefix + map name + extension, on the given ranges (the
 // points' own where none is given).
-void write_maps(const fs::path& dir, const std::string& prefix, const ComfortRun& r,
+void write_maps(OutputFolder& out, const std::string& prefix, const ComfortRun& r,
                 const MapRanges& ranges, const std::string& title_suffix,
                 const std::vector<std::string>& extensions, std::vector<std::string>* files) {
   MapOptions options;
@@ -116,7 +120,7 @@ void write_maps(const fs::path& dir, const std::string& prefix, const ComfortRun
     options.range_hi = it == ranges.end() ? std::nullopt : std::optional(it->second.second);
     const Picture map = comfort_map(r.solved.run.scene, r.points, q, options);
     for (const std::string& extension : extensions) {
-      write_picture((dir / (prefix + name + extension)).string(), map);
+      write_picture(out.file(prefix + name + extension), map);
       files->push_back(prefix + name + extension);
     }
   }
@@ -155,9 +159,9 @@ ComfortReportInput report_input(const ComfortRun& r, const std::string& input,
 
 // compare -o: every scene's maps on one colour range per quantity (the union of the scenes'
 // own ranges, or --range for the temperatures), so equal colours mean equal values.
-void write_compared_maps(const ComfortArgs& args, const std::vector<ComfortRun>& runs,
-                         const std::vector<std::string>& names) {
-  const fs::path dir = make_output_dir(args.output_dir);
+std::vector<std::string> write_compared_maps(const ComfortArgs& args, OutputFolder& out,
+                                             const std::vector<ComfortRun>& runs,
+                                             const std::vector<std::string>& names) {
   MapRanges ranges;
   for (const auto& [q, name] : kMaps) {
     std::pair<double, double> all{INFINITY, -INFINITY};
@@ -172,15 +176,16 @@ void write_compared_maps(const ComfortArgs& args, const std::vector<ComfortRun>&
   std::vector<std::string> files;
   for (std::size_t k = 0; k < runs.size(); ++k)
     if (has_grid(runs[k]))
-      write_maps(dir, names[k] + "_", runs[k], ranges, " \u2014 " + names[k], {".png"}, &files);
+      write_maps(out, names[k] + "_", runs[k], ranges, " \u2014 " + names[k], {".png"}, &files);
   std::cout << "\nmaps on one colour range each (mean radiant "
             << rounded("%.1f", ranges[MapQuantity::mean_radiant].first) << " to "
             << rounded("%.1f", ranges[MapQuantity::mean_radiant].second) << " C, operative "
             << rounded("%.1f", ranges[MapQuantity::operative].first) << " to "
             << rounded("%.1f", ranges[MapQuantity::operative].second) << " C, asymmetry "
             << rounded("%.1f", ranges[MapQuantity::asymmetry].first) << " to "
-            << rounded("%.1f", ranges[MapQuantity::asymmetry].second) << " K) in " << dir.string()
+            << rounded("%.1f", ranges[MapQuantity::asymmetry].second) << " K) in " << out.target()
             << ": " << join(files) << "\n";
+  return files;
 }
 
 // Rows of the compare table for the named points (not the grid), by name, in the order they
@@ -235,27 +240,27 @@ std::vector<std::string> printed_row(std::vector<std::string> row) {
 
 // compare -o: the client report: the side-by-side table (`rows`, the header row first), then
 // each scene's sections with its maps (written by write_compared_maps).
-void write_compare_report(const ComfortArgs& args, const std::vector<ComfortRun>& runs,
+void write_compare_report(const ComfortArgs& args, OutputFolder& out,
+                          const std::vector<ComfortRun>& runs,
                           const std::vector<std::vector<std::string>>& rows) {
   const std::vector<std::string>& head = rows.front();
   std::vector<ComfortReportInput> reports;
   for (std::size_t k = 0; k < runs.size(); ++k) {
     const std::string& name = head[k + 1];
     reports.push_back(report_input(runs[k], args.inputs[k], name));
-    if (has_grid(runs[k])) reports.back().maps = map_figures(args.output_dir, name + "_", name);
+    if (has_grid(runs[k])) reports.back().maps = map_figures(out.folder(), name + "_", name);
   }
   ReportTable table;
   table.caption = "The scenes side by side";
   table.header = head;
   for (auto it = rows.begin() + 1; it != rows.end(); ++it) table.rows.push_back(printed_row(*it));
-  const fs::path html = fs::path(args.output_dir) / "report.html";
-  write_client_report(compare_client_report(reports, table), html);
-  std::cout << "client report: " << html.string() << "\n";
+  write_client_report(compare_client_report(reports, table), out.file("report.html"));
 }
 
 }  // namespace
 
 int run_comfort_command(const ComfortArgs& args) {
+  if (!args.output_dir.empty()) check_output_folder(args.output_dir);  // before the work
   const std::string& input = args.inputs.at(0);
   ComfortRun r;
   if (const int status = run_comfort(input, args, &r)) return status;
@@ -266,14 +271,14 @@ int run_comfort_command(const ComfortArgs& args) {
   print_report(std::cout, r);
   if (args.output_dir.empty()) return 0;
 
-  const fs::path dir = make_output_dir(args.output_dir);
+  OutputFolder out(args.output_dir);
   std::vector<std::string> files = {"comfort.csv", "comfort.txt"};
   {
-    std::ofstream csv = open_output(dir / "comfort.csv");
+    std::ofstream csv = open_output(out.file("comfort.csv"));
     write_comfort_csv(csv, r.points);
   }
   {
-    std::ofstream text = open_output(dir / "comfort.txt");
+    std::ofstream text = open_output(out.file("comfort.txt"));
     text << "hearthray comfort " << input << "\n";
     print_report(text, r);
   }
@@ -281,14 +286,15 @@ int run_comfort_command(const ComfortArgs& args) {
     MapRanges ranges;
     for (MapQuantity q : {MapQuantity::mean_radiant, MapQuantity::operative})
       if (!args.range.empty()) ranges[q] = given_range(args.range);
-    write_maps(dir, "", r, ranges, "", {".png", ".svg"}, &files);
+    write_maps(out, "", r, ranges, "", {".png", ".svg"}, &files);
   }
   ComfortReportInput report = report_input(r, input, fs::path(input).stem().string());
-  if (has_grid(r)) report.maps = map_figures(dir, "", report.name);
-  write_client_report(comfort_client_report(report), dir / "report.html");
+  if (has_grid(r)) report.maps = map_figures(out.folder(), "", report.name);
+  write_client_report(comfort_client_report(report), out.file("report.html"));
   files.push_back("report.html");
+  write_manifest(out, folder_manifest("comfort", {input}, files));
   if (!args.rays.quiet) {
-    std::cout << "\nwrote " << dir.string() << ": ";
+    std::cout << "\nwrote " << out.target() << ": ";
     for (std::size_t k = 0; k < files.size(); ++k) std::cout << (k ? ", " : "") << files[k];
     std::cout << "\n";
   }
@@ -296,6 +302,7 @@ int run_comfort_command(const ComfortArgs& args) {
 }
 
 int run_compare_command(const ComfortArgs& args) {
+  if (!args.output_dir.empty()) check_output_folder(args.output_dir);  // before the work
   std::vector<ComfortRun> runs(args.inputs.size());
   for (std::size_t k = 0; k < args.inputs.size(); ++k) {
     if (const int status = run_comfort(args.inputs[k], args, &runs[k])) return status;
@@ -367,8 +374,13 @@ int run_compare_command(const ComfortArgs& args) {
   for (const Caution& c : general) std::cout << "  - " << c.text << "\n";
   print_points_over(runs, std::vector<std::string>(head.begin() + 1, head.end()));
   if (!args.output_dir.empty()) {
-    write_compared_maps(args, runs, std::vector<std::string>(head.begin() + 1, head.end()));
-    write_compare_report(args, runs, rows);
+    OutputFolder out(args.output_dir);
+    std::vector<std::string> files = write_compared_maps(
+        args, out, runs, std::vector<std::string>(head.begin() + 1, head.end()));
+    write_compare_report(args, out, runs, rows);
+    files.push_back("report.html");
+    write_manifest(out, folder_manifest("compare", args.inputs, files));
+    std::cout << "client report: " << (fs::path(out.target()) / "report.html").string() << "\n";
   }
   return 0;
 }

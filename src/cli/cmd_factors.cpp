@@ -2,11 +2,11 @@
 // the patch table and the VTU of the patches beside each file. Tallies through the cache, as
 // `solve` takes them.
 #include <iostream>
-#include <set>
 
 #include "commands.hpp"
 #include "core/text.hpp"
 #include "hearthray/patch_geometry.hpp"
+#include "output_folder.hpp"
 
 namespace hearthray::cli {
 
@@ -26,14 +26,16 @@ int run_factors_command(const FactorsArgs& args) {
     print_factors_table(std::cout, run.factors);
   } else {
     const FactorReportInfo info = report_info(file, run);
-    std::set<std::string> beside;  // patch files written (F.csv and F.json share them)
+    // All written in staging folders beside them, then put in place together: an interrupted
+    // run leaves none of its files (each with its patch files, shared by F.csv and F.json).
+    StagedFiles staged;
     for (const std::string& path : args.outputs) {
-      write_factors_file(path, run.factors, info, &run.scene, &run.patches);
-      if (!args.rays.quiet) std::cout << "wrote " << path << "\n";
-      for (const std::string& written : write_patch_files_beside(path, run.scene, run.patches))
-        if (beside.insert(written).second && !args.rays.quiet)
-          std::cout << "wrote " << written << "\n";
+      const std::string to = staged.file(path);
+      write_factors_file(to, run.factors, info, &run.scene, &run.patches);
+      write_patch_files_beside(to, run.scene, run.patches);
     }
+    for (const std::string& written : staged.commit())
+      if (!args.rays.quiet) std::cout << "wrote " << written << "\n";
   }
   if (!args.rays.quiet) {
     std::cout << cache_log_line(run) << "\n";

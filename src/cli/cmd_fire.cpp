@@ -8,6 +8,7 @@
 #include "hearthray/error.hpp"
 #include "hearthray/firing_report.hpp"
 #include "hearthray/version.hpp"
+#include "output_folder.hpp"
 
 namespace hearthray::cli {
 namespace fs = std::filesystem;
@@ -16,18 +17,18 @@ namespace {
 
 void write_fire_outputs(const SolveArgs& args, const SolvedScene& solved, const FiringResult& r) {
   const FiringInput& in = *solved.file.firing;
-  const fs::path dir = make_output_dir(args.output_dir);
+  OutputFolder out(args.output_dir);
   const std::string name = fs::path(solved.file.path).stem().string();
   std::vector<std::string> files = {"firing.csv"};
   {
-    std::ofstream csv = open_output(dir / "firing.csv");
+    std::ofstream csv = open_output(out.file("firing.csv"));
     write_firing_csv(csv, r);
   }
   const Picture temperatures = firing_temperature_picture(r, name + ": temperatures in the firing");
   const Picture power = firing_power_picture(r, in, name + ": heating power in the firing");
   for (const char* extension : {".png", ".svg"}) {
-    write_picture((dir / ("firing_temperatures" + std::string(extension))).string(), temperatures);
-    write_picture((dir / ("firing_power" + std::string(extension))).string(), power);
+    write_picture(out.file("firing_temperatures" + std::string(extension)), temperatures);
+    write_picture(out.file("firing_power" + std::string(extension)), power);
     files.push_back("firing_temperatures" + std::string(extension));
     files.push_back("firing_power" + std::string(extension));
   }
@@ -36,16 +37,22 @@ void write_fire_outputs(const SolveArgs& args, const SolvedScene& solved, const 
   j["scene"] = solved.file.path;
   j["files"] = files;
   j["firing"] = nlohmann::json::parse(firing_report_json(r, in));
-  std::ofstream report = open_output(dir / "report.json");
-  report << j.dump(2) << '\n';
-  if (!report) throw InputError("cannot write '" + (dir / "report.json").string() + "'");
+  {
+    std::ofstream report = open_output(out.file(kManifestName));  // last: names the files
+    report << j.dump(2) << '\n';
+    report.close();
+    if (!report) throw InputError("cannot write '" + out.target() + "/report.json'");
+  }
+  out.commit();
   if (!args.rays.quiet)
-    std::cout << "\nwrote " << (dir / "report.json").string() << ", " << join(files) << "\n";
+    std::cout << "\nwrote " << (fs::path(out.target()) / kManifestName).string() << ", "
+              << join(files) << "\n";
 }
 
 }  // namespace
 
 int run_fire_command(const SolveArgs& args) {
+  if (!args.output_dir.empty()) check_output_folder(args.output_dir);  // before the work
   {
     const SceneFile file = open_scene(args.input);
     if (!file.firing)

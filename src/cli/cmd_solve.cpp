@@ -6,14 +6,18 @@
 #include <iostream>
 
 #include "commands.hpp"
+#include "core/text.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/patch_geometry.hpp"
 #include "hearthray/render.hpp"
 #include "hearthray/thermal_model.hpp"
 #include "hearthray/thermal_report.hpp"
 #include "hearthray/tracer.hpp"
+#include "hearthray/units.hpp"
 #include "hearthray/version.hpp"
 #include "hearthray/vtu.hpp"
+#include "output_folder.hpp"
+#include "processes.hpp"
 
 namespace hearthray::cli {
 
@@ -70,7 +74,7 @@ void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved, UnitS
   const FactorRun& run = solved.run;
   const ThermalModel& model = solved.model;
   const ExchangeResult& result = solved.result;
-  const fs::path dir = make_output_dir(args.output_dir);
+  OutputFolder out(args.output_dir);
   const FactorReportInfo factor_info = report_info(file, run);
   SolveReportInfo info = solve_info(file, run, model, solved.warnings);
   // Dense view-factor files for a few surfaces; for many patches only the sparse one.
@@ -80,11 +84,11 @@ void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved, UnitS
       dense ? std::vector<std::string>{"view_factors.csv", "view_factors.json"}
             : std::vector<std::string>{args.matrix_text ? "view_factors.mtx" : "view_factors.h5"};
   for (const std::string& name : factor_files)
-    write_factors_file((dir / name).string(), used, factor_info, &run.scene, &run.patches);
+    write_factors_file(out.file(name), used, factor_info, &run.scene, &run.patches);
   const std::vector<PatchField> fields = solve_fields(model, result);
-  write_vtu((dir / "patches.vtu").string(), run.scene, run.patches, fields,
+  write_vtu(out.file("patches.vtu"), run.scene, run.patches, fields,
             {{"converged", result.status == ExchangeStatus::converged ? 1 : 0}});
-  write_patches_csv_file((dir / "patches.csv").string(), run.scene, run.patches);
+  write_patches_csv_file(out.file("patches.csv"), run.scene, run.patches);
   info.files = {"surfaces.csv", "patches.vtu", "patches.csv"};
   // Pictures of the temperature and the net radiative flux from the default view.
   const Tracer tracer(run.scene);
@@ -102,33 +106,52 @@ void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved, UnitS
       options.diverging = field_name == "net radiative flux";
       const Picture drawn = render(run.scene, run.patches, tracer, shown_in(field, units), options);
       for (const char* extension : {".png", ".svg"}) {
-        write_picture((dir / (picture + extension)).string(), drawn);
+        write_picture(out.file(picture + extension), drawn);
         info.files.push_back(picture + extension);
       }
     }
   }
   info.files.insert(info.files.end(), factor_files.begin(), factor_files.end());
   {
-    std::ofstream csv = open_output(dir / "surfaces.csv");
+    std::ofstream csv = open_output(out.file("surfaces.csv"));
     write_surfaces_csv(csv, model, result, units);
   }
   {
-    std::ofstream report = open_output(dir / "report.json");
+    // Last: report.json names the files of its run.
+    std::ofstream report = open_output(out.file(kManifestName));
     write_solve_json(report, info, model, result);
-    if (!report) throw InputError("cannot write '" + (dir / "report.json").string() + "'");
+    report.close();
+    if (!report) throw InputError("cannot write '" + out.target() + "/report.json'");
   }
+  out.commit();
   if (!args.rays.quiet) {
-    std::cout << "\nwrote " << (dir / "report.json").string();
+    std::cout << "\nwrote " << (fs::path(out.target()) / kManifestName).string();
     for (const std::string& name : info.files) std::cout << ", " << name;
     std::cout << "\n";
   }
 }
 
+// The solved room air ([room_air]): its temperature and what flows through it (SI).
+void print_room_air(std::ostream& out, const RoomAirResult& a) {
+  out << "\nroom air: " << rounded("%.2f C", a.air_K - kZeroCelsius) << " (solved"
+      << (a.converged ? "" : ", NOT CONVERGED") << ", " << a.iterations
+      << " exchange solves): convection from the surfaces " << rounded("%.1f W", a.convection_W)
+      << " + gains " << rounded("%.1f W", a.gains_W) << " = ventilation "
+      << rounded("%.1f W", a.ventilation_W) << " (" << rounded("%.3g m3/h", a.flow_m3_s * 3600)
+      << (a.volume_m3 > 0 ? " of a " + rounded("%.3g m3", a.volume_m3) + " room" : "")
+      << "), residual " << rounded("%.2g W", a.residual_W) << "\n";
+}
+
 }  // namespace
 
 int run_solve_command(const SolveArgs& args) {
+  if (!args.output_dir.empty()) check_output_folder(args.output_dir);  // before the work
   // A scene with a radiating gas goes through the zone method instead (cmd_solve_gas.cpp).
-  if (const SceneFile file = open_scene(args.input); file.gas) return run_gas_solve(args, file);
+  // Its tracing is not split over processes: under mpirun, process 0 runs it alone.
+  if (const SceneFile file = open_scene(args.input); file.gas) {
+    set_command_splits(false);
+    return is_helper_process() ? 0 : run_gas_solve(args, file);
+  }
   CacheChoice cache;
   cache.use = !args.no_cache;
   cache.dir = args.cache_dir;
@@ -150,6 +173,7 @@ int run_solve_command(const SolveArgs& args) {
   if (!args.rays.quiet || args.output_dir.empty()) {
     print_solve_table(std::cout, surface_heat(model, result), heat_balance(model, result), result,
                       outer_cases(model, result, model_height(run.scene)), units);
+    if (solved.room_air) print_room_air(std::cout, *solved.room_air);
   }
 
   if (!args.output_dir.empty()) write_solve_outputs(args, solved, units);

@@ -5,14 +5,32 @@
 #include <iostream>
 
 #include "commands.hpp"
+#include "hearthray/cache.hpp"
 #include "hearthray/gas_report.hpp"
 #include "hearthray/gas_run.hpp"
 #include "hearthray/thermal_report.hpp"
 #include "hearthray/units.hpp"
 #include "hearthray/version.hpp"
 #include "hearthray/vtu.hpp"
+#include "output_folder.hpp"
 
 namespace hearthray::cli {
+
+namespace {
+
+// The gas cache: --cache DIR, else the default folder; none with --no-cache.
+void use_gas_cache(const SolveArgs& args, const SceneFile& file, const PatchPlan& plan,
+                   GasRunOptions& options) {
+  if (args.no_cache) return;
+  options.cache_dir = args.cache_dir.empty() ? default_cache_dir() : args.cache_dir;
+  if (options.cache_dir.empty()) return;
+  options.mesh_bytes = read_mesh_bytes(file.mesh_path);
+  options.panels = file.panels;
+  options.mesh = file.mesh;
+  options.patch_specs = plan.specs;
+}
+
+}  // namespace
 
 int run_gas_solve(const SolveArgs& args, const SceneFile& file) {
   namespace fs = std::filesystem;
@@ -29,6 +47,7 @@ int run_gas_solve(const SolveArgs& args, const SceneFile& file) {
   gas_options.rays_for_patch = plan.rays;
   gas_options.threads = args.rays.threads;
   gas_options.force = args.rays.force;
+  use_gas_cache(args, file, plan, gas_options);
   if (file.surroundings_K) gas_options.surroundings_temperature = *file.surroundings_K;
   const GasRun run =
       run_gas(*file.gas, plan.scene, plan.patches, tracer,
@@ -44,9 +63,10 @@ int run_gas_solve(const SolveArgs& args, const SceneFile& file) {
     std::cout << "\n";
     print_gas_table(std::cout, run);
     std::cout << kEngineeringCaution << "\n";
+    std::cout << run.cache_note << "\n";
   }
   if (!args.output_dir.empty()) {
-    const fs::path dir = make_output_dir(args.output_dir);
+    OutputFolder out(args.output_dir);
     GasReportInfo info{
         kVersion,
         file.path,
@@ -54,29 +74,31 @@ int run_gas_solve(const SolveArgs& args, const SceneFile& file) {
         gas_options.seed,
         {"zones.csv", "gas_patches.csv", "zones.vtu", "patches.vtu", "gas_zones.png"}};
     {
-      std::ofstream csv = open_output(dir / "zones.csv");
+      std::ofstream csv = open_output(out.file("zones.csv"));
       write_zones_csv(csv, run);
     }
     {
-      std::ofstream csv = open_output(dir / "gas_patches.csv");
+      std::ofstream csv = open_output(out.file("gas_patches.csv"));
       write_gas_patches_csv(csv, run, names);
     }
-    write_zones_vtu((dir / "zones.vtu").string(), run);
+    write_zones_vtu(out.file("zones.vtu"), run);
     PatchField temperature{"temperature", "°C", {}}, flux{"net radiative flux", "W/m²", {}};
     for (std::size_t p = 0; p < plan.patches.size(); ++p) {
       temperature.values.push_back(run.solve.patches[p].temperature - kZeroCelsius);
       flux.values.push_back(run.solve.patches[p].net_out / plan.patches.patches[p].area);
     }
-    write_vtu((dir / "patches.vtu").string(), plan.scene, plan.patches, {temperature, flux},
+    write_vtu(out.file("patches.vtu"), plan.scene, plan.patches, {temperature, flux},
               {{"converged", run.solve.converged ? 1 : 0}});
-    write_picture((dir / "gas_zones.png").string(), zone_cut_picture(run, plan.scene));
+    write_picture(out.file("gas_zones.png"), zone_cut_picture(run, plan.scene));
     {
-      std::ofstream report = open_output(dir / "report.json");
+      std::ofstream report = open_output(out.file(kManifestName));  // last: names the files
       write_gas_report(report, info, run, names);
-      if (!report) throw InputError("cannot write '" + (dir / "report.json").string() + "'");
+      report.close();
+      if (!report) throw InputError("cannot write '" + out.target() + "/report.json'");
     }
+    out.commit();
     if (!args.rays.quiet) {
-      std::cout << "\nwrote " << (dir / "report.json").string();
+      std::cout << "\nwrote " << (fs::path(out.target()) / kManifestName).string();
       for (const std::string& name : info.files) std::cout << ", " << name;
       std::cout << "\n";
     }

@@ -1,5 +1,6 @@
 #pragma once
 
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -61,6 +62,20 @@ struct ComfortArgs {
 // side by side.
 int run_comfort_command(const ComfortArgs& args);
 int run_compare_command(const ComfortArgs& args);
+
+struct SizeArgs {
+  std::vector<std::string> inputs;    // one or more scenes (layouts of a room)
+  std::string output_dir;             // -o: maps, sizing.csv, report.html
+  std::optional<double> operative_C;  // --operative: target operative temperature (C)
+  std::vector<std::string> at;        // --at: zone (default), points, or point names
+  std::vector<double> pmv;            // --pmv low,high
+  RaySettings rays;                   // --threads, --quiet; rays and seed from the scenes
+  std::string cache_dir;              // --cache; "" = default
+  bool no_cache = false;
+};
+// Exit codes: 0 (also when a target is not reached: the output says so), 2 bad input, 4 a
+// scene's first solve did not converge.
+int run_size_command(const SizeArgs& args);
 
 struct RenderArgs {
   std::string input;              // scene.toml or mesh.obj

@@ -5,11 +5,13 @@
 #include <atomic>
 #include <cmath>
 #include <cstdio>
+#include <cstdlib>
 #include <iostream>
 
 #include "commands.hpp"
 #include "core/text.hpp"
 #include "hearthray/error.hpp"
+#include "processes.hpp"
 
 namespace hearthray::cli {
 
@@ -33,17 +35,31 @@ void show_progress(const PipelineProgress& p) {
 }
 
 // When stderr is not a terminal (a log file, a pipe): a line every kProgressLineSeconds
-// while tracing, so that a long run shows it is alive without filling the log.
+// (or $HEARTHRAY_PROGRESS_SECONDS) while tracing, so that a long run shows it is alive without
+// filling the log.
 constexpr double kProgressLineSeconds = 10;
+std::atomic<double> progress_line_seconds{kProgressLineSeconds};
 std::atomic<double> next_progress_line{kProgressLineSeconds};
+
+// The interval of the progress lines: $HEARTHRAY_PROGRESS_SECONDS when set, else the default.
+double progress_interval() {
+  const char* text = std::getenv("HEARTHRAY_PROGRESS_SECONDS");
+  if (!text || !*text) return kProgressLineSeconds;
+  char* end = nullptr;
+  const double seconds = std::strtod(text, &end);
+  if (*end || !(seconds > 0) || !std::isfinite(seconds))
+    throw InputError(std::string("HEARTHRAY_PROGRESS_SECONDS = '") + text +
+                     "': give the seconds between progress lines, a number above 0");
+  return seconds;
+}
 
 void log_progress(const PipelineProgress& p) {
   if (p.stage != PipelineStage::trace) {
-    next_progress_line = kProgressLineSeconds;
+    next_progress_line = progress_line_seconds.load();
     return;
   }
   if (p.seconds < next_progress_line || p.done >= p.total) return;
-  next_progress_line = p.seconds + kProgressLineSeconds;
+  next_progress_line = p.seconds + progress_line_seconds;
   const double fraction = p.total ? double(p.done) / double(p.total) : 1.0;
   const double rate = p.seconds > 0 ? double(p.done) / p.seconds : 0.0;
   const double left = rate > 0 ? double(p.total - p.done) / rate : 0.0;
@@ -85,8 +101,11 @@ PipelineOptions pipeline_options(const RaySettings& settings, const CacheChoice*
   if (settings.sampler)
     options.sampler =
         *settings.sampler == "sobol" ? EmissionSampler::sobol : EmissionSampler::stratified;
-  if (settings.target_error)
-    options.target_error = parse_target_error(*settings.target_error, "--target-error");
+  if (settings.target_error) {
+    const TargetError target = parse_target_error(*settings.target_error, "--target-error");
+    options.target_error = target.value;
+    options.target_on_heat_flows = target.heat_flows;
+  }
   options.max_rays_per_patch = settings.max_rays;
   if (settings.time_limit)
     options.time_limit_s = parse_time_limit(*settings.time_limit, "--time-limit");
@@ -97,7 +116,14 @@ PipelineOptions pipeline_options(const RaySettings& settings, const CacheChoice*
     options.cache_dir = cache->dir;
   }
   options.force = settings.force;
-  if (!settings.quiet) options.progress = isatty(fileno(stderr)) ? show_progress : log_progress;
+  if (!settings.quiet && isatty(fileno(stderr))) {
+    options.progress = show_progress;
+  } else if (!settings.quiet) {
+    progress_line_seconds = progress_interval();
+    next_progress_line = progress_line_seconds.load();
+    options.progress = log_progress;
+  }
+  if (command_splits()) prepare_split(&options);
   return options;
 }
 
@@ -147,13 +173,21 @@ std::string rays_list(const std::vector<std::uint64_t>& rays) {
   return join(items);
 }
 
+std::string target_errors(const RayTarget& t) {
+  if (!t.heat_flows)
+    return "largest standard error " + rounded("%.3g", t.achieved) + " (wanted " +
+           rounded("%.3g", t.error) + ")";
+  if (!t.heat.judged) return "heat-flow errors unknown";
+  return "largest standard error of a heat flow " + rounded("%.2g %%", 100 * t.achieved) + " ('" +
+         t.heat.surfaces[t.heat.worst] + "'; wanted " + rounded("%.2g %%", 100 * t.error) + ")";
+}
+
 }  // namespace
 
 std::string target_line(const FactorRun& run) {
   const RayTarget& t = run.target;
   if (!t.used) return "";
-  const std::string errors = "largest standard error " + rounded("%.3g", t.achieved) + " (wanted " +
-                             rounded("%.3g", t.error) + ")";
+  const std::string errors = target_errors(t);
   std::string line = t.reached() ? "ray target: reached, " + errors + " with " +
                                        std::to_string(t.round_rays.back()) + " rays per patch"
                                  : "ray target NOT reached: " + errors + " with " +
@@ -203,6 +237,15 @@ FactorReportInfo report_info(const SceneFile& file, const FactorRun& run) {
   info.target.max_rays_per_patch = t.max_rays_per_patch;
   info.target.time_limit_s = t.time_limit_s;
   info.target.rays_all_rounds = t.rays_all_rounds;
+  info.target.heat_flows = t.heat_flows;
+  if (t.heat_flows && t.heat.judged) {
+    info.target.heat_samples = t.heat.samples;
+    info.target.heat_floor_W = t.heat.floor_W;
+    info.target.surfaces = t.heat.surfaces;
+    info.target.net_W = t.heat.net_W;
+    info.target.net_error_W = t.heat.net_error_W;
+    info.target.temperature_error_K = t.heat.temperature_error_K;
+  }
   return info;
 }
 
@@ -229,17 +272,6 @@ std::string smoothing_line(const FactorRun& run) {
                 run.smoothing.iterations, run.smoothing.converged ? "" : " (NOT converged)",
                 run.factors.max_correction_sigma);
   return buffer;
-}
-
-std::filesystem::path make_output_dir(const std::string& dir) {
-  const std::filesystem::path path(dir);
-  std::error_code ec;
-  std::filesystem::create_directories(path, ec);
-  if (ec || !std::filesystem::is_directory(path)) {
-    throw InputError("cannot create the output folder '" + path.string() + "'" +
-                     (ec ? ": " + ec.message() : std::string()));
-  }
-  return path;
 }
 
 std::ofstream open_output(const std::filesystem::path& path) {

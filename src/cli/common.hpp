@@ -77,8 +77,6 @@ void print_notes(const std::vector<std::string>& notes);
 // One line about the smoothing, e.g. for the terminal.
 std::string smoothing_line(const FactorRun& run);
 
-// Creates the output folder (and its parents) or throws InputError naming it.
-std::filesystem::path make_output_dir(const std::string& dir);
 // Opens `path` for writing or throws InputError naming it.
 std::ofstream open_output(const std::filesystem::path& path);
 

@@ -10,6 +10,7 @@
 #include "hearthray/error.hpp"
 #include "hearthray/pipeline.hpp"  // the target defaults
 #include "hearthray/version.hpp"
+#include "processes.hpp"
 
 using namespace hearthray::cli;
 
@@ -29,10 +30,11 @@ struct Commands {
   CheckArgs check;
   SolveArgs solve, fire;
   ComfortArgs comfort, compare;
+  SizeArgs size;
   RenderArgs render;
   CLI::App *cmd_factors = nullptr, *cmd_check = nullptr, *cmd_solve = nullptr,
            *cmd_comfort = nullptr, *cmd_compare = nullptr, *cmd_render = nullptr,
-           *cmd_fire = nullptr;
+           *cmd_fire = nullptr, *cmd_size = nullptr;
 };
 
 void add_sampler_option(CLI::App* cmd, RaySettings& rays) {
@@ -47,7 +49,8 @@ void add_sampler_option(CLI::App* cmd, RaySettings& rays) {
 void add_target_options(CLI::App* cmd, RaySettings& rays) {
   cmd->add_option("--target-error", rays.target_error,
                   "Trace in rounds until every view factor's standard error is at most this "
-                  "(e.g. 0.001); --rays gives the first round (default " +
+                  "(e.g. 0.001), or with solve every surface's net heat flow is within this "
+                  "percentage (e.g. 0.5%); --rays gives the first round (default " +
                       std::to_string(hearthray::kDefaultTargetFirstRays) + ")");
   cmd->add_option("--max-rays", rays.max_rays,
                   "With --target-error: at most this many rays per patch (default " +
@@ -178,6 +181,32 @@ void add_comfort_commands(CLI::App& app, Commands* c) {
   }
 }
 
+// `size`: the least heater power for a comfort target, for one or more layouts.
+CLI::App* add_size_command(CLI::App& app, SizeArgs& a) {
+  CLI::App* cmd = app.add_subcommand(
+      "size", "Least heater power meeting a comfort target, per layout, with verdicts and report");
+  cmd->add_option("scene", a.inputs, "Scene files (.toml) with [comfort] tables: the layouts")
+      ->required()
+      ->expected(1, 64);
+  cmd->add_option("--operative", a.operative_C, "Target operative temperature in C");
+  cmd->add_option("--at", a.at,
+                  "Where the operative target applies: zone (mean over the grid, default), "
+                  "points (every named point) or point names")
+      ->delimiter(',');
+  cmd->add_option("--pmv", a.pmv, "Target PMV band low,high, e.g. -0.5,0.5 (every point)")
+      ->delimiter(',')
+      ->expected(2);
+  cmd->add_option("-o,--output", a.output_dir, "Folder for the maps, sizing.csv and report.html");
+  cmd->add_flag("-q,--quiet", a.rays.quiet, "No progress, notes or view-factor lines");
+  cmd->add_flag("--force", a.rays.force,
+                "Run even when the estimated patches, rays or memory are past the limits");
+  cmd->add_option("--threads", a.rays.threads, "Worker threads (default: all)")
+      ->check(CLI::Range(0, 1024));
+  CLI::Option* dir = cmd->add_option("--cache", a.cache_dir, "View-factor cache folder");
+  cmd->add_flag("--no-cache", a.no_cache, "Always trace view factors")->excludes(dir);
+  return cmd;
+}
+
 CLI::App* add_render_command(CLI::App& app, RenderArgs& render) {
   CLI::App* cmd_render = app.add_subcommand(
       "render", "PNG picture of the model coloured by surface, patch area or a view factor");
@@ -268,6 +297,9 @@ int parse(CLI::App& app, int argc, char** argv) {
 // Runs the command given; bad input is exit 2, anything else an internal failure (exit 3).
 int run(const Commands& c) {
   try {
+    // Under mpirun, commands that do not split their tracing run on process 0 alone.
+    set_command_splits(*c.cmd_factors || *c.cmd_solve);
+    if (is_helper_process() && !command_splits()) return 0;
     if (*c.cmd_factors) return run_factors_command(c.factors);
     if (*c.cmd_check) return run_check_command(c.check);
     if (*c.cmd_solve) return run_solve_command(c.solve);
@@ -275,6 +307,9 @@ int run(const Commands& c) {
     if (*c.cmd_fire) return run_fire_command(c.fire);
     if (*c.cmd_comfort) return run_comfort_command(c.comfort);
     if (*c.cmd_compare) return run_compare_command(c.compare);
+    if (*c.cmd_size) return run_size_command(c.size);
+  } catch (const ProcessesStop& stop) {
+    return stop.status;
   } catch (const hearthray::InputError& e) {
     std::cerr << "error: " << e.what() << "\n";
     return 2;
@@ -289,9 +324,7 @@ int run(const Commands& c) {
   return 0;
 }
 
-}  // namespace
-
-int main(int argc, char** argv) {
+int run_command_line(int argc, char** argv) {
   CLI::App app{
       "hearthray: view factors and radiant heat exchange between the surfaces of a 3-D model.\n"
       "Results are engineering estimates; furnace, kiln and heater design follows local codes,\n"
@@ -313,8 +346,17 @@ int main(int argc, char** argv) {
       "A firing over time: the scene's [firing] schedule, walls and loads with heat capacity",
       "Folder for firing.csv, report.json and the pictures against time", c.fire);
   add_comfort_commands(app, &c);
+  c.cmd_size = add_size_command(app, c.size);
   c.cmd_render = add_render_command(app, c.render);
   if (unknown_command(app, argc, argv)) return 2;
   if (const int status = parse(app, argc, argv); status >= 0) return status;
   return run(c);
+}
+
+}  // namespace
+
+// Under an MPI launcher, every process of the job runs this (see processes.hpp).
+int main(int argc, char** argv) {
+  start_processes(&argc, &argv);
+  return finish_processes(run_command_line(argc, argv));
 }

@@ -132,6 +132,16 @@ PointComfort evaluate_comfort(const ComfortPoint& point, const PointFactors& fac
 
   const double A = operative_air_weight(air.air_speed);
   c.operative_K = A * air.air_K + (1 - A) * c.mean_radiant.kelvin;
+  if (air.person) {
+    PmvInput in;
+    in.air_C = air.air_K - kZeroCelsius;
+    in.mean_radiant_C = c.mean_radiant.kelvin - kZeroCelsius;
+    in.air_speed = air.air_speed;
+    in.relative_humidity = air.person->relative_humidity;
+    in.met = air.person->met;
+    in.clo = air.person->clo;
+    c.pmv = predicted_mean_vote(in);
+  }
   return c;
 }
 

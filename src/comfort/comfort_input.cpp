@@ -8,13 +8,16 @@
 #include "comfort/comfort_input_toml.hpp"
 #include "core/text.hpp"
 #include "hearthray/error.hpp"
+#include "hearthray/pmv.hpp"
 #include "hearthray/scene_file.hpp"
 
 namespace hearthray {
 namespace {
 
-const std::vector<std::string> kComfortKeys = {"air_temperature", "air_speed", "rays", "point",
-                                               "grid"};
+const std::vector<std::string> kComfortKeys = {
+    "air_temperature", "air_speed",        "rays", "point", "grid", "metabolic_rate",
+    "clothing",        "relative_humidity"};
+const std::vector<std::string> kPersonKeys = {"metabolic_rate", "clothing", "relative_humidity"};
 const std::vector<std::string> kPointKeys = {"position", "kind"};
 const std::vector<std::string> kGridKeys = {"height", "spacing", "margin", "kind"};
 
@@ -83,13 +86,8 @@ class ComfortReader {
   // "0.1 m/s": the only unit taken is m/s.
   double speed(const toml::node& node) const {
     const std::string s = text(node, "air_speed", "[comfort]", "0.1 m/s");
-    char* end = nullptr;
-    const double v = std::strtod(s.c_str(), &end);
-    std::string unit(end == s.c_str() ? s : std::string(end));
-    unit.erase(
-        std::remove_if(unit.begin(), unit.end(), [](unsigned char c) { return std::isspace(c); }),
-        unit.end());
-    if (end == s.c_str() || unit != "m/s" || !std::isfinite(v)) {
+    double v = 0;
+    if (!number_with_unit(s, {{"m/s", 1.0}}, &v)) {
       fail(node, "air_speed in [comfort] is \"" + s + "\"; write air_speed = \"0.1 m/s\"");
     }
     if (v < 0 || v > kMaxAirSpeed) {
@@ -108,6 +106,43 @@ class ComfortReader {
     if (s == "standing") return ComfortBody::standing;
     fail(node, "kind in " + table_name + " is '" + s +
                    "'; write kind = \"sphere\", \"seated\" or \"standing\"");
+  }
+
+  // A number and one of `units` (spaces ignored), as SI through the unit's factor.
+  double with_unit(const toml::node& node, const std::string& key,
+                   const std::vector<std::pair<std::string, double>>& units,
+                   const std::string& example) const {
+    const std::string s = text(node, key, "[comfort]", example);
+    double v = 0;
+    if (number_with_unit(s, units, &v)) return v;
+    std::vector<std::string> names;
+    for (const auto& unit : units) names.push_back(unit.first);
+    fail(node, key + " in [comfort] is \"" + s + "\"; write it with one of the units " +
+                   join(names) + ", like " + key + " = \"" + example + "\"");
+  }
+
+  // metabolic_rate, clothing, relative_humidity: all three or none; within ISO 7730's ranges.
+  std::optional<PersonInput> person(const toml::table& t) const {
+    std::vector<std::string> given;
+    for (const std::string& k : kPersonKeys)
+      if (t.get(k)) given.push_back(k);
+    if (given.empty()) return std::nullopt;
+    if (given.size() < kPersonKeys.size())
+      fail(*t.get(given[0]), "[comfort] gives " + join(given) +
+                                 ": PMV needs all of metabolic_rate = \"1.2 met\", "
+                                 "clothing = \"1.0 clo\" and relative_humidity = \"50 %\"");
+    PersonInput p;
+    p.line = int(t.get(given[0])->source().begin.line);
+    // 1 met = 58.15 W/m2, 1 clo = 0.155 m2K/W (ISO 7730; recalled).
+    p.met = with_unit(*t.get("metabolic_rate"), "metabolic_rate",
+                      {{"met", 1.0}, {"W/m2", 1 / 58.15}}, "1.2 met");
+    p.clo =
+        with_unit(*t.get("clothing"), "clothing", {{"clo", 1.0}, {"m2K/W", 1 / 0.155}}, "1.0 clo");
+    p.relative_humidity =
+        with_unit(*t.get("relative_humidity"), "relative_humidity", {{"%", 0.01}}, "50 %");
+    const std::string problem = pmv_input_problem(p.met, p.clo, p.relative_humidity);
+    if (!problem.empty()) fail(*t.get(given[0]), "in [comfort], " + problem);
+    return p;
   }
 
   ComfortPointSpec point(const std::string& name, const toml::node& node) const {
@@ -143,19 +178,28 @@ class ComfortReader {
     return g;
   }
 
-  ComfortInput read(const toml::node& node) const {
+  double air_temperature(const toml::node& air) const {
+    try {
+      return parse_temperature(text(air, "air_temperature", "[comfort]", "20 C"),
+                               "air_temperature");
+    } catch (const InputError& e) {
+      fail(air, std::string("in [comfort], ") + e.what());
+    }
+  }
+
+  ComfortInput read(const toml::node& node, bool air_solved) const {
     const toml::table& t = table(node, "[comfort]");
     check_keys(t, kComfortKeys, "[comfort]");
     ComfortInput in;
     in.line = int(t.source().begin.line);
     const toml::node* air = t.get("air_temperature");
-    if (!air) fail(node, "[comfort] has no air_temperature: write air_temperature = \"20 C\"");
-    try {
-      in.air_K =
-          parse_temperature(text(*air, "air_temperature", "[comfort]", "20 C"), "air_temperature");
-    } catch (const InputError& e) {
-      fail(*air, std::string("in [comfort], ") + e.what());
-    }
+    if (air && air_solved)
+      fail(*air,
+           "air_temperature in [comfort] is given, but the scene has [room_air]: the air "
+           "temperature is solved from the room's heat balance; remove air_temperature");
+    if (!air && !air_solved)
+      fail(node, "[comfort] has no air_temperature: write air_temperature = \"20 C\"");
+    if (air) in.air_K = air_temperature(*air);
     if (const toml::node* v = t.get("air_speed")) in.air_speed = speed(*v);
     if (const toml::node* r = t.get("rays")) {
       const auto* i = r->as_integer();
@@ -172,6 +216,7 @@ class ComfortReader {
                        [](const auto& a, const auto& b) { return a.line < b.line; });
     }
     if (const toml::node* g = t.get("grid")) in.grid = grid(*g);
+    in.person = person(t);
     if (in.points.empty() && !in.grid) {
       fail(node,
            "[comfort] has neither points nor a grid: add [comfort.point.NAME] with "
@@ -187,6 +232,23 @@ class ComfortReader {
 
 }  // namespace
 
+bool number_with_unit(const std::string& text,
+                      const std::vector<std::pair<std::string, double>>& units, double* value) {
+  char* end = nullptr;
+  const double v = std::strtod(text.c_str(), &end);
+  if (end == text.c_str() || !std::isfinite(v)) return false;
+  std::string unit(end);
+  unit.erase(
+      std::remove_if(unit.begin(), unit.end(), [](unsigned char c) { return std::isspace(c); }),
+      unit.end());
+  for (const auto& [name, factor] : units) {
+    if (unit != name) continue;
+    *value = v * factor;
+    return true;
+  }
+  return false;
+}
+
 std::string to_string(ComfortBody body) {
   switch (body) {
     case ComfortBody::seated:
@@ -198,8 +260,8 @@ std::string to_string(ComfortBody body) {
   }
 }
 
-ComfortInput read_comfort_table(const toml::node& node, const std::string& path) {
-  return ComfortReader(path).read(node);
+ComfortInput read_comfort_table(const toml::node& node, const std::string& path, bool air_solved) {
+  return ComfortReader(path).read(node, air_solved);
 }
 
 }  // namespace hearthray

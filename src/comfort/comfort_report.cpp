@@ -68,6 +68,29 @@ double box_gap(const Box3& a, const Box3& b) {
   return norm(d);
 }
 
+bool has_pmv(const std::vector<PointComfort>& points) {
+  return std::any_of(points.begin(), points.end(), [](const PointComfort& p) { return p.pmv; });
+}
+
+// PMV and PPD over the points, and the points whose conditions leave the standard's ranges.
+void print_pmv_summary(std::ostream& out, const std::vector<PointComfort>& points) {
+  if (!has_pmv(points)) return;
+  const Range pmv = range(points, [](const PointComfort& p) { return p.pmv ? p.pmv->pmv : 0.0; });
+  const Range ppd = range(points, [](const PointComfort& p) { return p.pmv ? p.pmv->ppd : 0.0; });
+  out << "  " << name_pad("PMV", 34) << rounded("%7.2f", pmv.min) << rounded("%7.2f", pmv.mean)
+      << rounded("%7.2f", pmv.max) << "\n";
+  out << "  " << name_pad("PPD (%)", 34) << rounded("%7.1f", ppd.min) << rounded("%7.1f", ppd.mean)
+      << rounded("%7.1f", ppd.max) << "\n";
+  std::vector<std::string> outside;
+  for (const PointComfort& p : points)
+    if (p.pmv && !p.pmv->in_range())
+      outside.push_back(p.point.name + " (" + join(p.pmv->out_of_range, ", ") + ")");
+  if (!outside.empty())
+    out << "  PMV outside the ranges of ISO 7730 sec. 4.1 at "
+        << share_text(outside.size(), points.size())
+        << " points, an extrapolation there: " << join_at_most(outside, 5) << "\n";
+}
+
 std::string verdict(const PointComfort& p) {
   if (p.within_limits()) return "within limits";
   std::string v;
@@ -125,11 +148,13 @@ std::string failing_text(const PointComfort& p) {
 
 void print_comfort_table(std::ostream& out, const std::vector<PointComfort>& points,
                          const ComfortSummary& s) {
+  const bool pmv = has_pmv(points);
   std::size_t w = 5;
   for (const PointComfort& p : points) w = std::max(w, p.point.name.size());
   out << name_pad("point", w) << "  " << name_pad("kind", 8) << pad("t_mr C", 8) << pad("+-", 6)
       << pad("t_o C", 8) << pad("vert K", 8) << "  " << name_pad("case", 12) << pad("PD %", 6)
-      << pad("horiz K", 9) << "  " << name_pad("case", 10) << pad("PD %", 6) << "  verdict\n";
+      << pad("horiz K", 9) << "  " << name_pad("case", 10) << pad("PD %", 6) << "  "
+      << (pmv ? name_pad("verdict", 9) + pad("PMV", 6) + pad("PPD %", 7) : "verdict") << "\n";
   for (const PointComfort& p : points) {
     out << name_pad(p.point.name, w) << "  " << name_pad(to_string(p.point.body), 8)
         << pad(celsius(p.mean_radiant.kelvin), 8) << pad(rounded("%.2f", p.mean_radiant.se_K), 6)
@@ -138,7 +163,12 @@ void print_comfort_table(std::ostream& out, const std::vector<PointComfort>& poi
         << pad(rounded("%.1f", p.vertical.pd_percent), 6)
         << pad(rounded("%.1f", p.horizontal.delta_K), 9) << "  "
         << name_pad(to_string(p.horizontal.kind), 10)
-        << pad(rounded("%.1f", p.horizontal.pd_percent), 6) << "  " << verdict(p) << "\n";
+        << pad(rounded("%.1f", p.horizontal.pd_percent), 6) << "  "
+        << (pmv ? name_pad(verdict(p), 9) : verdict(p));
+    if (p.pmv)
+      out << pad(rounded("%+.2f", p.pmv->pmv), 6) << pad(rounded("%.1f", p.pmv->ppd), 7)
+          << (p.pmv->in_range() ? "" : "  (outside ISO 7730 ranges)");
+    out << "\n";
   }
   if (points.empty()) return;
   auto line = [&](const char* what, const Range& r, bool temperature) {
@@ -151,6 +181,7 @@ void print_comfort_table(std::ostream& out, const std::vector<PointComfort>& poi
   line("operative temperature (C)", s.operative_K, true);
   line("vertical asymmetry (K)", s.vertical_K, false);
   line("horizontal asymmetry (K)", s.horizontal_K, false);
+  print_pmv_summary(out, points);
   out << "  within the vertical limit: " << share_text(s.count_vertical, s.points)
       << " points; horizontal: " << share_text(s.count_horizontal, s.points)
       << "; both: " << share_text(s.count_both, s.points) << "\n";
@@ -182,7 +213,9 @@ void write_comfort_csv(std::ostream& out, const std::vector<PointComfort>& point
   for (const char* d : kPlaneNames) out << ",plane_radiant_" << d << "_C";
   out << ",vertical_asymmetry_K,vertical_se_K,vertical_case,vertical_pd_percent"
          ",horizontal_asymmetry_K,horizontal_se_K,horizontal_axis,horizontal_case,"
-         "horizontal_pd_percent,lost_fraction,within_limits\n";
+         "horizontal_pd_percent,lost_fraction,within_limits";
+  const bool pmv = has_pmv(points);
+  out << (pmv ? ",pmv,ppd_percent,pmv_within_iso7730_ranges\n" : "\n");
   for (const PointComfort& p : points) {
     out << p.point.name << "," << to_string(p.point.body) << "," << shortest(p.point.position.x)
         << "," << shortest(p.point.position.y) << "," << shortest(p.point.position.z) << ","
@@ -194,7 +227,13 @@ void write_comfort_csv(std::ostream& out, const std::vector<PointComfort>& point
         << shortest(p.horizontal.delta_K) << "," << shortest(p.horizontal.se_K) << ","
         << (p.horizontal.axis == 0 ? "x" : "y") << "," << to_string(p.horizontal.kind) << ","
         << shortest(p.horizontal.pd_percent) << "," << shortest(p.lost_fraction) << ","
-        << (p.within_limits() ? "yes" : "no") << "\n";
+        << (p.within_limits() ? "yes" : "no");
+    if (pmv && p.pmv)
+      out << "," << shortest(p.pmv->pmv) << "," << shortest(p.pmv->ppd) << ","
+          << (p.pmv->in_range() ? "yes" : "no");
+    else if (pmv)
+      out << ",,,";
+    out << "\n";
   }
 }
 

@@ -12,6 +12,7 @@
 #include <fstream>
 #include <sstream>
 
+#include "factors/cache_io.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/hash.hpp"
 
@@ -19,6 +20,7 @@ namespace hearthray {
 namespace {
 
 namespace fs = std::filesystem;
+using namespace cache_io;
 
 constexpr char kMagic[8] = {'h', 'r', 't', 'a', 'l', 'l', 'y', '\0'};
 constexpr std::uint32_t kLayoutVersion = 2;
@@ -26,120 +28,6 @@ constexpr std::uint32_t kLayoutVersion = 2;
 // counts), key (2), patches, surfaces, rows, emitter_begin, hits, trace seconds, payload
 // hash (2).
 constexpr std::size_t kHeaderBytes = 8 + 8 + 16 + 5 * 8 + 8 + 16;
-
-std::uint64_t rotl(std::uint64_t x, int r) {
-  return (x << r) | (x >> (64 - r));
-}
-
-// Two hashes of one byte stream: FNV-1a 64 (Fowler, Noll & Vo; offset basis and prime of the
-// published 64-bit variant) byte by byte, and a multiply-xorshift mix of 8-byte words.
-class Hasher {
- public:
-  void bytes(const void* data, std::size_t n) {
-    const auto* p = static_cast<const unsigned char*>(data);
-    for (std::size_t i = 0; i < n; ++i) {
-      fnv_ = (fnv_ ^ p[i]) * 0x100000001b3ull;
-      block_ |= std::uint64_t(p[i]) << (8 * fill_);
-      if (++fill_ == 8) absorb();
-    }
-    length_ += n;
-  }
-  void u64(std::uint64_t v) {
-    unsigned char b[8];
-    for (int i = 0; i < 8; ++i) b[i] = static_cast<unsigned char>(v >> (8 * i));
-    bytes(b, 8);
-  }
-  void real(double v) {
-    std::uint64_t bits;
-    std::memcpy(&bits, &v, sizeof bits);
-    u64(bits);
-  }
-  void text(const std::string& s) {  // length first: "ab"+"c" differs from "a"+"bc"
-    u64(s.size());
-    bytes(s.data(), s.size());
-  }
-  TallyCacheKey finish() {
-    if (fill_ > 0) absorb();
-    mix_ = rotl(mix_ ^ mix64(length_), 27) * 0x9e3779b97f4a7c15ull + 0x632be59bd9b14b3bull;
-    return {fnv_, mix64(mix_)};
-  }
-
- private:
-  void absorb() {
-    mix_ = rotl(mix_ ^ mix64(block_), 27) * 0x9e3779b97f4a7c15ull + 0x632be59bd9b14b3bull;
-    block_ = 0;
-    fill_ = 0;
-  }
-  std::uint64_t fnv_ = 0xcbf29ce484222325ull;
-  std::uint64_t mix_ = 0x243f6a8885a308d3ull;  // digits of pi: any fixed start will do
-  std::uint64_t block_ = 0;
-  int fill_ = 0;
-  std::uint64_t length_ = 0;
-};
-
-void put_u64(std::string* out, std::uint64_t v) {
-  for (int i = 0; i < 8; ++i) out->push_back(static_cast<char>(v >> (8 * i)));
-}
-void put_u32(std::string* out, std::uint32_t v) {
-  for (int i = 0; i < 4; ++i) out->push_back(static_cast<char>(v >> (8 * i)));
-}
-template <typename T>
-void put_all(std::string* out, const std::vector<T>& values) {
-  for (T v : values) {
-    if constexpr (sizeof(T) == 8) {
-      put_u64(out, v);
-    } else {
-      put_u32(out, v);
-    }
-  }
-}
-
-// Reads little-endian integers from a byte buffer; the caller checks sizes first.
-struct Cursor {
-  const std::string& data;
-  std::size_t at = 0;
-  std::uint64_t u64() {
-    std::uint64_t v = 0;
-    for (int i = 0; i < 8; ++i)
-      v |= std::uint64_t(static_cast<unsigned char>(data[at + i])) << (8 * i);
-    at += 8;
-    return v;
-  }
-  std::uint32_t u32() {
-    std::uint32_t v = 0;
-    for (int i = 0; i < 4; ++i)
-      v |= std::uint32_t(static_cast<unsigned char>(data[at + i])) << (8 * i);
-    at += 4;
-    return v;
-  }
-  std::vector<double> reals(std::size_t n) {
-    std::vector<double> v(n);
-    for (double& x : v) {
-      const std::uint64_t bits = u64();
-      std::memcpy(&x, &bits, sizeof x);
-    }
-    return v;
-  }
-  template <typename T>
-  std::vector<T> all(std::size_t n) {
-    std::vector<T> v(n);
-    for (T& x : v) x = sizeof(T) == 8 ? static_cast<T>(u64()) : static_cast<T>(u32());
-    return v;
-  }
-};
-
-TallyCacheKey payload_hash(const std::string& data, std::size_t from) {
-  Hasher h;
-  h.bytes(data.data() + from, data.size() - from);
-  return h.finish();
-}
-
-std::string hex64(std::uint64_t v) {
-  static const char* digits = "0123456789abcdef";
-  std::string s(16, '0');
-  for (int i = 15; i >= 0; --i, v >>= 4) s[static_cast<std::size_t>(i)] = digits[v & 15];
-  return s;
-}
 
 // Every ray of every row accounted for, rows well formed, surface totals consistent.
 std::string check_counts(const Tallies& t, const std::vector<std::uint64_t>& rays) {
@@ -196,35 +84,21 @@ TallyCacheKey tally_cache_key(const std::string& mesh_bytes, const MeshOptions& 
                               const Scene& scene, const TallyCacheSettings& settings) {
   Hasher h;
   h.text(kTallyCacheFormat);
-  h.bytes(mesh_bytes.data(), mesh_bytes.size());
-  h.u64(mesh_bytes.size());
-  h.text(to_string(mesh.unit));
-  h.u64(mesh.surfaces_from == SurfacesFrom::groups ? 0 : 1);
-  h.real(mesh.degenerate_relative_area);
-  h.u64(scene.surfaces.size());
-  for (std::size_t i = 0; i < scene.surfaces.size(); ++i) {
-    const Surface& s = scene.surfaces[i];
-    h.text(s.name);
-    h.u64(s.two_sided ? 1 : 0);
-    const PatchSpec spec = i < settings.patch_specs.size() ? settings.patch_specs[i] : PatchSpec{};
-    h.u64(static_cast<std::uint64_t>(spec.mode));
-    h.real(spec.size);
-  }
-  h.u64(settings.panels.size());
-  for (const PanelPlacement& p : settings.panels) {
-    h.text(p.name);
-    h.text(p.host);
-    for (const double v : {p.centre.x, p.centre.y, p.centre.z, p.length, p.width}) h.real(v);
-    h.u64(p.along ? 1 : 0);
-    if (p.along)
-      for (const double v : {p.along->x, p.along->y, p.along->z}) h.real(v);
-  }
+  hash_mesh(h, mesh_bytes, mesh, scene, settings.patch_specs, settings.panels);
   h.u64(settings.rays.size());
   for (std::uint64_t n : settings.rays) h.u64(n);
   h.u64(settings.seed);
   h.text(sampler_name(settings.sampler));
   h.u64(settings.smoothed ? 1 : 0);
   return h.finish();
+}
+
+std::string read_mesh_bytes(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in) throw InputError("cannot read the mesh file '" + path + "' to hash it");
+  std::string bytes((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+  if (in.bad()) throw InputError("error reading the mesh file '" + path + "'");
+  return bytes;
 }
 
 std::string default_cache_dir() {
@@ -257,28 +131,12 @@ CachedTallies load_cached_tallies(const std::string& dir, const TallyCacheKey& k
     return out;
   };
   std::string data;
-  {
-    std::ifstream in(out.path, std::ios::binary);
-    std::ostringstream ss;
-    ss << in.rdbuf();
-    if (!in) return reject("it could not be read");
-    data = ss.str();
-  }
-  if (data.size() < kHeaderBytes) return reject("it is too short to hold a header");
-  if (std::memcmp(data.data(), kMagic, sizeof kMagic) != 0) {
-    return reject("it is not a hearthray tally file");
-  }
-  Cursor c{data, sizeof kMagic};
-  const std::uint32_t layout = c.u32();
-  const bool squares = (c.u32() & 1u) != 0;
-  if (layout != kLayoutVersion) {
-    return reject("its layout version is " + std::to_string(layout) + ", expected " +
-                  std::to_string(kLayoutVersion));
-  }
-  TallyCacheKey stored;
-  stored.fnv = c.u64();
-  stored.mix = c.u64();
-  if (!(stored == key)) return reject("it was made for another key");
+  std::uint32_t flags = 0;
+  const std::string head = read_cache_file(out.path, kMagic, kLayoutVersion, key, kHeaderBytes,
+                                           "hearthray tally file", &data, &flags);
+  if (!head.empty()) return reject(head);
+  Cursor c{data, kHeadBytes};
+  const bool squares = (flags & 1u) != 0;
   const std::uint64_t n_patches = c.u64(), n_surfaces = c.u64(), rows = c.u64();
   const std::uint64_t begin = c.u64(), hits = c.u64();
   const std::uint64_t seconds_bits = c.u64();
@@ -373,32 +231,7 @@ CacheWrite store_cached_tallies(const std::string& dir, const TallyCacheKey& key
   put_u64(&data, checksum.mix);
   data += payload;
 
-  std::error_code ec;
-  fs::create_directories(dir, ec);
-  if (ec) {
-    out.reason = "cannot create the cache folder '" + dir + "': " + ec.message();
-    return out;
-  }
-  // A name no other writer uses, so that two solves of one scene at once cannot mix bytes.
-  static std::atomic<unsigned> counter{0};
-  const std::string temporary =
-      out.path + ".tmp." + std::to_string(::getpid()) + "." + std::to_string(counter++);
-  {
-    std::ofstream file(temporary, std::ios::binary | std::ios::trunc);
-    file.write(data.data(), static_cast<std::streamsize>(data.size()));
-    if (!file) {
-      fs::remove(temporary, ec);
-      out.reason = "cannot write '" + temporary + "'";
-      return out;
-    }
-  }
-  fs::rename(temporary, out.path, ec);
-  if (ec) {
-    fs::remove(temporary, ec);
-    out.reason = "cannot move the cache file into place at '" + out.path + "'";
-    return out;
-  }
-  out.stored = true;
+  out = write_cache_file(dir, out.path, data);
   return out;
 }
 

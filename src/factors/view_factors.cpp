@@ -223,39 +223,53 @@ class RowMerger {
   double escaped_square_ = 0, back_square_ = 0;
 };
 
-// Rows [begin, end) from the chunk tallies (in chunk order, which is emitter order), and the
-// per-surface totals of every thread. Integer sums: the same in any order.
-Tallies merge_rows(const ViewFactorOptions& options, std::uint32_t begin, std::uint32_t end,
-                   const PatchLookup& lookup, const std::vector<Chunk>& chunks,
-                   std::vector<HitTally>& results,
-                   const tbb::enumerable_thread_specific<Scratch>& scratch) {
-  Tallies tallies;
-  const std::size_t n_patches = lookup.patch_count(), n_surfaces = lookup.surface_count();
-  tallies.patch_count = n_patches;
-  tallies.emitter_begin = begin;
-  tallies.back_face_hits_on_surface.assign(n_surfaces, 0);
-  tallies.hits_on_surface.assign(n_surfaces, 0);
+// The merged rows' patch count, first row and the per-surface totals of every thread. Integer
+// sums: the same in any order.
+void finish_tallies(std::uint32_t begin, const PatchLookup& lookup,
+                    const tbb::enumerable_thread_specific<Scratch>& scratch, Tallies* tallies) {
+  const std::size_t n_surfaces = lookup.surface_count();
+  tallies->patch_count = lookup.patch_count();
+  tallies->emitter_begin = begin;
+  tallies->back_face_hits_on_surface.assign(n_surfaces, 0);
+  tallies->hits_on_surface.assign(n_surfaces, 0);
   for (const Scratch& s : scratch) {
     for (std::size_t i = 0; i < n_surfaces; ++i) {
-      tallies.back_face_hits_on_surface[i] += s.counter.back_face_hits_on_surface()[i];
-      tallies.hits_on_surface[i] += s.counter.hits_on_surface()[i];
+      tallies->back_face_hits_on_surface[i] += s.counter.back_face_hits_on_surface()[i];
+      tallies->hits_on_surface[i] += s.counter.hits_on_surface()[i];
     }
   }
+}
+
+// Appends the rows of the chunks [first, first + results.size()) (whole rows, in chunk order,
+// which is emitter order) to `tallies`, freeing each chunk's tally as it goes.
+void merge_rows(const ViewFactorOptions& options, const std::vector<Chunk>& chunks,
+                std::size_t first, std::vector<HitTally>& results, RowMerger& row,
+                Tallies* tallies) {
   const bool sobol = options.sampler == EmissionSampler::sobol;
-  RowMerger row(n_patches, sobol);
-  std::size_t c = 0;
-  for (std::uint32_t p = begin; p < end; ++p) {
-    const std::uint64_t N = rays_of(options, p);
+  const std::size_t end = first + results.size();
+  std::size_t c = first;
+  while (c < end) {
+    const std::uint32_t p = chunks[c].patch;
+    const std::uint64_t N = chunks[c].total;
     for (std::uint32_t r = 0; r < (sobol ? kSobolReplicates : 1); ++r) {
-      for (; c < chunks.size() && chunks[c].patch == p && chunks[c].replicate == r; ++c) {
-        row.add_chunk(results[c]);
-        results[c] = HitTally{};
+      for (; c < end && chunks[c].patch == p && chunks[c].replicate == r; ++c) {
+        row.add_chunk(results[c - first]);
+        results[c - first] = HitTally{};
       }
       if (sobol) row.end_replicate(replicate_first_ray(N, r + 1) - replicate_first_ray(N, r));
     }
-    row.end_row(N, &tallies);
+    row.end_row(N, tallies);
   }
-  return tallies;
+}
+
+// The end of the window of chunks starting at `first`: about kWindowChunks chunks, ending at a
+// row's end. Chunks are traced and merged window by window, so that the chunks' own tallies
+// (about 12 bytes per receiver per chunk) never exist for the whole run at once.
+constexpr std::size_t kWindowChunks = std::size_t{1} << 14;
+std::size_t window_end(const std::vector<Chunk>& chunks, std::size_t first) {
+  std::size_t end = std::min(chunks.size(), first + kWindowChunks);
+  while (end < chunks.size() && chunks[end].patch == chunks[end - 1].patch) ++end;
+  return end;
 }
 
 }  // namespace
@@ -266,7 +280,6 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
   const EmitterSampler emitters(scene, patches, tracer.centre(), options.seed, options.sampler);
   const PatchLookup lookup(scene, patches);
   const std::vector<Chunk> chunks = plan_chunks(options, begin, end);
-  std::vector<HitTally> results(chunks.size());
   tbb::enumerable_thread_specific<Scratch> scratch([&] { return Scratch(lookup); });
 
   std::uint64_t rays_total = 0;
@@ -274,18 +287,28 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
   ProgressReport progress(options.progress, rays_total);
   const int threads = options.threads > 0 ? options.threads : tbb::info::default_concurrency();
   tbb::task_arena arena(threads);
-  arena.execute([&] {
-    tbb::parallel_for(tbb::blocked_range<std::size_t>(0, chunks.size(), 1),
-                      [&](const tbb::blocked_range<std::size_t>& range) {
-                        for (std::size_t c = range.begin(); c != range.end(); ++c) {
-                          results[c] = trace_chunk(chunks[c], emitters, tracer, scratch.local());
-                          progress.add(chunks[c].last - chunks[c].first);
-                        }
-                      });
-  });
+  Tallies tallies;
+  RowMerger row(lookup.patch_count(), options.sampler == EmissionSampler::sobol);
+  std::vector<HitTally> results;
+  for (std::size_t first = 0; first < chunks.size();) {
+    const std::size_t last = window_end(chunks, first);
+    results.assign(last - first, HitTally{});
+    arena.execute([&] {
+      tbb::parallel_for(tbb::blocked_range<std::size_t>(first, last, 1),
+                        [&](const tbb::blocked_range<std::size_t>& range) {
+                          for (std::size_t c = range.begin(); c != range.end(); ++c) {
+                            results[c - first] =
+                                trace_chunk(chunks[c], emitters, tracer, scratch.local());
+                            progress.add(chunks[c].last - chunks[c].first);
+                          }
+                        });
+    });
+    merge_rows(options, chunks, first, results, row, &tallies);
+    first = last;
+  }
   const double seconds = progress.seconds();
+  finish_tallies(begin, lookup, scratch, &tallies);
 
-  Tallies tallies = merge_rows(options, begin, end, lookup, chunks, results, scratch);
   if (stats) {
     stats->rays = rays_total;
     stats->retraced = 0;
@@ -297,40 +320,37 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
   return tallies;
 }
 
+void append_shard(Tallies* merged, const Tallies& s) {
+  if (s.patch_count != merged->patch_count ||
+      s.emitter_begin != merged->emitter_begin + merged->rows() ||
+      s.hit_square.empty() != merged->hit_square.empty() ||
+      s.escaped_square.empty() != merged->escaped_square.empty() ||
+      s.hits_on_surface.size() != merged->hits_on_surface.size())
+    throw std::invalid_argument(
+        "merge_shards: shards must come from one scene and cover consecutive "
+        "emitter ranges in order");
+  const std::uint64_t base = merged->hit_patch.size();
+  for (std::size_t r = 0; r < s.rows(); ++r)
+    merged->hit_offset.push_back(base + s.hit_offset[r + 1]);
+  auto append = [](auto& to, const auto& from) { to.insert(to.end(), from.begin(), from.end()); };
+  append(merged->hit_patch, s.hit_patch);
+  append(merged->hit_count, s.hit_count);
+  append(merged->rays, s.rays);
+  append(merged->escaped, s.escaped);
+  append(merged->back_face, s.back_face);
+  append(merged->hit_square, s.hit_square);
+  append(merged->escaped_square, s.escaped_square);
+  append(merged->back_face_square, s.back_face_square);
+  for (std::size_t i = 0; i < s.hits_on_surface.size(); ++i) {
+    merged->hits_on_surface[i] += s.hits_on_surface[i];
+    merged->back_face_hits_on_surface[i] += s.back_face_hits_on_surface[i];
+  }
+}
+
 Tallies merge_shards(const std::vector<Tallies>& shards) {
   if (shards.empty()) throw std::invalid_argument("merge_shards: no shards given");
-  Tallies merged;
-  merged.patch_count = shards.front().patch_count;
-  merged.emitter_begin = shards.front().emitter_begin;
-  merged.back_face_hits_on_surface.assign(shards.front().back_face_hits_on_surface.size(), 0);
-  merged.hits_on_surface.assign(shards.front().hits_on_surface.size(), 0);
-  std::uint32_t next = merged.emitter_begin;
-  for (const Tallies& s : shards) {
-    if (s.patch_count != merged.patch_count || s.emitter_begin != next ||
-        s.hit_square.empty() != shards.front().hit_square.empty() ||
-        s.hits_on_surface.size() != merged.hits_on_surface.size())
-      throw std::invalid_argument(
-          "merge_shards: shards must come from one scene and cover consecutive "
-          "emitter ranges in order");
-    const std::uint64_t base = merged.hit_patch.size();
-    for (std::size_t r = 0; r < s.rows(); ++r)
-      merged.hit_offset.push_back(base + s.hit_offset[r + 1]);
-    merged.hit_patch.insert(merged.hit_patch.end(), s.hit_patch.begin(), s.hit_patch.end());
-    merged.hit_count.insert(merged.hit_count.end(), s.hit_count.begin(), s.hit_count.end());
-    merged.rays.insert(merged.rays.end(), s.rays.begin(), s.rays.end());
-    merged.escaped.insert(merged.escaped.end(), s.escaped.begin(), s.escaped.end());
-    merged.back_face.insert(merged.back_face.end(), s.back_face.begin(), s.back_face.end());
-    merged.hit_square.insert(merged.hit_square.end(), s.hit_square.begin(), s.hit_square.end());
-    merged.escaped_square.insert(merged.escaped_square.end(), s.escaped_square.begin(),
-                                 s.escaped_square.end());
-    merged.back_face_square.insert(merged.back_face_square.end(), s.back_face_square.begin(),
-                                   s.back_face_square.end());
-    for (std::size_t i = 0; i < s.hits_on_surface.size(); ++i) {
-      merged.hits_on_surface[i] += s.hits_on_surface[i];
-      merged.back_face_hits_on_surface[i] += s.back_face_hits_on_surface[i];
-    }
-    next += static_cast<std::uint32_t>(s.rows());
-  }
+  Tallies merged = shards.front();
+  for (std::size_t k = 1; k < shards.size(); ++k) append_shard(&merged, shards[k]);
   return merged;
 }
 

@@ -85,8 +85,8 @@ std::vector<std::uint32_t> nearest_kept(const ZoneGrid& grid, const std::vector<
 
 // The zones: cells with a point in the gas, with their volumes; returns the zone of each
 // kept cell.
-std::vector<std::size_t> keep_zones(GasExchange& x, const RawScores& raw,
-                                    const std::vector<std::uint64_t>& rays, std::size_t P) {
+std::vector<std::size_t> keep_zones(GasExchange& x, const GasScores& raw, std::size_t P) {
+  const std::vector<std::uint64_t>& rays = raw.rays;
   const ZoneGrid& grid = x.grid;
   const std::size_t C = grid.cell_count();
   std::vector<std::size_t> zone_of_cell(C, 0);
@@ -107,10 +107,9 @@ std::vector<std::size_t> keep_zones(GasExchange& x, const RawScores& raw,
 
 // One gray gas: S and sigma in sparse rows. Each final entry is summed over the raw columns
 // that move to it in ascending raw order, exactly as a dense accumulation would.
-void assemble_gas(GasExchange& x, const RawScores& raw, std::size_t g,
+void assemble_gas(GasExchange& x, const GasScores& raw, std::size_t g,
                   const std::vector<std::size_t>& row_of, const std::vector<std::size_t>& col_of,
-                  const std::vector<std::uint64_t>& rays, SparseMatrix* S, SparseMatrix* sigma,
-                  Eigen::VectorXd* L) {
+                  SparseMatrix* S, SparseMatrix* sigma, Eigen::VectorXd* L) {
   const std::size_t P = x.patch_count, N = row_of.size(), R = x.rows(), G = raw.gases;
   *S = SparseMatrix(Eigen::Index(R), Eigen::Index(R));
   *sigma = SparseMatrix(Eigen::Index(R), Eigen::Index(R));
@@ -122,7 +121,7 @@ void assemble_gas(GasExchange& x, const RawScores& raw, std::size_t g,
   std::vector<std::size_t> touched;
   for (std::size_t i = 0; i < N; ++i) {
     if (row_of[i] == R) continue;
-    const double n = double(rays[i]);
+    const double n = double(raw.rays[i]);
     const double scale = i < P ? x.areas[i] : 4 * x.k[g] * x.grid.cell_volume();
     (*L)(Eigen::Index(row_of[i])) = scale * raw.lost[i * G + g] / n;
     for (std::size_t e = raw.offset[i]; e < raw.offset[i + 1]; ++e) {
@@ -150,10 +149,10 @@ void assemble_gas(GasExchange& x, const RawScores& raw, std::size_t g,
 
 }  // namespace
 
-void assemble_zones(GasExchange& x, const RawScores& raw, const PatchSet& patches,
-                    const std::vector<std::uint64_t>& rays, GasStorage storage) {
+void assemble_zones(GasExchange& x, const GasScores& raw, const PatchSet& patches,
+                    GasStorage storage) {
   const std::size_t P = patches.size(), C = x.grid.cell_count(), N = P + C, G = x.k.size();
-  const std::vector<std::size_t> zone_of_cell = keep_zones(x, raw, rays, P);
+  const std::vector<std::size_t> zone_of_cell = keep_zones(x, raw, P);
   std::vector<bool> kept(C);
   for (std::size_t c = 0; c < C; ++c) kept[c] = raw.inside[c] > 0;
   const std::vector<std::uint32_t> to = nearest_kept(x.grid, kept);
@@ -165,14 +164,14 @@ void assemble_zones(GasExchange& x, const RawScores& raw, const PatchSet& patche
     col_of[i] = i < P ? i : P + zone_of_cell[to[i - P]];
   }
   for (std::size_t i = 0; i < N; ++i)
-    if (row_of[i] < R) x.rays.push_back(rays[i]);
+    if (row_of[i] < R) x.rays.push_back(raw.rays[i]);
   const bool dense = storage == GasStorage::dense;
   // Eigen 3.4's SparseMatrix has no move operations: size the vectors first, fill in place.
   if (!dense) x.sparse_S.resize(G), x.sparse_sigma.resize(G);
   for (std::size_t g = 0; g < G; ++g) {
     SparseMatrix S, sigma;
     Eigen::VectorXd L;
-    assemble_gas(x, raw, g, row_of, col_of, rays, dense ? &S : &x.sparse_S[g],
+    assemble_gas(x, raw, g, row_of, col_of, dense ? &S : &x.sparse_S[g],
                  dense ? &sigma : &x.sparse_sigma[g], &L);
     if (dense) {
       x.S.push_back(Eigen::MatrixXd(S));

@@ -5,7 +5,9 @@
 #include <limits>
 #include <sstream>
 
+#include "core/text.hpp"
 #include "hearthray/error.hpp"
+#include "hearthray/gas_cache.hpp"
 
 namespace hearthray {
 
@@ -141,6 +143,47 @@ std::size_t zone_beside(const Scene& scene, const PatchSet& patches, std::size_t
   return best;
 }
 
+// The scores from the cache folder when it holds them, else traced (and stored there).
+GasScores cached_scores(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
+                        const GasInput& input, const std::vector<double>& k,
+                        const GasTraceOptions& trace, const GasRunOptions& options, GasRun& run) {
+  if (options.cache_dir.empty()) {
+    run.cache_note = "gas exchange areas: traced (cache not used)";
+    return trace_gas_scores(scene, patches, tracer, input.cells, k, trace);
+  }
+  GasCacheSettings settings;
+  settings.patch_specs = options.patch_specs;
+  settings.rays = options.rays_for_patch;
+  if (settings.rays.empty()) settings.rays.assign(patches.size(), trace.rays_per_patch);
+  settings.rays_per_cell = trace.rays_per_cell;
+  settings.cells = input.cells;
+  settings.k = k;
+  settings.seed = trace.seed;
+  settings.panels = options.panels;
+  const TallyCacheKey key = gas_cache_key(options.mesh_bytes, options.mesh, scene, settings);
+  std::vector<std::uint64_t> rays = settings.rays;
+  const std::size_t cells = std::size_t(input.cells[0]) * input.cells[1] * input.cells[2];
+  rays.insert(rays.end(), cells, trace.rays_per_cell);
+  CachedGasScores cached = load_cached_gas_scores(options.cache_dir, key, rays, cells, k.size());
+  if (cached.status == CacheStatus::hit) {
+    run.from_cache = true;
+    run.cache_note = "gas exchange areas: from cache " + cached.path;
+    return std::move(cached.scores);
+  }
+  std::string note;
+  if (cached.status == CacheStatus::rejected)
+    note = "gas exchange areas: ignored the cache file " + cached.path + ": " + cached.reason +
+           "; traced again\n";
+  GasScores scores = trace_gas_scores(scene, patches, tracer, input.cells, k, trace);
+  const CacheWrite written = store_cached_gas_scores(options.cache_dir, key, scores);
+  run.cache_note =
+      note + (written.stored ? "gas exchange areas: traced; stored in cache " + written.path
+                             : "gas exchange areas: traced; could not store them "
+                               "in the cache: " +
+                                   written.reason);
+  return scores;
+}
+
 }  // namespace
 
 GasRun run_gas(const GasInput& input, const Scene& scene, const PatchSet& patches,
@@ -151,14 +194,9 @@ GasRun run_gas(const GasInput& input, const Scene& scene, const PatchSet& patche
   run.load_patch.assign(patches.size(), false);
   for (const std::string& name : input.load) {
     const int s = scene.find_surface(name);
-    if (s < 0) {
-      std::string known;
-      for (const std::string& n : scene.surface_names()) known += (known.empty() ? "" : ", ") + n;
+    if (s < 0)
       throw InputError("[gas] load names surface '" + name +
-                       "', which the mesh does not have; "
-                       "it has " +
-                       known);
-    }
+                       "', which the mesh does not have; it has " + join(scene.surface_names()));
     for (std::size_t p = 0; p < patches.size(); ++p)
       if (patches.patches[p].surface == std::uint32_t(s)) run.load_patch[p] = true;
   }
@@ -173,8 +211,11 @@ GasRun run_gas(const GasInput& input, const Scene& scene, const PatchSet& patche
   trace.threads = options.threads;
   trace.storage = options.storage;
   trace.force = options.force;
-  run.exchange = trace_gas_exchange(scene, patches, tracer, input.cells,
-                                    run.gases.absorption_coefficients(), trace);
+  run.exchange = gas_exchange_from_scores(
+      scene, patches, input.cells, run.gases.absorption_coefficients(),
+      cached_scores(scene, patches, tracer, input, run.gases.absorption_coefficients(), trace,
+                    options, run),
+      trace);
   run.smoothing = smooth_gas_exchange(run.exchange);
   if (!run.smoothing.converged)
     run.warnings.push_back("gas: smoothing the exchange areas did not converge (row error " +

@@ -271,10 +271,9 @@ void check_gas_trace_input(const PatchSet& patches, const std::vector<double>& k
 
 // Every chunk's scores, merged row by row in the chunks' fixed order (so the sums do not depend
 // on the thread count); each chunk's scores are freed once merged.
-gas_detail::RawScores merge_chunks(const std::vector<Chunk>& chunks,
-                                   std::vector<ChunkScores>& results, std::size_t P, std::size_t N,
-                                   std::size_t G) {
-  gas_detail::RawScores raw;
+GasScores merge_chunks(const std::vector<Chunk>& chunks, std::vector<ChunkScores>& results,
+                       std::size_t P, std::size_t N, std::size_t G) {
+  GasScores raw;
   raw.gases = G;
   raw.offset.push_back(0);
   raw.lost.assign(N * G, 0.0);
@@ -314,10 +313,9 @@ gas_detail::RawScores merge_chunks(const std::vector<Chunk>& chunks,
   return raw;
 }
 
-gas_detail::RawScores trace_raw_scores(const Scene& scene, const PatchSet& patches,
-                                       const Tracer& tracer, const ZoneGrid& grid,
-                                       const std::vector<double>& k, const GasTraceOptions& options,
-                                       const std::vector<std::uint64_t>& rays) {
+GasScores trace_raw_scores(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
+                           const ZoneGrid& grid, const std::vector<double>& k,
+                           const GasTraceOptions& options, const std::vector<std::uint64_t>& rays) {
   const std::size_t P = patches.size(), C = grid.cell_count(), N = P + C, G = k.size();
   std::vector<Chunk> chunks;
   for (std::size_t row = 0; row < N; ++row)
@@ -367,9 +365,9 @@ void check_memory(std::size_t P, std::size_t C, std::size_t G, const GasMemoryEs
 
 }  // namespace
 
-GasExchange trace_gas_exchange(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
-                               std::array<int, 3> cells, const std::vector<double>& k,
-                               const GasTraceOptions& options) {
+GasScores trace_gas_scores(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
+                           std::array<int, 3> cells, const std::vector<double>& k,
+                           const GasTraceOptions& options) {
   check_gas_trace_input(patches, k, options);
   const std::size_t P = patches.size();
   // The grid covers the enclosure's box; the walk counts points rounded outside it to the
@@ -381,14 +379,34 @@ GasExchange trace_gas_exchange(const Scene& scene, const PatchSet& patches, cons
     rays[p] = options.rays_for_patch.empty() ? options.rays_per_patch : options.rays_for_patch[p];
   const GasMemoryEstimate memory = gas_exchange_memory(P, cells, k.size(), rays, options);
   check_memory(P, C, k.size(), memory, options);
-  const gas_detail::RawScores raw =
-      trace_raw_scores(scene, patches, tracer, grid, k, options, rays);
+  GasScores scores = trace_raw_scores(scene, patches, tracer, grid, k, options, rays);
+  scores.rays = std::move(rays);
+  return scores;
+}
+
+GasExchange gas_exchange_from_scores(const Scene& scene, const PatchSet& patches,
+                                     std::array<int, 3> cells, const std::vector<double>& k,
+                                     const GasScores& scores, const GasTraceOptions& options) {
+  const ZoneGrid grid(scene.bounds, cells);
+  if (scores.rows() != patches.size() + grid.cell_count() || scores.gases != k.size())
+    throw InputError("gas exchange: the scores do not fit the patches, cells and gray gases");
+  // Scores from the cache skipped the tracing's check: the smoothing and solve still need it.
+  const GasMemoryEstimate memory =
+      gas_exchange_memory(patches.size(), cells, k.size(), scores.rays, options);
+  check_memory(patches.size(), grid.cell_count(), k.size(), memory, options);
   GasExchange x;
   x.grid = grid;
-  x.patch_count = P;
+  x.patch_count = patches.size();
   x.k = k;
-  gas_detail::assemble_zones(x, raw, patches, rays, memory.storage);
+  gas_detail::assemble_zones(x, scores, patches, memory.storage);
   return x;
+}
+
+GasExchange trace_gas_exchange(const Scene& scene, const PatchSet& patches, const Tracer& tracer,
+                               std::array<int, 3> cells, const std::vector<double>& k,
+                               const GasTraceOptions& options) {
+  const GasScores scores = trace_gas_scores(scene, patches, tracer, cells, k, options);
+  return gas_exchange_from_scores(scene, patches, cells, k, scores, options);
 }
 
 }  // namespace hearthray

@@ -13,6 +13,14 @@ std::string celsius(double kelvin) {
   return rounded("%.4g C", kelvin - kZeroCelsius);
 }
 
+// The fluid of a convection film as the scene gave it: a temperature, or the solved gas zone
+// or room air (whose fluid_K is not an input).
+std::string fluid_text(const Convection& c) {
+  if (c.fluid_is_gas) return "the gas zone beside it";
+  if (c.fluid_is_room_air) return "the room air";
+  return celsius(c.fluid_K);
+}
+
 std::string condition_text(const SurfaceSpec& d) {
   switch (*d.kind) {
     case ConditionKind::temperature:
@@ -65,7 +73,7 @@ std::vector<std::string> defaults_taken(const SceneFile& file, const Scene& scen
   if (def.kind) lines.push_back(taken_line(condition_text(def), cond, {}, "", all));
   if (def.convection)
     lines.push_back(taken_line("convection (h = " + rounded("%.4g W/m2K", def.convection->h) +
-                                   ", fluid " + celsius(def.convection->fluid_K) + ")",
+                                   ", fluid " + fluid_text(*def.convection) + ")",
                                conv, conv_off, "convection = false", all));
   if (def.wall_loss)
     lines.push_back(taken_line("wall (U = " + rounded("%.4g W/m2K", def.wall_loss->U) +

@@ -15,6 +15,7 @@
 #include "core/text.hpp"
 #include "gas/gas_input_toml.hpp"
 #include "hearthray/error.hpp"
+#include "hearthray/units.hpp"
 #include "input/scene_panels_toml.hpp"
 #include "transient/firing_input_toml.hpp"
 
@@ -23,9 +24,9 @@ namespace {
 
 namespace fs = std::filesystem;
 
-const std::vector<std::string> kTopKeys = {"mesh",    "rays",  "surroundings", "defaults",
-                                           "surface", "panel", "panel_group",  "comfort",
-                                           "gas",     "firing"};
+const std::vector<std::string> kTopKeys = {"mesh",    "rays",   "surroundings", "defaults",
+                                           "surface", "panel",  "panel_group",  "comfort",
+                                           "gas",     "firing", "room_air"};
 const std::vector<std::string> kMeshKeys = {"file", "unit", "surfaces_from"};
 const std::vector<std::string> kRaysKeys = {"per_patch",     "total",     "min_per_patch",
                                             "seed",          "sampler",   "target_error",
@@ -160,11 +161,13 @@ class Reader {
         text = str->get();
       else
         fail(n->source(),
-             "target_error in [rays] must be a number, like target_error = 0.001; "
-             "got " +
+             "target_error in [rays] must be a number, like target_error = 0.001, or a "
+             "percentage, like target_error = \"0.5 %\"; got " +
                  type_name(*n));
       try {
-        file->target_error = parse_target_error(text, "target_error in [rays]");
+        const TargetError target = parse_target_error(text, "target_error in [rays]");
+        file->target_error = target.value;
+        file->target_on_heat_flows = target.heat_flows;
       } catch (const InputError& e) {
         fail(n->source(), e.what());
       }
@@ -207,8 +210,12 @@ class Reader {
     Convection c;
     c.h = quantity(*h, "h", name, Quantity::heat_transfer_coefficient, "8 W/m2K");
     // fluid = "gas": the radiating gas beside the surface ([gas] scenes; checked in read()).
-    if (const auto* word = fluid->as_string(); word && word->get() == "gas")
+    // fluid = "room_air": the room air, its temperature solved ([room_air]; checked in read()).
+    const auto* word = fluid->as_string();
+    if (word && word->get() == "gas")
       c.fluid_is_gas = true;
+    else if (word && word->get() == "room_air")
+      c.fluid_is_room_air = true, c.fluid_K = kZeroCelsius + 20;  // until the air is solved
     else
       c.fluid_K = quantity(*fluid, "fluid", name, Quantity::temperature, "20 C");
     return c;
@@ -483,11 +490,17 @@ class Reader {
     }
     read_panels(root, &file);
     if (const toml::node* gas = root.get("gas")) file.gas = read_gas_table(*gas, path_);
+    if (const toml::node* air = root.get("room_air"))
+      file.room_air = read_room_air_table(*air, path_);
     check_convection_fluids(file);
     if (const toml::node* firing = root.get("firing"))
       file.firing = read_firing_table(*firing, path_);
+    if (file.room_air && file.firing)
+      fail(root.get("room_air")->source(),
+           "[room_air] and [firing] together are not supported: a firing over time holds its "
+           "films' fluid temperatures; give the air's temperature in convection instead");
     if (const toml::node* comfort = root.get("comfort")) {
-      file.comfort = read_comfort_table(*comfort, path_);
+      file.comfort = read_comfort_table(*comfort, path_, file.room_air.has_value());
     }
     return file;
   }
@@ -540,6 +553,15 @@ class Reader {
         throw InputError(path_ + ":" + std::to_string(spec.line) + ": 'convection' of " + table +
                          " has fluid = \"gas\", but the scene has no [gas] table; give the "
                          "fluid's temperature, e.g. fluid = \"20 C\"");
+      if (spec.convection->fluid_is_room_air && !file.room_air)
+        throw InputError(path_ + ":" + std::to_string(spec.line) + ": 'convection' of " + table +
+                         " has fluid = \"room_air\", but the scene has no [room_air] table; "
+                         "add one (ventilation, outside) or give the air's temperature, e.g. "
+                         "fluid = \"20 C\"");
+      if (spec.convection->fluid_is_room_air && file.gas)
+        throw InputError(path_ + ":" + std::to_string(spec.line) + ": 'convection' of " + table +
+                         " has fluid = \"room_air\" in a scene with [gas]: write fluid = "
+                         "\"gas\"");
       if (!spec.convection->fluid_is_gas && file.gas)
         throw InputError(path_ + ":" + std::to_string(spec.line) + ": 'convection' of " + table +
                          " gives a fluid temperature, but in a scene with [gas] the film "

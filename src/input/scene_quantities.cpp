@@ -294,27 +294,34 @@ double parse_conductivity(const std::string& text, const std::string& what) {
 
 namespace hearthray {
 
-double parse_target_error(const std::string& raw, const std::string& what) {
+TargetError parse_target_error(const std::string& raw, const std::string& what) {
   const std::string text = trim(raw);
   const std::string example =
-      " (a number such as 0.001: every view factor to within a standard error of 0.001)";
-  if (text.find('%') != std::string::npos) {
-    throw InputError(what + " \"" + raw +
-                     "\": a relative target on heat flows is not available yet; give the "
-                     "largest standard error wanted of the view factors as a plain number" +
-                     example);
+      " (a number such as 0.001: every view factor to within a standard error of 0.001; or a "
+      "percentage such as \"0.5 %\": every surface's net heat flow to within 0.5 %)";
+  const std::size_t percent_sign = text.find('%');
+  const bool relative = percent_sign != std::string::npos;
+  const std::string number = relative ? trim(text.substr(0, percent_sign)) : text;
+  const std::size_t n = number_prefix(number);
+  if (n == 0 || n != number.size() || (relative && percent_sign + 1 != text.size()))
+    throw InputError(what + " \"" + raw + "\" is not a plain number or percentage" + example);
+  const double value = std::strtod(number.c_str(), nullptr);
+  if (relative) {
+    if (!(value > 0 && value < 100)) {
+      throw InputError(what + " \"" + raw +
+                       "\" is out of range: a relative error on heat flows lies above 0 % and "
+                       "below 100 %" +
+                       example);
+    }
+    return {value / 100, true};
   }
-  const std::size_t n = number_prefix(text);
-  if (n == 0 || n != text.size())
-    throw InputError(what + " \"" + raw + "\" is not a plain number" + example);
-  const double value = std::strtod(text.c_str(), nullptr);
   if (!(value > 0 && value < 0.5)) {
     throw InputError(what + " \"" + raw +
                      "\" is out of range: the standard error of a view factor lies between 0 "
                      "and 0.5, so give a number above 0 and below 0.5" +
                      example);
   }
-  return value;
+  return {value, false};
 }
 
 double parse_time_limit(const std::string& text, const std::string& what) {

@@ -7,11 +7,35 @@
 
 namespace hearthray {
 
+// Per surface: its net radiative heat flow, the flow's standard error and the mean
+// temperature's (null when the errors are unknown).
+inline nlohmann::json heat_flow_errors_json(const TargetReportInfo& t) {
+  if (t.surfaces.empty()) return nullptr;
+  nlohmann::json rows = nlohmann::json::array();
+  for (std::size_t k = 0; k < t.surfaces.size(); ++k) {
+    rows.push_back({{"surface", t.surfaces[k]},
+                    {"net_radiation_W", t.net_W[k]},
+                    {"net_radiation_standard_error_W", t.net_error_W[k]},
+                    {"temperature_standard_error_K", t.temperature_error_K[k]}});
+  }
+  return {
+      {"method", "spread of " + std::to_string(t.heat_samples) +
+                     " solves with the ray counts perturbed by their sampling distribution, then "
+                     "smoothed as the run's"},
+      {"floor_W", t.heat_floor_W},
+      {"surfaces", rows}};
+}
+
 inline nlohmann::json target_json(const TargetReportInfo& t) {
   if (!t.used) return nullptr;
+  const char* error_is =
+      t.heat_flows ? "the largest standard error of a surface's net radiative heat flow over "
+                     "that flow (at least floor_W), as a fraction"
+                   : "the largest standard error of any view factor (absolute)";
   return {{"error_wanted", t.error_wanted},
           {"error_achieved", t.error_achieved},
-          {"error_is", "the largest standard error of any view factor (absolute)"},
+          {"error_is", error_is},
+          {"heat_flow_errors", t.heat_flows ? heat_flow_errors_json(t) : nlohmann::json(nullptr)},
           {"reached", t.reached},
           {"stopped_by", t.stopped_by},
           {"round_rays_per_patch", t.round_rays_per_patch},

@@ -374,6 +374,7 @@ void write_solve_json(std::ostream& out, const SolveReportInfo& info, const Ther
   doc["caution"] = kEngineeringCaution;
   doc["scene"] = scene_json(info, model);
   doc["view_factors"] = view_factors_json(info, model);
+  doc["files"] = info.files;  // the files of this run beside report.json (as view_factors.files)
   doc["solver"] = {{"method", "net radiation (radiosity), Newton on surface temperatures"},
                    {"status", to_string(result.status)},
                    {"message", result.message},

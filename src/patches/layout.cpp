@@ -28,6 +28,17 @@ constexpr double kOnPlane = 1e-7;
 // Normal angles closer than this (rad) belong to one facet of a cylinder.
 constexpr double kFacetAngle = 1e-3;
 
+// Counts of cells, bands, sectors or regions: x rounded, at least 1 (also for NaN), at most
+// kMaxCount (a run that large is refused before, by its size estimate, unless forced).
+constexpr int kMaxCount = 1 << 20;
+// Halves round up, and so do values within 1e-4 below a half, so that a length that is an
+// exact 1.5 cells in the drawing but 1.49998 after the rounding of a mesh's coordinates (or of
+// an axis fitted to them) gets the same count as its twin elsewhere in the model.
+int how_many(double x) {
+  const double n = std::floor(x + 0.5 + 1e-4);
+  return !(n > 1) ? 1 : static_cast<int>(std::min(n, double(kMaxCount)));
+}
+
 struct UnionFind {
   std::vector<std::uint32_t> parent;
   explicit UnionFind(std::size_t n) : parent(n) { std::iota(parent.begin(), parent.end(), 0u); }
@@ -141,8 +152,8 @@ bool try_rectangle(const Scene& scene, const std::vector<std::uint32_t>& weld, d
   if (!(std::fabs(box - chart->area) <= kRectangleArea * box)) return false;
   chart->kind = ChartKind::rectangle;
   chart->u = u, chart->v = v, chart->u0 = u0, chart->v0 = v0;
-  chart->nu = static_cast<int>(std::max(1.0, std::round((u1 - u0) / size)));
-  chart->nv = static_cast<int>(std::max(1.0, std::round((v1 - v0) / size)));
+  chart->nu = how_many((u1 - u0) / size);
+  chart->nv = how_many((v1 - v0) / size);
   chart->du = (u1 - u0) / chart->nu;
   chart->dv = (v1 - v0) / chart->nv;
   return true;
@@ -158,7 +169,9 @@ double normal_angle(const Chart& chart, const Vec3& n) {
 }
 
 // The cylinder's axis: the direction all normals are perpendicular to (the eigenvector of the
-// smallest eigenvalue of sum A n n^T, near zero). Sign fixed by its largest component.
+// smallest eigenvalue of sum A n n^T, near zero), taken as the model axis it is within about
+// 1.4e-4 rad of (the rounding of exported coordinates tilts it). Sign fixed by its largest
+// component.
 bool cylinder_axis(const Scene& scene, Chart* chart) {
   Eigen::Matrix3d m = Eigen::Matrix3d::Zero();
   for (std::uint32_t t : chart->triangles) {
@@ -169,9 +182,10 @@ bool cylinder_axis(const Scene& scene, Chart* chart) {
   const Eigen::SelfAdjointEigenSolver<Eigen::Matrix3d> eigen(m);
   if (eigen.info() != Eigen::Success) return false;
   if (!(eigen.eigenvalues()(0) <= 1e-6 * m.trace())) return false;
-  const Eigen::Vector3d a = eigen.eigenvectors().col(0).normalized();
+  Eigen::Vector3d a = eigen.eigenvectors().col(0).normalized();
   Eigen::Index big = 0;
   a.cwiseAbs().maxCoeff(&big);
+  if (std::fabs(a(big)) >= 1 - kParallel) a = Eigen::Vector3d::Unit(big);  // a model axis
   const double sign = a(big) < 0 ? -1 : 1;
   chart->axis = Vec3(a(0), a(1), a(2)) * sign;
   Eigen::Index small = 0;
@@ -245,7 +259,7 @@ void lay_out_sectors(const Scene& scene, const std::vector<std::uint32_t>& weld,
     arc = span + step;
     chart->theta0 = wrap_angle(f[after] - 0.5 * step);
   }
-  chart->sectors = static_cast<int>(std::max(1.0, std::round(arc * radius / size)));
+  chart->sectors = how_many(arc * radius / size);
   chart->sector = arc / chart->sectors;
 }
 
@@ -257,7 +271,7 @@ bool try_cylinder(const Scene& scene, const std::vector<std::uint32_t>& weld, do
   chart->kind = ChartKind::cylinder;
   const auto [t0, t1] = range_along(scene, *chart, chart->axis);
   chart->t0 = t0;
-  chart->bands = static_cast<int>(std::max(1.0, std::round((t1 - t0) / size)));
+  chart->bands = how_many((t1 - t0) / size);
   chart->band = (t1 - t0) / chart->bands;
   lay_out_sectors(scene, weld, size, radius, chart);
   return true;
@@ -295,14 +309,16 @@ void classify(const Scene& scene, const std::vector<std::uint32_t>& weld, double
              : try_cylinder(scene, weld, size, chart))
     return;
   chart->kind = ChartKind::regions;
-  const double target = std::round(chart->area / (size * size));
   chart->regions =
-      static_cast<int>(std::clamp(target, 1.0, static_cast<double>(chart->triangles.size())));
+      std::min(how_many(chart->area / (size * size)),
+               static_cast<int>(std::min<std::size_t>(chart->triangles.size(), kMaxCount)));
 }
 
+// The cell of x on a row of `count` cells of `width` from 0; outside (or NaN): the nearest end.
 std::uint32_t cell(double x, double width, int count) {
   const double i = std::floor(x / width);
-  return static_cast<std::uint32_t>(std::clamp(i, 0.0, static_cast<double>(count - 1)));
+  if (!(i > 0)) return 0;
+  return static_cast<std::uint32_t>(std::min(i, static_cast<double>(count - 1)));
 }
 
 }  // namespace

@@ -3,6 +3,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <map>
 #include <queue>
 #include <tuple>
 #include <unordered_map>
@@ -12,6 +13,8 @@ namespace hearthray::patch_layout {
 namespace {
 
 constexpr int kMaxRounds = 16;
+// Farthest-point sampling up to this many distance evaluations (regions x triangles).
+constexpr double kMaxSeedWork = 2e7;
 constexpr std::uint32_t kNone = 0xffffffffu;
 
 struct Graph {
@@ -63,6 +66,35 @@ std::vector<std::uint32_t> first_seeds(const Graph& g, const Vec3& centre, int c
     for (std::size_t i = 0; i < n; ++i)
       nearest[i] = std::min(seeds.size() == 1 ? INFINITY : nearest[i],
                             norm(g.centroid[i] - g.centroid[best]));
+  }
+  return seeds;
+}
+
+// For large charts, where farthest-point sampling (count x triangles distances) would be slow:
+// one seed per occupied cell of a grid of the regions' size, the triangle nearest the mean
+// centroid of the cell's triangles, cells in the order of their first triangle.
+std::vector<std::uint32_t> grid_seeds(const Graph& g, double cell) {
+  std::map<std::tuple<long long, long long, long long>, std::size_t> index;
+  std::vector<Vec3> sum;
+  std::vector<double> count;
+  std::vector<std::size_t> cell_of(g.centroid.size());
+  for (std::size_t i = 0; i < g.centroid.size(); ++i) {
+    const Vec3 c = g.centroid[i] / cell;
+    const auto key = std::make_tuple(static_cast<long long>(std::floor(c.x)),
+                                     static_cast<long long>(std::floor(c.y)),
+                                     static_cast<long long>(std::floor(c.z)));
+    const auto [it, inserted] = index.emplace(key, sum.size());
+    if (inserted) sum.emplace_back(), count.push_back(0);
+    cell_of[i] = it->second;
+    sum[it->second] += g.centroid[i];
+    count[it->second] += 1;
+  }
+  std::vector<std::uint32_t> seeds(sum.size(), 0);
+  std::vector<double> best(sum.size(), INFINITY);
+  for (std::uint32_t i = 0; i < g.centroid.size(); ++i) {
+    const std::size_t k = cell_of[i];
+    const double d = norm(g.centroid[i] - sum[k] / count[k]);
+    if (d < best[k]) best[k] = d, seeds[k] = i;
   }
   return seeds;
 }
@@ -120,7 +152,10 @@ std::vector<std::uint32_t> centred_seeds(const Graph& g, const std::vector<std::
 std::vector<std::uint32_t> grow_regions(const Scene& scene, const Chart& chart,
                                         const std::vector<std::uint32_t>& weld) {
   const Graph g = chart_graph(scene, chart, weld);
-  std::vector<std::uint32_t> seeds = first_seeds(g, chart.centroid, chart.regions);
+  const double work = double(chart.regions) * double(g.centroid.size());
+  std::vector<std::uint32_t> seeds = work <= kMaxSeedWork
+                                         ? first_seeds(g, chart.centroid, chart.regions)
+                                         : grid_seeds(g, std::sqrt(chart.area / chart.regions));
   std::vector<std::uint32_t> region = grow(g, seeds);
   for (int round = 0; round < kMaxRounds; ++round) {
     const std::vector<std::uint32_t> next = centred_seeds(g, region, seeds);

@@ -29,6 +29,7 @@ class Refiner {
       : vertices_(scene.vertices),
         weld_(patch_layout::weld_ids(vertices_)),
         tris_(scene.triangles),
+        made_by_(vertices_.size(), kNoTag),
         alive_(tris_.size(), true),
         tag_(tris_.size(), kNoTag),
         limit_(tris_.size(), INFINITY) {
@@ -45,13 +46,16 @@ class Refiner {
   }
 
   // Cuts the triangles tagged `tag` along `plane`: every edge of theirs whose ends lie
-  // strictly on opposite sides is split where it crosses, until none crosses. Each split
-  // leaves edges ending on the plane, so this ends, and the plane is then made of edges.
+  // strictly on opposite sides is split where it crosses, until none crosses. The vertices a
+  // cut makes count as on its plane (whatever the rounding of their position), so each split
+  // leaves edges ending on the plane: this ends, and the plane is then made of edges.
   void cut(std::uint32_t tag, const patch_layout::CutPlane& plane) {
+    ++plane_;
     std::queue<std::uint32_t> work;
     for (std::uint32_t t : members_[tag])
       if (alive_[t]) work.push(t);
     auto side = [&](std::uint32_t v) {
+      if (made_by_[v] == plane_) return 0.0;
       const double d = dot(plane.normal, vertices_[v]) - plane.offset;
       return std::fabs(d) <= plane.tolerance ? 0.0 : d;
     };
@@ -64,7 +68,7 @@ class Refiner {
         const double da = side(a), db = side(b);
         if (!((da < 0 && db > 0) || (da > 0 && db < 0))) continue;
         const Vec3 at = vertices_[a] + (vertices_[b] - vertices_[a]) * (da / (da - db));
-        split(a, b, at, &work);
+        split(a, b, at, plane_, &work);
         break;
       }
     }
@@ -82,7 +86,7 @@ class Refiner {
       const auto [k, len2] = longest(t);
       if (len2 > limit_[t] * limit_[t]) {
         const std::uint32_t a = tris_[t].v[k], b = tris_[t].v[(k + 1) % 3];
-        split(a, b, (vertices_[a] + vertices_[b]) * 0.5, &work);
+        split(a, b, (vertices_[a] + vertices_[b]) * 0.5, kNoTag, &work);
       }
     }
   }
@@ -130,12 +134,15 @@ class Refiner {
     }
     return {best, best_len};
   }
-  // Splits the edge a-b at one new vertex `at` shared by every triangle that uses it; the
-  // halves inherit their parent's tag and limit and join the work queue.
-  void split(std::uint32_t a, std::uint32_t b, const Vec3& at, std::queue<std::uint32_t>* work) {
+  // Splits the edge a-b at one new vertex `at` (made by cut `plane`, or kNoTag) shared by every
+  // triangle that uses it; the halves inherit their parent's tag and limit and join the work
+  // queue.
+  void split(std::uint32_t a, std::uint32_t b, const Vec3& at, std::uint32_t plane,
+             std::queue<std::uint32_t>* work) {
     const std::uint64_t edge = edge_key(weld_[a], weld_[b]);
     const std::uint32_t m = static_cast<std::uint32_t>(vertices_.size());
     vertices_.push_back(at);
+    made_by_.push_back(plane);
     weld_.push_back(next_weld_++);
     const std::vector<std::uint32_t> sharing = users_[edge];
     for (std::uint32_t u : sharing) {
@@ -165,6 +172,8 @@ class Refiner {
   std::vector<std::uint32_t> weld_;
   std::uint32_t next_weld_ = 0;
   std::vector<Triangle> tris_;
+  std::vector<std::uint32_t> made_by_;  // per vertex: the cut that made it, or kNoTag
+  std::uint32_t plane_ = 0;             // serial number of the current cut
   std::vector<bool> alive_;
   std::vector<std::uint32_t> tag_;
   std::vector<double> limit_;

@@ -88,7 +88,17 @@ void trace_run(const PipelineOptions& options, const Reporter& reporter, FactorR
   reporter.start(PipelineStage::build_tracer);
   const Tracer tracer(run->scene, vf.tracer);
   reporter.start(PipelineStage::trace);
-  run->tallies = trace_tallies(run->scene, run->patches, tracer, vf, &run->stats);
+  if (!options.split_tracing) {
+    run->tallies = trace_tallies(run->scene, run->patches, tracer, vf, &run->stats);
+    return;
+  }
+  const auto trace_range = [&](std::uint32_t begin, std::uint32_t end, TraceStats* stats) {
+    ViewFactorOptions range = vf;
+    range.emitter_begin = begin;
+    range.emitter_end = end;
+    return trace_tallies(run->scene, run->patches, tracer, range, stats);
+  };
+  run->tallies = options.split_tracing(run->rays, trace_range, &run->stats);
 }
 
 // Diagnoses and (unless raw) smooths the run's tallies.
@@ -107,15 +117,6 @@ void finish_run(const PipelineOptions& options, const Reporter& reporter, Factor
       smooth_view_factors(run->patches, run->tallies, options.smoothing, &run->smoothing);
 }
 
-// The bytes of the mesh file, for the cache key.
-std::string mesh_bytes(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) throw InputError("cannot read the mesh file '" + path + "' to hash it");
-  std::string bytes((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
-  if (in.bad()) throw InputError("error reading the mesh file '" + path + "'");
-  return bytes;
-}
-
 // Tallies from the cache folder `dir`, else traced and stored there.
 FactorRun cached_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options,
                      const std::string& dir, const Reporter& reporter) {
@@ -128,7 +129,7 @@ FactorRun cached_run(const SceneFile& file, const Scene& scene, const PipelineOp
   key_settings.smoothed = options.smooth;
   key_settings.panels = file.panels;
   const TallyCacheKey key =
-      tally_cache_key(mesh_bytes(file.mesh_path), file.mesh, scene, key_settings);
+      tally_cache_key(read_mesh_bytes(file.mesh_path), file.mesh, scene, key_settings);
   reporter.start(PipelineStage::read_cache);
   CachedTallies cached = load_cached_tallies(dir, key, run.scene, run.patches, run.rays);
   std::vector<Warning> cache_warnings;
@@ -159,8 +160,9 @@ FactorRun cached_run(const SceneFile& file, const Scene& scene, const PipelineOp
 
 }  // namespace
 
-FactorRun factor_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options) {
-  if (options.target_error || file.target_error) return target_run(file, scene, options);
+FactorRun factor_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options,
+                     const HeatFlowJudge& judge) {
+  if (options.target_error || file.target_error) return target_run(file, scene, options, judge);
   if (options.max_rays_per_patch || options.time_limit_s)
     throw InputError(
         "a ray cap or a time limit limits the rounds of a target error: give the target too "

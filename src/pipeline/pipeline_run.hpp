@@ -47,10 +47,19 @@ void check_options(const PipelineOptions& options);
 
 // run_view_factors without an arena of its own (the caller runs it in one): target_run when
 // the options or the file set a target error, else one_run.
-FactorRun factor_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options);
+// `judge` gives the heat-flow errors of a round's factors: needed (else InputError) when the
+// target is on heat flows.
+using HeatFlowJudge = std::function<HeatFlowErrors(const FactorRun&)>;
+FactorRun factor_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options,
+                     const HeatFlowJudge& judge = {});
 // One run at the planned rays (through the cache when asked), no target.
 FactorRun one_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options);
 // Rounds of one_run until the target error (pipeline_target.cpp).
-FactorRun target_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options);
+FactorRun target_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options,
+                     const HeatFlowJudge& judge);
+// The heat-flow errors of a run's factors (pipeline_heat_error.cpp): the run must still hold
+// its tallies. Throws InputError when the thermal model refuses the scene.
+HeatFlowErrors heat_flow_errors(const ThermalInput& thermal, const FactorRun& run,
+                                const PipelineOptions& options);
 
 }  // namespace hearthray::pipeline_detail

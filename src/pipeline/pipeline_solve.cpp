@@ -3,6 +3,7 @@
 #include <stdexcept>
 
 #include "core/text.hpp"
+#include "hearthray/gas_zones.hpp"
 #include "pipeline/pipeline_run.hpp"
 
 namespace hearthray {
@@ -74,6 +75,37 @@ void refuse_flipped(const SolvedScene& s) {
       s.run.diagnostics.warnings);
 }
 
+double room_volume(const SolvedScene& s) {
+  const RoomAirInput& air = *s.file.room_air;
+  if (air.volume_m3) return *air.volume_m3;
+  if (air.ventilation_kind == VentilationKind::volume_flow) return 0;  // not needed
+  const double volume = gas_volume_by_divergence(s.run.scene);
+  if (!s.model.mesh_closed || !(volume > 0))
+    throw InputError(scene_name(s.file) + ":" + std::to_string(air.line) +
+                     ": [room_air] gives air changes per hour, but the mesh does not enclose a "
+                     "room whose volume can be measured (its one-sided surfaces do not close, "
+                     "or face outward); give volume = \"54 m3\" in [room_air]");
+  return volume;
+}
+
+// The exchange together with the room air's balance; an unsolved balance marks the result.
+void solve_room_air_exchange(SolvedScene* s, const ExchangeOptions& options) {
+  s->room_air = solve_room_air(&s->model, *s->file.room_air, room_volume(*s), options, &s->result);
+  // Whoever reads the comfort input's air temperature (reports, summaries) reads the solved one.
+  if (s->file.comfort) s->file.comfort->air_K = s->room_air->air_K;
+  if (!s->room_air->converged && s->result.status == ExchangeStatus::converged) {
+    s->result.status = ExchangeStatus::not_converged;
+    s->result.message = s->room_air->message;
+  }
+}
+
+void solve_exchange_into(SolvedScene* s, const ExchangeOptions& options) {
+  if (s->file.room_air)
+    solve_room_air_exchange(s, options);
+  else
+    s->result = solve_exchange(s->model.problem(), options);
+}
+
 }  // namespace
 
 SolvedScene model_scene(SceneFile file, Scene scene, const PipelineOptions& options) {
@@ -83,7 +115,15 @@ SolvedScene model_scene(SceneFile file, Scene scene, const PipelineOptions& opti
     s.file = std::move(file);
     // Thermal input checked before any ray is traced: a typo costs no tracing time.
     const ThermalInput thermal = thermal_input(s.file, scene);
-    s.run = pipeline_detail::factor_run(s.file, scene, options);
+    // A target on heat flows judges each round by a solve of its factors.
+    const pipeline_detail::HeatFlowJudge judge = [&](const FactorRun& run) {
+      try {
+        return pipeline_detail::heat_flow_errors(thermal, run, options);
+      } catch (const InputError& e) {
+        throw RefusedInput(e.what(), run.diagnostics.warnings);
+      }
+    };
+    s.run = pipeline_detail::factor_run(s.file, scene, options, judge);
     s.run.tallies = Tallies{};  // smoothed (and cached): the counts are no longer needed
     refuse_flipped(s);
     Reporter(options).start(PipelineStage::thermal_model);
@@ -105,7 +145,7 @@ void solve_model_exchange(SolvedScene* s, const PipelineOptions& options) {
   in_arena(options.threads, [&] {
     Reporter(options).start(PipelineStage::exchange);
     try {
-      s->result = solve_exchange(s->model.problem(), options.exchange);
+      solve_exchange_into(s, options.exchange);
     } catch (const InputError& e) {
       throw RefusedInput(e.what(), s->run.diagnostics.warnings);
     }
@@ -130,43 +170,58 @@ void check_comfort_input(const SceneFile& file, const Scene& scene) {
   comfort_points(scene, *file.comfort);
 }
 
+std::vector<PointFactors> trace_scene_angle_factors(const SolvedScene& s,
+                                                    const std::vector<ComfortPoint>& points,
+                                                    const PipelineOptions& options) {
+  pipeline_detail::check_options(options);
+  if (!s.file.comfort) throw std::logic_error("angle factors: the scene has no [comfort] table");
+  return in_arena(options.threads, [&] {
+    const Reporter reporter(options);
+    reporter.start(PipelineStage::build_tracer);
+    const Tracer tracer(s.run.scene, options.tracer);
+    reporter.start(PipelineStage::comfort);
+    AngleFactorOptions angle;
+    angle.rays = s.file.comfort->rays;
+    angle.seed = s.run.seed;
+    angle.threads = options.threads;
+    return trace_angle_factors(s.run.scene, s.run.patches, tracer, points, angle);
+  });
+}
+
+std::vector<PointComfort> evaluate_scene_comfort(const SolvedScene& s,
+                                                 const std::vector<ComfortPoint>& points,
+                                                 const std::vector<PointFactors>& factors) {
+  const ComfortInput& in = *s.file.comfort;
+  RadiantField field;
+  for (const FaceResult& f : s.result.faces) field.radiosity.push_back(f.radiosity);
+  field.surroundings_K = s.model.surroundings_K.value_or(0.0);
+  const ComfortConditions air{s.room_air ? s.room_air->air_K : in.air_K, in.air_speed, in.person};
+  std::vector<PointComfort> out;
+  for (std::size_t k = 0; k < points.size(); ++k)
+    out.push_back(evaluate_comfort(points[k], factors[k], field, air));
+  return out;
+}
+
 SceneComfort scene_comfort(const SolvedScene& s, const PipelineOptions& options) {
   pipeline_detail::check_options(options);
   if (!s.file.comfort) throw std::logic_error("scene_comfort: the scene has no [comfort] table");
   if (s.result.status != ExchangeStatus::converged)
     throw std::logic_error("scene_comfort: the exchange solve has not converged");
-  return in_arena(options.threads, [&] {
-    const Reporter reporter(options);
-    const ComfortInput& in = *s.file.comfort;
-    const std::vector<ComfortPoint> points = comfort_points(s.run.scene, in);
-    reporter.start(PipelineStage::build_tracer);
-    const Tracer tracer(s.run.scene, options.tracer);
-    reporter.start(PipelineStage::comfort);
-    AngleFactorOptions angle;
-    angle.rays = in.rays;
-    angle.seed = s.run.seed;
-    angle.threads = options.threads;
-    const std::vector<PointFactors> factors =
-        trace_angle_factors(s.run.scene, s.run.patches, tracer, points, angle);
-
-    RadiantField field;
-    for (const FaceResult& f : s.result.faces) field.radiosity.push_back(f.radiosity);
-    field.surroundings_K = s.model.surroundings_K.value_or(0.0);
-    const ComfortConditions air{in.air_K, in.air_speed};
-    SceneComfort out;
-    for (std::size_t k = 0; k < points.size(); ++k) {
-      out.points.push_back(evaluate_comfort(points[k], factors[k], field, air));
-      const double lost = out.points.back().lost_fraction;
-      if (lost <= kLostWarning) continue;
-      out.warnings.push_back(
-          {WarningKind::comfort_point,
-           scene_name(s.file) + ": " + std::to_string(100 * lost).substr(0, 5) +
-               " % of the rays from point " + points[k].name +
-               " leave the room or meet the back of a wall: is the point inside?" +
-               (s.model.surroundings_K ? "" : " (they are counted at 0 K: no [surroundings])")});
-    }
-    return out;
-  });
+  const std::vector<ComfortPoint> points = comfort_points(s.run.scene, *s.file.comfort);
+  const std::vector<PointFactors> factors = trace_scene_angle_factors(s, points, options);
+  SceneComfort out;
+  out.points = evaluate_scene_comfort(s, points, factors);
+  for (std::size_t k = 0; k < points.size(); ++k) {
+    const double lost = out.points[k].lost_fraction;
+    if (lost <= kLostWarning) continue;
+    out.warnings.push_back(
+        {WarningKind::comfort_point,
+         scene_name(s.file) + ": " + std::to_string(100 * lost).substr(0, 5) +
+             " % of the rays from point " + points[k].name +
+             " leave the room or meet the back of a wall: is the point inside?" +
+             (s.model.surroundings_K ? "" : " (they are counted at 0 K: no [surroundings])")});
+  }
+  return out;
 }
 
 }  // namespace hearthray

@@ -1,6 +1,7 @@
 // A ray budget set by the error wanted (RayTarget in pipeline.hpp): rounds of one_run, each
 // with the rays per patch of the round before times a power of two, until the largest standard
-// error of the factors is at most the target, or a cap stops it.
+// error of the factors (or, for a target on heat flows, the largest relative error of a
+// surface's heat flow: pipeline_heat_error.cpp) is at most the target, or a cap stops it.
 //
 // Each round is a plain run at its ray count, so its tallies are those of `--rays N` (and come
 // from the view-factor cache, or go into it, under the same key): a second run with the same
@@ -26,6 +27,8 @@ std::string to_string(TargetStop stop) {
       return "run-size limit";
     case TargetStop::time_limit:
       return "time limit";
+    case TargetStop::not_solved:
+      return "exchange solve, which did not converge";
   }
   return "?";
 }
@@ -83,10 +86,18 @@ double seconds_since(std::chrono::steady_clock::time_point start) {
 
 }  // namespace
 
-FactorRun target_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options) {
+FactorRun target_run(const SceneFile& file, const Scene& scene, const PipelineOptions& options,
+                     const HeatFlowJudge& judge) {
   RayTarget target;
   target.used = true;
   target.error = options.target_error.value_or(file.target_error.value_or(0));
+  target.heat_flows =
+      options.target_error ? options.target_on_heat_flows : file.target_on_heat_flows;
+  if (target.heat_flows && !judge)
+    throw InputError(
+        "a target error in percent is relative on the surfaces' heat flows, which only a solve "
+        "has (solve, comfort); for view factors alone give the largest standard error wanted "
+        "as a plain number, such as 0.001");
   target.max_rays_per_patch = options.max_rays_per_patch.value_or(
       file.target_max_per_patch.value_or(kDefaultTargetMaxRaysPerPatch));
   target.time_limit_s = options.time_limit_s.value_or(file.target_time_limit_s.value_or(0));
@@ -105,11 +116,18 @@ FactorRun target_run(const SceneFile& file, const Scene& scene, const PipelineOp
     FactorRun run = one_run(file, scene, round);
     const double round_seconds = seconds_since(round_start);
     target.round_rays.push_back(n);
-    target.achieved = largest_standard_error(run.factors);
+    if (target.heat_flows) {
+      target.heat = judge(run);
+      target.achieved = target.heat.largest_relative;
+    } else {
+      target.achieved = largest_standard_error(run.factors);
+    }
     target.round_errors.push_back(target.achieved);
     target.rays_all_rounds += run.stats.rays;
     std::uint64_t next = n;
-    if (target.achieved <= target.error) {
+    if (target.heat_flows && !target.heat.judged) {
+      target.stop = TargetStop::not_solved;
+    } else if (target.achieved <= target.error) {
       target.stop = TargetStop::reached;
     } else if ((next = next_rays(n, target.achieved, target.error, target.max_rays_per_patch)) ==
                n) {

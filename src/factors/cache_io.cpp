@@ -1,0 +1,102 @@
+// The mesh part of cache keys and the atomic write of a cache file (see cache_io.hpp).
+#include "factors/cache_io.hpp"
+
+#include <unistd.h>
+
+#include <atomic>
+#include <filesystem>
+#include <fstream>
+#include <sstream>
+
+namespace hearthray {
+namespace cache_io {
+
+void hash_mesh(Hasher& h, const std::string& mesh_bytes, const MeshOptions& mesh,
+               const Scene& scene, const std::vector<PatchSpec>& patch_specs,
+               const std::vector<PanelPlacement>& panels) {
+  h.bytes(mesh_bytes.data(), mesh_bytes.size());
+  h.u64(mesh_bytes.size());
+  h.text(to_string(mesh.unit));
+  h.u64(mesh.surfaces_from == SurfacesFrom::groups ? 0 : 1);
+  h.real(mesh.degenerate_relative_area);
+  h.u64(panels.size());
+  for (const PanelPlacement& p : panels) {
+    h.text(p.name);
+    h.text(p.host);
+    for (const double v : {p.centre.x, p.centre.y, p.centre.z, p.length, p.width}) h.real(v);
+    h.u64(p.along ? 1 : 0);
+    if (p.along)
+      for (const double v : {p.along->x, p.along->y, p.along->z}) h.real(v);
+  }
+  h.u64(scene.surfaces.size());
+  for (std::size_t i = 0; i < scene.surfaces.size(); ++i) {
+    const Surface& s = scene.surfaces[i];
+    h.text(s.name);
+    h.u64(s.two_sided ? 1 : 0);
+    const PatchSpec spec = i < patch_specs.size() ? patch_specs[i] : PatchSpec{};
+    h.u64(static_cast<std::uint64_t>(spec.mode));
+    h.real(spec.size);
+  }
+}
+
+std::string read_cache_file(const std::string& path, const char (&magic)[8], std::uint32_t layout,
+                            const TallyCacheKey& key, std::size_t header_bytes,
+                            const std::string& what, std::string* data, std::uint32_t* flags) {
+  {
+    std::ifstream in(path, std::ios::binary);
+    std::ostringstream ss;
+    ss << in.rdbuf();
+    if (!in) return "it could not be read";
+    *data = ss.str();
+  }
+  if (data->size() < header_bytes) return "it is too short to hold a header";
+  if (std::memcmp(data->data(), magic, sizeof magic) != 0) return "it is not a " + what;
+  Cursor c{*data, sizeof magic};
+  const std::uint32_t version = c.u32();
+  *flags = c.u32();
+  if (version != layout)
+    return "its layout version is " + std::to_string(version) + ", expected " +
+           std::to_string(layout);
+  TallyCacheKey stored;
+  stored.fnv = c.u64();
+  stored.mix = c.u64();
+  if (!(stored == key)) return "it was made for another key";
+  return "";
+}
+
+CacheWrite write_cache_file(const std::string& dir, const std::string& path,
+                            const std::string& data) {
+  namespace fs = std::filesystem;
+  CacheWrite out;
+  out.path = path;
+  std::error_code ec;
+  fs::create_directories(dir, ec);
+  if (ec) {
+    out.reason = "cannot create the cache folder '" + dir + "': " + ec.message();
+    return out;
+  }
+  // A name no other writer uses, so that two solves of one scene at once cannot mix bytes.
+  static std::atomic<unsigned> counter{0};
+  const std::string temporary =
+      out.path + ".tmp." + std::to_string(::getpid()) + "." + std::to_string(counter++);
+  {
+    std::ofstream file(temporary, std::ios::binary | std::ios::trunc);
+    file.write(data.data(), static_cast<std::streamsize>(data.size()));
+    if (!file) {
+      fs::remove(temporary, ec);
+      out.reason = "cannot write '" + temporary + "'";
+      return out;
+    }
+  }
+  fs::rename(temporary, out.path, ec);
+  if (ec) {
+    fs::remove(temporary, ec);
+    out.reason = "cannot move the cache file into place at '" + out.path + "'";
+    return out;
+  }
+  out.stored = true;
+  return out;
+}
+
+}  // namespace cache_io
+}  // namespace hearthray
