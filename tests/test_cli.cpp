@@ -1,46 +1,20 @@
 // The command-line tool end to end: outputs by extension, bitwise-identical files for any
 // thread count, and a clear `error:` with a non-zero exit for bad input.
 #include <catch2/catch.hpp>
+#include <iterator>
 #include <sstream>
 #include <string>
 #include <vector>
 
 #include "hearthray/version.hpp"
 #include "support/cli_run.hpp"
+#include "support/meshes.hpp"
 
 using namespace hearthray::testing;
 
-namespace {
-
-// Unit cube with inward normals, one group per face (front = counter-clockwise seen from
-// inside the cube).
-const char* kCubeObj = R"(v 0 0 0
-v 1 0 0
-v 1 1 0
-v 0 1 0
-v 0 0 1
-v 1 0 1
-v 1 1 1
-v 0 1 1
-g floor
-f 1 2 3 4
-g roof
-f 5 8 7 6
-g south
-f 1 5 6 2
-g north
-f 4 3 7 8
-g west
-f 1 4 8 5
-g east
-f 2 6 7 3
-)";
-
-}  // namespace
-
 TEST_CASE("factors writes CSV, JSON, Matrix Market and NPY", "[cli]") {
   const ScratchDir dir("cli-formats");
-  write_text(dir / "cube.obj", kCubeObj);
+  write_text(dir / "cube.obj", unit_cube_obj());
   const auto r = run_cli("factors " + (dir / "cube.obj").string() + " --rays 20000 --quiet -o " +
                              (dir / "F.csv").string() + " -o " + (dir / "F.json").string() +
                              " -o " + (dir / "F.mtx").string() + " -o " + (dir / "F.npy").string(),
@@ -56,7 +30,7 @@ TEST_CASE("factors writes CSV, JSON, Matrix Market and NPY", "[cli]") {
 
 TEST_CASE("one and two threads give identical files", "[cli]") {
   const ScratchDir dir("cli-threads");
-  write_text(dir / "cube.obj", kCubeObj);
+  write_text(dir / "cube.obj", unit_cube_obj());
   const std::string base = "factors " + (dir / "cube.obj").string() + " --rays 50000 --quiet ";
   REQUIRE(run_cli(base + "--threads 1 -o " + (dir / "t1.csv").string(), dir).status == 0);
   REQUIRE(run_cli(base + "--threads 2 -o " + (dir / "t2.csv").string(), dir).status == 0);
@@ -75,7 +49,7 @@ TEST_CASE("one and two threads give identical files", "[cli]") {
 
 TEST_CASE("terminal table and check report", "[cli]") {
   const ScratchDir dir("cli-table");
-  write_text(dir / "cube.obj", kCubeObj);
+  write_text(dir / "cube.obj", unit_cube_obj());
   auto r = run_cli("factors " + (dir / "cube.obj").string() + " --rays 10000", dir);
   REQUIRE(r.status == 0);
   CHECK(r.out.find("floor") != std::string::npos);
@@ -89,8 +63,17 @@ TEST_CASE("terminal table and check report", "[cli]") {
 
 TEST_CASE("flipped normals are reported by check", "[cli]") {
   const ScratchDir dir("cli-flipped");
-  std::string obj = kCubeObj;
-  obj.replace(obj.find("f 5 8 7 6"), 9, "f 5 6 7 8");  // roof now faces out of the cube
+  // The roof's triangles with their vertices in reverse order: it now faces out of the cube.
+  std::istringstream in(unit_cube_obj());
+  std::string obj, group;
+  for (std::string line; std::getline(in, line); obj += line + "\n") {
+    if (line.rfind("g ", 0) == 0) group = line.substr(2);
+    if (group != "roof" || line.rfind("f ", 0) != 0) continue;
+    std::istringstream face(line.substr(2));
+    line = "f";
+    std::vector<std::string> v{std::istream_iterator<std::string>(face), {}};
+    for (auto it = v.rbegin(); it != v.rend(); ++it) line += " " + *it;
+  }
   write_text(dir / "cube.obj", obj);
   const auto r = run_cli("check " + (dir / "cube.obj").string() + " --rays 2000", dir);
   REQUIRE(r.status == 0);
@@ -100,7 +83,7 @@ TEST_CASE("flipped normals are reported by check", "[cli]") {
 
 TEST_CASE("bad input gives error: and a non-zero exit", "[cli]") {
   const ScratchDir dir("cli-bad");
-  write_text(dir / "cube.obj", kCubeObj);
+  write_text(dir / "cube.obj", unit_cube_obj());
   const std::string cube = (dir / "cube.obj").string();
   struct Case {
     std::string args, expect;
@@ -131,7 +114,7 @@ TEST_CASE("the version flag prints the version CMake configured", "[cli]") {
 
 TEST_CASE("factors writes the patch table and VTU beside the matrix, row i = patch i", "[cli]") {
   const ScratchDir dir("cli-patches");
-  write_text(dir / "cube.obj", kCubeObj);
+  write_text(dir / "cube.obj", unit_cube_obj());
   const auto r = run_cli("factors " + (dir / "cube.obj").string() + " --rays 5000 --quiet -o " +
                              (dir / "F.csv").string() + " -o " + (dir / "F.mtx").string(),
                          dir);
@@ -163,7 +146,7 @@ TEST_CASE("factors writes the patch table and VTU beside the matrix, row i = pat
 
 TEST_CASE("factors takes its tallies from the cache like solve", "[cli]") {
   const ScratchDir dir("cli-factors-cache");
-  write_text(dir / "cube.obj", kCubeObj);
+  write_text(dir / "cube.obj", unit_cube_obj());
   const std::string base = "factors " + (dir / "cube.obj").string() + " --rays 20000 -o ";
   const auto first = run_cli(base + (dir / "a.csv").string(), dir);
   REQUIRE(first.status == 0);

@@ -214,4 +214,16 @@ excess_air = "10 %"
   leaner.replace(leaner.find("\"10 %\""), 6, "\"30 %\"");
   write_text(dir / "scene.toml", leaner);
   CHECK_THAT(solve("lean", ""), Catch::Contains("traced; stored in cache"));
+  // A panel placed by the scene file changes the geometry: placed, then moved, it misses;
+  // the moved one, solved again, is served.
+  auto with_panel = [&](const char* x) {
+    write_text(dir / "scene.toml",
+               leaner + "\n[panel.lid]\non = \"roof\"\ncentre = [\"" + x +
+                   " m\", \"0.5 m\", \"1 m\"]\nsize = [\"0.5 m\", \"0.4 m\"]\n");
+  };
+  with_panel("1");
+  CHECK_THAT(solve("panel", ""), Catch::Contains("traced; stored in cache"));
+  with_panel("1.2");
+  CHECK_THAT(solve("moved", ""), Catch::Contains("traced; stored in cache"));
+  CHECK_THAT(solve("moved-again", ""), Catch::Contains("gas exchange areas: from cache"));
 }

@@ -15,6 +15,7 @@
 #include <cmath>
 #include <string>
 
+#include "hearthray/panels.hpp"
 #include "support/closed_forms.hpp"
 #include "support/meshes.hpp"
 #include "support/traced_case.hpp"
@@ -232,4 +233,50 @@ TEST_CASE("full shadowing by a two-sided baffle wider than the plates", "[valida
     CHECK(factor(*vf, "baffle (front)", "lower") == 0);
   }
   for (std::size_t r = 0; r < t.tallies.rows(); ++r) CHECK(t.tallies.back_face[r] == 0);
+}
+
+TEST_CASE("a panel cut out of a plate sees an opposed rectangle as Howell C-11 says",
+          "[validation]") {
+  // A 3 x 3 plate at z = 0 (a 3 x 3 grid of quads, facing +z) and a 1.2 x 0.9 plate at z = 1
+  // facing down over [1.0, 2.2] x [0.8, 1.7]. A panel of the same size is placed on the lower
+  // plate right under it, across the plate's mesh lines (place_panels, panels.hpp): the panel
+  // sees the upper plate as an identical, directly opposed rectangle (Howell C-11), and what
+  // is left of the host sees it as the whole plate less the panel, from the exchange areas of
+  // parallel rectangles in general position (Siegel & Howell; form recalled).
+  std::string obj;
+  for (int j = 0; j <= 3; ++j)
+    for (int i = 0; i <= 3; ++i) obj += "v " + std::to_string(i) + " " + std::to_string(j) + " 0\n";
+  obj += "g host\n";
+  for (int j = 0; j < 3; ++j)
+    for (int i = 0; i < 3; ++i) {
+      const int a = 1 + i + 4 * j;
+      obj += "f " + std::to_string(a) + " " + std::to_string(a + 1) + " " + std::to_string(a + 5) +
+             " " + std::to_string(a + 4) + "\n";
+    }
+  obj += "v 1.0 0.8 1\nv 2.2 0.8 1\nv 2.2 1.7 1\nv 1.0 1.7 1\ng upper\nf 17 20 19 18\n";
+  Scene scene = load_obj_text(obj, "panel-c11");
+  PanelPlacement p;
+  p.name = "panel";
+  p.host = "host";
+  p.centre = {1.6, 1.25, 0};
+  p.length = 1.2;
+  p.width = 0.9;
+  place_panels(&scene, {p});
+  const TracedCase t = trace_case(std::move(scene), kRays, kSeed);
+  REQUIRE(t.smoothing.converged);
+  const double panel = parallel_rectangles_aligned(1.2, 0.9, 1.0);
+  const Rect upper{1.0, 2.2, 0.8, 1.7}, plate{0, 3, 0, 3}, cut{1.0, 2.2, 0.8, 1.7};
+  const double host = (parallel_rectangles_exchange_area(plate, upper, 1.0) -
+                       parallel_rectangles_exchange_area(cut, upper, 1.0)) /
+                      (plate.area() - cut.area());
+  for (const ViewFactors* vf : {&t.raw, &t.smoothed}) {
+    check_factor(*vf, "panel", "upper", panel);
+    check_factor(*vf, "host", "upper", host);
+    CHECK(factor(*vf, "panel", "host") == 0);  // coplanar: they never see each other
+  }
+  // The closed form's areas: the panel is exactly 1.2 x 0.9, the host 9 less that.
+  CHECK(t.scene.surfaces[std::size_t(t.scene.find_surface("panel"))].area ==
+        Approx(1.08).epsilon(1e-12));
+  CHECK(t.scene.surfaces[std::size_t(t.scene.find_surface("host"))].area ==
+        Approx(9 - 1.08).epsilon(1e-12));
 }

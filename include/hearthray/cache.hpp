@@ -14,6 +14,7 @@
 #include <string>
 #include <vector>
 
+#include "hearthray/panels.hpp"
 #include "hearthray/patches.hpp"
 #include "hearthray/scene.hpp"
 #include "hearthray/view_factors.hpp"
@@ -41,12 +42,16 @@ struct TallyCacheSettings {
   std::uint64_t seed = 0;
   EmissionSampler sampler = kDefaultSampler;
   bool smoothed = true;  // the factors are smoothed after loading
+  // Panels cut out of the mesh's surfaces by the scene file: they change the geometry that the
+  // mesh file's bytes alone describe.
+  std::vector<PanelPlacement> panels;
 };
 
 // Hashes the mesh file's bytes (`mesh_bytes`, as read from the file the scene was loaded
 // from), the mesh options it was loaded with (unit, surfaces_from, the degenerate-triangle
-// threshold), the number of surfaces and the two-sided flag and patch spec of each, the rays
-// of every patch, seed, smoothing and kTallyCacheFormat.
+// threshold), the panels placed on it (`settings.panels`), the number of surfaces and the
+// two-sided flag and patch spec of each, the rays of every patch, seed, smoothing and
+// kTallyCacheFormat.
 TallyCacheKey tally_cache_key(const std::string& mesh_bytes, const MeshOptions& mesh,
                               const Scene& scene, const TallyCacheSettings& settings);
 

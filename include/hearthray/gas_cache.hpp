@@ -33,11 +33,13 @@ struct GasCacheSettings {
   std::uint64_t seed = 0;
   // The surface rays' sampler (the gas tracing draws stratified rays).
   EmissionSampler sampler = EmissionSampler::stratified;
+  // Panels cut out of the mesh's surfaces by the scene file ([panel.NAME]).
+  std::vector<PanelPlacement> panels;
 };
 
-// Hashes kGasCacheFormat, the mesh file's bytes and options, the surfaces (name, two-sided,
-// patch spec), the rays of every patch, zone rays, grid, absorption coefficients (their bits),
-// seed and sampler.
+// Hashes kGasCacheFormat, the mesh file's bytes and options, the placed panels, the surfaces (name,
+// two-sided, patch spec), the rays of every patch, zone rays, grid, absorption coefficients (their
+// bits), seed and sampler.
 TallyCacheKey gas_cache_key(const std::string& mesh_bytes, const MeshOptions& mesh,
                             const Scene& scene, const GasCacheSettings& settings);
 

@@ -30,10 +30,12 @@ struct GasRunOptions {
   GasStorage storage = GasStorage::automatic;
   bool force = false;
   // The gas cache (gas_cache.hpp): scores read from and stored in cache_dir ("" = not used),
-  // keyed with the mesh file's bytes and options and the surfaces' patch specs.
+  // keyed with the mesh file's bytes and options, the panels placed on it and the surfaces'
+  // patch specs.
   std::string cache_dir;
   std::string mesh_bytes;
   MeshOptions mesh;
+  std::vector<PanelPlacement> panels;  // the scene file's [panel.NAME]
   std::vector<PatchSpec> patch_specs;  // per surface
 };
 

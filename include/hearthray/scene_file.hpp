@@ -17,6 +17,11 @@
 //               convection = false, wall = false: none here, whatever [defaults] says
 //               expect_back_hits = true: rays mostly arriving on its back are by design
 //                   (otherwise a solve refuses such a surface as flipped)
+//   [panel.NAME] a rectangle cut out of a flat surface of the mesh (panels.hpp):
+//               on = "ceiling", centre = ["1.1 m", "2.0 m", "2.7 m"], size = ["1.2 m", "0.9 m"],
+//               along = [1, 0, 0] (optional), group = "row" (optional), and any key of
+//               [surface.NAME] for the new surface
+//   [panel_group.NAME] offset = ["0 m", "-1.25 m", "0 m"]: moves the panels of group NAME
 //   [comfort]   air_temperature, air_speed, rays, [comfort.point.NAME], [comfort.grid]
 //               (see comfort_input.hpp)
 //   [room_air]  ventilation, outside, gains, volume, density, heat_capacity: the room air's
@@ -36,6 +41,7 @@
 #include "hearthray/conditions.hpp"
 #include "hearthray/firing_input.hpp"
 #include "hearthray/gas_input.hpp"
+#include "hearthray/panels.hpp"
 #include "hearthray/patches.hpp"
 #include "hearthray/room_air.hpp"
 #include "hearthray/scene.hpp"
@@ -73,6 +79,9 @@ struct SceneFile {
   std::optional<double> surroundings_K;
   SurfaceSpec defaults;
   std::vector<std::pair<std::string, SurfaceSpec>> surfaces;  // in file order
+  // [panel.NAME], in file order (their surface keys are in `surfaces` too); load_scene cuts
+  // them out of their hosts.
+  std::vector<PanelPlacement> panels;
   std::optional<ComfortInput> comfort;   // [comfort]: points and air for the comfort figures
   std::optional<GasInput> gas;           // [gas]: the radiating gas filling the enclosure
   std::optional<FiringInput> firing;     // [firing]: a schedule over time (hearthray fire)
@@ -89,8 +98,9 @@ SceneFile scene_file_for_mesh(const std::string& mesh_path);
 // `path` ending in .toml is read as a scene file, anything else is taken as a mesh.
 SceneFile open_scene(const std::string& path);
 
-// Loads the mesh and applies per-surface settings (two_sided). A surface named in the scene
-// but absent from the mesh is an error listing the names that exist.
+// Loads the mesh, cuts the panels out of their hosts (place_panels), and applies per-surface
+// settings (two_sided). A surface named in the scene but absent from the mesh is an error
+// listing the names that exist.
 Scene load_scene(const SceneFile& file);
 
 // Patch spec of every surface of the scene (surface spec over defaults; whole by default),

@@ -8,9 +8,14 @@ are:
 
   layout-a  three panels in a row across the middle of the ceiling
   layout-b  the same three panels in a row along the window wall
+  layout-c  the row of layout-a moved 0.6 m towards the window, placed by the scene file
+            ([panel.NAME] tables and a [panel_group] offset) on the bare room's mesh
 
 Edit LAYOUTS to move, add or resize panels (rectangles on the ceiling, in metres), or add a
 layout; edit SCENE for the thermal settings; then run this script again. Units: metres.
+A layout in PLACED needs no mesh of its own: its scene file places the panels on the ceiling
+of room-bare.obj (the room without panels), and hearthray cuts them out when it loads it; edit
+that scene file's [panel.NAME] tables (or its [panel_group] offset) to try another layout.
 Room sides face inward. Panels and window are cells of the ceiling and wall grids, so the
 mesh stays closed and nothing overlaps.
 """
@@ -37,6 +42,15 @@ LAYOUTS = {
     },
 }
 PANEL_POWER = "350 W"                     # each panel
+# Layouts placed by their scene file on room-bare.obj: panel centres on the ceiling (x, y),
+# each 1.2 x 0.9 m, in one group moved by `offset` (x, y, z).
+PLACED = {
+    "layout-c": {
+        "title": "the row of layout-a moved 0.6 m towards the window (placed by this file)",
+        "centres": [(0.5 * (x0 + x1), 2.0) for x0, x1 in ROW_X],
+        "offset": (0.0, -0.6, 0.0),
+    },
+}
 
 # Written for every layout; {mesh}, {title} and {panels} are filled in.
 SCENE = """\
@@ -117,6 +131,22 @@ power = "{power}"
 convection = {{ h = "1 W/m2K", fluid = "20 C" }}        # heated face down: weak convection
 """
 
+
+PANEL_PLACED = """
+[panel.{name}]
+on = "ceiling"                                        # cut out of the ceiling when loaded
+centre = ["{x:g} m", "{y:g} m", "{z:g} m"]
+size = ["1.2 m", "0.9 m"]                             # along x, along y
+group = "row"
+emissivity = 0.95                                     # powder-coated steel face
+power = "{power}"
+convection = {{ h = "1 W/m2K", fluid = "20 C" }}        # heated face down: weak convection
+"""
+
+PANEL_GROUP = """
+[panel_group.row]                                     # moves every panel of the row
+offset = ["{dx:g} m", "{dy:g} m", "{dz:g} m"]
+"""
 
 # The planner's variant of each layout (plan-a.toml, plan-b.toml for hearthray size): the same
 # mesh, but the room air is solved from its heat balance instead of held at 20 C -- every film
@@ -208,6 +238,19 @@ def main():
             f.write(text)
         with open(os.path.join(here, name.replace("layout", "plan") + ".toml"), "w") as f:
             f.write(plan_scene(text))
+    o = Obj(__doc__.split("\n\n")[0] + "\n\nroom-bare.obj: the radiant room without panels (the "
+            "ceiling whole),\nfor layouts placed by their scene files. Units: metres. Room "
+            "sides face inward.")
+    o.groups(room_groups([]))
+    o.write(os.path.join(here, "room-bare.obj"))
+    for name, layout in PLACED.items():
+        blocks = "".join(PANEL_PLACED.format(name=f"panel_{k + 1}", x=x, y=y, z=ROOM[2],
+                                             power=PANEL_POWER)
+                         for k, (x, y) in enumerate(layout["centres"]))
+        dx, dy, dz = layout["offset"]
+        blocks += PANEL_GROUP.format(dx=dx, dy=dy, dz=dz)
+        with open(os.path.join(here, f"{name}.toml"), "w") as f:
+            f.write(SCENE.format(mesh="room-bare.obj", title=layout["title"], panels=blocks))
 
 
 if __name__ == "__main__":

@@ -25,6 +25,7 @@ void use_gas_cache(const SolveArgs& args, const SceneFile& file, const PatchPlan
   options.cache_dir = args.cache_dir.empty() ? default_cache_dir() : args.cache_dir;
   if (options.cache_dir.empty()) return;
   options.mesh_bytes = read_mesh_bytes(file.mesh_path);
+  options.panels = file.panels;
   options.mesh = file.mesh;
   options.patch_specs = plan.specs;
 }

@@ -102,10 +102,43 @@ std::array<double, 2> cell_size(const std::vector<const PointComfort*>& grid, co
   return {dx, dy};
 }
 
+// A named point on the canvas: its dot at (x, y), its name right or left of it, and the box
+// that the dot and the name's white ground cover.
+struct Label {
+  const PointComfort* point = nullptr;
+  double x = 0, y = 0, text_x = 0, width = 0;
+  bool left = false;
+  std::array<double, 4> box{};  // x0, y0, x1, y1
+};
+
+std::vector<Label> named_labels(const Canvas& c, const Plan& plan,
+                                const std::vector<PointComfort>& points) {
+  std::vector<Label> labels;
+  for (const PointComfort& p : points) {
+    if (p.point.grid_i >= 0) continue;
+    Label l;
+    l.point = &p;
+    l.x = plan.px(p.point.position.x), l.y = plan.py(p.point.position.y);
+    l.width = c.text_width(p.point.name, 0.9 * kFont);
+    l.left = l.x + 8 + l.width > plan.px(plan.box.hi.x) - 4;  // keep the name in the room
+    l.text_x = l.left ? l.x - 8 : l.x + 8;
+    const double x0 = l.left ? l.text_x - l.width - 2 : l.x - 6;
+    const double x1 = l.left ? l.x + 6 : l.text_x + l.width + 2;
+    l.box = {x0, l.y - 0.95 * kFont, x1, l.y + 6};  // the dot reaches 5 px below
+    labels.push_back(l);
+  }
+  return labels;
+}
+
+bool overlaps(const std::array<double, 4>& a, const std::array<double, 4>& b) {
+  return a[0] < b[2] && b[0] < a[2] && a[1] < b[3] && b[1] < a[3];
+}
+
 // Grid cells in colour (edges on whole pixels, so neighbours meet without seams), and a cross
-// on every point over its asymmetry limit on the asymmetry map. Returns whether any was over.
+// on every point over its asymmetry limit on the asymmetry map, except where a named point's
+// dot or name covers it. Returns whether any was over.
 bool draw_cells(Canvas& c, const Plan& plan, const std::vector<const PointComfort*>& grid,
-                MapQuantity q, double lo, double hi) {
+                MapQuantity q, double lo, double hi, const std::vector<Label>& labels) {
   const auto [dx, dy] = cell_size(grid, plan.box);
   bool over = false;
   for (const PointComfort* p : grid) {
@@ -119,6 +152,10 @@ bool draw_cells(Canvas& c, const Plan& plan, const std::vector<const PointComfor
     over = true;
     const double cx = plan.px(p->point.position.x), cy = plan.py(p->point.position.y);
     const double r = 0.22 * std::min(dx, dy) * plan.ppm;
+    const std::array<double, 4> box{cx - r - 2, cy - r - 2, cx + r + 2, cy + r + 2};
+    if (std::any_of(labels.begin(), labels.end(),
+                    [&](const Label& l) { return overlaps(box, l.box); }))
+      continue;
     c.line(cx - r, cy - r, cx + r, cy + r, 2, kInk);
     c.line(cx - r, cy + r, cx + r, cy - r, 2, kInk);
   }
@@ -155,48 +192,32 @@ std::array<bool, 2> draw_surfaces(Canvas& c, const Plan& plan, const Scene& scen
 }
 
 // Named points: a white dot with a dark rim and the point's name beside it.
-bool draw_named_points(Canvas& c, const Plan& plan, const std::vector<PointComfort>& points) {
-  bool any = false;
-  for (const PointComfort& p : points) {
-    if (p.point.grid_i >= 0) continue;
-    any = true;
-    const double x = plan.px(p.point.position.x), y = plan.py(p.point.position.y);
-    c.circle(x, y, 4, &kWhite, 1.5, kInk);
-    const double w = c.text_width(p.point.name, 0.9 * kFont);
-    const bool left = x + 8 + w > plan.px(plan.box.hi.x) - 4;  // keep the name in the room
-    const double tx = left ? x - 8 : x + 8;
-    c.fill_rect(left ? tx - w - 2 : tx - 2, y - 0.95 * kFont, w + 4, 1.25 * kFont, kWhite);
-    c.text(tx, y + 0.05 * kFont, p.point.name, 0.9 * kFont, kInk,
-           left ? Align::right : Align::left);
+void draw_named_points(Canvas& c, const std::vector<Label>& labels) {
+  for (const Label& l : labels) {
+    c.circle(l.x, l.y, 4, &kWhite, 1.5, kInk);
+    c.fill_rect(l.left ? l.text_x - l.width - 2 : l.text_x - 2, l.y - 0.95 * kFont, l.width + 4,
+                1.25 * kFont, kWhite);
+    c.text(l.text_x, l.y + 0.05 * kFont, l.point->point.name, 0.9 * kFont, kInk,
+           l.left ? Align::right : Align::left);
   }
-  return any;
 }
 
-// A scale bar of a round length (about a quarter of the plan's width) in metres, black and
-// white halves, its left end at (x, y).
-void draw_scale_bar(Canvas& c, double x, double y, const Plan& plan) {
-  const double want = 0.25 * (plan.box.hi.x - plan.box.lo.x);
-  double length = 0.1;
-  for (double candidate : {0.2, 0.25, 0.5, 1.0, 2.0, 2.5, 5.0, 10.0, 20.0, 50.0, 100.0})
-    if (candidate <= want) length = candidate;
-  const double w = length * plan.ppm, h = 6;
-  c.fill_rect(x, y, w / 2, h, kInk);
-  c.fill_rect(x + w / 2, y, w / 2, h, kWhite);
-  c.stroke_rect(x, y, w, h, 1, kInk);
-  const double base = y + h + kFont;
-  c.text(x, base, "0", 0.9 * kFont, kInk, Align::centre);
-  c.text(x + w, base, rounded("%g m", length), 0.9 * kFont, kInk, Align::centre);
-}
-
-// The legend in one row from (x, y): what the lines and marks on the plan mean.
-void draw_legend(Canvas& c, double x, double y, const std::array<bool, 2>& surfaces, bool named,
-                 bool over) {
-  const double fs = 0.9 * kFont;
+// The legend from (x, y), in rows that end before `right`: what the grey ground, the lines and
+// the marks on the plan mean.
+void draw_legend(Canvas& c, double x, double y, double right, const std::array<bool, 2>& surfaces,
+                 bool named, bool over) {
+  const double fs = 0.9 * kFont, x0 = x;
   auto entry = [&](const std::string& name, auto mark) {
+    const double w = 26 + c.text_width(name, fs);
+    if (x > x0 && x + w > right) x = x0, y += 1.6 * fs;
     mark(x + 9, y);
     c.text(x + 26, y + 0.35 * fs, name, fs, kInk);
-    x += 26 + c.text_width(name, fs) + 20;
+    x += w + 20;
   };
+  entry("not mapped", [&](double cx, double cy) {
+    c.fill_rect(cx - 7, cy - 7, 14, 14, kOutside);
+    c.stroke_rect(cx - 7, cy - 7, 14, 14, 1, kSoftInk);
+  });
   if (surfaces[0])
     entry("glass", [&](double cx, double cy) { c.line(cx - 9, cy, cx + 9, cy, 6, kGlass); });
   if (surfaces[1])
@@ -273,9 +294,10 @@ Picture comfort_map(const Scene& scene, const std::vector<PointComfort>& points,
   c.fill_rect(0, 0, width, height, kBackground);
   c.fill_rect(plan.left, plan.top, plan.width(), plan.height(), kOutside);
 
-  const bool over = draw_cells(c, plan, grid, q, lo, hi);
+  const std::vector<Label> labels = named_labels(c, plan, points);
+  const bool over = draw_cells(c, plan, grid, q, lo, hi, labels);
   const std::array<bool, 2> surfaces = draw_surfaces(c, plan, scene, options.heaters);
-  const bool named = draw_named_points(c, plan, points);
+  draw_named_points(c, labels);
 
   const double bx = plan.left + plan.width() + kBarGap;
   c.text(bx, plan.top - 8, q == MapQuantity::asymmetry ? "in K" : "in °C", kFont, kInk);
@@ -291,8 +313,10 @@ Picture comfort_map(const Scene& scene, const std::vector<PointComfort>& points,
                 grid.front()->point.position.z - plan.box.lo.z);
   c.text(kPad, 44, pictures::fit_text(c, subtitle, width - 2 * kPad, kFont), kFont, kSoftInk);
   const double row = plan.top + plan.height() + 20;
-  draw_scale_bar(c, plan.left, row - 3, plan);
-  draw_legend(c, plan.left + 0.25 * plan.width() * 1.0 + 60, row, surfaces, named, over);
+  pictures::draw_scale_bar(c, plan.left, row - 3, plan.box.hi.x - plan.box.lo.x, plan.ppm,
+                           0.9 * kFont, kInk);
+  draw_legend(c, plan.left + 0.25 * plan.width() + 60, row, width - kPad, surfaces, !labels.empty(),
+              over);
   return c.finish();
 }
 

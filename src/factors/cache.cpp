@@ -84,7 +84,7 @@ TallyCacheKey tally_cache_key(const std::string& mesh_bytes, const MeshOptions& 
                               const Scene& scene, const TallyCacheSettings& settings) {
   Hasher h;
   h.text(kTallyCacheFormat);
-  hash_mesh(h, mesh_bytes, mesh, scene, settings.patch_specs);
+  hash_mesh(h, mesh_bytes, mesh, scene, settings.patch_specs, settings.panels);
   h.u64(settings.rays.size());
   for (std::uint64_t n : settings.rays) h.u64(n);
   h.u64(settings.seed);

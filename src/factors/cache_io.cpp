@@ -12,12 +12,22 @@ namespace hearthray {
 namespace cache_io {
 
 void hash_mesh(Hasher& h, const std::string& mesh_bytes, const MeshOptions& mesh,
-               const Scene& scene, const std::vector<PatchSpec>& patch_specs) {
+               const Scene& scene, const std::vector<PatchSpec>& patch_specs,
+               const std::vector<PanelPlacement>& panels) {
   h.bytes(mesh_bytes.data(), mesh_bytes.size());
   h.u64(mesh_bytes.size());
   h.text(to_string(mesh.unit));
   h.u64(mesh.surfaces_from == SurfacesFrom::groups ? 0 : 1);
   h.real(mesh.degenerate_relative_area);
+  h.u64(panels.size());
+  for (const PanelPlacement& p : panels) {
+    h.text(p.name);
+    h.text(p.host);
+    for (const double v : {p.centre.x, p.centre.y, p.centre.z, p.length, p.width}) h.real(v);
+    h.u64(p.along ? 1 : 0);
+    if (p.along)
+      for (const double v : {p.along->x, p.along->y, p.along->z}) h.real(v);
+  }
   h.u64(scene.surfaces.size());
   for (std::size_t i = 0; i < scene.surfaces.size(); ++i) {
     const Surface& s = scene.surfaces[i];

@@ -128,10 +128,13 @@ inline std::string hex64(std::uint64_t v) {
 }
 
 // The part of every key that describes the mesh and its patches: the mesh file's bytes, the
-// options it was loaded with (unit, surfaces_from, degenerate-triangle threshold), and each
-// surface's name, two-sided flag and patch spec.
+// options it was loaded with (unit, surfaces_from, degenerate-triangle threshold), the panels
+// the scene file cut out of its surfaces (name, host, centre, size, direction: they change
+// the geometry that the file's bytes alone describe), and each surface's name, two-sided flag
+// and patch spec.
 void hash_mesh(Hasher& h, const std::string& mesh_bytes, const MeshOptions& mesh,
-               const Scene& scene, const std::vector<PatchSpec>& patch_specs);
+               const Scene& scene, const std::vector<PatchSpec>& patch_specs,
+               const std::vector<PanelPlacement>& panels);
 
 // Bytes before the sizes in every cache file's header: magic (8), layout version and flags
 // (4 + 4), key (16).

@@ -55,7 +55,7 @@ TallyCacheKey gas_cache_key(const std::string& mesh_bytes, const MeshOptions& me
                             const Scene& scene, const GasCacheSettings& settings) {
   Hasher h;
   h.text(kGasCacheFormat);
-  hash_mesh(h, mesh_bytes, mesh, scene, settings.patch_specs);
+  hash_mesh(h, mesh_bytes, mesh, scene, settings.patch_specs, settings.panels);
   h.u64(settings.rays.size());
   for (std::uint64_t n : settings.rays) h.u64(n);
   h.u64(settings.rays_per_cell);

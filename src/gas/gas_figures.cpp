@@ -68,7 +68,7 @@ using pictures::Canvas;
 using pictures::kInk;
 using pictures::kSoftInk;
 constexpr Colour kBackground{0.969, 0.969, 0.961};
-constexpr double kFont = 13, kPad = 24, kTop = 64, kBottom = 36, kBarGap = 24;
+constexpr double kFont = 13, kPad = 24, kTop = 64, kBottom = 48, kBarGap = 24;
 
 }  // namespace
 
@@ -88,7 +88,7 @@ Picture zone_cut_picture(const GasRun& run, const Scene& scene, int across) {
     hi = std::max(hi, z.temperature - kZeroCelsius);
   }
   if (hi - lo < 1) lo -= 0.5, hi += 0.5;
-  const pictures::ColourBar bar{lo, hi, sequential_colour, false};
+  const pictures::ColourBar bar{lo, hi, sequential_colour, false, {}};
   Canvas measure(16, 16);
   const double bar_width = pictures::colour_bar_width(measure, bar, kFont);
   const double left = kPad, top = kTop;
@@ -128,6 +128,7 @@ Picture zone_cut_picture(const GasRun& run, const Scene& scene, int across) {
       c.line(px(pts[0][0]), py(pts[0][1]), px(pts[1][0]), py(pts[1][1]), 2.5, kInk);
   }
   c.stroke_rect(left, top, wu * ppm, wv * ppm, 1, kSoftInk);
+  pictures::draw_scale_bar(c, left, top + wv * ppm + 12, wu, ppm, 0.9 * kFont, kInk);
   const double bx = left + wu * ppm + kBarGap;
   c.text(bx, top - 8, "in °C", kFont, kInk);
   pictures::draw_colour_bar(c, bar, bx, top, top + wv * ppm, kFont, kInk);

@@ -159,6 +159,7 @@ GasScores cached_scores(const Scene& scene, const PatchSet& patches, const Trace
   settings.cells = input.cells;
   settings.k = k;
   settings.seed = trace.seed;
+  settings.panels = options.panels;
   const TallyCacheKey key = gas_cache_key(options.mesh_bytes, options.mesh, scene, settings);
   std::vector<std::uint64_t> rays = settings.rays;
   const std::size_t cells = std::size_t(input.cells[0]) * input.cells[1] * input.cells[2];

@@ -16,6 +16,7 @@ std::string where(const SceneFile& file, int line) {
 
 Scene load_scene(const SceneFile& file) {
   Scene scene = load_obj(file.mesh_path, file.mesh);
+  if (!file.panels.empty()) place_panels(&scene, file.panels);
   for (const auto& [name, spec] : file.surfaces) {
     const int index = scene.find_surface(name);
     if (index < 0) {

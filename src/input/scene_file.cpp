@@ -16,6 +16,7 @@
 #include "gas/gas_input_toml.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/units.hpp"
+#include "input/scene_panels_toml.hpp"
 #include "transient/firing_input_toml.hpp"
 
 namespace hearthray {
@@ -23,8 +24,9 @@ namespace {
 
 namespace fs = std::filesystem;
 
-const std::vector<std::string> kTopKeys = {"mesh",    "rays", "surroundings", "defaults", "surface",
-                                           "comfort", "gas",  "firing",       "room_air"};
+const std::vector<std::string> kTopKeys = {"mesh",    "rays",   "surroundings", "defaults",
+                                           "surface", "panel",  "panel_group",  "comfort",
+                                           "gas",     "firing", "room_air"};
 const std::vector<std::string> kMeshKeys = {"file", "unit", "surfaces_from"};
 const std::vector<std::string> kRaysKeys = {"per_patch",     "total",     "min_per_patch",
                                             "seed",          "sampler",   "target_error",
@@ -486,6 +488,7 @@ class Reader {
       std::stable_sort(file.surfaces.begin(), file.surfaces.end(),
                        [](const auto& a, const auto& b) { return a.second.line < b.second.line; });
     }
+    read_panels(root, &file);
     if (const toml::node* gas = root.get("gas")) file.gas = read_gas_table(*gas, path_);
     if (const toml::node* air = root.get("room_air"))
       file.room_air = read_room_air_table(*air, path_);
@@ -503,6 +506,44 @@ class Reader {
   }
 
  private:
+  // [panel.NAME]: placing keys (scene_panels.cpp) and surface keys, as [surface.NAME] has;
+  // then [panel_group.NAME] offsets. Panels keep the file's order.
+  void read_panels(const toml::table& root, SceneFile* file) const {
+    struct Read {
+      PanelPlacement place;
+      SurfaceSpec spec;
+      std::string group;
+    };
+    std::vector<Read> read;
+    if (const toml::node* panel_node = root.get("panel")) {
+      std::vector<std::string> allowed = kSurfaceKeys;
+      allowed.insert(allowed.end(), input::kPanelPlaceKeys.begin(), input::kPanelPlaceKeys.end());
+      for (auto&& [key, node] : need_table(*panel_node, "[panel]")) {
+        const std::string name(key.str()), table_name = "[panel." + name + "]";
+        const toml::table& t = need_table(node, table_name);
+        check_keys(t, allowed, table_name);
+        if (file->find(name))
+          fail(t.source(), table_name + " and [surface." + name +
+                               "] name the same surface; give the panel's keys in one of them");
+        toml::table surface_keys = t;
+        for (const std::string& k : input::kPanelPlaceKeys) surface_keys.erase(k);
+        Read r{{}, surface(surface_keys, table_name, true), ""};
+        r.spec.line = static_cast<int>(t.source().begin.line);
+        r.place = input::read_panel_place(t, name, path_, &r.group);
+        read.push_back(std::move(r));
+      }
+    }
+    std::stable_sort(read.begin(), read.end(),
+                     [](const Read& a, const Read& b) { return a.spec.line < b.spec.line; });
+    std::vector<std::string> groups;
+    for (Read& r : read) {
+      file->surfaces.emplace_back(r.place.name, r.spec);
+      file->panels.push_back(r.place);
+      groups.push_back(r.group);
+    }
+    input::move_panel_groups(root.get("panel_group"), groups, &file->panels, path_);
+  }
+
   // With a radiating gas the films exchange with the gas (fluid = "gas"); without one there is
   // no gas to name.
   void check_convection_fluids(const SceneFile& file) const {

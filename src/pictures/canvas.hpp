@@ -101,6 +101,12 @@ void draw_colour_bar(Canvas& canvas, const ColourBar& bar, double x, double top,
 double draw_swatch(Canvas& canvas, double x, double y, double font_size, const Colour& fill,
                    const Colour& ink, const std::string& name);
 
+// A scale bar for a plan or section drawn at `ppm` pixels per metre: a round length (about a
+// quarter of `span_m`, the drawing's width in metres), black and white halves, its left end
+// at (x, y), "0" and the length in metres below it.
+void draw_scale_bar(Canvas& canvas, double x, double y, double span_m, double ppm, double font_size,
+                    const Colour& ink);
+
 // "net radiative flux" -> "Net radiative flux" (the first letter capitalised, ASCII only).
 std::string sentence_case(std::string text);
 

@@ -143,6 +143,21 @@ double draw_swatch(Canvas& canvas, double x, double y, double font_size, const C
   return 1.45 * font_size;
 }
 
+void draw_scale_bar(Canvas& canvas, double x, double y, double span_m, double ppm, double font_size,
+                    const Colour& ink) {
+  const double want = 0.25 * span_m;
+  double length = 0.1;
+  for (double candidate : {0.2, 0.25, 0.5, 1.0, 2.0, 2.5, 5.0, 10.0, 20.0, 50.0, 100.0})
+    if (candidate <= want) length = candidate;
+  const double w = length * ppm, h = 6;
+  canvas.fill_rect(x, y, w / 2, h, ink);
+  canvas.fill_rect(x + w / 2, y, w / 2, h, Colour{1, 1, 1});
+  canvas.stroke_rect(x, y, w, h, 1, ink);
+  const double base = y + h + 1.1 * font_size;
+  canvas.text(x, base, "0", font_size, ink, Align::centre);
+  canvas.text(x + w, base, rounded("%g m", length), font_size, ink, Align::centre);
+}
+
 std::string sentence_case(std::string text) {
   if (!text.empty() && text[0] >= 'a' && text[0] <= 'z') text[0] = char(text[0] - 'a' + 'A');
   return text;

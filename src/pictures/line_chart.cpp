@@ -56,30 +56,37 @@ void draw_series(Canvas& c, const std::vector<std::array<double, 2>>& points, bo
   }
 }
 
-// Ticks of a logarithmic axis over [lo, hi] (log10 values): the powers of ten, written out
-// from 0.001 to 1000 and as 10ⁿ beyond, and when fewer than three decades are shown, 2 and 5
-// times them (labelled within 0.002 .. 5000, grid lines only beyond).
+}  // namespace
+
+// One notation per axis: plain numbers when every tick lies within 0.001 .. 5000, else powers
+// of ten for all of them, the 2 and 5 between written 2·10ⁿ and 5·10ⁿ.
 std::vector<Tick> log_ticks(double lo, double hi) {
   static const char* kSuperscript[10] = {"⁰", "¹", "²", "³", "⁴", "⁵", "⁶", "⁷", "⁸", "⁹"};
-  auto label = [](int e) {
-    if (e >= -3 && e <= 3) return format_number(std::pow(10.0, e), std::max(0, -e));
+  const int first = int(std::floor(lo)), last = int(std::ceil(hi));
+  const bool minor = hi - lo < 3;
+  const double top = minor ? std::log10(5000.0) : 3.0;  // the largest tick written plainly
+  const bool plain = lo >= -3 - 1e-9 && hi <= top + 1e-9;
+  auto power = [](int e) {
     std::string text = e < 0 ? "10⁻" : "10";
     for (char d : std::to_string(std::abs(e))) text += kSuperscript[d - '0'];
     return text;
   };
+  auto label = [&](int m, int e) {
+    if (plain) return format_number(m * std::pow(10.0, e), std::max(0, -e));
+    return m == 1 ? power(e) : std::to_string(m) + "·" + power(e);
+  };
   std::vector<Tick> ticks;
-  const bool minor = hi - lo < 3;
-  for (int e = int(std::floor(lo)); e <= int(std::ceil(hi)); ++e) {
-    if (e >= lo && e <= hi) ticks.push_back({double(e), label(e)});
-    for (double m : {2.0, 5.0}) {
-      const double v = e + std::log10(m);
-      if (!minor || v < lo || v > hi) continue;
-      const bool written = e >= -3 && e < 3;
-      ticks.push_back({v, written ? format_number(m * std::pow(10.0, e), std::max(0, -e)) : ""});
+  for (int e = first; e <= last; ++e) {
+    if (e >= lo && e <= hi) ticks.push_back({double(e), label(1, e)});
+    for (int m : {2, 5}) {
+      const double v = e + std::log10(double(m));
+      if (minor && v >= lo && v <= hi) ticks.push_back({v, label(m, e)});
     }
   }
   return ticks;
 }
+
+namespace {
 
 // A value on an axis: its log10 on a logarithmic one (NaN for values <= 0).
 double axis_value(double v, bool log) {

@@ -426,8 +426,11 @@ Picture render(const Scene& scene, const PatchSet& patches, const Tracer& tracer
   const PatchColours pc = patch_colours(field, options, range);
   render_detail::Panel panel;
   panel.field = &field;
-  panel.bar = {range.lo, range.hi, options.diverging ? diverging_colour : sequential_colour,
-               options.diverging};
+  panel.bar = {range.lo,
+               range.hi,
+               options.diverging ? diverging_colour : sequential_colour,
+               options.diverging,
+               {}};
   panel.categorical = !options.categories.empty();
   panel.categories = pc.categories;
 

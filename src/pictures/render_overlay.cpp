@@ -69,8 +69,12 @@ Layout plan_layout(const Canvas& canvas, const RenderOptions& o, const Panel& pa
     content = std::max(content, pictures::colour_bar_width(canvas, panel.bar, l.font));
   }
   // The heading wraps rather than widen the panel, down to lines of about 14 characters.
-  const double wrap =
+  // A name a little wider than that stays on one line rather than leave one word on the next
+  // ("Net radiative flux", not "Net radiative" over "flux").
+  double wrap =
       std::min(max_content, std::max(content, canvas.text_width("Temperature in", l.font)));
+  const double whole = canvas.text_width(pictures::sentence_case(panel.field->name), l.font);
+  if (whole <= std::min(max_content, 1.5 * wrap)) wrap = std::max(wrap, whole);
   for (const std::string& s : heading(canvas, *panel.field, wrap, l.font))
     content = std::max(content, canvas.text_width(s, l.font));
   l.panel_width = int(std::ceil(std::min(content, max_content) + 2 * l.pad));

@@ -127,6 +127,7 @@ FactorRun cached_run(const SceneFile& file, const Scene& scene, const PipelineOp
   key_settings.seed = run.seed;
   key_settings.sampler = run.sampler;
   key_settings.smoothed = options.smooth;
+  key_settings.panels = file.panels;
   const TallyCacheKey key =
       tally_cache_key(read_mesh_bytes(file.mesh_path), file.mesh, scene, key_settings);
   reporter.start(PipelineStage::read_cache);
