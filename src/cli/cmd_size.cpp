@@ -6,7 +6,6 @@
 #include <filesystem>
 #include <iostream>
 #include <nlohmann/json.hpp>
-#include <numeric>
 
 #include "commands.hpp"
 #include "core/text.hpp"
@@ -70,13 +69,7 @@ void print_plan(std::ostream& out, const std::string& name, const SizedLayout& l
 
 void print_ranking(std::ostream& out, const std::vector<SizedLayout>& layouts,
                    const std::vector<std::string>& names) {
-  std::vector<std::size_t> order(layouts.size());
-  std::iota(order.begin(), order.end(), std::size_t(0));
-  std::stable_sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) {
-    const HeatingPlan &pa = layouts[a].plan, &pb = layouts[b].plan;
-    if (pa.reached != pb.reached) return pa.reached;
-    return pa.power_W < pb.power_W;
-  });
+  const std::vector<std::size_t> order = rank_by_power(layouts);
   out << "\nranked by the power they need:\n";
   for (std::size_t r = 0; r < order.size(); ++r) {
     const HeatingPlan& p = layouts[order[r]].plan;

@@ -32,6 +32,12 @@ std::string join(const std::vector<std::string>& items, const std::string& separ
   return out;
 }
 
+std::string join_and(const std::vector<std::string>& items) {
+  if (items.size() < 2) return join(items);
+  const std::vector<std::string> head(items.begin(), items.end() - 1);
+  return join(head) + " and " + items.back();
+}
+
 std::string join_at_most(const std::vector<std::string>& items, std::size_t most) {
   const std::vector<std::string> shown(
       items.begin(), items.begin() + std::ptrdiff_t(std::min(most, items.size())));

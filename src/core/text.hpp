@@ -29,4 +29,7 @@ std::string join(const std::vector<std::string>& items, const std::string& separ
 // "a, b, c, d, e and 3 more": the first `most` items, then how many were left out.
 std::string join_at_most(const std::vector<std::string>& items, std::size_t most);
 
+// A list in a sentence: "a", "a and b", "a, b and c".
+std::string join_and(const std::vector<std::string>& items);
+
 }  // namespace hearthray
