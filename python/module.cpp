@@ -6,14 +6,17 @@
 #include <pybind11/stl.h>
 
 #include <cstdint>
+#include <cstdio>
 #include <optional>
 #include <string>
+#include <variant>
 #include <vector>
 
 #include "hearthray/error.hpp"
 #include "hearthray/fields.hpp"
 #include "hearthray/patch_geometry.hpp"
 #include "hearthray/pipeline.hpp"
+#include "hearthray/scene_file.hpp"
 #include "hearthray/thermal_report.hpp"
 #include "hearthray/version.hpp"
 #include "hearthray/vtu.hpp"
@@ -30,16 +33,53 @@ py::array_t<T> array(const std::vector<T>& values, std::size_t columns = 1) {
                         values.data());
 }
 
-PipelineOptions options_from(std::optional<std::uint64_t> rays, std::optional<std::uint64_t> seed,
-                             int threads, bool raw, bool cache, const std::string& cache_dir) {
+// The ray budget's options: `rays` the rays per patch (the first round's with a target);
+// `target_error` a float (absolute on the view factors) or a string as on the command line
+// ("0.001", "0.5 %": relative on the heat flows); `max_rays` and `time_limit` ("10 min") cap the
+// rounds.
+struct RayChoice {
+  std::optional<std::uint64_t> rays, seed;
+  std::optional<std::variant<double, std::string>> target_error;
+  std::optional<std::uint64_t> max_rays;
+  std::optional<std::string> time_limit;
+};
+
+PipelineOptions options_from(const RayChoice& rays, int threads, bool raw, bool cache,
+                             const std::string& cache_dir) {
   PipelineOptions options;
-  options.rays_per_patch = rays;
-  options.seed = seed;
+  options.rays_per_patch = rays.rays;
+  options.seed = rays.seed;
+  if (rays.target_error) {
+    // A float goes through the same parser as the text, so both are checked alike.
+    const auto* text = std::get_if<std::string>(&*rays.target_error);
+    char number[32];
+    if (!text) std::snprintf(number, sizeof number, "%.17g", std::get<double>(*rays.target_error));
+    const TargetError target = parse_target_error(text ? *text : number, "target_error");
+    options.target_error = target.value;
+    options.target_on_heat_flows = target.heat_flows;
+  }
+  options.max_rays_per_patch = rays.max_rays;
+  if (rays.time_limit) options.time_limit_s = parse_time_limit(*rays.time_limit, "time_limit");
   options.threads = threads;
   options.smooth = !raw;
   options.use_cache = cache;
   options.cache_dir = cache_dir;
   return options;
+}
+
+// How the rounds of a ray target ended; None without a target.
+py::object target_dict(const RayTarget& target) {
+  if (!target.used) return py::none();
+  py::dict out;
+  out["reached"] = target.reached();
+  out["stop"] = to_string(target.stop);
+  out["on_heat_flows"] = target.heat_flows;
+  out["error"] = target.error;
+  out["achieved"] = target.achieved;
+  out["round_rays"] = target.round_rays;
+  out["round_errors"] = target.round_errors;
+  out["rays_all_rounds"] = target.rays_all_rounds;
+  return std::move(out);
 }
 
 // F (N x N+1, the surroundings last) and its standard errors as scipy CSR matrices.
@@ -126,13 +166,13 @@ py::dict factor_dict(const ViewFactors& vf, const FactorRun& run) {
   std::vector<std::string> warnings;
   for (const Warning& w : run.warnings) warnings.push_back(w.text);
   out["warnings"] = warnings;
+  out["target"] = target_dict(run.target);
   return out;
 }
 
-py::dict view_factors(const std::string& scene, std::optional<std::uint64_t> rays,
-                      std::optional<std::uint64_t> seed, int threads, bool raw, bool cache,
-                      const std::string& cache_dir) {
-  const PipelineOptions options = options_from(rays, seed, threads, raw, cache, cache_dir);
+py::dict view_factors(const std::string& scene, const RayChoice& rays, int threads, bool raw,
+                      bool cache, const std::string& cache_dir) {
+  const PipelineOptions options = options_from(rays, threads, raw, cache, cache_dir);
   FactorRun run;
   {
     py::gil_scoped_release unlocked;
@@ -163,10 +203,9 @@ py::dict surface_table(const std::vector<SurfaceHeat>& surfaces) {
   return table;
 }
 
-py::dict solve(const std::string& scene, std::optional<std::uint64_t> rays,
-               std::optional<std::uint64_t> seed, int threads, bool cache,
+py::dict solve(const std::string& scene, const RayChoice& rays, int threads, bool cache,
                const std::string& cache_dir) {
-  const PipelineOptions options = options_from(rays, seed, threads, false, cache, cache_dir);
+  const PipelineOptions options = options_from(rays, threads, false, cache, cache_dir);
   SolvedScene solved;
   {
     py::gil_scoped_release unlocked;
@@ -205,17 +244,49 @@ PYBIND11_MODULE(hearthray, m) {
       "the maker's instructions and licensed practice.";
   m.attr("__version__") = kVersion;
   py::register_exception<InputError>(m, "InputError", PyExc_ValueError);
-  m.def("view_factors", &view_factors, py::arg("scene"), py::arg("rays") = py::none(),
-        py::arg("seed") = py::none(), py::arg("threads") = 0, py::arg("raw") = false,
-        py::arg("cache") = true, py::arg("cache_dir") = "",
-        "View factors of a scene file (.toml) or mesh (.obj): a dict with F (scipy CSR, "
-        "N x N+1, row i = patch i, the last column the surroundings), standard_error, names, "
-        "areas, patches (name, surface, side, area_m2, centroid_m, normal, rays, "
-        "triangle_offset into mesh['triangles']) and mesh (vertices_m, triangles).");
-  m.def("solve", &solve, py::arg("scene"), py::arg("rays") = py::none(),
-        py::arg("seed") = py::none(), py::arg("threads") = 0, py::arg("cache") = true,
-        py::arg("cache_dir") = "",
-        "Radiant exchange of a scene file: a dict with status, converged, surfaces (one numpy "
-        "array per column), patches (per-patch fields), balance, notes and factors (as "
-        "view_factors returns them).");
+  // Keyword arguments of the ray budget, shared by both functions.
+  auto ray_choice = [](std::optional<std::uint64_t> rays, std::optional<std::uint64_t> seed,
+                       std::optional<std::variant<double, std::string>> target_error,
+                       std::optional<std::uint64_t> max_rays,
+                       std::optional<std::string> time_limit) {
+    return RayChoice{rays, seed, std::move(target_error), max_rays, std::move(time_limit)};
+  };
+  m.def(
+      "view_factors",
+      [ray_choice](const std::string& scene, std::optional<std::uint64_t> rays,
+                   std::optional<std::uint64_t> seed,
+                   std::optional<std::variant<double, std::string>> target_error,
+                   std::optional<std::uint64_t> max_rays, std::optional<std::string> time_limit,
+                   int threads, bool raw, bool cache, const std::string& cache_dir) {
+        return view_factors(scene, ray_choice(rays, seed, target_error, max_rays, time_limit),
+                            threads, raw, cache, cache_dir);
+      },
+      py::arg("scene"), py::arg("rays") = py::none(), py::arg("seed") = py::none(),
+      py::arg("target_error") = py::none(), py::arg("max_rays") = py::none(),
+      py::arg("time_limit") = py::none(), py::arg("threads") = 0, py::arg("raw") = false,
+      py::arg("cache") = true, py::arg("cache_dir") = "",
+      "View factors of a scene file (.toml) or mesh (.obj): a dict with F (scipy CSR, "
+      "N x N+1, row i = patch i, the last column the surroundings), standard_error, names, "
+      "areas, patches (name, surface, side, area_m2, centroid_m, normal, rays, "
+      "triangle_offset into mesh['triangles']), mesh (vertices_m, triangles) and target (how "
+      "the rounds of target_error ended; None without one). target_error: a float, the "
+      "largest standard error wanted on any factor; max_rays, time_limit ('10 min') cap it.");
+  m.def(
+      "solve",
+      [ray_choice](const std::string& scene, std::optional<std::uint64_t> rays,
+                   std::optional<std::uint64_t> seed,
+                   std::optional<std::variant<double, std::string>> target_error,
+                   std::optional<std::uint64_t> max_rays, std::optional<std::string> time_limit,
+                   int threads, bool cache, const std::string& cache_dir) {
+        return solve(scene, ray_choice(rays, seed, target_error, max_rays, time_limit), threads,
+                     cache, cache_dir);
+      },
+      py::arg("scene"), py::arg("rays") = py::none(), py::arg("seed") = py::none(),
+      py::arg("target_error") = py::none(), py::arg("max_rays") = py::none(),
+      py::arg("time_limit") = py::none(), py::arg("threads") = 0, py::arg("cache") = true,
+      py::arg("cache_dir") = "",
+      "Radiant exchange of a scene file: a dict with status, converged, surfaces (one numpy "
+      "array per column), patches (per-patch fields), balance, notes and factors (as "
+      "view_factors returns them, with target). target_error: a float (absolute on the view "
+      "factors) or a string, '0.5 %' for an error relative on the surfaces' heat flows.");
 }

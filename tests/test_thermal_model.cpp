@@ -5,6 +5,7 @@
 #include <cmath>
 #include <stdexcept>
 #include <string>
+#include <tuple>
 #include <vector>
 
 #include "hearthray/error.hpp"
@@ -107,6 +108,47 @@ TEST_CASE("one node per surface and one face per patch with two faces for a two-
       build_thermal_model(thermal_input(without.file, without.scene), without.scene,
                           without.patches, vf),
       Contains("the scene is open") && Contains("'east' 50.0 %") && Contains("[surroundings]"));
+}
+
+TEST_CASE("leaks are folded onto the diagonal, present or not, rows kept sorted",
+          "[thermal_model]") {
+  const ScratchDir dir("thermal-fold");
+  const LoadedScene l = load_scene_text(dir, unit_cube_obj(), kHotFloorColdRoof);
+  // The cube's exact factors (Howell C-11 and C-14) with small exchanges moved so that rows 2
+  // and 3 see themselves (a diagonal entry) and rows 0, 1, 3 and 4 lose rays: the fold must
+  // add each row's loss to its diagonal, F_ii + F_i,lost, inserting the entry where missing.
+  ViewFactors vf = cube_factors(l.patches);
+  leak(&vf, 3e-7);
+  for (const auto& [i, j, share] : {std::tuple<int, int, double>{2, 3, 1e-3}, {3, 2, 1e-3}}) {
+    vf.F.coeffRef(i, j) -= share;
+    vf.F.coeffRef(i, i) += share;
+  }
+  vf.F.coeffRef(3, 4) -= 2e-7;
+  vf.F.coeffRef(4, 3) -= 2e-7;
+  vf.to_back_faces[3] += 2e-7;
+  vf.to_surroundings[4] += 2e-7;
+  vf.F.makeCompressed();
+  const Eigen::MatrixXd before = Eigen::MatrixXd(vf.F);
+  std::vector<double> lost(6);
+  for (std::size_t i = 0; i < 6; ++i) lost[i] = vf.to_surroundings[i] + vf.to_back_faces[i];
+  const ThermalModel m =
+      build_thermal_model(thermal_input(l.file, l.scene), l.scene, l.patches, vf);
+  REQUIRE(m.leaks_folded);
+  const SparseMatrix& F = m.factors.F;
+  CHECK(F.isCompressed());
+  CHECK(F.nonZeros() == vf.F.nonZeros() + 3);  // rows 0, 1 and 4 had no diagonal entry
+  for (int i = 0; i < 6; ++i) {
+    for (int j = 0; j < 6; ++j) {
+      CHECK(F.coeff(i, j) == before(i, j) + (i == j ? lost[std::size_t(i)] : 0.0));
+    }
+    int previous = -1;  // stored columns ascend
+    for (SparseMatrix::InnerIterator it(F, i); it; ++it) {
+      CHECK(it.col() > previous);
+      previous = int(it.col());
+    }
+    CHECK(m.factors.to_surroundings[std::size_t(i)] == 0);
+    CHECK(m.factors.to_back_faces[std::size_t(i)] == 0);
+  }
 }
 
 TEST_CASE("per-surface summary and energy balance", "[thermal_model]") {

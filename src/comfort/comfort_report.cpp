@@ -23,10 +23,6 @@ constexpr double kTouchLimit_C = 43;
 constexpr double kHot_C = 40;
 constexpr double kNearGlass_m = 0.6;
 
-std::string pad(const std::string& s, std::size_t w) {
-  return s.size() >= w ? " " + s : std::string(w - s.size(), ' ') + s;  // columns stay apart
-}
-
 std::string name_pad(const std::string& s, std::size_t w) {
   return s.size() >= w ? s + " " : s + std::string(w - s.size(), ' ');
 }
@@ -148,28 +144,41 @@ std::string failing_text(const PointComfort& p) {
 
 void print_comfort_table(std::ostream& out, const std::vector<PointComfort>& points,
                          const ComfortSummary& s) {
+  using Align = TextTable::Align;
+  std::vector<TextTable::Column> columns = {{"point"},
+                                            {"kind"},
+                                            {"t_mr C", Align::right},
+                                            {"+-", Align::right},
+                                            {"t_o C", Align::right},
+                                            {"vert K", Align::right},
+                                            {"case"},
+                                            {"PD %", Align::right},
+                                            {"horiz K", Align::right},
+                                            {"case"},
+                                            {"PD %", Align::right},
+                                            {"verdict"}};
   const bool pmv = has_pmv(points);
-  std::size_t w = 5;
-  for (const PointComfort& p : points) w = std::max(w, p.point.name.size());
-  out << name_pad("point", w) << "  " << name_pad("kind", 8) << pad("t_mr C", 8) << pad("+-", 6)
-      << pad("t_o C", 8) << pad("vert K", 8) << "  " << name_pad("case", 12) << pad("PD %", 6)
-      << pad("horiz K", 9) << "  " << name_pad("case", 10) << pad("PD %", 6) << "  "
-      << (pmv ? name_pad("verdict", 9) + pad("PMV", 6) + pad("PPD %", 7) : "verdict") << "\n";
+  if (pmv) columns.insert(columns.end(), {{"PMV", Align::right}, {"PPD %", Align::right}, {""}});
+  TextTable table(columns);
   for (const PointComfort& p : points) {
-    out << name_pad(p.point.name, w) << "  " << name_pad(to_string(p.point.body), 8)
-        << pad(celsius(p.mean_radiant.kelvin), 8) << pad(rounded("%.2f", p.mean_radiant.se_K), 6)
-        << pad(celsius(p.operative_K), 8) << pad(rounded("%.1f", p.vertical.delta_K), 8) << "  "
-        << name_pad(to_string(p.vertical.kind), 12)
-        << pad(rounded("%.1f", p.vertical.pd_percent), 6)
-        << pad(rounded("%.1f", p.horizontal.delta_K), 9) << "  "
-        << name_pad(to_string(p.horizontal.kind), 10)
-        << pad(rounded("%.1f", p.horizontal.pd_percent), 6) << "  "
-        << (pmv ? name_pad(verdict(p), 9) : verdict(p));
+    std::vector<std::string> row = {p.point.name,
+                                    to_string(p.point.body),
+                                    celsius(p.mean_radiant.kelvin),
+                                    rounded("%.2f", p.mean_radiant.se_K),
+                                    celsius(p.operative_K),
+                                    rounded("%.1f", p.vertical.delta_K),
+                                    to_string(p.vertical.kind),
+                                    rounded("%.1f", p.vertical.pd_percent),
+                                    rounded("%.1f", p.horizontal.delta_K),
+                                    to_string(p.horizontal.kind),
+                                    rounded("%.1f", p.horizontal.pd_percent),
+                                    verdict(p)};
     if (p.pmv)
-      out << pad(rounded("%+.2f", p.pmv->pmv), 6) << pad(rounded("%.1f", p.pmv->ppd), 7)
-          << (p.pmv->in_range() ? "" : "  (outside ISO 7730 ranges)");
-    out << "\n";
+      row.insert(row.end(), {rounded("%+.2f", p.pmv->pmv), rounded("%.1f", p.pmv->ppd),
+                             p.pmv->in_range() ? "" : "(outside ISO 7730 ranges)"});
+    table.add(std::move(row));
   }
+  out << table.text();
   if (points.empty()) return;
   auto line = [&](const char* what, const Range& r, bool temperature) {
     const double shift = temperature ? kZeroCelsius : 0;

@@ -46,4 +46,38 @@ std::string join_at_most(const std::vector<std::string>& items, std::size_t most
   return out;
 }
 
+std::size_t display_width(const std::string& utf8) {
+  std::size_t w = 0;
+  for (unsigned char c : utf8) w += (c & 0xC0) != 0x80 ? 1 : 0;  // not a continuation byte
+  return w;
+}
+
+std::string TextTable::text() const {
+  const std::size_t n = columns_.size();
+  std::vector<std::size_t> width(n, 0);
+  auto cell = [&](const std::vector<std::string>& row, std::size_t k) -> const std::string& {
+    static const std::string blank;
+    return k < row.size() ? row[k] : blank;
+  };
+  for (std::size_t k = 0; k < n; ++k) {
+    width[k] = display_width(columns_[k].header);
+    for (const auto& row : rows_) width[k] = std::max(width[k], display_width(cell(row, k)));
+  }
+  std::string out;
+  auto line = [&](auto&& text_of) {
+    std::string row;
+    for (std::size_t k = 0; k < n; ++k) {
+      const std::string& t = text_of(k);
+      const std::string fill(width[k] - display_width(t), ' ');
+      const bool right = columns_[k].align == Align::right;
+      row += (k ? "  " : "") + (right ? fill + t : t + (k + 1 < n ? fill : ""));
+    }
+    out += row.substr(0, row.find_last_not_of(' ') + 1) + "\n";
+  };
+  line([&](std::size_t k) -> const std::string& { return columns_[k].header; });
+  for (const auto& row : rows_)
+    line([&](std::size_t k) -> const std::string& { return cell(row, k); });
+  return out;
+}
+
 }  // namespace hearthray

@@ -8,6 +8,7 @@
 
 #include <cstddef>
 #include <string>
+#include <utility>
 #include <vector>
 
 namespace hearthray {
@@ -31,5 +32,28 @@ std::string join_at_most(const std::vector<std::string>& items, std::size_t most
 
 // A list in a sentence: "a", "a and b", "a, b and c".
 std::string join_and(const std::vector<std::string>& items);
+
+// Columns of a terminal table: UTF-8 text counted in characters (one column each).
+std::size_t display_width(const std::string& utf8);
+
+// A table for the terminal: each column as wide as its widest cell (header included), two
+// blanks between columns, text left-aligned and numbers right-aligned as each column says;
+// the last column is not padded. Long names never shift the columns after them.
+class TextTable {
+ public:
+  enum class Align { left, right };
+  struct Column {
+    std::string header;
+    Align align = Align::left;
+  };
+  explicit TextTable(std::vector<Column> columns) : columns_(std::move(columns)) {}
+  // A row: at most one cell per column (missing cells are blank).
+  void add(std::vector<std::string> cells) { rows_.push_back(std::move(cells)); }
+  std::string text() const;
+
+ private:
+  std::vector<Column> columns_;
+  std::vector<std::vector<std::string>> rows_;
+};
 
 }  // namespace hearthray

@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <cstring>
 #include <stdexcept>
 
 #include "core/text.hpp"
@@ -23,15 +24,56 @@ double lost(const ViewFactors& vf, std::size_t i) {
 // Leaks returned to the face that emitted them: S_ii += A_i F_i,lost. Symmetric, row sums
 // unchanged (see the header).
 void fold_leaks(ViewFactors* vf) {
-  // One free slot per row, then add on the diagonal in place (inserting it where the row has
-  // none): O(non-zeros), no triplet list, no second copy of the matrix.
+  // In place, O(non-zeros): rows that lose rays and have no diagonal entry get one, the rows
+  // after them shifted right in the same arrays. The smoothing leaves capacity for these
+  // entries, so at 100k patches no second copy of F (gigabytes) is made; otherwise the arrays
+  // grow once.
+  using Index = SparseMatrix::StorageIndex;
   const std::size_t n = vf->size();
-  vf->F.reserve(Eigen::VectorXi::Constant(static_cast<Eigen::Index>(n), 1));
+  SparseMatrix& F = vf->F;
+  F.makeCompressed();
+  std::vector<char> insert(n, 0);
+  std::size_t shift = 0;
+  for (std::size_t i = 0; i < n; ++i) {
+    const auto row = Eigen::Index(i);
+    const Index* first = F.innerIndexPtr() + F.outerIndexPtr()[row];
+    const Index* last = F.innerIndexPtr() + F.outerIndexPtr()[row + 1];
+    const bool diagonal = std::binary_search(first, last, Index(i));
+    insert[i] = lost(*vf, i) > 0 && !diagonal ? 1 : 0;
+    shift += std::size_t(insert[i]);
+  }
+  if (shift > 0) {
+    F.data().resize(F.data().size() + Eigen::Index(shift));  // grows only past the capacity
+    Index* outer = F.outerIndexPtr();
+    Index* column = F.innerIndexPtr();
+    double* value = F.valuePtr();
+    // Last row first: a row only moves right, into places already read.
+    auto move = [&](Index from, Index to, std::size_t by) {
+      std::memmove(column + from + by, column + from, std::size_t(to - from) * sizeof(Index));
+      std::memmove(value + from + by, value + from, std::size_t(to - from) * sizeof(double));
+    };
+    Index end = outer[n];
+    for (std::size_t i = n; i-- > 0;) {
+      const Index begin = outer[i];
+      outer[i + 1] = end + Index(shift);
+      if (insert[i]) {
+        const Index split =
+            Index(std::lower_bound(column + begin, column + end, Index(i)) - column);
+        move(split, end, shift);
+        --shift;
+        move(begin, split, shift);
+        column[split + Index(shift)] = Index(i);
+        value[split + Index(shift)] = 0;
+      } else if (shift > 0) {
+        move(begin, end, shift);
+      }
+      end = begin;
+    }
+  }
   for (std::size_t i = 0; i < n; ++i) {
     const double share = lost(*vf, i);
-    if (share > 0) vf->F.coeffRef(Eigen::Index(i), Eigen::Index(i)) += share;
+    if (share > 0) F.coeffRef(Eigen::Index(i), Eigen::Index(i)) += share;
   }
-  vf->F.makeCompressed();
   vf->to_surroundings.assign(n, 0.0);
   vf->to_back_faces.assign(n, 0.0);
 }

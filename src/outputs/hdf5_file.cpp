@@ -1,6 +1,12 @@
 #include "outputs/hdf5_file.hpp"
 
+#include <tbb/blocked_range.h>
+#include <tbb/parallel_for.h>
+#include <zlib.h>
+
 #include <algorithm>
+#include <cstring>
+#include <stdexcept>
 
 #include "hearthray/error.hpp"
 
@@ -11,6 +17,19 @@ namespace {
 // Rows per chunk of a compressed dataset: 64 Ki rows (512 KiB of doubles) balances the
 // deflate ratio against the memory a reader needs for one chunk.
 constexpr std::uint64_t kChunkRows = 1 << 16;
+// Chunks compressed together (in parallel) before they are written: 16 chunks of doubles are
+// 8 MiB held at a time per dataset.
+constexpr std::uint64_t kBatchChunks = 16;
+// Deflate settings. Level 1 with the run-length strategy (matches only of the previous byte)
+// suits shuffled numbers, whose compressible part is runs of equal high bytes: measured on the
+// 1000-rays furnace matrix (2 busy cores) it compressed F/data, F/indices and
+// F/standard_error to 82 %, 32 % and 71 % at about 140-240 MB/s per core, against 80 %, 27 %
+// and 66 % at 40-70 MB/s for HDF5's own deflate at level 4. Every deflate stream inflates the
+// same way, so readers see the standard deflate filter whatever the settings.
+constexpr int kDeflateLevel = 1;
+constexpr int kDeflateStrategy = Z_RLE;
+constexpr int kZlibWindowBits = 15;  // the zlib wrapper HDF5's deflate filter reads
+constexpr int kZlibMemoryLevel = 8;  // zlib's default
 
 // Object creation properties without access and modification times: HDF5 records them by
 // default, and they would make two runs of the same matrix differ.
@@ -121,32 +140,38 @@ void File::strings(const std::string& path, const std::vector<std::string>& valu
   for (const std::string& v : values) pointers.push_back(v.c_str());
   Dataset dataset(*this, path, type.get(), values.size(), 1, false);
   dataset.append(pointers.data(), values.size(), type.get());
+  dataset.finish();
 }
 
 void File::doubles(const std::string& path, const std::vector<double>& values, int columns) const {
   Dataset d(*this, path, H5T_IEEE_F64LE, values.size() / std::size_t(columns), columns);
   d.append(values.data(), values.size() / std::size_t(columns), H5T_NATIVE_DOUBLE);
+  d.finish();
 }
 
 void File::int64s(const std::string& path, const std::vector<std::int64_t>& values,
                   int columns) const {
   Dataset d(*this, path, H5T_STD_I64LE, values.size() / std::size_t(columns), columns);
   d.append(values.data(), values.size() / std::size_t(columns), H5T_NATIVE_INT64);
+  d.finish();
 }
 
 void File::int32s(const std::string& path, const std::vector<std::int32_t>& values) const {
   Dataset d(*this, path, H5T_STD_I32LE, values.size());
   d.append(values.data(), values.size(), H5T_NATIVE_INT32);
+  d.finish();
 }
 
 void File::uint64s(const std::string& path, const std::vector<std::uint64_t>& values) const {
   Dataset d(*this, path, H5T_STD_U64LE, values.size());
   d.append(values.data(), values.size(), H5T_NATIVE_UINT64);
+  d.finish();
 }
 
 void File::int8s(const std::string& path, const std::vector<std::int8_t>& values) const {
   Dataset d(*this, path, H5T_STD_I8LE, values.size());
   d.append(values.data(), values.size(), H5T_NATIVE_INT8);
+  d.finish();
 }
 
 Dataset::Dataset(const File& file, const std::string& path, hid_t type, std::uint64_t rows,
@@ -157,12 +182,17 @@ Dataset::Dataset(const File& file, const std::string& path, hid_t type, std::uin
       file.check_id(H5Screate_simple(columns == 1 ? 1 : 2, dims, nullptr), "space of " + path),
       H5Sclose);
   const Handle properties = untimed(file, H5P_DATASET_CREATE);
+  type_ = type;
   if (compress && rows > 0) {
     // Chunked, byte-shuffled (the high bytes of similar numbers sit together), deflated.
-    const hsize_t chunk[2] = {std::min<hsize_t>(rows, kChunkRows), hsize_t(columns)};
+    chunk_rows_ = std::min<hsize_t>(rows, kChunkRows);
+    value_bytes_ = H5Tget_size(type);
+    if (value_bytes_ == 0 || H5Tis_variable_str(type) > 0)
+      throw std::logic_error("HDF5 dataset " + path + ": only fixed-size values are compressed");
+    const hsize_t chunk[2] = {chunk_rows_, hsize_t(columns)};
     file.check(H5Pset_chunk(properties.get(), columns == 1 ? 1 : 2, chunk), "chunk " + path);
     file.check(H5Pset_shuffle(properties.get()), "shuffle " + path);
-    file.check(H5Pset_deflate(properties.get(), 4), "deflate " + path);
+    file.check(H5Pset_deflate(properties.get(), kDeflateLevel), "deflate " + path);
   }
   dataset_ = Handle(file.check_id(H5Dcreate2(file.get(), path.c_str(), type, space.get(),
                                              H5P_DEFAULT, properties.get(), H5P_DEFAULT),
@@ -174,6 +204,23 @@ void Dataset::append(const void* values, std::uint64_t count, hid_t memory_type)
   if (count == 0) return;
   if (written_ + count > rows_)
     throw std::logic_error("HDF5 dataset " + path_ + ": more rows appended than declared");
+  if (chunk_rows_ > 0) {
+    // Converted in place at the end of pending_, in a slot wide enough for either type.
+    const std::size_t values_in = std::size_t(count) * std::size_t(columns_);
+    const std::size_t memory_bytes = H5Tget_size(memory_type);
+    const std::size_t start = pending_.size();
+    pending_.resize(start + values_in * std::max(memory_bytes, value_bytes_));
+    std::memcpy(pending_.data() + start, values, values_in * memory_bytes);
+    if (H5Tequal(memory_type, type_) <= 0)
+      file_->check(
+          H5Tconvert(memory_type, type_, values_in, pending_.data() + start, nullptr, H5P_DEFAULT),
+          "convert values of " + path_);
+    pending_.resize(start + values_in * value_bytes_);
+    written_ += count;
+    if (pending_.size() >= kBatchChunks * chunk_rows_ * std::size_t(columns_) * value_bytes_)
+      write_chunks(false);
+    return;
+  }
   const hsize_t start[2] = {written_, 0}, size[2] = {count, hsize_t(columns_)};
   const int rank = columns_ == 1 ? 1 : 2;
   Handle file_space(file_->check_id(H5Dget_space(dataset_.get()), "space of " + path_), H5Sclose);
@@ -185,6 +232,72 @@ void Dataset::append(const void* values, std::uint64_t count, hid_t memory_type)
                         H5P_DEFAULT, values),
                "write " + path_);
   written_ += count;
+}
+
+void Dataset::finish() {
+  if (written_ != rows_)
+    throw std::logic_error("HDF5 dataset " + path_ + ": " + std::to_string(written_) + " of " +
+                           std::to_string(rows_) + " rows appended");
+  if (chunk_rows_ > 0) write_chunks(true);
+}
+
+namespace {
+
+// HDF5's shuffle filter: byte b of value v goes to position b * values + v.
+void shuffle(const unsigned char* in, std::size_t values, std::size_t bytes, unsigned char* out) {
+  for (std::size_t b = 0; b < bytes; ++b)
+    for (std::size_t v = 0; v < values; ++v) out[b * values + v] = in[v * bytes + b];
+}
+
+// One deflate stream of `size` bytes in the zlib format; false when zlib fails.
+bool deflate_chunk(const unsigned char* in, std::size_t size, std::vector<unsigned char>* out) {
+  z_stream stream{};
+  if (deflateInit2(&stream, kDeflateLevel, Z_DEFLATED, kZlibWindowBits, kZlibMemoryLevel,
+                   kDeflateStrategy) != Z_OK)
+    return false;
+  out->resize(deflateBound(&stream, uLong(size)));
+  stream.next_in = const_cast<unsigned char*>(in);
+  stream.avail_in = uInt(size);
+  stream.next_out = out->data();
+  stream.avail_out = uInt(out->size());
+  const int status = deflate(&stream, Z_FINISH);
+  out->resize(out->size() - stream.avail_out);
+  return deflateEnd(&stream) == Z_OK && status == Z_STREAM_END;
+}
+
+}  // namespace
+
+// Compresses the whole chunks held (with `last`, also the partial one, padded) in parallel,
+// then writes them in order.
+void Dataset::write_chunks(bool last) {
+  const std::size_t chunk_values = std::size_t(chunk_rows_) * std::size_t(columns_);
+  const std::size_t chunk_bytes = chunk_values * value_bytes_;
+  std::size_t chunks = pending_.size() / chunk_bytes;
+  if (last && pending_.size() % chunk_bytes != 0) {
+    pending_.resize((chunks + 1) * chunk_bytes, 0);
+    ++chunks;
+  }
+  if (chunks == 0) return;
+  std::vector<std::vector<unsigned char>> packed(chunks);
+  std::vector<char> failed(chunks, 0);
+  tbb::parallel_for(tbb::blocked_range<std::size_t>(0, chunks, 1),
+                    [&](const tbb::blocked_range<std::size_t>& range) {
+                      std::vector<unsigned char> shuffled(chunk_bytes);
+                      for (std::size_t c = range.begin(); c != range.end(); ++c) {
+                        shuffle(pending_.data() + c * chunk_bytes, chunk_values, value_bytes_,
+                                shuffled.data());
+                        failed[c] = deflate_chunk(shuffled.data(), chunk_bytes, &packed[c]) ? 0 : 1;
+                      }
+                    });
+  for (std::size_t c = 0; c < chunks; ++c) {
+    if (failed[c]) file_->check(-1, "deflate a chunk of " + path_);
+    const hsize_t offset[2] = {next_chunk_ * chunk_rows_, 0};
+    file_->check(
+        H5Dwrite_chunk(dataset_.get(), H5P_DEFAULT, 0, offset, packed[c].size(), packed[c].data()),
+        "write a chunk of " + path_);
+    ++next_chunk_;
+  }
+  pending_.erase(pending_.begin(), pending_.begin() + std::ptrdiff_t(chunks * chunk_bytes));
 }
 
 }  // namespace hearthray::hdf5

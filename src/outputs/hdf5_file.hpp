@@ -31,22 +31,38 @@ class Handle {
 
 class File;
 
-// A dataset of `rows` x `columns` (columns 1: a vector) filled in row order by append().
+// A dataset of `rows` x `columns` (columns 1: a vector) filled in row order by append(), then
+// finish(). A compressed dataset is cut into chunks that are shuffled and deflated here, in
+// parallel on the calling task arena, and written as they are (H5Dwrite_chunk) under the
+// standard shuffle and deflate filters, so any HDF5 reader inflates them without a plugin; each
+// chunk's bytes depend on its values alone, so any thread count writes the same file.
 class Dataset {
  public:
   Dataset(const File& file, const std::string& path, hid_t type, std::uint64_t rows,
           int columns = 1, bool compress = true);
-  // Appends `count` rows (count x columns values) of the dataset's type.
+  // Appends `count` rows (count x columns values) of `memory_type`, converted to the
+  // dataset's type as HDF5 converts them.
   void append(const void* values, std::uint64_t count, hid_t memory_type);
+  // Writes the rows still held (the last chunk padded with zeros, HDF5's fill value, as HDF5
+  // pads it); throws std::logic_error when fewer rows were appended than declared.
+  void finish();
   std::uint64_t written() const { return written_; }
   hid_t get() const { return dataset_.get(); }
 
  private:
+  void write_chunks(bool last);
+
   const File* file_;
   std::string path_;
   Handle dataset_;
+  hid_t type_ = -1;  // the file type (owned by the caller)
   std::uint64_t rows_ = 0, written_ = 0;
   int columns_ = 1;
+  // Compressed datasets: rows per chunk, bytes of one value in the file, the next chunk's
+  // index, and the converted values of the rows appended but not yet written.
+  std::uint64_t chunk_rows_ = 0, next_chunk_ = 0;
+  std::size_t value_bytes_ = 0;
+  std::vector<unsigned char> pending_;
 };
 
 class File {

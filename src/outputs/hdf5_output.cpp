@@ -76,6 +76,9 @@ void write_matrix(const hdf5::File& file, const ViewFactors& vf) {
                      (vf.to_surroundings[i] != 0 ? 1 : 0));
   }
   flush();
+  data.finish();
+  indices.finish();
+  errors.finish();
   file.int64s("/F/indptr", indptr);
 }
 

@@ -219,13 +219,6 @@ void write_factors_file(const std::string& path, const ViewFactors& vf,
 
 namespace {
 
-// Display width of UTF-8 text: one column per code point (names are mostly ASCII).
-std::size_t display_width(const std::string& s) {
-  std::size_t w = 0;
-  for (unsigned char c : s) w += (c & 0xC0) != 0x80 ? 1 : 0;
-  return w;
-}
-
 // `s` cut to `width` columns (a trailing '~' marks the cut, never inside a UTF-8 sequence),
 // padded on the right or on the left.
 std::string fit(const std::string& s, std::size_t width, bool right_align = false) {

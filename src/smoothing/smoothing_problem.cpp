@@ -362,6 +362,14 @@ Problem make_problem(const PatchSet& patches, const Tallies& t) {
   const std::size_t blocks = p.block.size() - 1;
   const auto size = static_cast<Eigen::Index>(n);
   p.F.resize(size, size);
+  // Room for a diagonal entry in each row that loses rays and has none: the thermal model
+  // folds the leaks of a closed mesh there in place (thermal_model.cpp), with no second copy.
+  std::uint64_t spare = 0;
+  for (std::size_t i = 0; i < n; ++i) {
+    spare += !has_self(p, i) && p.escaped[at(i)] + p.back[at(i)] > 0 ? 1 : 0;
+  }
+  p.F.reserve(static_cast<Eigen::Index>(std::min<std::uint64_t>(
+      entries + spare, static_cast<std::uint64_t>(std::numeric_limits<Index>::max()))));
   p.F.resizeNonZeros(static_cast<Eigen::Index>(entries));
   fill_pairs(t, senders, &p);
 

@@ -99,6 +99,29 @@ def main():
     except hearthray.InputError as e:
         check("missing.obj" in str(e), f"message {e}")
 
+    # 1b. Rays set by an error wanted: rounds until every factor's standard error is within it.
+    wanted = 0.002
+    vt = hearthray.view_factors(obj, rays=1000, seed=5, target_error=wanted, cache=False)
+    target = vt["target"]
+    check(target is not None and target["reached"] and target["stop"] == "target reached",
+          f"target {target}")
+    check(vt["standard_error"].max() <= wanted and target["achieved"] <= wanted,
+          f"largest standard error {vt['standard_error'].max()} above {wanted}")
+    rounds = target["round_rays"]
+    check(len(rounds) >= 2 and all(b > a and b % a == 0 for a, b in zip(rounds, rounds[1:])),
+          f"rounds {rounds}")
+    capped = hearthray.view_factors(obj, rays=1000, seed=5, target_error="0.0001",
+                                    max_rays=4096, cache=False)
+    check(not capped["target"]["reached"] and capped["target"]["stop"] == "ray cap",
+          f"capped target {capped['target']}")
+    check(vf["target"] is None, "no target, no target report")
+    for bad in (-1.0, "lots"):
+        try:
+            hearthray.view_factors(obj, target_error=bad, cache=False)
+            check(False, f"target_error={bad!r} raised nothing")
+        except hearthray.InputError as e:
+            check("target_error" in str(e), f"message {e}")
+
     # 2. A solve: the hot black floor against the black 300 K rest of the cube.
     solved = hearthray.solve(scene, cache_dir=cache)
     check(solved["converged"], f"status {solved['status']}")
