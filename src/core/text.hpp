@@ -56,4 +56,10 @@ class TextTable {
   std::vector<std::vector<std::string>> rows_;
 };
 
+// Text made safe inside HTML and XML, as element text or a quoted attribute value (the client
+// report, VTU array names): & < > " ' as character references, and the control characters
+// neither allows (all below U+0020 but tab and newline, and DEL) as U+FFFD. Other bytes,
+// UTF-8 included, pass unchanged.
+std::string markup_escape(const std::string& text);
+
 }  // namespace hearthray
