@@ -112,12 +112,17 @@ int run_size_command(const SizeArgs& args) {
     std::cout << "  " << v.what << ": " << v.source << "\n";
   std::cout << "\ncautions:\n";
   for (const std::string& c : size_cautions(layouts, names)) std::cout << "  - " << c << "\n";
-  if (args.output_dir.empty()) return 0;
+  // A ray target missed in any layout: exit 5 as solve does, after the outputs.
+  auto ray_target_status = [&] {
+    return targets_status(layouts, args.inputs,
+                          [](const SizedLayout& l) -> const FactorRun& { return l.scene.run; });
+  };
+  if (args.output_dir.empty()) return ray_target_status();
   OutputFolder out(args.output_dir);  // written whole: see output_folder.hpp
   std::vector<std::string> files = write_size_outputs(out.folder(), target, layouts, names);
   write_manifest(out, folder_manifest("size", args.inputs, files));
   std::cout << "\nwrote " << out.target() << ": " << join_at_most(files, 12) << "\n";
-  return 0;
+  return ray_target_status();
 }
 
 }  // namespace hearthray::cli
