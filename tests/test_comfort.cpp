@@ -264,7 +264,8 @@ TEST_CASE("comfort and compare commands run end to end", "[comfort]") {
               dir);
   REQUIRE(r.status == 0);
   CHECK_THAT(r.out, Catch::Contains("maps on one colour range each (mean radiant 15.0 to 45.0 C"));
-  for (const char* name : {"a_map_operative.png", "b_map_operative.png", "b_map_asymmetry.png"})
+  for (const char* name :
+       {"a_map_operative.png", "b_map_operative.png", "b_map_asymmetry.png", "b_map_asymmetry.svg"})
     CHECK(std::filesystem::exists(dir / "maps" / name));
 
   write_text(dir / "none.toml", cube_scene(""));

@@ -110,7 +110,8 @@ TEST_CASE("size prints the power per layout, ranks them and writes the report",
   CHECK_THAT(r.out, Catch::Contains("ranked by the power they need"));
   CHECK_THAT(r.out, Catch::Contains("floor surface temperature"));
   CHECK_THAT(r.out, Catch::Contains("electrical"));
-  for (const char* f : {"report.html", "sizing.csv", "a_map_operative.png", "b_map_asymmetry.png"})
+  for (const char* f : {"report.html", "sizing.csv", "a_map_operative.png", "b_map_asymmetry.png",
+                        "b_map_asymmetry.svg"})
     CHECK(std::filesystem::exists(dir / "out" / f));
   const std::string html = slurp(dir / "out" / "report.html");
   CHECK_THAT(html, Catch::Contains("data:image/png;base64,"));

@@ -176,7 +176,8 @@ std::vector<std::string> write_compared_maps(const ComfortArgs& args, OutputFold
   std::vector<std::string> files;
   for (std::size_t k = 0; k < runs.size(); ++k)
     if (has_grid(runs[k]))
-      write_maps(out, names[k] + "_", runs[k], ranges, " \u2014 " + names[k], {".png"}, &files);
+      write_maps(out, names[k] + "_", runs[k], ranges, " \u2014 " + names[k], {".png", ".svg"},
+                 &files);
   std::cout << "\nmaps on one colour range each (mean radiant "
             << rounded("%.1f", ranges[MapQuantity::mean_radiant].first) << " to "
             << rounded("%.1f", ranges[MapQuantity::mean_radiant].second) << " C, operative "

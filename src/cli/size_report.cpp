@@ -103,11 +103,14 @@ std::map<std::string, std::vector<fs::path>> write_maps(const fs::path& dir,
       options.title_suffix =
           " \u2014 " + names[k] + " at " + rounded("%.0f W", layouts[k].plan.power_W);
       if (lo < hi) options.range_lo = lo, options.range_hi = hi;
-      const std::string file = names[k] + "_" + map_name + ".png";
-      write_picture((dir / file).string(),
-                    comfort_map(layouts[k].scene.run.scene, layouts[k].plan.points, q, options));
-      files->push_back(file);
-      out[names[k]].push_back(dir / file);
+      const std::string file = names[k] + "_" + map_name;
+      const Picture map =
+          comfort_map(layouts[k].scene.run.scene, layouts[k].plan.points, q, options);
+      for (const char* extension : {".png", ".svg"}) {
+        write_picture((dir / (file + extension)).string(), map);
+        files->push_back(file + extension);
+      }
+      out[names[k]].push_back(dir / (file + ".png"));
     }
   }
   return out;
