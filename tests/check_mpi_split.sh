@@ -40,7 +40,7 @@ same_files() {
   done
 }
 
-# solve: 460 patches (> 200: view_factors.h5), the Sobol' sampler.
+# solve: 430 patches (> 200: view_factors.h5), the Sobol' sampler.
 kiln=$source/scenes/electric-kiln/kiln-patches.toml
 "$tool" solve "$kiln" --rays 300 --no-cache -q -o one >one.log 2>&1 || fail "one process: exit $?"
 mpirun "$tool" solve "$kiln" --rays 300 --no-cache -q -o two >two.log 2>&1 ||

@@ -264,13 +264,42 @@ TEST_CASE("comfort and compare commands run end to end", "[comfort]") {
               dir);
   REQUIRE(r.status == 0);
   CHECK_THAT(r.out, Catch::Contains("maps on one colour range each (mean radiant 15.0 to 45.0 C"));
-  for (const char* name : {"a_map_operative.png", "b_map_operative.png", "b_map_asymmetry.png"})
+  for (const char* name :
+       {"a_map_operative.png", "b_map_operative.png", "b_map_asymmetry.png", "b_map_asymmetry.svg"})
     CHECK(std::filesystem::exists(dir / "maps" / name));
 
   write_text(dir / "none.toml", cube_scene(""));
   r = run_cli("comfort " + (dir / "none.toml").string(), dir);
   CHECK(r.status == 2);
   CHECK_THAT(r.err, Catch::Contains("no [comfort] table"));
+}
+
+TEST_CASE("comfort and compare exit 5 when the scene's ray target is missed", "[comfort]") {
+  ScratchDir dir("comfort-target");
+  write_text(dir / "cube.obj", unit_cube_obj());
+  // The cube's face-to-face factor is 0.2 (Howell's catalogue), so 16384 rays per face leave a
+  // standard error near sqrt(0.2 x 0.8 / 16384) = 0.003: a target of 1e-5 is out of reach
+  // within that cap, one of 0.05 is met by the first round.
+  auto scene = [&](const char* name, const char* target) {
+    write_text(dir / name, std::string("[mesh]\nfile = \"cube.obj\"\nunit = \"m\"\n[rays]\n") +
+                               "target_error = " + target +
+                               "\nmax_per_patch = 16384\n[defaults]\n" +
+                               "emissivity = 1.0\ntemperature = \"20 C\"\n" + kGoodComfort);
+    return "'" + (dir / name).string() + "'";
+  };
+  const std::string missed = scene("missed.toml", "1e-5"), met = scene("met.toml", "0.05");
+  CliResult r = run_cli("comfort " + missed + " -q -o '" + (dir / "out").string() + "'", dir);
+  CHECK(r.status == 5);
+  CHECK_THAT(r.err, Catch::Contains("ray target NOT reached") && Catch::Contains("ray cap"));
+  CHECK(std::filesystem::exists(dir / "out" / "report.html"));  // outputs of the last round
+  r = run_cli("comfort " + met, dir);
+  CHECK(r.status == 0);
+  CHECK_THAT(r.out, Catch::Contains("ray target: reached"));
+  r = run_cli("compare " + met + " " + missed + " -q", dir);
+  CHECK(r.status == 5);
+  CHECK_THAT(r.err, Catch::Contains("missed.toml: ray target NOT reached"));
+  CHECK_THAT(r.err, !Catch::Contains("met.toml:"));
+  CHECK(run_cli("compare " + met + " " + met + " -q", dir).status == 0);
 }
 
 TEST_CASE("comfort cautions say by their kind which are general", "[comfort]") {

@@ -54,8 +54,8 @@ TEST_CASE("hearthray solve runs a fired scene through the gas zones", "[gas][cli
       dir);
   INFO(r.err);
   REQUIRE(r.status == 0);
-  for (const char* f :
-       {"report.json", "zones.csv", "gas_patches.csv", "zones.vtu", "patches.vtu", "gas_zones.png"})
+  for (const char* f : {"report.json", "zones.csv", "gas_patches.csv", "zones.vtu", "patches.vtu",
+                        "gas_zones.png", "gas_zones.svg"})
     CHECK(std::filesystem::exists(dir / "out" / f));
   const auto report = nlohmann::json::parse(slurp(dir / "out" / "report.json"));
   const auto& b = report["gas"]["balance"];

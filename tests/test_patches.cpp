@@ -216,15 +216,58 @@ TEST_CASE("a cylinder is cut into bands of one height and sectors of whole facet
     CHECK(facets.size() == 4);
   }
   CHECK(count == 4 * 6);
-  // Caps: discs of 0.196 m^2 are round(0.196 / 0.0625) = 3 compact regions each.
+  // Caps: 24-gons of radius 0.25 m, whose extent along an edge is 2 x 0.25 x cos(7.5 deg)
+  // = 0.496 m: round(1.98) = 2 x 2 grid cells clipped to each, through its centre; a 24-gon
+  // turned by 90 degrees is itself, so each cell holds a quarter of it (elementary geometry).
   const std::uint32_t caps = std::uint32_t(c.scene.find_surface("caps"));
-  int regions = 0;
+  int quarters = 0;
   for (const Patch& p : c.patches.patches) {
     if (p.surface != caps) continue;
-    ++regions;
-    CHECK(p.area > 0.5 * c.scene.surfaces[caps].area / 6);
+    ++quarters;
+    CHECK(p.area == Approx(c.scene.surfaces[caps].area / 8).epsilon(1e-9));
   }
-  CHECK(regions == 6);
+  CHECK(quarters == 8);
+}
+
+TEST_CASE("a cylinder whose facets do not split into the sectors asked for gets equal sectors",
+          "[patches]") {
+  // Radius 0.25 m, 20 facets (apothem 0.25 cos 9 deg = 0.2469 m), patches of 0.25 m:
+  // round(2 pi 0.2469 / 0.25) = round(6.2) = 6 sectors would hold 3 or 4 facets; 5, the
+  // divisor of 20 nearest 6.2, holds 4 each: 4 bands x 5 sectors of one area.
+  const Scene cyl = load_obj_text(cylinder_obj(0.25, 1.0, 20), "cylinder");
+  const std::vector<PatchSpec> specs(cyl.surfaces.size(), {PatchSpec::Mode::size, 0.25});
+  const Cut c = cut(cyl, specs);
+  check_partition(c);
+  const std::uint32_t side = std::uint32_t(c.scene.find_surface("side"));
+  int count = 0;
+  for (const Patch& p : c.patches.patches) {
+    if (p.surface != side) continue;
+    ++count;
+    CHECK(p.area == Approx(c.scene.surfaces[side].area / 20).epsilon(1e-9));
+  }
+  CHECK(count == 20);
+}
+
+TEST_CASE("the caps of a thin post join the bands they close", "[patches]") {
+  // A post of radius 0.05 m and height 0.5 m, side and caps one surface, patches of 0.25 m:
+  // round(0.5 / 0.25) = 2 bands of one sector (round(2 pi 0.048 / 0.25) = 1); each cap
+  // (0.0075 m^2) is under a quarter of a patch (0.0156 m^2) and joins the band it touches:
+  // two patches, each half the side and one cap, the lower reaching from z = 0 to 0.25 m.
+  std::string obj = cylinder_obj(0.05, 0.5, 12);
+  obj.erase(obj.find("g caps\n"), 7);
+  const Scene post = load_obj_text(obj, "post");
+  REQUIRE(post.surfaces.size() == 1);
+  const std::vector<PatchSpec> specs{{PatchSpec::Mode::size, 0.25}};
+  const Cut c = cut(post, specs);
+  check_partition(c);
+  REQUIRE(c.patches.size() == 2);
+  const double cap = 0.5 * 12 * 0.05 * 0.05 * std::sin(2 * kPi / 12);  // a regular 12-gon
+  const double side = c.scene.surfaces[0].area - 2 * cap;
+  for (std::size_t p = 0; p < 2; ++p) {
+    CHECK(c.patches.patches[p].area == Approx(side / 2 + cap).epsilon(1e-9));
+    const auto [z0, z1] = patch_range(c, p, {0, 0, 1});
+    CHECK(z1 - z0 == Approx(0.25).epsilon(1e-9));
+  }
 }
 
 // Checks that every patch of surface s is connected over shared edges and compact: its polar
@@ -286,6 +329,67 @@ int check_regions(const Cut& c, std::uint32_t s) {
     CHECK(std::count(reached.begin(), reached.end(), false) == 0);
   }
   return count;
+}
+
+// A 3 x 2.4 m wall in z = 0 with a window [0.62, 2.1] x [0.8, 2.2] m cut out, meshed as the
+// eight quads around the window (vertices on a 4 x 4 grid, so the mesh is conforming).
+std::string window_wall_obj() {
+  const double xs[] = {0, 0.62, 2.1, 3.0}, ys[] = {0, 0.8, 2.2, 2.4};
+  std::string text = "g wall\n";
+  for (double y : ys)
+    for (double x : xs) text += obj_vertex({x, y, 0});
+  for (int j = 0; j < 3; ++j)
+    for (int i = 0; i < 3; ++i) {
+      if (i == 1 && j == 1) continue;  // the window
+      const int a = 1 + 4 * j + i;
+      text += "f " + std::to_string(a) + " " + std::to_string(a + 1) + " " + std::to_string(a + 5) +
+              " " + std::to_string(a + 4) + "\n";
+    }
+  return text;
+}
+
+TEST_CASE("a wall with a window gets grid cells clipped to it, slivers joined", "[patches]") {
+  // Patches of 0.5 m: round(3 / 0.5) = 6 by round(2.4 / 0.5) = 5 cells of 0.5 x 0.48 m along
+  // the wall's edges. The fraction of each cell left beside the window (elementary geometry):
+  // columns 0.5-1.0 and 2.0-2.5 m keep 0.24 and 0.8 of their width where the window covers
+  // them, rows 0.48-0.96 and 1.92-2.4 m keep 0.667 and 0.417 of their height; columns 1.0-2.0 m
+  // in rows 0.96-1.92 m are all window: 30 - 4 = 26 pieces. Four are under half a cell: the
+  // 0.12 x 0.48 m strips left of the window (polar moment / area^2 = (0.12^2 + 0.48^2) /
+  // (12 x 0.12 x 0.48) = 0.35) join the whole cells beside them (a 0.62 x 0.48 m rectangle:
+  // 0.17); the 0.5 x 0.2 m pieces above the window (0.24) would make a strip or an L of over
+  // 0.4 with any neighbour and stay: 24 patches.
+  const Scene wall = load_obj_text(window_wall_obj(), "wall");
+  const std::vector<PatchSpec> specs{{PatchSpec::Mode::size, 0.5}};
+  const Cut c = cut(wall, specs);
+  check_partition(c);
+  CHECK(c.scene.surfaces[0].area == Approx(3 * 2.4 - 1.48 * 1.4).epsilon(1e-12));
+  CHECK(c.patches.size() == 24);
+  const double cell = 0.5 * 0.48;
+  int whole = 0;
+  for (std::size_t p = 0; p < c.patches.size(); ++p) {
+    const double area = c.patches.patches[p].area;
+    INFO("patch " << c.patches.patches[p].name << ", area " << area);
+    CHECK(area >= 0.2 / 0.48 * cell * (1 - 1e-9));  // the pieces above the window
+    CHECK(area <= 1.24 * cell * (1 + 1e-9));        // a cell and a strip of 0.24 of it
+    if (std::fabs(area - cell) > 1e-9 * cell) continue;
+    // A whole cell is an exact 0.5 x 0.48 m rectangle on the grid.
+    ++whole;
+    const auto [x0, x1] = patch_range(c, p, {1, 0, 0});
+    const auto [y0, y1] = patch_range(c, p, {0, 1, 0});
+    CHECK(x1 - x0 == Approx(0.5).epsilon(1e-9));
+    CHECK(y1 - y0 == Approx(0.48).epsilon(1e-9));
+    CHECK(std::fabs(x0 / 0.5 - std::round(x0 / 0.5)) < 1e-9);
+    CHECK(std::fabs(y0 / 0.48 - std::round(y0 / 0.48)) < 1e-9);
+  }
+  // Untouched by the window: 6 in the bottom row, 2 in the next, 1 each in the two window rows
+  // (the right column; the left one took a strip), 2 in the top row.
+  CHECK(whole == 12);
+  CHECK(check_regions(c, 0) == 24);  // connected and compact
+  // The layout of the cut mesh is the layout the cuts came from: cutting again cuts nothing.
+  const Cut again = cut(c.scene, specs);
+  CHECK(again.scene.triangles.size() == c.scene.triangles.size());
+  CHECK(again.patches.triangle_index == c.patches.triangle_index);
+  CHECK(again.patches.triangle_offset == c.patches.triangle_offset);
 }
 
 TEST_CASE("an irregular surface is grouped into connected compact regions", "[patches]") {

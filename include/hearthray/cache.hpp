@@ -23,7 +23,7 @@ namespace hearthray {
 
 // Part of every key. Change it whenever tracing or sampling changes what (mesh, rays, seed)
 // produce, or when the file layout changes: old files then simply stop matching.
-inline constexpr const char* kTallyCacheFormat = "hearthray-tallies/5";
+inline constexpr const char* kTallyCacheFormat = "hearthray-tallies/7";
 
 // 128 bits from two unrelated 64-bit hashes of the same bytes (FNV-1a and a word-wise
 // multiply-xorshift mix), so an accidental collision needs both to collide at once.

@@ -176,7 +176,8 @@ std::vector<std::string> write_compared_maps(const ComfortArgs& args, OutputFold
   std::vector<std::string> files;
   for (std::size_t k = 0; k < runs.size(); ++k)
     if (has_grid(runs[k]))
-      write_maps(out, names[k] + "_", runs[k], ranges, " \u2014 " + names[k], {".png"}, &files);
+      write_maps(out, names[k] + "_", runs[k], ranges, " \u2014 " + names[k], {".png", ".svg"},
+                 &files);
   std::cout << "\nmaps on one colour range each (mean radiant "
             << rounded("%.1f", ranges[MapQuantity::mean_radiant].first) << " to "
             << rounded("%.1f", ranges[MapQuantity::mean_radiant].second) << " C, operative "
@@ -267,9 +268,11 @@ int run_comfort_command(const ComfortArgs& args) {
   if (!args.rays.quiet) {
     std::cout << "hearthray comfort " << input << "\n";
     std::cout << cache_log_line(r.solved.run) << "\n";
+    if (r.solved.run.target.used) std::cout << target_line(r.solved.run) << "\n";
   }
   print_report(std::cout, r);
-  if (args.output_dir.empty()) return 0;
+  // A ray target missed: exit 5 as solve does, after the outputs of the last round.
+  if (args.output_dir.empty()) return target_status(r.solved.run);
 
   OutputFolder out(args.output_dir);
   std::vector<std::string> files = {"comfort.csv", "comfort.txt"};
@@ -298,7 +301,7 @@ int run_comfort_command(const ComfortArgs& args) {
     for (std::size_t k = 0; k < files.size(); ++k) std::cout << (k ? ", " : "") << files[k];
     std::cout << "\n";
   }
-  return 0;
+  return target_status(r.solved.run);
 }
 
 int run_compare_command(const ComfortArgs& args) {
@@ -382,7 +385,9 @@ int run_compare_command(const ComfortArgs& args) {
     write_manifest(out, folder_manifest("compare", args.inputs, files));
     std::cout << "client report: " << (fs::path(out.target()) / "report.html").string() << "\n";
   }
-  return 0;
+  // A ray target missed in any scene: exit 5 as solve does (each named in a warning).
+  return targets_status(runs, args.inputs,
+                        [](const ComfortRun& r) -> const FactorRun& { return r.solved.run; });
 }
 
 }  // namespace hearthray::cli

@@ -24,8 +24,9 @@ void write_fire_outputs(const SolveArgs& args, const SolvedScene& solved, const 
     std::ofstream csv = open_output(out.file("firing.csv"));
     write_firing_csv(csv, r);
   }
-  const Picture temperatures = firing_temperature_picture(r, name + ": temperatures in the firing");
-  const Picture power = firing_power_picture(r, in, name + ": heating power in the firing");
+  const Picture temperatures =
+      firing_temperature_picture(r, "Temperatures in the firing \u2014 " + name);
+  const Picture power = firing_power_picture(r, in, "Heating power in the firing \u2014 " + name);
   for (const char* extension : {".png", ".svg"}) {
     write_picture(out.file("firing_temperatures" + std::string(extension)), temperatures);
     write_picture(out.file("firing_power" + std::string(extension)), power);

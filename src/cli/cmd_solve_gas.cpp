@@ -67,12 +67,12 @@ int run_gas_solve(const SolveArgs& args, const SceneFile& file) {
   }
   if (!args.output_dir.empty()) {
     OutputFolder out(args.output_dir);
-    GasReportInfo info{
-        kVersion,
-        file.path,
-        file.mesh_path,
-        gas_options.seed,
-        {"zones.csv", "gas_patches.csv", "zones.vtu", "patches.vtu", "gas_zones.png"}};
+    GasReportInfo info{kVersion,
+                       file.path,
+                       file.mesh_path,
+                       gas_options.seed,
+                       {"zones.csv", "gas_patches.csv", "zones.vtu", "patches.vtu", "gas_zones.png",
+                        "gas_zones.svg"}};
     {
       std::ofstream csv = open_output(out.file("zones.csv"));
       write_zones_csv(csv, run);
@@ -89,7 +89,8 @@ int run_gas_solve(const SolveArgs& args, const SceneFile& file) {
     }
     write_vtu(out.file("patches.vtu"), plan.scene, plan.patches, {temperature, flux},
               {{"converged", run.solve.converged ? 1 : 0}});
-    write_picture(out.file("gas_zones.png"), zone_cut_picture(run, plan.scene));
+    const Picture cut = zone_cut_picture(run, plan.scene);
+    for (const char* name : {"gas_zones.png", "gas_zones.svg"}) write_picture(out.file(name), cut);
     {
       std::ofstream report = open_output(out.file(kManifestName));  // last: names the files
       write_gas_report(report, info, run, names);

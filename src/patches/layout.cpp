@@ -9,6 +9,7 @@
 
 #include "hearthray/units.hpp"
 #include "mesh/topology.hpp"
+#include "patches/clipped.hpp"
 #include "patches/regions.hpp"
 
 namespace hearthray::patch_layout {
@@ -38,19 +39,6 @@ int how_many(double x) {
   const double n = std::floor(x + 0.5 + 1e-4);
   return !(n > 1) ? 1 : static_cast<int>(std::min(n, double(kMaxCount)));
 }
-
-struct UnionFind {
-  std::vector<std::uint32_t> parent;
-  explicit UnionFind(std::size_t n) : parent(n) { std::iota(parent.begin(), parent.end(), 0u); }
-  std::uint32_t find(std::uint32_t a) {
-    while (parent[a] != a) a = parent[a] = parent[parent[a]];
-    return a;
-  }
-  void unite(std::uint32_t a, std::uint32_t b) {
-    a = find(a), b = find(b);
-    if (a != b) parent[std::max(a, b)] = std::min(a, b);
-  }
-};
 
 // Welded edge -> the triangles (of `triangles`) using it, in order.
 std::unordered_map<std::uint64_t, std::vector<std::uint32_t>> edge_users(
@@ -126,31 +114,63 @@ std::pair<double, double> range_along(const Scene& scene, const Chart& chart, co
   return {lo, hi};
 }
 
-// A planar chart filling its bounding rectangle, taken along the direction of the longest
-// total run of parallel boundary edges, becomes a grid of near-square cells.
-bool try_rectangle(const Scene& scene, const std::vector<std::uint32_t>& weld, double size,
-                   const Vec3& normal, Chart* chart) {
-  std::vector<std::pair<Vec3, double>> classes;  // direction, total length
-  for (const auto& [d, length] : boundary_edges(scene, *chart, weld)) {
-    auto it = std::find_if(classes.begin(), classes.end(), [&](const auto& c) {
+// d or -d, whichever has its first clearly non-zero component positive.
+Vec3 canonical(const Vec3& d) {
+  for (double c : {d.x, d.y, d.z})
+    if (std::fabs(c) > 1e-9) return c < 0 ? d * -1.0 : d;
+  return d;
+}
+
+// Whether direction a comes before b (both canonical): by x, then y, then z, each clearly.
+bool before(const Vec3& a, const Vec3& b) {
+  for (int k = 0; k < 3; ++k)
+    if (std::fabs(a[k] - b[k]) > 1e-9) return a[k] > b[k];
+  return false;
+}
+
+// The direction of the longest total run of parallel boundary edges: the classes' length-
+// weighted mean directions, ties (1e-9) going to the first by `before`, so that neither the
+// order of the edges nor cutting them (which keeps every class's directions and total length)
+// changes the choice. Zero when the chart has no boundary edge.
+Vec3 grid_direction(const Scene& scene, const Chart& chart,
+                    const std::vector<std::uint32_t>& weld) {
+  struct Class {
+    Vec3 first, sum;
+    double length = 0;
+  };
+  std::vector<Class> classes;
+  for (const auto& [d, length] : boundary_edges(scene, chart, weld)) {
+    auto it = std::find_if(classes.begin(), classes.end(), [&](const Class& c) {
       return std::fabs(dot(c.first, d)) >= 1 - kParallel;
     });
-    if (it == classes.end()) {
-      classes.push_back({d, length});
-    } else {
-      it->second += length;
-    }
+    if (it == classes.end()) it = classes.insert(classes.end(), Class{d, Vec3{}, 0});
+    it->sum += (dot(it->first, d) < 0 ? d * -1.0 : d) * length;
+    it->length += length;
   }
-  if (classes.empty()) return false;
-  auto longest = classes.begin();
-  for (auto it = classes.begin(); it != classes.end(); ++it)
-    if (it->second > longest->second * (1 + 1e-9)) longest = it;
-  const Vec3 u = longest->first, v = normalized(cross(normal, u));
+  Vec3 best;
+  double best_length = 0;
+  for (const Class& c : classes) {
+    const Vec3 d = canonical(normalized(c.sum));
+    if (c.length > best_length * (1 + 1e-9) ||
+        (c.length >= best_length * (1 - 1e-9) && before(d, best)))
+      best = d, best_length = c.length;
+  }
+  return best;
+}
+
+// A planar chart becomes a grid of near-square cells over its bounding rectangle, taken along
+// grid_direction: a rectangle when it fills that rectangle, else cells clipped to it. False
+// for a chart without boundary edges.
+bool lay_out_grid(const Scene& scene, const std::vector<std::uint32_t>& weld, double size,
+                  const Vec3& normal, Chart* chart) {
+  const Vec3 u = grid_direction(scene, *chart, weld);
+  if (!(norm(u) > 0.5)) return false;
+  const Vec3 v = normalized(cross(normal, u));
   const auto [u0, u1] = range_along(scene, *chart, u);
   const auto [v0, v1] = range_along(scene, *chart, v);
   const double box = (u1 - u0) * (v1 - v0);
-  if (!(std::fabs(box - chart->area) <= kRectangleArea * box)) return false;
-  chart->kind = ChartKind::rectangle;
+  const bool fills = std::fabs(box - chart->area) <= kRectangleArea * box;
+  chart->kind = fills ? ChartKind::rectangle : ChartKind::clipped;
   chart->u = u, chart->v = v, chart->u0 = u0, chart->v0 = v0;
   chart->nu = how_many((u1 - u0) / size);
   chart->nv = how_many((v1 - v0) / size);
@@ -238,6 +258,22 @@ std::vector<double> facet_angles(const Scene& scene, const Chart& chart) {
   return facets;
 }
 
+// Sectors of whole facets are equal only when their count divides the facets': the divisor
+// of `facets` nearest to `wanted` (by ratio; ties: the larger), when within 1.5 times it, else
+// how_many(wanted) (unequal sectors, rather than patches far from the size asked for).
+int sector_count(double wanted, std::size_t facets) {
+  const int plain = how_many(wanted);
+  if (facets == 0 || facets % std::size_t(plain) == 0) return plain;
+  int best = plain;
+  double best_ratio = 1.5 * (1 + 1e-9);
+  for (std::size_t d = 1; d <= facets && d <= std::size_t(kMaxCount); ++d) {
+    if (facets % d != 0) continue;
+    const double ratio = std::max(double(d) / wanted, wanted / double(d));
+    if (ratio <= best_ratio) best = int(d), best_ratio = ratio;
+  }
+  return best;
+}
+
 // Sectors around the axis: a closed cylinder (no boundary edge along the axis) from the facet
 // corner nearest the zero angle; an open one from the start of its arc.
 void lay_out_sectors(const Scene& scene, const std::vector<std::uint32_t>& weld, double size,
@@ -259,7 +295,7 @@ void lay_out_sectors(const Scene& scene, const std::vector<std::uint32_t>& weld,
     arc = span + step;
     chart->theta0 = wrap_angle(f[after] - 0.5 * step);
   }
-  chart->sectors = how_many(arc * radius / size);
+  chart->sectors = sector_count(arc * radius / size, f.size());
   chart->sector = arc / chart->sectors;
 }
 
@@ -305,7 +341,7 @@ void classify(const Scene& scene, const std::vector<std::uint32_t>& weld, double
   const bool planar =
       std::all_of(chart->triangles.begin(), chart->triangles.end(),
                   [&](std::uint32_t t) { return dot(scene.normal(t), normal) >= 1 - kParallel; });
-  if (planar ? try_rectangle(scene, weld, size, normal, chart)
+  if (planar ? lay_out_grid(scene, weld, size, normal, chart)
              : try_cylinder(scene, weld, size, chart))
     return;
   chart->kind = ChartKind::regions;
@@ -345,7 +381,7 @@ std::vector<Chart> lay_out(const Scene& scene, std::uint32_t surface, double siz
 std::vector<CutPlane> cut_planes(const Chart& chart) {
   std::vector<CutPlane> planes;
   const double tolerance = kOnPlane * chart.extent;
-  if (chart.kind == ChartKind::rectangle) {
+  if (chart.kind == ChartKind::rectangle || chart.kind == ChartKind::clipped) {
     for (int i = 1; i < chart.nu; ++i)
       planes.push_back({chart.u, chart.u0 + i * chart.du, tolerance});
     for (int j = 1; j < chart.nv; ++j)
@@ -376,6 +412,9 @@ std::vector<std::uint32_t> pieces(const Scene& scene, const Chart& chart,
         out[k] = cell(along, chart.band, chart.bands) * chart.sectors +
                  cell(around, chart.sector, chart.sectors);
       }
+      break;
+    case ChartKind::clipped:
+      out = clipped_cells(scene, chart, weld);
       break;
     case ChartKind::regions:
       if (chart.regions > 1) out = grow_regions(scene, chart, weld);

@@ -5,30 +5,41 @@
 //    run of parallel boundary edges): a grid of nu x nv equal cells aligned with its edges,
 //    nu = round(length / size), nv = round(width / size); `subdivide` cuts the triangles along
 //    the grid lines, so every cell is exactly a rectangle;
+//  - clipped: any other planar chart (a wall with a door or window cut out, an L, a disc): the
+//    same grid over its bounding rectangle, taken the same way, cut along the grid lines; each
+//    cell's part of the chart (each edge-connected part, where a hole splits a cell) is a
+//    patch, and one under half a cell's area joins the neighbour that makes the most compact
+//    patch with it, unless all would make a long strip (clipped.hpp);
 //  - cylinder: a curved chart whose normals are all perpendicular to one axis and whose facets
 //    are tangent to one circle about it (within 2 % of its radius): bands of equal height along
 //    the axis (cut by `subdivide` along planes across the axis) and sectors around it, whole
 //    facets going to the sector their normal points into, so sector edges follow facet edges;
-//  - regions: any other chart (curved, or planar but not a rectangle): round(area / size^2)
+//    the sector count is the divisor of the facet count nearest the size's (within 1.5 times),
+//    so sectors are equal;
+//  - regions: any other chart (curved, not a cylinder): round(area / size^2)
 //    compact regions grown over its triangles from seeds spread by farthest-point sampling and
 //    moved to their regions' centres (Lloyd's iteration on the triangle graph); `subdivide`
 //    first splits its triangles to half the size;
-//  - small: a chart under a quarter of a patch's area stays whole and joins the other small
-//    charts of its surface on a grid of the patch size.
+//  - small: a chart under a quarter of a patch's area stays whole and joins the piece of a
+//    larger chart of its surface it shares the longest edge with (a post's cap, the band it
+//    closes); one touching no larger chart shares a cell of a grid of the patch size with the
+//    other such charts of its surface (patches.cpp).
 // The layout depends only on what cutting leaves unchanged (triangle normals, areas, extents,
 // the boundary's directions), so the layout of the cut mesh is the layout the cuts came from.
 // Everything here is sequential and ordered by triangle index: the same mesh gives the same
 // patches on any machine and thread count.
 #pragma once
 
+#include <algorithm>
 #include <cstdint>
+#include <numeric>
 #include <vector>
 
 #include "hearthray/scene.hpp"
 
 namespace hearthray::patch_layout {
 
-enum class ChartKind { rectangle, cylinder, regions, small };
+enum class ChartKind { rectangle, clipped, cylinder, regions, small };
 
 struct Chart {
   ChartKind kind = ChartKind::regions;
@@ -36,7 +47,8 @@ struct Chart {
   double area = 0;                       // m^2
   double extent = 0;                     // bounding-box diagonal of its vertices (m)
   Vec3 centroid;                         // area-weighted
-  // rectangle: cell (i, j) spans u0 + [i, i + 1) du along u and v0 + [j, j + 1) dv along v
+  // rectangle and clipped: cell (i, j) spans u0 + [i, i + 1) du along u and v0 + [j, j + 1) dv
+  // along v
   Vec3 u, v;
   double u0 = 0, v0 = 0, du = 0, dv = 0;
   int nu = 1, nv = 1;
@@ -47,6 +59,20 @@ struct Chart {
   int bands = 1, sectors = 1;
   // regions
   int regions = 1;
+};
+
+// Disjoint sets of 0 .. n - 1; unite keeps the lower root.
+struct UnionFind {
+  std::vector<std::uint32_t> parent;
+  explicit UnionFind(std::size_t n) : parent(n) { std::iota(parent.begin(), parent.end(), 0u); }
+  std::uint32_t find(std::uint32_t a) {
+    while (parent[a] != a) a = parent[a] = parent[parent[a]];
+    return a;
+  }
+  void unite(std::uint32_t a, std::uint32_t b) {
+    a = find(a), b = find(b);
+    if (a != b) parent[std::max(a, b)] = std::min(a, b);
+  }
 };
 
 // Weld ids (vertices at exactly the same position share one) and the key of a welded edge.
@@ -63,12 +89,13 @@ struct CutPlane {
   double offset = 0;
   double tolerance = 0;
 };
-// The planes along which the triangles of a rectangle or cylinder chart are cut (grid lines,
-// band boundaries); none for other charts.
+// The planes along which the triangles of a rectangle, clipped or cylinder chart are cut (grid
+// lines, band boundaries); none for other charts.
 std::vector<CutPlane> cut_planes(const Chart& chart);
 
 // The piece (0, 1, ...) of each of the chart's triangles, in the order of chart.triangles.
-// Rectangle: j nu + i; cylinder: b sectors + s; regions: the region; small: 0.
+// Rectangle: j nu + i; clipped: the clipped cell, slivers joined; cylinder: b sectors + s;
+// regions: the region; small: 0.
 std::vector<std::uint32_t> pieces(const Scene& scene, const Chart& chart,
                                   const std::vector<std::uint32_t>& weld);
 

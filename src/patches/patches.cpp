@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <map>
+#include <optional>
 #include <tuple>
 #include <unordered_map>
 
@@ -12,6 +13,20 @@
 namespace hearthray {
 
 namespace {
+
+// Welded edge -> the triangles of a surface using it.
+using EdgeUsers = std::unordered_map<std::uint64_t, std::vector<std::uint32_t>>;
+EdgeUsers edge_users(const Scene& scene, const Surface& surface,
+                     const std::vector<std::uint32_t>& weld) {
+  EdgeUsers users;
+  for (std::uint32_t t = surface.first_triangle;
+       t < surface.first_triangle + surface.triangle_count; ++t)
+    for (int k = 0; k < 3; ++k)
+      users[patch_layout::edge_key(weld[scene.triangles[t].v[k]],
+                                   weld[scene.triangles[t].v[(k + 1) % 3]])]
+          .push_back(t);
+  return users;
+}
 
 // Adds one patch per side of `surface` for each group of its triangles.
 void add_groups(const Scene& scene, std::uint32_t s,
@@ -40,9 +55,35 @@ void add_groups(const Scene& scene, std::uint32_t s,
   }
 }
 
+// The key (chart << 32 | piece) of the piece of a larger chart that a small chart shares the
+// longest edge with (ties: the lower key), or none: a post's cap joins the band it closes.
+std::optional<std::uint64_t> neighbour_piece(const Scene& scene, const Surface& surface,
+                                             const patch_layout::Chart& chart,
+                                             const std::vector<std::uint64_t>& key,
+                                             const std::vector<bool>& small, const EdgeUsers& users,
+                                             const std::vector<std::uint32_t>& weld) {
+  std::map<std::uint64_t, double> shared;
+  for (std::uint32_t t : chart.triangles) {
+    const Triangle& tri = scene.triangles[t];
+    for (int k = 0; k < 3; ++k) {
+      const std::uint32_t a = tri.v[k], b = tri.v[(k + 1) % 3];
+      for (std::uint32_t u : users.at(patch_layout::edge_key(weld[a], weld[b]))) {
+        const std::uint32_t i = u - surface.first_triangle;
+        if (!small[i]) shared[key[i]] += norm(scene.vertices[b] - scene.vertices[a]);
+      }
+    }
+  }
+  std::optional<std::uint64_t> best;
+  double longest = 0;
+  for (const auto& [k, length] : shared)
+    if (length > longest * (1 + 1e-9)) best = k, longest = length;
+  return best;
+}
+
 // The patches of a surface cut by size, laid out chart by chart (patches/layout.hpp): groups
-// in the order their first triangle appears, so patch numbers follow the mesh. Small charts
-// share the cell of a grid of the patch size their centroid falls in.
+// in the order their first triangle appears, so patch numbers follow the mesh. A small chart
+// joins the piece of a larger chart it shares the longest edge with; one that touches none
+// shares the cell of a grid of the patch size its centroid falls in with other such charts.
 std::vector<std::vector<std::uint32_t>> size_groups(const Scene& scene, std::uint32_t s,
                                                     double size,
                                                     const std::vector<std::uint32_t>& weld) {
@@ -50,23 +91,36 @@ std::vector<std::vector<std::uint32_t>> size_groups(const Scene& scene, std::uin
   if (!(size > 0) || !std::isfinite(size))
     throw InputError("surface '" + surface.name + "': patch size must be positive");
   std::vector<std::uint64_t> key(surface.triangle_count);
-  std::map<std::tuple<long long, long long, long long>, std::uint64_t> small_cells;
+  std::vector<bool> small(surface.triangle_count, false);
   const auto charts = patch_layout::lay_out(scene, s, size, weld);
+  bool any_small = false;
   for (std::size_t c = 0; c < charts.size(); ++c) {
     const patch_layout::Chart& chart = charts[c];
-    std::vector<std::uint32_t> piece(chart.triangles.size(), 0);
-    std::uint64_t base = std::uint64_t(c) << 32;
     if (chart.kind == patch_layout::ChartKind::small) {
-      const Vec3 m = chart.centroid / size;
-      const auto cell = std::make_tuple(static_cast<long long>(std::floor(m.x)),
-                                        static_cast<long long>(std::floor(m.y)),
-                                        static_cast<long long>(std::floor(m.z)));
-      base = small_cells.emplace(cell, (charts.size() + small_cells.size()) << 32).first->second;
-    } else {
-      piece = patch_layout::pieces(scene, chart, weld);
+      any_small = true;
+      for (std::uint32_t t : chart.triangles) small[t - surface.first_triangle] = true;
+      continue;
     }
+    const std::vector<std::uint32_t> piece = patch_layout::pieces(scene, chart, weld);
     for (std::size_t k = 0; k < piece.size(); ++k)
-      key[chart.triangles[k] - surface.first_triangle] = base | piece[k];
+      key[chart.triangles[k] - surface.first_triangle] = (std::uint64_t(c) << 32) | piece[k];
+  }
+  if (any_small) {
+    const EdgeUsers users = edge_users(scene, surface, weld);
+    std::map<std::tuple<long long, long long, long long>, std::uint64_t> small_cells;
+    for (const patch_layout::Chart& chart : charts) {
+      if (chart.kind != patch_layout::ChartKind::small) continue;
+      std::optional<std::uint64_t> k =
+          neighbour_piece(scene, surface, chart, key, small, users, weld);
+      if (!k) {
+        const Vec3 m = chart.centroid / size;
+        const auto cell = std::make_tuple(static_cast<long long>(std::floor(m.x)),
+                                          static_cast<long long>(std::floor(m.y)),
+                                          static_cast<long long>(std::floor(m.z)));
+        k = small_cells.emplace(cell, (charts.size() + small_cells.size()) << 32).first->second;
+      }
+      for (std::uint32_t t : chart.triangles) key[t - surface.first_triangle] = *k;
+    }
   }
   std::vector<std::vector<std::uint32_t>> groups;
   std::unordered_map<std::uint64_t, std::size_t> group_of_key;

@@ -11,6 +11,7 @@
 #include "hearthray/render.hpp"
 #include "hearthray/thermal_report.hpp"
 #include "hearthray/units.hpp"
+#include "pictures/canvas.hpp"
 #include "pictures/line_chart.hpp"
 
 namespace hearthray {
@@ -182,7 +183,7 @@ std::string firing_report_json(const FiringResult& r, const FiringInput& in) {
 Picture firing_temperature_picture(const FiringResult& r, const std::string& title) {
   pictures::LineChart chart;
   chart.title = title;
-  chart.subtitle = outcome(r);
+  chart.subtitle = pictures::sentence_case(outcome(r));
   chart.x_label = "time in h";
   chart.y_label = "temperature in °C";
   pictures::ChartSeries set{"set point", {}, {}, kGuide, true};
@@ -212,7 +213,7 @@ Picture firing_power_picture(const FiringResult& r, const FiringInput& in,
                              const std::string& title) {
   pictures::LineChart chart;
   chart.title = title;
-  chart.subtitle = "controller: PI, proportional band " + rounded("%.3g K", in.band_K) +
+  chart.subtitle = "Controller: PI, proportional band " + rounded("%.3g K", in.band_K) +
                    ", integral time " + rounded("%.3g min", in.integral_s / 60);
   chart.x_label = "time in h";
   chart.y_label = "heating power in kW";
