@@ -8,6 +8,7 @@
 #include <filesystem>
 #include <string>
 
+#include "core/text.hpp"
 #include "hearthray/client_report.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/picture.hpp"
@@ -92,7 +93,9 @@ TEST_CASE("client report escapes every text it is given", "[client-report]") {
   CHECK_THAT(html, Catch::Contains("&lt;img src=x onerror=alert(1)&gt;"));
   CHECK_THAT(html, Catch::Contains("bell\xEF\xBF\xBDhere"));  // BEL is not allowed in HTML
   CHECK(html.find('\x07') == std::string::npos);
-  CHECK(html_escape("a<b>&\"'\tc\n") == "a&lt;b&gt;&amp;&quot;&#39;\tc\n");
+  // The one escape of the library (core/text.hpp), shared with the VTU writer.
+  CHECK(markup_escape("a<b>&\"'\tc\n") == "a&lt;b&gt;&amp;&quot;&#39;\tc\n");
+  CHECK(markup_escape("\x01\x7f\xC3\xA9") == "\xEF\xBF\xBD\xEF\xBF\xBD\xC3\xA9");  // UTF-8 kept
 }
 
 TEST_CASE("client report embeds its pictures and fetches nothing", "[client-report]") {
@@ -145,4 +148,12 @@ TEST_CASE("client report is written whole and refuses what it cannot embed", "[c
   }
   // The same report, the same bytes.
   CHECK(client_report_html(r) == client_report_html(sample_report(dir)));
+}
+
+TEST_CASE("lists of names read as sentences", "[client-report]") {
+  // Common practice in English prose, no source.
+  CHECK(join_and({}).empty());
+  CHECK(join_and({"a"}) == "a");
+  CHECK(join_and({"a", "b"}) == "a and b");
+  CHECK(join_and({"a", "b", "c"}) == "a, b and c");
 }

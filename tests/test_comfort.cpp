@@ -274,6 +274,34 @@ TEST_CASE("comfort and compare commands run end to end", "[comfort]") {
   CHECK_THAT(r.err, Catch::Contains("no [comfort] table"));
 }
 
+TEST_CASE("comfort and compare exit 5 when the scene's ray target is missed", "[comfort]") {
+  ScratchDir dir("comfort-target");
+  write_text(dir / "cube.obj", unit_cube_obj());
+  // The cube's face-to-face factor is 0.2 (Howell's catalogue), so 16384 rays per face leave a
+  // standard error near sqrt(0.2 x 0.8 / 16384) = 0.003: a target of 1e-5 is out of reach
+  // within that cap, one of 0.05 is met by the first round.
+  auto scene = [&](const char* name, const char* target) {
+    write_text(dir / name, std::string("[mesh]\nfile = \"cube.obj\"\nunit = \"m\"\n[rays]\n") +
+                               "target_error = " + target +
+                               "\nmax_per_patch = 16384\n[defaults]\n" +
+                               "emissivity = 1.0\ntemperature = \"20 C\"\n" + kGoodComfort);
+    return "'" + (dir / name).string() + "'";
+  };
+  const std::string missed = scene("missed.toml", "1e-5"), met = scene("met.toml", "0.05");
+  CliResult r = run_cli("comfort " + missed + " -q -o '" + (dir / "out").string() + "'", dir);
+  CHECK(r.status == 5);
+  CHECK_THAT(r.err, Catch::Contains("ray target NOT reached") && Catch::Contains("ray cap"));
+  CHECK(std::filesystem::exists(dir / "out" / "report.html"));  // outputs of the last round
+  r = run_cli("comfort " + met, dir);
+  CHECK(r.status == 0);
+  CHECK_THAT(r.out, Catch::Contains("ray target: reached"));
+  r = run_cli("compare " + met + " " + missed + " -q", dir);
+  CHECK(r.status == 5);
+  CHECK_THAT(r.err, Catch::Contains("missed.toml: ray target NOT reached"));
+  CHECK_THAT(r.err, !Catch::Contains("met.toml:"));
+  CHECK(run_cli("compare " + met + " " + met + " -q", dir).status == 0);
+}
+
 TEST_CASE("comfort cautions say by their kind which are general", "[comfort]") {
   // Unit cube: every surface comes down to 1 m or lower, within the 2 m reach of the
   // cautions. The roof at 80 C is hot to touch; nothing is glass. (Own case, no source.)

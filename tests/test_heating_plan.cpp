@@ -117,6 +117,12 @@ TEST_CASE("size prints the power per layout, ranks them and writes the report",
   const std::string html = slurp(dir / "out" / "report.html");
   CHECK_THAT(html, Catch::Contains("data:image/png;base64,"));
   CHECK_THAT(html, Catch::Contains("burn"));
+  // The title counts the layouts, the line below names them; the report's temperatures are in
+  // degrees Celsius kept with their numbers; the first table ranks the layouts by power.
+  CHECK_THAT(html, Catch::Contains("<h1>Radiant heating plan: 2 layouts compared</h1>"));
+  CHECK_THAT(html, Catch::Contains("Layouts a and b. Target: operative temperature "
+                                   "20.0\u00a0\u00b0C at chair."));
+  CHECK_THAT(html, Catch::Contains("rank by power"));
   // One target, given once.
   CHECK(run_cli("size " + scenes + "' -q", dir).status == 2);
   CHECK(run_cli("size " + scenes + "' --operative 20 --pmv -0.5,0.5 -q", dir).status == 2);

@@ -62,8 +62,4 @@ void write_client_report(const ClientReport& report, const std::filesystem::path
 // keep it elsewhere.
 std::string client_report_html(const ClientReport& report);
 
-// Text made safe for HTML text and attribute values: & < > " ' as character references, and
-// control characters other than tab and newline (which HTML does not allow) as U+FFFD.
-std::string html_escape(const std::string& text);
-
 }  // namespace hearthray

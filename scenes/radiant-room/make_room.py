@@ -148,10 +148,11 @@ PANEL_GROUP = """
 offset = ["{dx:g} m", "{dy:g} m", "{dz:g} m"]
 """
 
-# The planner's variant of each layout (plan-a.toml, plan-b.toml for hearthray size): the same
-# mesh, but the room air is solved from its heat balance instead of held at 20 C -- every film
-# exchanges with "room_air", outside air comes in at 0.5 air changes per hour, people and
-# appliances give 100 W -- and PMV is figured for a seated person in winter clothing.
+# The planner's variant of each layout (plan-a.toml, plan-b.toml, plan-c.toml for hearthray
+# size): the same mesh and panels, but the room air is solved from its heat balance instead of
+# held at 20 C -- every film exchanges with "room_air", outside air comes in at 0.5 air changes
+# per hour, people and appliances give 100 W -- and PMV is figured for a seated person in
+# winter clothing.
 # Derived from SCENE by the replacements below, so both stay in step.
 PLAN_REPLACE = [
     ("(-5 C outside, air held at 20 C)",
@@ -249,8 +250,11 @@ def main():
                          for k, (x, y) in enumerate(layout["centres"]))
         dx, dy, dz = layout["offset"]
         blocks += PANEL_GROUP.format(dx=dx, dy=dy, dz=dz)
+        text = SCENE.format(mesh="room-bare.obj", title=layout["title"], panels=blocks)
         with open(os.path.join(here, f"{name}.toml"), "w") as f:
-            f.write(SCENE.format(mesh="room-bare.obj", title=layout["title"], panels=blocks))
+            f.write(text)
+        with open(os.path.join(here, name.replace("layout", "plan") + ".toml"), "w") as f:
+            f.write(plan_scene(text))
 
 
 if __name__ == "__main__":

@@ -268,9 +268,11 @@ int run_comfort_command(const ComfortArgs& args) {
   if (!args.rays.quiet) {
     std::cout << "hearthray comfort " << input << "\n";
     std::cout << cache_log_line(r.solved.run) << "\n";
+    if (r.solved.run.target.used) std::cout << target_line(r.solved.run) << "\n";
   }
   print_report(std::cout, r);
-  if (args.output_dir.empty()) return 0;
+  // A ray target missed: exit 5 as solve does, after the outputs of the last round.
+  if (args.output_dir.empty()) return target_status(r.solved.run);
 
   OutputFolder out(args.output_dir);
   std::vector<std::string> files = {"comfort.csv", "comfort.txt"};
@@ -299,7 +301,7 @@ int run_comfort_command(const ComfortArgs& args) {
     for (std::size_t k = 0; k < files.size(); ++k) std::cout << (k ? ", " : "") << files[k];
     std::cout << "\n";
   }
-  return 0;
+  return target_status(r.solved.run);
 }
 
 int run_compare_command(const ComfortArgs& args) {
@@ -383,7 +385,9 @@ int run_compare_command(const ComfortArgs& args) {
     write_manifest(out, folder_manifest("compare", args.inputs, files));
     std::cout << "client report: " << (fs::path(out.target()) / "report.html").string() << "\n";
   }
-  return 0;
+  // A ray target missed in any scene: exit 5 as solve does (each named in a warning).
+  return targets_status(runs, args.inputs,
+                        [](const ComfortRun& r) -> const FactorRun& { return r.solved.run; });
 }
 
 }  // namespace hearthray::cli

@@ -6,7 +6,6 @@
 #include <filesystem>
 #include <iostream>
 #include <nlohmann/json.hpp>
-#include <numeric>
 
 #include "commands.hpp"
 #include "core/text.hpp"
@@ -73,13 +72,7 @@ void print_plan(std::ostream& out, const std::string& name, const SizedLayout& l
 
 void print_ranking(std::ostream& out, const std::vector<SizedLayout>& layouts,
                    const std::vector<std::string>& names) {
-  std::vector<std::size_t> order(layouts.size());
-  std::iota(order.begin(), order.end(), std::size_t(0));
-  std::stable_sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) {
-    const HeatingPlan &pa = layouts[a].plan, &pb = layouts[b].plan;
-    if (pa.reached != pb.reached) return pa.reached;
-    return pa.power_W < pb.power_W;
-  });
+  const std::vector<std::size_t> order = rank_by_power(layouts);
   out << "\nranked by the power they need:\n";
   for (std::size_t r = 0; r < order.size(); ++r) {
     const HeatingPlan& p = layouts[order[r]].plan;
@@ -125,12 +118,17 @@ int run_size_command(const SizeArgs& args) {
     std::cout << "  " << v.what << ": " << v.source << "\n";
   std::cout << "\ncautions:\n";
   for (const std::string& c : size_cautions(layouts, names)) std::cout << "  - " << c << "\n";
-  if (args.output_dir.empty()) return 0;
+  // A ray target missed in any layout: exit 5 as solve does, after the outputs.
+  auto ray_target_status = [&] {
+    return targets_status(layouts, args.inputs,
+                          [](const SizedLayout& l) -> const FactorRun& { return l.scene.run; });
+  };
+  if (args.output_dir.empty()) return ray_target_status();
   OutputFolder out(args.output_dir);  // written whole: see output_folder.hpp
   std::vector<std::string> files = write_size_outputs(out.folder(), target, layouts, names);
   write_manifest(out, folder_manifest("size", args.inputs, files));
   std::cout << "\nwrote " << out.target() << ": " << join_at_most(files, 12) << "\n";
-  return 0;
+  return ray_target_status();
 }
 
 }  // namespace hearthray::cli

@@ -201,9 +201,9 @@ std::string target_line(const FactorRun& run) {
          std::to_string(t.rays_all_rounds) + " rays in all";
 }
 
-int target_status(const FactorRun& run) {
+int target_status(const FactorRun& run, const std::string& scene) {
   if (!run.target.used || run.target.reached()) return 0;
-  std::cerr << "warning: " << target_line(run)
+  std::cerr << "warning: " << (scene.empty() ? "" : scene + ": ") << target_line(run)
             << "; the results are those of the last round, with the errors reported\n";
   return kExitTargetNotReached;
 }

@@ -60,9 +60,18 @@ void print_no_cache_folder(const FactorRun& run);
 // rays used, e.g. "ray target: reached, largest standard error 0.00087 (wanted 0.001) with
 // 65536 rays per patch; rounds of 8192, 65536 rays per patch". "" without a target.
 std::string target_line(const FactorRun& run);
-// After a run with a target that was not reached: a warning on stderr (always, even quiet).
-// Returns the exit status for it: kExitTargetNotReached, or 0.
-int target_status(const FactorRun& run);
+// After a run with a target that was not reached: a warning on stderr (always, even quiet),
+// naming `scene` when given (commands of several scenes). Returns the exit status for it:
+// kExitTargetNotReached, or 0.
+int target_status(const FactorRun& run, const std::string& scene = "");
+// The worst of target_status over several runs (each warned about): 5 when any missed.
+template <typename Runs, typename Get>
+int targets_status(const Runs& runs, const std::vector<std::string>& scenes, Get run_of) {
+  int status = 0;
+  for (std::size_t k = 0; k < scenes.size(); ++k)
+    if (const int s = target_status(run_of(runs[k]), scenes[k])) status = s;
+  return status;
+}
 
 // The report fields for the JSON output.
 FactorReportInfo report_info(const SceneFile& file, const FactorRun& run);

@@ -2,8 +2,10 @@
 #include "size_report.hpp"
 
 #include <algorithm>
+#include <cctype>
 #include <cmath>
 #include <map>
+#include <numeric>
 
 #include "common.hpp"
 #include "core/text.hpp"
@@ -19,6 +21,32 @@ namespace fs = std::filesystem;
 
 std::string celsius(double K) {
   return rounded("%.1f C", K - kZeroCelsius);
+}
+
+// The report's words for what the terminal says in ASCII: "20.5 C" becomes "20.5 °C" with a
+// no-break space (a digit, a space, C, then no letter), so that no line breaks before the unit.
+std::string degrees(std::string text) {
+  for (std::size_t at = text.find(" C"); at != std::string::npos; at = text.find(" C", at + 1)) {
+    const bool number = at > 0 && std::isdigit(static_cast<unsigned char>(text[at - 1]));
+    const bool word_ends =
+        at + 2 == text.size() || !std::isalpha(static_cast<unsigned char>(text[at + 2]));
+    if (number && word_ends) text.replace(at, 2, "\u00a0\u00b0C");
+  }
+  return text;
+}
+
+void degrees_in(ReportSection* s) {
+  s->heading = degrees(s->heading);
+  for (std::string& p : s->paragraphs) p = degrees(p);
+  for (ReportTable& t : s->tables) {
+    t.caption = degrees(t.caption);
+    for (std::string& h : t.header) h = degrees(h);
+    for (auto& row : t.rows)
+      for (std::string& cell : row) cell = degrees(cell);
+  }
+  for (ReportVerdict& v : s->verdicts)
+    v.what = degrees(v.what), v.detail = degrees(v.detail), v.source = degrees(v.source);
+  for (ReportFigure& f : s->figures) f.caption = degrees(f.caption);
 }
 
 // Electric radiant panels: the hazards a planner hands on (issue 12's caution).
@@ -92,8 +120,11 @@ ReportTable summary_table(const std::vector<SizedLayout>& layouts,
                           const std::vector<std::string>& names) {
   ReportTable t;
   t.caption = "Power needed and comfort at that power, per layout";
-  t.header = {"layout",        "power needed",    "scene's power", "air", "operative temperature",
-              "hottest panel", "verdicts not met"};
+  t.header = {"layout",        "power needed",     "scene's power", "air", "operative temperature",
+              "hottest panel", "verdicts not met", "rank by power"};
+  std::vector<std::size_t> rank(layouts.size());
+  const std::vector<std::size_t> order = rank_by_power(layouts);
+  for (std::size_t r = 0; r < order.size(); ++r) rank[order[r]] = r + 1;
   for (std::size_t k = 0; k < layouts.size(); ++k) {
     const HeatingPlan& p = layouts[k].plan;
     const ComfortSummary s = summarise_comfort(p.points);
@@ -104,7 +135,8 @@ ReportTable summary_table(const std::vector<SizedLayout>& layouts,
                       p.room_air ? celsius(p.room_air->air_K) + " (solved)"
                                  : celsius(layouts[k].scene.file.comfort->air_K) + " (given)",
                       celsius(s.operative_K.min) + " to " + celsius(s.operative_K.max),
-                      celsius(heater_max_K(p)), std::to_string(failed)});
+                      celsius(heater_max_K(p)), std::to_string(failed),
+                      p.reached ? std::to_string(rank[k]) : "-"});
   }
   return t;
 }
@@ -122,10 +154,13 @@ ReportTable points_table(const HeatingPlan& p) {
          celsius(c.operative_K),
          rounded("%.1f K", c.vertical.delta_K) + " (" + to_string(c.vertical.kind) + ")",
          rounded("%.1f K", c.horizontal.delta_K) + " (" + to_string(c.horizontal.kind) + ")",
-         c.pmv ? rounded("%+.2f", c.pmv->pmv) : "-", c.pmv ? rounded("%.1f %%", c.pmv->ppd) : "-"});
+         c.pmv ? rounded("%+.2f", c.pmv->pmv) : "-",
+         c.pmv ? rounded("%.1f\u00a0%%", c.pmv->ppd) : "-"});  // no break before the %
   }
   return t;
 }
+
+constexpr const char* kNotAssessed = "not assessed: ";
 
 ReportSection layout_section(const std::string& name, const SizedLayout& l,
                              const std::vector<fs::path>& maps) {
@@ -137,7 +172,7 @@ ReportSection layout_section(const std::string& name, const SizedLayout& l,
                          " (" + std::to_string(p.solves) + " solves; the scene file gives " +
                          rounded("%.0f W", p.scene_power_W) + "). At that power: " + state_line(l) +
                          ".");
-  s.paragraphs.push_back("On the maps the heaters are drawn white with a dark rim.");
+  s.paragraphs.push_back("On the maps each heater is outlined by a white line with a dark rim.");
   ReportTable heaters;
   heaters.caption = "Heaters at the power needed";
   heaters.header = {"surface", "power", "surface temperature"};
@@ -149,8 +184,14 @@ ReportSection layout_section(const std::string& name, const SizedLayout& l,
   }
   s.tables = {heaters, points_table(p)};
   for (const ComfortVerdict& v : p.verdicts) {
-    if (!v.assessed) {
-      s.paragraphs.push_back(v.what + ": " + v.detail + " (limit: " + v.source + ").");
+    if (!v.assessed) {  // e.g. "not assessed: the model has one well-mixed ..."
+      std::string why = v.detail.rfind(kNotAssessed, 0) == 0
+                            ? v.detail.substr(std::string(kNotAssessed).size())
+                            : v.detail;
+      if (!why.empty())
+        why[0] = static_cast<char>(std::toupper(static_cast<unsigned char>(why[0])));
+      s.paragraphs.push_back("Not assessed: " + v.what + ". " + why + ". The limit: " + v.source +
+                             ".");
       continue;
     }
     s.verdicts.push_back({name + ": " + v.what, v.pass, v.detail, v.source});
@@ -178,7 +219,7 @@ std::vector<std::string> assumptions(const std::vector<SizedLayout>& layouts) {
           : "The heaters' powers are scaled together: each panel keeps its share of the "
             "layout's total. The least total power is the smallest that meets the target; "
             "other splits between panels are not searched.",
-      std::string(kSizeMethod) + ".",
+      "M" + std::string(kSizeMethod).substr(1) + ".",
       "Limits and curves of ISO 7730:2005 and ASHRAE 55 as recalled from memory; check them "
       "against the printed standards before relying on them."};
   const SizedLayout& first = layouts.front();
@@ -188,8 +229,8 @@ std::vector<std::string> assumptions(const std::vector<SizedLayout>& layouts) {
         "Room air: one well-mixed temperature solved from its heat balance (convection "
         "from every surface, outside air at " +
         celsius(in.outside_K) + ", " + rounded("%.3g", first.plan.room_air->flow_m3_s * 3600) +
-        " m3/h, gains " + rounded("%.0f W", in.gains_W) + ", air density " +
-        rounded("%.3g kg/m3", in.density) + ", heat capacity " +
+        " m\u00b3/h, gains " + rounded("%.0f W", in.gains_W) + ", air density " +
+        rounded("%.3g kg/m\u00b3", in.density) + ", heat capacity " +
         rounded("%.4g J/(kg K)", in.heat_capacity) + ").");
   }
   if (const auto& person = first.scene.file.comfort->person)
@@ -201,6 +242,17 @@ std::vector<std::string> assumptions(const std::vector<SizedLayout>& layouts) {
 }
 
 }  // namespace
+
+std::vector<std::size_t> rank_by_power(const std::vector<SizedLayout>& layouts) {
+  std::vector<std::size_t> order(layouts.size());
+  std::iota(order.begin(), order.end(), std::size_t(0));
+  std::stable_sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) {
+    const HeatingPlan &pa = layouts[a].plan, &pb = layouts[b].plan;
+    if (pa.reached != pb.reached) return pa.reached;
+    return pa.power_W < pb.power_W;
+  });
+  return order;
+}
 
 std::string state_line(const SizedLayout& l) {
   const ComfortSummary s = summarise_comfort(l.plan.points);
@@ -247,14 +299,20 @@ std::vector<std::string> write_size_outputs(const fs::path& dir, const HeatingTa
   }
   files.push_back("sizing.csv");
   ClientReport report;
-  report.title = "Radiant heating plan: " + join(names);
-  report.subtitle = "Target: " + describe(target) + ".";
+  // Names in the title for one layout; for more, a count (names such as "plan-a" would break
+  // at their hyphens in a long heading) and the names in the subtitle.
+  report.title =
+      "Radiant heating plan: " +
+      (names.size() == 1 ? names[0] : std::to_string(names.size()) + " layouts compared");
+  report.subtitle = (names.size() == 1 ? "" : "Layouts " + join_and(names) + ". ") +
+                    "Target: " + describe(target) + ".";
   ReportSection summary;
   summary.heading = "Power needed per layout";
   summary.paragraphs.push_back(
       "For each layout, the least total heater power that meets the target, and the comfort "
-      "verdicts at that power. Layouts are listed in the order given; the table ranks nothing "
-      "by itself: compare the power and the verdicts not met.");
+      "verdicts at that power, in the order given; the last column ranks them by the power they "
+      "need (a layout that misses the target is not ranked). The least power is not the whole "
+      "answer: weigh it against the verdicts not met.");
   summary.tables.push_back(summary_table(layouts, names));
   report.sections.push_back(summary);
   for (std::size_t k = 0; k < layouts.size(); ++k) {
@@ -274,6 +332,10 @@ std::vector<std::string> write_size_outputs(const fs::path& dir, const HeatingTa
   }
   report.assumptions = assumptions(layouts);
   report.cautions = size_cautions(layouts, names);
+  report.subtitle = degrees(report.subtitle);
+  for (ReportSection& s : report.sections) degrees_in(&s);
+  for (std::string& a : report.assumptions) a = degrees(a);
+  for (std::string& c : report.cautions) c = degrees(c);
   write_client_report(report, dir / "report.html");
   files.push_back("report.html");
   return files;

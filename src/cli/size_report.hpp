@@ -27,6 +27,10 @@ inline constexpr const char* kSizeMethod =
 // "air 19.6 C (solved: ventilation 231 W, gains 150 W); panels up to 61.2 C; t_o 20.4 to 21.6 C"
 std::string state_line(const SizedLayout& layout);
 
+// The layouts' indices from the least power needed to the most; layouts that do not reach the
+// target come last (stable: equal powers keep the order given).
+std::vector<std::size_t> rank_by_power(const std::vector<SizedLayout>& layouts);
+
 // The cautions for the layouts: each layout's own (hot surfaces within reach, glass near
 // heat), named, then the general ones once, and the electrical panels' caution.
 std::vector<std::string> size_cautions(const std::vector<SizedLayout>& layouts,

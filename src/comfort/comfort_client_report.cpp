@@ -248,10 +248,14 @@ ClientReport compare_client_report(const std::vector<ComfortReportInput>& runs,
     names.push_back(run.name);
     pointers.push_back(&run);
   }
-  r.title = "Radiant comfort: " + join(names, " against ");
-  r.subtitle =
-      "Layouts compared side by side, each solved and traced alike; maps of one "
-      "quantity share one colour range, so equal colours mean equal values.";
+  // Two names read as "a against b"; past two, the title counts them and the subtitle names
+  // them ("a against b against c" does not read as a comparison of three).
+  r.title =
+      "Radiant comfort: " + (names.size() < 3 ? join(names, " against ")
+                                              : std::to_string(names.size()) + " layouts compared");
+  r.subtitle = (names.size() < 3 ? std::string("Layouts") : "Layouts " + join_and(names)) +
+               " compared side by side, each solved and traced alike; maps of one quantity "
+               "share one colour range, so equal colours mean equal values.";
   ReportSection summary;
   summary.heading = "Side by side";
   summary.paragraphs.push_back(

@@ -32,6 +32,43 @@ std::string join(const std::vector<std::string>& items, const std::string& separ
   return out;
 }
 
+std::string join_and(const std::vector<std::string>& items) {
+  if (items.size() < 2) return join(items);
+  const std::vector<std::string> head(items.begin(), items.end() - 1);
+  return join(head) + " and " + items.back();
+}
+
+std::string markup_escape(const std::string& text) {
+  std::string out;
+  out.reserve(text.size());
+  for (const char ch : text) {
+    const auto c = static_cast<unsigned char>(ch);
+    switch (ch) {
+      case '&':
+        out += "&amp;";
+        break;
+      case '<':
+        out += "&lt;";
+        break;
+      case '>':
+        out += "&gt;";
+        break;
+      case '"':
+        out += "&quot;";
+        break;
+      case '\'':
+        out += "&#39;";
+        break;
+      default:
+        if ((c < 0x20 && ch != '\n' && ch != '\t') || c == 0x7f)
+          out += "\xEF\xBF\xBD";  // U+FFFD
+        else
+          out += ch;
+    }
+  }
+  return out;
+}
+
 std::string join_at_most(const std::vector<std::string>& items, std::size_t most) {
   const std::vector<std::string> shown(
       items.begin(), items.begin() + std::ptrdiff_t(std::min(most, items.size())));

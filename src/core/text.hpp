@@ -30,6 +30,9 @@ std::string join(const std::vector<std::string>& items, const std::string& separ
 // "a, b, c, d, e and 3 more": the first `most` items, then how many were left out.
 std::string join_at_most(const std::vector<std::string>& items, std::size_t most);
 
+// A list in a sentence: "a", "a and b", "a, b and c".
+std::string join_and(const std::vector<std::string>& items);
+
 // Columns of a terminal table: UTF-8 text counted in characters (one column each).
 std::size_t display_width(const std::string& utf8);
 
@@ -52,5 +55,11 @@ class TextTable {
   std::vector<Column> columns_;
   std::vector<std::vector<std::string>> rows_;
 };
+
+// Text made safe inside HTML and XML, as element text or a quoted attribute value (the client
+// report, VTU array names): & < > " ' as character references, and the control characters
+// neither allows (all below U+0020 but tab and newline, and DEL) as U+FFFD. Other bytes,
+// UTF-8 included, pass unchanged.
+std::string markup_escape(const std::string& text);
 
 }  // namespace hearthray

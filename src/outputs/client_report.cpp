@@ -9,6 +9,7 @@
 #include <fstream>
 #include <sstream>
 
+#include "core/text.hpp"
 #include "hearthray/error.hpp"
 #include "hearthray/version.hpp"
 #include "outputs/atomic_file.hpp"
@@ -106,13 +107,13 @@ void write_table(std::ostream& out, const ReportTable& t, Counters* n) {
   for (const auto& row : t.rows) columns = std::max(columns, row.size());
   const std::vector<bool> numeric = numeric_columns(t, columns);
   auto cell = [&](const char* tag, std::size_t c, const std::string& text) {
-    out << "<" << tag << (numeric[c] ? " class=\"num\">" : ">") << html_escape(text) << "</" << tag
-        << ">";
+    out << "<" << tag << (numeric[c] ? " class=\"num\">" : ">") << markup_escape(text) << "</"
+        << tag << ">";
   };
   out << "<table>\n";
   if (!t.caption.empty())
     out << "<caption><span class=\"label\">Table " << ++n->table << ".</span> "
-        << html_escape(t.caption) << "</caption>\n";
+        << markup_escape(t.caption) << "</caption>\n";
   if (!t.header.empty()) {
     out << "<thead><tr>";
     for (std::size_t c = 0; c < columns; ++c) cell("th", c, c < t.header.size() ? t.header[c] : "");
@@ -135,9 +136,9 @@ void write_verdicts(std::ostream& out, const std::vector<ReportVerdict>& verdict
   out << "<table class=\"verdicts\">\n<thead><tr><th>Check</th><th>Result</th><th>Detail</th>"
          "<th>Source</th></tr></thead>\n<tbody>\n";
   for (const ReportVerdict& v : verdicts)
-    out << "<tr class=\"" << (v.pass ? "pass" : "fail") << "\"><td>" << html_escape(v.what)
+    out << "<tr class=\"" << (v.pass ? "pass" : "fail") << "\"><td>" << markup_escape(v.what)
         << "</td><td class=\"result\"><span class=\"mark\">" << mark(v.pass) << "</span></td><td>"
-        << html_escape(v.detail) << "</td><td class=\"source\">" << html_escape(v.source)
+        << markup_escape(v.detail) << "</td><td class=\"source\">" << markup_escape(v.source)
         << "</td></tr>\n";
   out << "</tbody></table>\n";
 }
@@ -145,15 +146,15 @@ void write_verdicts(std::ostream& out, const std::vector<ReportVerdict>& verdict
 void write_figure(std::ostream& out, const ReportFigure& f, Counters* n) {
   const int number = ++n->figure;
   out << "<figure><img src=\"" << image_uri(f.image) << "\" alt=\"Figure " << number;
-  if (!f.caption.empty()) out << ": " << html_escape(f.caption);
+  if (!f.caption.empty()) out << ": " << markup_escape(f.caption);
   out << "\">\n<figcaption><span class=\"label\">Figure " << number << ".</span> "
-      << html_escape(f.caption) << "</figcaption></figure>\n";
+      << markup_escape(f.caption) << "</figcaption></figure>\n";
 }
 
 void write_section(std::ostream& out, const ReportSection& s, std::size_t index, Counters* n) {
   out << "<section id=\"s" << index + 1 << "\">\n<h2><span class=\"number\">" << index + 1
-      << "</span>" << html_escape(s.heading) << "</h2>\n";
-  for (const std::string& p : s.paragraphs) out << "<p>" << html_escape(p) << "</p>\n";
+      << "</span>" << markup_escape(s.heading) << "</h2>\n";
+  for (const std::string& p : s.paragraphs) out << "<p>" << markup_escape(p) << "</p>\n";
   if (!s.verdicts.empty()) write_verdicts(out, s.verdicts);
   for (const ReportTable& t : s.tables) write_table(out, t, n);
   for (const ReportFigure& f : s.figures) write_figure(out, f, n);
@@ -166,54 +167,22 @@ void write_glance(std::ostream& out, const ClientReport& r) {
   for (std::size_t k = 0; k < r.sections.size(); ++k)
     for (const ReportVerdict& v : r.sections[k].verdicts)
       items << "<li class=\"" << (v.pass ? "pass" : "fail") << "\"><span class=\"mark\">"
-            << mark(v.pass) << "</span>" << html_escape(v.what) << " <a class=\"where\" href=\"#s"
-            << k + 1 << "\">(" << k + 1 << " " << html_escape(r.sections[k].heading)
-            << ")</a></li>\n";
+            << mark(v.pass) << "</span>" << markup_escape(v.what) << " <a class=\"where\" href=\"#s"
+            << k + 1 << "\">(section " << k + 1 << ")</a></li>\n";
   if (items.str().empty()) return;
   out << "<div class=\"glance\">\n<h2>At a glance</h2>\n<ul>\n" << items.str() << "</ul>\n</div>\n";
 }
 
 }  // namespace
 
-std::string html_escape(const std::string& text) {
-  std::string out;
-  out.reserve(text.size());
-  for (const char ch : text) {
-    const unsigned char c = (unsigned char)ch;
-    switch (ch) {
-      case '&':
-        out += "&amp;";
-        break;
-      case '<':
-        out += "&lt;";
-        break;
-      case '>':
-        out += "&gt;";
-        break;
-      case '"':
-        out += "&quot;";
-        break;
-      case '\'':
-        out += "&#39;";
-        break;
-      default:
-        if ((c < 0x20 && ch != '\n' && ch != '\t') || c == 0x7f)
-          out += "\xEF\xBF\xBD";  // U+FFFD
-        else
-          out += ch;
-    }
-  }
-  return out;
-}
-
 std::string client_report_html(const ClientReport& r) {
   std::ostringstream out;
   out << "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
       << "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n"
-      << "<title>" << html_escape(r.title) << "</title>\n<style>" << kClientReportStyle
-      << "</style>\n</head>\n<body>\n<div class=\"page\">\n<header>\n<h1>" << html_escape(r.title)
+      << "<title>" << markup_escape(r.title) << "</title>\n<style>" << kClientReportStyle
+      << "</style>\n</head>\n<body>\n<div class=\"page\">\n<header>\n<h1>" << markup_escape(r.title)
       << "</h1>\n";
-  if (!r.subtitle.empty()) out << "<p class=\"subtitle\">" << html_escape(r.subtitle) << "</p>\n";
+  if (!r.subtitle.empty()) out << "<p class=\"subtitle\">" << markup_escape(r.subtitle) << "</p>\n";
   out << "<p class=\"made-by\">Engineering estimate made with hearthray " << kVersion
       << "</p>\n</header>\n";
   write_glance(out, r);
@@ -221,12 +190,12 @@ std::string client_report_html(const ClientReport& r) {
   for (std::size_t k = 0; k < r.sections.size(); ++k) write_section(out, r.sections[k], k, &n);
   if (!r.assumptions.empty()) {
     out << "<section id=\"assumptions\">\n<h2>Assumptions</h2>\n<ol class=\"assumptions\">\n";
-    for (const std::string& a : r.assumptions) out << "<li>" << html_escape(a) << "</li>\n";
+    for (const std::string& a : r.assumptions) out << "<li>" << markup_escape(a) << "</li>\n";
     out << "</ol>\n</section>\n";
   }
   if (!r.cautions.empty()) {
     out << "<section id=\"cautions\" class=\"cautions\">\n<h2>Cautions</h2>\n<ul>\n";
-    for (const std::string& c : r.cautions) out << "<li>" << html_escape(c) << "</li>\n";
+    for (const std::string& c : r.cautions) out << "<li>" << markup_escape(c) << "</li>\n";
     out << "</ul>\n</section>\n";
   }
   out << "<footer>hearthray " << kVersion

@@ -23,29 +23,6 @@ struct FileCloser {
 };
 using File = std::unique_ptr<std::FILE, FileCloser>;
 
-std::string xml_escape(const std::string& text) {
-  std::string out;
-  for (char c : text) {
-    switch (c) {
-      case '&':
-        out += "&amp;";
-        break;
-      case '<':
-        out += "&lt;";
-        break;
-      case '>':
-        out += "&gt;";
-        break;
-      case '"':
-        out += "&quot;";
-        break;
-      default:
-        out += c;
-    }
-  }
-  return out;
-}
-
 // Text for an XML comment: "--" may not appear inside one.
 std::string comment_safe(const std::string& text) {
   std::string out;
@@ -144,7 +121,7 @@ void write_cell_data(std::FILE* f, const PatchSet& patches, const std::vector<Pa
   int_array("side", [&](std::uint32_t p) { return patches.patches[p].side == Side::back; });
   for (const PatchField& field : fields) {
     std::fprintf(f, "        <DataArray type=\"Float64\" Name=\"%s\" format=\"ascii\">\n",
-                 xml_escape(vtu_array_name(field)).c_str());
+                 markup_escape(vtu_array_name(field)).c_str());
     write_values(f, n_cells, [&](std::FILE* out, std::size_t i) {
       write_double(out, field.values[l.cell_patch[i]]);
     });
@@ -161,7 +138,7 @@ void write_field_data(std::FILE* f, const Scene& scene, const std::vector<VtuFla
     std::fprintf(f,
                  "      <DataArray type=\"Int32\" Name=\"%s\" NumberOfTuples=\"1\" "
                  "format=\"ascii\">%ld</DataArray>\n",
-                 xml_escape(flag.name).c_str(), static_cast<long>(flag.value));
+                 markup_escape(flag.name).c_str(), static_cast<long>(flag.value));
   std::fprintf(f,
                "      <DataArray type=\"String\" Name=\"surface_names\" NumberOfTuples=\"%zu\" "
                "format=\"ascii\">\n",

@@ -1,4 +1,5 @@
-"""The client reports of `comfort -o` and `compare -o`, read as a browser would first read them.
+"""The client reports of `comfort -o`, `compare -o` and `size -o`, read as a browser would first
+read them.
 
 Builds a small invented room (3 x 2.5 x 2.5 m, a window, one ceiling panel) whose panel and
 named point carry hostile names ('<b>&"x', '<img src=x onerror=alert(1)>'), runs the built
@@ -7,10 +8,12 @@ order (void elements aside), only the elements the writer uses (so a name never 
 markup), the sections expected, each picture a data: URI whose bytes are those of the map file
 written beside it, nothing fetched (no URL, no script), the hostile names present as text, the
 cautions naming burns, fire, carbon monoxide, local codes, the maker's instructions and
-licensed practice, and no temporary file left.
+licensed practice (the size report of electric panels: burns, anything that burns, local
+codes, the maker's instructions, licensed practice), and no temporary file left.
 
-With --browser SCRIPT it then runs scripts/check-report on the comfort report (chromium
-headless): exits 77 (ctest: skipped) when chromium is not installed.
+With --browser SCRIPT it then runs scripts/check-report (chromium headless) on the comfort
+report and on the size report of both layouts: each must give a screenshot that is not blank.
+Exits 77 (ctest: skipped) when chromium is not installed.
 
 usage: check_report_html.py HEARTHRAY SCRATCH_DIR OBJGEN_DIR [--browser CHECK_REPORT]
 """
@@ -118,7 +121,14 @@ def run(tool, args, scratch):
         sys.exit(f"hearthray {' '.join(args)} exited {p.returncode}:\n{p.stderr}")
 
 
-def check(path, maps, want_headings, failures):
+WORDS = (PANEL, POINT, "burn", "Fire", "carbon monoxide", "local", "maker's instructions",
+         "licensed")
+# Electric panels: no flue, no combustion; the hazards are burns and fire from what is near.
+SIZE_WORDS = (PANEL, POINT, "burn on contact", "anything that burns", "local electrical",
+              "maker's instructions", "licensed")
+
+
+def check(path, maps, want_headings, failures, words=WORDS):
     html = open(path, encoding="utf-8").read()
     r = Report()
     r.feed(html)
@@ -142,8 +152,7 @@ def check(path, maps, want_headings, failures):
             problems.append(f"picture not embedded as a PNG data: URI: {src[:40]}")
         elif base64.b64decode(src[len(head):]) != open(map_file, "rb").read():
             problems.append(f"embedded picture differs from {map_file}")
-    for word in (PANEL, POINT, "burn", "Fire", "carbon monoxide", "local", "maker's instructions",
-                 "licensed"):
+    for word in words:
         if word not in text:
             problems.append(f"'{word}' is not in the text")
     if "<script" in html.lower() or "http:" in html or "https:" in html:
@@ -165,6 +174,7 @@ def main():
     room(objgen_dir, scratch)
     run(tool, ["comfort", "a.toml", "-q", "-o", "one"], scratch)
     run(tool, ["compare", "a.toml", "b.toml", "-o", "both"], scratch)
+    run(tool, ["size", "a.toml", "b.toml", "--operative", "21", "-q", "-o", "sized"], scratch)
     kinds = ("mean_radiant", "operative", "asymmetry")
     failures = []
     one = os.path.join(scratch, "one")
@@ -176,14 +186,25 @@ def main():
           [os.path.join(both, f"{s}_map_{k}.png") for s in "ab" for k in kinds],
           ["a against b", "Side by side", "The room: a", "The room: b", "Comfort: b",
            "Cautions"], failures)
+    sized = os.path.join(scratch, "sized")
+    check(os.path.join(sized, "report.html"),
+          [os.path.join(sized, f"{s}_map_{k}.png") for s in "ab"
+           for k in ("operative", "mean_radiant", "asymmetry")],
+          ["Radiant heating plan: 2 layouts compared", "At a glance", "Power needed per layout",
+           "The room: a", "Power needed and comfort: a", "The room: b",
+           "Power needed and comfort: b", "Assumptions", "Cautions"], failures, SIZE_WORDS)
     for f in failures:
         print("FAILED:", f)
     if failures:
         sys.exit(1)
     if len(sys.argv) == 6 and sys.argv[4] == "--browser":
-        p = subprocess.run(["bash", sys.argv[5], "--height", "3400", os.path.join(one, "report.html"),
-                            os.path.join(scratch, "screenshot.png")])
-        sys.exit(p.returncode)
+        for report, height, shot in ((os.path.join(one, "report.html"), "3400", "screenshot.png"),
+                                     (os.path.join(sized, "report.html"), "7000", "sized.png")):
+            p = subprocess.run(["bash", sys.argv[5], "--height", height, report,
+                                os.path.join(scratch, shot)])
+            if p.returncode != 0:  # 77: chromium is not installed, the test is skipped
+                sys.exit(p.returncode)
+        sys.exit(0)
     print("client reports parse and hold what they should")
 
 
