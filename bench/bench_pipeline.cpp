@@ -2,10 +2,12 @@
 // the peak memory. The benchmark furnace (furnace_mesh.hpp, ~100k triangles) is cut into
 // patches of a given size, or one patch per triangle, traced with a given number of rays per
 // patch, smoothed, and solved with invented conditions: roof at 1250 C, walls and hearth with
-// a wall loss, billets adiabatic (a temperature per patch), burner tiles with a power.
+// a wall loss, billets adiabatic (a temperature per patch), burner tiles with a power; then
+// the per-patch fields (VTU) and the compressed matrix file (HDF5) are written.
 //
 // Usage: hearthray_bench_pipeline <patch size in m | triangles> [rays per patch] [threads]
 #include <sys/resource.h>
+#include <tbb/task_arena.h>
 #include <unistd.h>
 
 #include <chrono>
@@ -17,6 +19,7 @@
 #include <string>
 
 #include "furnace_mesh.hpp"
+#include "hearthray/io.hpp"
 #include "hearthray/pipeline.hpp"
 #include "hearthray/thermal_report.hpp"
 #include "hearthray/vtu.hpp"
@@ -99,6 +102,16 @@ int main(int argc, char** argv) {
   write_vtu((dir / "patches.vtu").string(), run.scene, run.patches, solve_fields(model, result));
   stages.done("write patches.vtu",
               std::to_string(fs::file_size(dir / "patches.vtu") / (1024 * 1024)) + " MiB");
+  {
+    // The matrix file as solve -o writes it (compressed on the benchmark's threads).
+    tbb::task_arena arena(threads > 0 ? threads : tbb::task_arena::automatic);
+    arena.execute([&] {
+      write_factors_hdf5((dir / "view_factors.h5").string(), model.factors, run.scene, run.patches,
+                         FactorReportInfo{});
+    });
+  }
+  stages.done("write view_factors.h5",
+              std::to_string(fs::file_size(dir / "view_factors.h5") / (1024 * 1024)) + " MiB");
   const double nonzeros = double(model.factors.F.nonZeros());
   std::printf(
       "  total %.1f s, peak memory %.2f GiB, %.1f bytes per stored non-zero of F "

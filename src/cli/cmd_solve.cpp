@@ -1,5 +1,8 @@
 // `hearthray solve`: scene -> view factors (traced, or from the cache) -> thermal model ->
 // exchange solve -> table and files.
+#include <tbb/task_arena.h>
+#include <tbb/task_group.h>
+
 #include <algorithm>
 #include <filesystem>
 #include <fstream>
@@ -68,32 +71,16 @@ SolveReportInfo solve_info(const SceneFile& file, const FactorRun& run, const Th
   return info;
 }
 
-// The output folder: view factors, per-patch fields, pictures, the surface table and the report.
-void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved, UnitSystem units) {
-  const SceneFile& file = solved.file;
+// Pictures of the temperature and the net radiative flux from the default view, each as PNG
+// and as SVG; the net flux, a signed quantity, on the diverging colour map. Returns the files.
+std::vector<std::string> write_solve_pictures(const SolveArgs& args, const SolvedScene& solved,
+                                              const std::vector<PatchField>& fields,
+                                              UnitSystem units, OutputFolder& out) {
   const FactorRun& run = solved.run;
-  const ThermalModel& model = solved.model;
-  const ExchangeResult& result = solved.result;
-  OutputFolder out(args.output_dir);
-  const FactorReportInfo factor_info = report_info(file, run);
-  SolveReportInfo info = solve_info(file, run, model, solved.warnings);
-  // Dense view-factor files for a few surfaces; for many patches only the sparse one.
-  const ViewFactors& used = solved.model.factors;  // as the exchange used them
-  const bool dense = used.size() <= kDenseFactorFileLimit;
-  const std::vector<std::string> factor_files =
-      dense ? std::vector<std::string>{"view_factors.csv", "view_factors.json"}
-            : std::vector<std::string>{args.matrix_text ? "view_factors.mtx" : "view_factors.h5"};
-  for (const std::string& name : factor_files)
-    write_factors_file(out.file(name), used, factor_info, &run.scene, &run.patches);
-  const std::vector<PatchField> fields = solve_fields(model, result);
-  write_vtu(out.file("patches.vtu"), run.scene, run.patches, fields,
-            {{"converged", result.status == ExchangeStatus::converged ? 1 : 0}});
-  write_patches_csv_file(out.file("patches.csv"), run.scene, run.patches);
-  info.files = {"surfaces.csv", "patches.vtu", "patches.csv"};
-  // Pictures of the temperature and the net radiative flux from the default view.
   const Tracer tracer(run.scene);
-  const std::string scene_name = fs::path(file.path).stem().string();
-  // Each as PNG and as SVG; the net flux, a signed quantity, on the diverging colour map.
+  const std::string scene_name = fs::path(solved.file.path).stem().string();
+  const bool converged = solved.result.status == ExchangeStatus::converged;
+  std::vector<std::string> files;
   for (const auto& [field_name, picture] :
        {std::pair<std::string, std::string>{"temperature", "temperature"},
         {"net radiative flux", "net_flux"}}) {
@@ -101,21 +88,69 @@ void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved, UnitS
       if (field.name != field_name) continue;
       RenderOptions options;
       options.threads = args.rays.threads;
-      options.title = solved_picture_title(field.name, shown_in(field, units).unit, scene_name,
-                                           result.status == ExchangeStatus::converged);
+      options.title =
+          solved_picture_title(field.name, shown_in(field, units).unit, scene_name, converged);
       options.diverging = field_name == "net radiative flux";
       const Picture drawn = render(run.scene, run.patches, tracer, shown_in(field, units), options);
       for (const char* extension : {".png", ".svg"}) {
         write_picture(out.file(picture + extension), drawn);
-        info.files.push_back(picture + extension);
+        files.push_back(picture + extension);
       }
     }
   }
-  info.files.insert(info.files.end(), factor_files.begin(), factor_files.end());
-  {
+  return files;
+}
+
+// The output folder: view factors, per-patch fields, pictures, the surface table and the report.
+// The view-factor file (at 100k patches a compressed matrix of hundreds of millions of entries)
+// is written by a task of its own on the run's threads while the other files are made; every
+// file has one writer, so the bytes do not depend on the threads.
+void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved, UnitSystem units) {
+  const FactorRun& run = solved.run;
+  const ThermalModel& model = solved.model;
+  const ExchangeResult& result = solved.result;
+  OutputFolder out(args.output_dir);
+  const FactorReportInfo factor_info = report_info(solved.file, run);
+  SolveReportInfo info = solve_info(solved.file, run, model, solved.warnings);
+  // Dense view-factor files for a few surfaces; for many patches only the sparse one.
+  const ViewFactors& used = solved.model.factors;  // as the exchange used them
+  const bool dense = used.size() <= kDenseFactorFileLimit;
+  const std::vector<std::string> factor_files =
+      dense ? std::vector<std::string>{"view_factors.csv", "view_factors.json"}
+            : std::vector<std::string>{args.matrix_text ? "view_factors.mtx" : "view_factors.h5"};
+  std::vector<std::string> factor_paths;
+  for (const std::string& name : factor_files) factor_paths.push_back(out.file(name));
+  tbb::task_arena arena(args.rays.threads > 0 ? args.rays.threads : tbb::task_arena::automatic);
+  tbb::task_group factor_writer;
+  arena.execute([&] {
+    factor_writer.run([&] {
+      for (const std::string& path : factor_paths)
+        write_factors_file(path, used, factor_info, &run.scene, &run.patches);
+    });
+  });
+  try {
+    const std::vector<PatchField> fields = solve_fields(model, result);
+    write_vtu(out.file("patches.vtu"), run.scene, run.patches, fields,
+              {{"converged", result.status == ExchangeStatus::converged ? 1 : 0}});
+    write_patches_csv_file(out.file("patches.csv"), run.scene, run.patches);
+    info.files = {"surfaces.csv", "patches.vtu", "patches.csv"};
+    const std::vector<std::string> pictures =
+        write_solve_pictures(args, solved, fields, units, out);
+    info.files.insert(info.files.end(), pictures.begin(), pictures.end());
+    info.files.insert(info.files.end(), factor_files.begin(), factor_files.end());
     std::ofstream csv = open_output(out.file("surfaces.csv"));
     write_surfaces_csv(csv, model, result, units);
+  } catch (...) {
+    // The writer refers to this frame: let it end; the error already thrown is the one told.
+    arena.execute([&] {
+      try {
+        factor_writer.wait();
+      } catch (...) {
+      }
+    });
+    throw;
   }
+  arena.execute([&] { factor_writer.wait(); });  // rethrows the writer's error
   {
     // Last: report.json names the files of its run.
     std::ofstream report = open_output(out.file(kManifestName));

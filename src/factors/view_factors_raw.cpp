@@ -1,6 +1,9 @@
 // Raw Monte Carlo view factors F_ij = hits_ij / N_i straight from the tallies, and the
 // binomial standard error of a factor. Also the consistency checks on tallies that every
 // consumer of them relies on.
+#include <tbb/blocked_range.h>
+#include <tbb/parallel_for.h>
+
 #include <algorithm>
 #include <cmath>
 #include <limits>
@@ -80,28 +83,40 @@ double ViewFactors::standard_error(std::size_t i, double f) const {
   return error_ratio.empty() ? binomial : binomial * error_ratio.at(i);
 }
 
+namespace {
+
+// Row r's replicate standard error over the binomial one (1 when it cannot be estimated).
+double row_error_ratio(const Tallies& t, std::size_t r) {
+  const std::uint64_t n = t.rays[r];
+  std::uint32_t replicates = 0;
+  for (std::uint32_t k = 0; k < kSobolReplicates; ++k)
+    replicates += replicate_first_ray(n, k + 1) > replicate_first_ray(n, k) ? 1 : 0;
+  if (replicates < 2) return 1.0;
+  const double R = replicates, N = static_cast<double>(n);
+  double spread = 0, binomial = 0;
+  auto add = [&](std::uint64_t count, double square) {
+    const double f = static_cast<double>(count) / N;
+    spread += std::max(0.0, square - R * f * f) / (R * (R - 1));
+    binomial += f * (1 - f) / N;
+  };
+  for (std::uint64_t k = t.hit_offset[r]; k < t.hit_offset[r + 1]; ++k)
+    add(t.hit_count[k], t.hit_square[k]);
+  add(t.escaped[r], t.escaped_square[r]);
+  add(t.back_face[r], t.back_face_square[r]);
+  return binomial > 0 ? std::clamp(std::sqrt(spread / binomial), 0.01, 100.0) : 1.0;
+}
+
+}  // namespace
+
 std::vector<double> replicate_error_ratio(const Tallies& t) {
   if (t.hit_square.empty()) return {};
   std::vector<double> ratio(t.rows(), 1.0);
-  for (std::size_t r = 0; r < t.rows(); ++r) {
-    const std::uint64_t n = t.rays[r];
-    std::uint32_t replicates = 0;
-    for (std::uint32_t k = 0; k < kSobolReplicates; ++k)
-      replicates += replicate_first_ray(n, k + 1) > replicate_first_ray(n, k) ? 1 : 0;
-    if (replicates < 2) continue;
-    const double R = replicates, N = static_cast<double>(n);
-    double spread = 0, binomial = 0;
-    auto add = [&](std::uint64_t count, double square) {
-      const double f = static_cast<double>(count) / N;
-      spread += std::max(0.0, square - R * f * f) / (R * (R - 1));
-      binomial += f * (1 - f) / N;
-    };
-    for (std::uint64_t k = t.hit_offset[r]; k < t.hit_offset[r + 1]; ++k)
-      add(t.hit_count[k], t.hit_square[k]);
-    add(t.escaped[r], t.escaped_square[r]);
-    add(t.back_face[r], t.back_face_square[r]);
-    if (binomial > 0) ratio[r] = std::clamp(std::sqrt(spread / binomial), 0.01, 100.0);
-  }
+  // Rows in parallel, each by itself: the same numbers for any thread count.
+  tbb::parallel_for(tbb::blocked_range<std::size_t>(0, t.rows(), 256),
+                    [&](const tbb::blocked_range<std::size_t>& rows) {
+                      for (std::size_t r = rows.begin(); r != rows.end(); ++r)
+                        ratio[r] = row_error_ratio(t, r);
+                    });
   return ratio;
 }
 

@@ -533,8 +533,9 @@ void measure_rows(const Problem& p, const Tallies& t, const ViewFactors& vf, Mea
   const Index* column = p.F.innerIndexPtr();
   const double* value = p.F.valuePtr();
   std::vector<double> row_error(blocks, 0.0), correction(blocks, 0.0);
-  // Sampler sobol: standard errors from the replicates (the binomial one times the row's ratio).
-  const std::vector<double> ratio = replicate_error_ratio(t);
+  // Sampler sobol: standard errors from the replicates (the binomial one times the row's ratio,
+  // replicate_error_ratio, which the caller has put in vf.error_ratio).
+  const std::vector<double>& ratio = vf.error_ratio;
   for_each_block(p, [&](std::size_t b, std::size_t first, std::size_t last) {
     double worst_row = 0, worst_correction = 0;
     for (std::size_t i = first; i < last; ++i) {

@@ -70,7 +70,7 @@ struct Measures {
 
 // Writes the result into vf (F, to_surroundings, to_back_faces; other fields untouched):
 // F_ij = S_ij / A_i with S_ij = n_ij / (mu_i + mu_j), S_ii = N_ii / mu_i, on the pattern of the
-// counts. Consumes p.F.
+// counts. Consumes p.F. Reads vf->error_ratio (replicate_error_ratio of the tallies, or empty).
 Measures finish(Problem& p, const Eigen::VectorXd& mu, const Tallies& tallies, ViewFactors* vf);
 
 }  // namespace smoothing_detail
