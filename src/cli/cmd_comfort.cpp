@@ -224,6 +224,24 @@ void print_points_over(const std::vector<ComfortRun>& runs, const std::vector<st
   }
 }
 
+// Cautions about one scene first, named; then the general ones, once.
+void print_compare_cautions(const std::vector<ComfortRun>& runs,
+                            const std::vector<std::string>& names) {
+  std::cout << "\ncautions:\n";
+  std::vector<Caution> general;
+  for (std::size_t k = 0; k < runs.size(); ++k) {
+    for (const Caution& c : runs[k].cautions) {
+      if (!c.general()) {
+        std::cout << "  - " << names[k] << ": " << c.text << "\n";
+      } else if (std::none_of(general.begin(), general.end(),
+                              [&](const Caution& g) { return g.kind == c.kind; })) {
+        general.push_back(c);
+      }
+    }
+  }
+  for (const Caution& c : general) std::cout << "  - " << c.text << "\n";
+}
+
 // A row of the terminal's compare table in the words of a printed one.
 std::vector<std::string> printed_row(std::vector<std::string> row) {
   const std::pair<const char*, const char*> words[] = {{"(C)", "(\u00b0C)"},
@@ -360,21 +378,8 @@ int run_compare_command(const ComfortArgs& args) {
     std::cout << "\n";
   }
   std::cout << "\nlimits (PD about 5 %): warm ceiling 5 K, cool wall 10 K, cool ceiling 14 K, "
-               "warm wall 23 K (ISO 7730 Table A.4, ASHRAE 55; recalled from memory).\n"
-               "\ncautions:\n";
-  // Cautions about one scene first, named; then the general ones, once.
-  std::vector<Caution> general;
-  for (std::size_t k = 0; k < runs.size(); ++k) {
-    for (const Caution& c : runs[k].cautions) {
-      if (!c.general()) {
-        std::cout << "  - " << head[k + 1] << ": " << c.text << "\n";
-      } else if (std::none_of(general.begin(), general.end(),
-                              [&](const Caution& g) { return g.kind == c.kind; })) {
-        general.push_back(c);
-      }
-    }
-  }
-  for (const Caution& c : general) std::cout << "  - " << c.text << "\n";
+               "warm wall 23 K (ISO 7730 Table A.4, ASHRAE 55; recalled from memory).\n";
+  print_compare_cautions(runs, std::vector<std::string>(head.begin() + 1, head.end()));
   print_points_over(runs, std::vector<std::string>(head.begin() + 1, head.end()));
   if (!args.output_dir.empty()) {
     OutputFolder out(args.output_dir);

@@ -266,7 +266,10 @@ ClientReport compare_client_report(const std::vector<ComfortReportInput>& runs,
   r.sections.push_back(summary);
   for (const ComfortReportInput& run : runs) {
     r.sections.push_back(comfort_room_section(run));
-    r.sections.push_back(comfort_points_section(run));
+    ReportSection points = comfort_points_section(run);
+    // The list at a glance gathers every scene's verdicts: each names its scene.
+    for (ReportVerdict& v : points.verdicts) v.what = run.name + ": " + v.what;
+    r.sections.push_back(std::move(points));
   }
   r.assumptions = comfort_report_assumptions(runs.front());
   if (runs.size() > 1)
