@@ -12,7 +12,8 @@
 // most the band's top. The response of the target and of each limit's margin to each heater's
 // power is linearised by finite differences (one solve per heater, 2 % of the total power);
 // a linear program (core/linear_program.hpp, simplex) gives the least total power meeting the
-// linearised target and limits within a trust region around the current powers (50 % of the
+// linearised target and limits (those within 2 K of binding: an asymmetry whose case flips
+// jumps) within a trust region around the current powers (50 % of the
 // total, halved after a round that does not help); along the new shares the target is met
 // exactly by the secant above; the round is kept when it lowers the power with the limits
 // met (or first meets them). The response being nearly linear, a few rounds settle it; the

@@ -21,6 +21,9 @@ constexpr double kFirstRegion = 0.5;
 constexpr double kSmallestRegion = 0.01;
 constexpr double kSaving = 1e-3;
 constexpr int kRounds = 12;
+// A limit more than this below its bound (K, or PMV units) at the point and after each step
+// of the difference quotients is not linearised (see linear_step).
+constexpr double kFarFromLimit = 2;
 
 double total(const std::vector<double>& p) {
   return std::accumulate(p.begin(), p.end(), 0.0);
@@ -49,6 +52,12 @@ std::vector<double> linear_step(const SplitState& base, const std::vector<SplitS
   A.row(0) = -g.transpose();
   b(0) = base.value - wanted - g.dot(x);
   for (int k = 0; k < margins; ++k) {  // margin(y) ~ m(x) + G (y - x) <= 0
+    // Limits far from binding here and after every step are left out: an asymmetry whose case
+    // flips (cool wall to warm wall, 10 K to 23 K) jumps, and its difference quotient would
+    // forbid steps that no limit forbids. Every limit is still checked on the solved state.
+    double nearest = base.margins[std::size_t(k)];
+    for (const SplitState& m : moved) nearest = std::max(nearest, m.margins[std::size_t(k)]);
+    if (nearest < -kFarFromLimit) continue;
     Eigen::VectorXd G(n);
     for (int i = 0; i < n; ++i)
       G(i) = (moved[std::size_t(i)].margins[std::size_t(k)] - base.margins[std::size_t(k)]) / kStep;
