@@ -8,8 +8,9 @@
 //
 // Embree alone: the default intersector (the fastest, so the strictest baseline: the goal's
 // ratio) and, on the same rays, the robust one (it leaks no rays, as hearthray's tracing does
-// not: the second ratio printed); the rays hearthray's stratified sampler would emit,
-// generated beforehand in batches (untimed). The
+// not: the second ratio printed); as many rays as the tool traces, drawn by hearthray's
+// stratified sampler (the tool itself uses its default, sobol) beforehand in batches
+// (untimed). The
 // tool runs as a child process (`--no-cache -q`); its wall time and peak resident memory come
 // from wait4.
 //

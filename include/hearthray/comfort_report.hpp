@@ -67,7 +67,8 @@ struct Caution {
 // cautions (clearances from anything that burns; local codes; the maker's instructions).
 std::vector<Caution> comfort_cautions(const Scene& scene, const std::vector<SurfaceHeat>& surfaces);
 
-// Heated surfaces: those given a positive power or heat flux.
+// Heated surfaces: those given a positive power or heat flux that put heat in at the solved
+// state (a panel the size command's split switched off is not counted).
 struct HeaterSummary {
   double power_W = 0;
   double surface_max_K = 0;  // hottest piece of any heated surface

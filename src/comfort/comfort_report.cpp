@@ -293,7 +293,9 @@ HeaterSummary summarise_heaters(const ThermalModel& model,
     const NodeCondition& c = model.surface_conditions[s];
     const bool heated =
         (c.kind == ConditionKind::power || c.kind == ConditionKind::heat_flux) && c.value > 0;
-    if (!heated) continue;
+    // A panel the size command's split switched off puts in only the solve's residual (well
+    // under a milliwatt): not counted.
+    if (!heated || !(surfaces[s].heat_input_W > 1e-3)) continue;
     ++h.count;
     h.power_W += surfaces[s].heat_input_W;
     h.surface_max_K = std::max(h.surface_max_K, surfaces[s].temperature_max_K);

@@ -118,7 +118,7 @@ SplitAnswer least_power_split(const SplitSearch& search, const std::vector<doubl
       break;
     }
     std::vector<double> shares(y);
-    for (double& s : shares) s /= sum;
+    for (double& s : shares) s = s < 1e-9 * sum ? 0 : s / sum;  // rounding dust: off, not 1e-17
     double power = 0;
     if (!search.seek(shares, sum * scale, &power)) {
       region *= 0.5;
