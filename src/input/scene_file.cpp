@@ -17,10 +17,15 @@
 #include "hearthray/error.hpp"
 #include "hearthray/units.hpp"
 #include "input/scene_panels_toml.hpp"
+#include "input/toml_text.hpp"
 #include "transient/firing_input_toml.hpp"
 
 namespace hearthray {
 namespace {
+
+using input::edit_distance;
+using input::number_text;
+using input::type_name;
 
 namespace fs = std::filesystem;
 
@@ -37,47 +42,6 @@ const std::vector<std::string> kSurfaceKeys = {
     "adiabatic", "convection", "wall",        "patches",   "expect_back_hits"};
 const std::vector<std::string> kConvectionKeys = {"h", "fluid"};
 const std::vector<std::string> kWallKeys = {"U", "outside", "thickness", "conductivity"};
-
-std::size_t edit_distance(const std::string& a, const std::string& b) {
-  std::vector<std::size_t> row(b.size() + 1);
-  for (std::size_t j = 0; j <= b.size(); ++j) row[j] = j;
-  for (std::size_t i = 1; i <= a.size(); ++i) {
-    std::size_t diagonal = row[0];
-    row[0] = i;
-    for (std::size_t j = 1; j <= b.size(); ++j) {
-      const std::size_t up = row[j];
-      row[j] = std::min({row[j] + 1, row[j - 1] + 1, diagonal + (a[i - 1] != b[j - 1])});
-      diagonal = up;
-    }
-  }
-  return row[b.size()];
-}
-
-std::string type_name(const toml::node& node) {
-  switch (node.type()) {
-    case toml::node_type::string:
-      return "a string";
-    case toml::node_type::integer:
-      return "an integer";
-    case toml::node_type::floating_point:
-      return "a number with a fraction";
-    case toml::node_type::boolean:
-      return "true/false";
-    case toml::node_type::table:
-      return "a table";
-    case toml::node_type::array:
-      return "an array";
-    default:
-      return "a date or time";
-  }
-}
-
-std::string number_text(const toml::node& node) {
-  std::ostringstream out;
-  if (auto i = node.as_integer()) out << i->get();
-  if (auto f = node.as_floating_point()) return rounded("%.6g", f->get());
-  return out.str();
-}
 
 // Reads one scene file, carrying its name for messages.
 class Reader {
