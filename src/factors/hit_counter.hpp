@@ -41,6 +41,10 @@ struct HitTally {
   std::vector<std::uint64_t> count;  // rays that arrived at each
   std::uint64_t escaped = 0;         // rays that hit nothing
   std::uint64_t back_face = 0;       // rays absorbed on the back of a one-sided surface
+  // A whole view-factor row traced with the sobol sampler: per receiver, and for the escaped
+  // and back-face rays, the sum over the replicates of (c_r / M_r)^2 in replicate order.
+  std::vector<double> square;
+  double escaped_square = 0, back_face_square = 0;
 };
 
 // One thread's counter of ray arrivals: dense per-patch counters with a list of the touched
@@ -68,6 +72,21 @@ class HitCounter {
   // The tally of the rays added since the last take (patches ascending); the next run starts
   // from zero.
   HitTally take();
+
+  // The same tally unsorted and without allocating: calls f(patch, count) for each patch the
+  // run reached, in no particular order, and returns the run's escaped and back-face rays in
+  // `rest`; the next run starts from zero.
+  template <class F>
+  void drain(F&& f, HitTally* rest) {
+    for (std::uint32_t q : touched_) {
+      f(q, count_[q]);
+      count_[q] = 0;
+    }
+    touched_.clear();
+    rest->escaped = run_.escaped;
+    rest->back_face = run_.back_face;
+    run_.escaped = run_.back_face = 0;
+  }
 
   // Over every ray added: arrivals (front and back) per surface, and back-face arrivals.
   const std::vector<std::uint64_t>& hits_on_surface() const { return hits_on_surface_; }
