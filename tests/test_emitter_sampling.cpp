@@ -11,6 +11,7 @@
 #include <vector>
 
 #include "factors/emitter_sampling.hpp"
+#include "factors/hit_counter.hpp"
 #include "hearthray/patches.hpp"
 #include "hearthray/scene.hpp"
 #include "hearthray/sobol.hpp"
@@ -102,4 +103,20 @@ TEST_CASE("the Sobol' tracing order is a permutation walking the triangle list")
     previous = cursor.triangle;
   }
   CHECK(moves < 300);  // ~128 forward steps and a few swaps; a random order makes ~990
+}
+
+TEST_CASE("sort_patches sorts receiver lists as std::sort does") {
+  std::mt19937_64 rng(3);
+  std::vector<std::uint32_t> scratch;
+  for (std::uint64_t n_patches : {std::uint64_t{5}, std::uint64_t{2048}, std::uint64_t{98592},
+                                  std::uint64_t{1} << 22, std::uint64_t{4294967295}}) {
+    for (std::size_t size : {0, 1, 63, 64, 700, 5000}) {
+      std::vector<std::uint32_t> v(size);
+      for (auto& x : v) x = std::uint32_t(rng() % n_patches);
+      std::vector<std::uint32_t> expected = v;
+      std::sort(expected.begin(), expected.end());
+      sort_patches(v, scratch, std::size_t(n_patches));
+      REQUIRE(v == expected);
+    }
+  }
 }

@@ -47,6 +47,12 @@ struct HitTally {
   double escaped_square = 0, back_face_square = 0;
 };
 
+// Sorts `v` (patch indices below `n_patches`) ascending: a radix sort of two or three passes
+// over the few hundred receivers of a row, several times cheaper than a comparison sort there.
+// `scratch` is working space.
+void sort_patches(std::vector<std::uint32_t>& v, std::vector<std::uint32_t>& scratch,
+                  std::size_t n_patches);
+
 // One thread's counter of ray arrivals: dense per-patch counters with a list of the touched
 // entries. Runs of rays are counted one after another (add ..., take); the per-surface
 // totals run over every ray the counter has seen.
@@ -72,6 +78,8 @@ class HitCounter {
   // The tally of the rays added since the last take (patches ascending); the next run starts
   // from zero.
   HitTally take();
+  // The same into `out`, whose vectors keep their capacity (no allocation once warm).
+  void take(HitTally* out);
 
   // The same tally unsorted and without allocating: calls f(patch, count) for each patch the
   // run reached, in no particular order, and returns the run's escaped and back-face rays in
@@ -97,7 +105,7 @@ class HitCounter {
  private:
   const PatchLookup* lookup_;
   std::vector<std::uint64_t> count_;  // per patch, zero outside the current run's touched_
-  std::vector<std::uint32_t> touched_;
+  std::vector<std::uint32_t> touched_, sort_scratch_;
   HitTally run_;  // escaped and back_face of the current run
   std::vector<std::uint64_t> hits_on_surface_, back_face_hits_on_surface_;
 };

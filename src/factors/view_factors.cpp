@@ -10,6 +10,7 @@
 #include <chrono>
 #include <functional>
 #include <mutex>
+#include <new>
 #include <stdexcept>
 
 #include "factors/emitter_sampling.hpp"
@@ -132,29 +133,32 @@ class ReplicateRow {
     row_.back_face_square += replicate_square(rest.back_face, m);
   }
 
-  // The row (receivers ascending); the next row starts from zero.
-  HitTally take() {
-    HitTally out = std::move(row_);
-    row_ = HitTally{};
-    std::sort(touched_.begin(), touched_.end());
-    out.patch.reserve(touched_.size());
-    out.count.reserve(touched_.size());
-    out.square.reserve(touched_.size());
+  // The row (receivers ascending) into `out`, whose vectors keep their capacity; the next
+  // row starts from zero.
+  void take(HitTally* out) {
+    sort_patches(touched_, sort_scratch_, count_.size());
+    out->patch.clear();
+    out->count.clear();
+    out->square.clear();
     for (std::uint32_t q : touched_) {
-      out.patch.push_back(q);
-      out.count.push_back(count_[q]);
-      out.square.push_back(square_[q]);
+      out->patch.push_back(q);
+      out->count.push_back(count_[q]);
+      out->square.push_back(square_[q]);
       count_[q] = 0;
       square_[q] = 0;
     }
     touched_.clear();
-    return out;
+    out->escaped = row_.escaped;
+    out->back_face = row_.back_face;
+    out->escaped_square = row_.escaped_square;
+    out->back_face_square = row_.back_face_square;
+    row_ = HitTally{};
   }
 
  private:
   std::vector<std::uint64_t> count_;
   std::vector<double> square_;
-  std::vector<std::uint32_t> touched_;
+  std::vector<std::uint32_t> touched_, sort_scratch_;
   HitTally row_;
 };
 
@@ -208,11 +212,14 @@ void trace_rays(std::uint32_t patch, std::uint64_t total, std::uint64_t first, s
   }
 }
 
-HitTally trace_chunk(const Chunk& chunk, const EmitterSampler& emitters, bool sobol,
-                     const Tracer& tracer, Scratch& s) {
+// Traces a chunk; its tally goes to `out` (whose vectors keep their capacity from chunk to
+// chunk: the tallies of a window of chunks are not allocated and freed again every window).
+void trace_chunk(const Chunk& chunk, const EmitterSampler& emitters, bool sobol,
+                 const Tracer& tracer, Scratch& s, HitTally* out) {
   if (!chunk.whole_row || !sobol) {
     trace_rays(chunk.patch, chunk.total, chunk.first, chunk.last, emitters, sobol, tracer, s);
-    return s.counter.take();
+    s.counter.take(out);
+    return;
   }
   const std::uint64_t N = chunk.total;
   for (std::uint32_t r = 0; r < kSobolReplicates; ++r) {
@@ -220,7 +227,7 @@ HitTally trace_chunk(const Chunk& chunk, const EmitterSampler& emitters, bool so
     trace_rays(chunk.patch, N, a, b, emitters, sobol, tracer, s);
     s.row.add_replicate(s.counter, b - a);
   }
-  return s.row.take();
+  s.row.take(out);
 }
 
 // Calls the progress callback from worker threads at most every 0.25 s, and at the end.
@@ -353,27 +360,24 @@ void finish_tallies(std::uint32_t begin, const PatchLookup& lookup,
   }
 }
 
-// Appends the rows of the chunks [first, first + results.size()) (whole rows, in chunk order,
-// which is emitter order) to `tallies`, freeing each chunk's tally as it goes.
+// Appends the rows of the chunks [first, end) (whole rows, in chunk order, which is emitter
+// order; chunk c's tally is results[c - first]) to `tallies`.
 void merge_rows(const ViewFactorOptions& options, const std::vector<Chunk>& chunks,
-                std::size_t first, std::vector<HitTally>& results, RowMerger& row,
-                Tallies* tallies) {
+                std::size_t first, std::size_t end, const std::vector<HitTally>& results,
+                RowMerger& row, Tallies* tallies) {
   const bool sobol = options.sampler == EmissionSampler::sobol;
-  const std::size_t end = first + results.size();
   std::size_t c = first;
   while (c < end) {
     const std::uint32_t p = chunks[c].patch;
     const std::uint64_t N = chunks[c].total;
     if (chunks[c].whole_row) {
       row.add_row(results[c - first], N, tallies);
-      results[c - first] = HitTally{};
       ++c;
       continue;
     }
     for (std::uint32_t r = 0; r < (sobol ? kSobolReplicates : 1); ++r) {
       for (; c < end && chunks[c].patch == p && chunks[c].replicate == r; ++c) {
         row.add_chunk(results[c - first]);
-        results[c - first] = HitTally{};
       }
       if (sobol) row.end_replicate(replicate_first_ray(N, r + 1) - replicate_first_ray(N, r));
     }
@@ -381,10 +385,34 @@ void merge_rows(const ViewFactorOptions& options, const std::vector<Chunk>& chun
   }
 }
 
+// Reserves the tallies' per-entry arrays for as many entries as there can be: at most one per
+// ray and one per receiver in a row. Only the pages written become memory, so a generous
+// reservation costs nothing, and it spares the copies (and the kernel's clearing of fresh
+// pages) of arrays that double as they grow; where the address space cannot be had the arrays
+// grow as usual.
+void reserve_entries(const ViewFactorOptions& options, std::uint32_t begin, std::uint32_t end,
+                     std::size_t n_patches, Tallies* tallies) {
+  std::uint64_t entries = 0;
+  for (std::uint32_t p = begin; p < end; ++p)
+    entries += std::min<std::uint64_t>(rays_of(options, p), n_patches);
+  const bool sobol = options.sampler == EmissionSampler::sobol;
+  try {
+    tallies->hit_patch.reserve(entries);
+    tallies->hit_count.reserve(entries);
+    if (sobol) tallies->hit_square.reserve(entries);
+  } catch (const std::bad_alloc&) {
+  } catch (const std::length_error&) {
+  }
+  tallies->hit_offset.reserve(std::size_t(end - begin) + 1);
+  tallies->rays.reserve(end - begin);
+}
+
 // The end of the window of chunks starting at `first`: about kWindowChunks chunks, ending at a
 // row's end. Chunks are traced and merged window by window, so that the chunks' own tallies
-// (about 12 bytes per receiver per chunk) never exist for the whole run at once.
-constexpr std::size_t kWindowChunks = std::size_t{1} << 14;
+// (12 to 20 bytes per receiver per chunk) never exist for the whole run at once: 2048 chunks
+// of whole rows of 1000 rays hold about 40 MB; a window's tail, where one thread may wait for
+// the other's last chunk, is a chunk's time (under a millisecond at 1000 rays).
+constexpr std::size_t kWindowChunks = std::size_t{1} << 11;
 std::size_t window_end(const std::vector<Chunk>& chunks, std::size_t first) {
   std::size_t end = std::min(chunks.size(), first + kWindowChunks);
   while (end < chunks.size() && chunks[end].patch == chunks[end - 1].patch) ++end;
@@ -408,24 +436,26 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
   const int threads = options.threads > 0 ? options.threads : tbb::info::default_concurrency();
   tbb::task_arena arena(threads);
   Tallies tallies;
+  reserve_entries(options, begin, end, lookup.patch_count(), &tallies);
   RowMerger row(lookup.patch_count(), sobol);
-  std::vector<HitTally> results;
+  std::vector<HitTally> results;  // per chunk of the window; reused window after window
   for (std::size_t first = 0; first < chunks.size();) {
     const std::size_t last = window_end(chunks, first);
-    results.assign(last - first, HitTally{});
+    if (results.size() < last - first) results.resize(last - first);
     arena.execute([&] {
       tbb::parallel_for(tbb::blocked_range<std::size_t>(first, last, 1),
                         [&](const tbb::blocked_range<std::size_t>& range) {
                           for (std::size_t c = range.begin(); c != range.end(); ++c) {
-                            results[c - first] =
-                                trace_chunk(chunks[c], emitters, sobol, tracer, scratch.local());
+                            trace_chunk(chunks[c], emitters, sobol, tracer, scratch.local(),
+                                        &results[c - first]);
                             progress.add(chunks[c].last - chunks[c].first);
                           }
                         });
     });
-    merge_rows(options, chunks, first, results, row, &tallies);
+    merge_rows(options, chunks, first, last, results, row, &tallies);
     first = last;
   }
+  results = std::vector<HitTally>{};
   const double seconds = progress.seconds();
   finish_tallies(begin, lookup, scratch, &tallies);
 
