@@ -2,19 +2,25 @@
 // by hearthray and written directly must read back bit for bit through HDF5's own filter
 // pipeline (the reader h5py, MATLAB and Julia use), declare only the standard shuffle and
 // deflate filters (H5Z_FILTER_SHUFFLE = 2, H5Z_FILTER_DEFLATE = 1 in the HDF5 reference
-// manual, so no plugin is needed), and give the same bytes for 1 and 2 threads.
+// manual, so no plugin is needed), and give the same bytes for 1 and 2 threads. The chunk
+// compressor's streams must inflate in zlib (RFC 1950/1951) to exactly the shuffled bytes.
 #include <tbb/task_arena.h>
 #include <unistd.h>
+#include <zlib.h>
 
+#include <algorithm>
 #include <catch2/catch.hpp>
 #include <cmath>
 #include <cstdint>
+#include <cstring>
 #include <filesystem>
 #include <fstream>
+#include <random>
 #include <sstream>
 #include <string>
 #include <vector>
 
+#include "outputs/hdf5_deflate.hpp"
 #include "outputs/hdf5_file.hpp"
 
 using namespace hearthray;
@@ -52,6 +58,15 @@ void write_file(const std::string& path, int threads) {
     doubles.finish();
     floats.finish();
     counts.finish();
+    // The same values made chunk by chunk in parallel (write_rows), as the matrix is written.
+    hdf5::Dataset made(file, "/made", H5T_IEEE_F64LE, kLongRows);
+    made.write_rows([&](std::uint64_t first, std::uint64_t rows, unsigned char* out) {
+      for (std::uint64_t k = 0; k < rows; ++k) {
+        const double v = value(first + k);
+        std::memcpy(out + 8 * k, &v, 8);
+      }
+    });
+    made.finish();
     std::vector<double> table(3 * kTableRows);
     for (std::size_t k = 0; k < table.size(); ++k) table[k] = -value(k);
     file.doubles("/table", table, 3);
@@ -107,9 +122,11 @@ TEST_CASE("HDF5 compressed datasets read back exactly through HDF5's filters", "
   const auto doubles = read_all<double>(file, "/doubles", H5T_NATIVE_DOUBLE, kLongRows);
   const auto floats = read_all<float>(file, "/floats", H5T_NATIVE_FLOAT, kLongRows);
   const auto counts = read_all<std::int32_t>(file, "/counts", H5T_NATIVE_INT32, kLongRows);
+  const auto made = read_all<double>(file, "/made", H5T_NATIVE_DOUBLE, kLongRows);
   std::uint64_t wrong = 0;
   for (std::uint64_t k = 0; k < kLongRows; ++k) {
     wrong += doubles[k] != value(k);
+    wrong += made[k] != value(k);
     wrong += floats[k] != static_cast<float>(value(k));  // IEEE round to nearest
     wrong += counts[k] != std::int32_t(k % 977) - 400;
   }
@@ -120,7 +137,7 @@ TEST_CASE("HDF5 compressed datasets read back exactly through HDF5's filters", "
   for (std::size_t k = 0; k < sides.size(); ++k) wrong += sides[k] != std::int8_t(k % 3 == 0);
   CHECK(wrong == 0);
   // Compressed: the file is smaller than the values it holds.
-  CHECK(fs::file_size(one) < kLongRows * (8 + 4 + 4) + kTableRows * 25);
+  CHECK(fs::file_size(one) < kLongRows * (8 + 8 + 4 + 4) + kTableRows * 25);
   H5Fclose(file);
   fs::remove_all(dir);
 }
@@ -137,4 +154,74 @@ TEST_CASE("HDF5 dataset refuses fewer rows than declared", "[io][hdf5]") {
     CHECK_THROWS_AS(d.append(values.data(), 2, H5T_NATIVE_DOUBLE), std::logic_error);
   }
   fs::remove(path);
+}
+
+namespace {
+
+// Inflates a zlib stream (zlib's own inflate, as HDF5's deflate filter calls it) and undoes
+// the shuffle; empty when zlib refuses the stream or its length is wrong.
+std::vector<unsigned char> inflate_unshuffle(const std::vector<unsigned char>& packed,
+                                             std::size_t values, std::size_t bytes) {
+  std::vector<unsigned char> shuffled(values * bytes), out(values * bytes);
+  uLongf size = uLongf(shuffled.size());
+  if (uncompress(shuffled.data(), &size, packed.data(), uLong(packed.size())) != Z_OK ||
+      size != shuffled.size())
+    return {};
+  for (std::size_t b = 0; b < bytes; ++b)
+    for (std::size_t v = 0; v < values; ++v) out[v * bytes + b] = shuffled[b * values + v];
+  return out;
+}
+
+}  // namespace
+
+TEST_CASE("Chunks deflate plane by plane into zlib streams that inflate exactly", "[io][hdf5]") {
+  std::mt19937_64 random(20261202);
+  hdf5::ChunkDeflater deflater;
+  // Values whose planes are of every kind: random low bytes (stored), a few distinct values,
+  // runs, a constant high byte; sizes around the stored-block limit (65,535 bytes) and the
+  // sampling threshold (8192 bytes), down to one value.
+  for (const std::size_t bytes : {1, 2, 4, 8, 24}) {
+    for (const std::size_t values : {1, 3, 8191, 8192, 65535, 65536, 65537, 196608}) {
+      std::vector<unsigned char> in(values * bytes);
+      for (std::size_t v = 0; v < values; ++v)
+        for (std::size_t b = 0; b < bytes; ++b) {
+          unsigned char& byte = in[v * bytes + b];
+          switch (b % 4) {
+            case 0:
+              byte = static_cast<unsigned char>(random());
+              break;
+            case 1:
+              byte = static_cast<unsigned char>(random() % 5);
+              break;
+            case 2:
+              byte = static_cast<unsigned char>(v / 1000);
+              break;
+            default:
+              byte = 0x3f;
+          }
+        }
+      std::vector<unsigned char> packed;
+      REQUIRE(deflater.compress(in.data(), values, bytes, &packed));
+      INFO(bytes << " bytes, " << values << " values");
+      CHECK(inflate_unshuffle(packed, values, bytes) == in);
+      if (values >= 65536 && bytes >= 4) CHECK(packed.size() < in.size() * 3 / 4);
+    }
+  }
+}
+
+TEST_CASE("Random-looking planes are stored, others deflated", "[io][hdf5]") {
+  std::mt19937_64 random(7);
+  std::vector<unsigned char> plane(65536);
+  for (unsigned char& byte : plane) byte = static_cast<unsigned char>(random());
+  CHECK(hdf5::plane_looks_random(plane.data(), plane.size()));
+  CHECK_FALSE(hdf5::plane_looks_random(plane.data(), 8191));  // too small to judge
+  // Seven bits of randomness: 7 bits of entropy per byte, under the 7.9 of the rule.
+  for (unsigned char& byte : plane) byte = static_cast<unsigned char>(random() & 0x7f);
+  CHECK_FALSE(hdf5::plane_looks_random(plane.data(), plane.size()));
+  // Random bytes each repeated twice: flat histogram, but runs that deflate finds.
+  for (std::size_t k = 0; k < plane.size(); k += 2)
+    plane[k] = plane[k + 1] = static_cast<unsigned char>(random());
+  CHECK_FALSE(hdf5::plane_looks_random(plane.data(), plane.size()));
+  std::fill(plane.begin(), plane.end(), 0);
+  CHECK_FALSE(hdf5::plane_looks_random(plane.data(), plane.size()));
 }

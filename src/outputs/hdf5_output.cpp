@@ -3,6 +3,7 @@
 // compressed. The layout is in the README ("HDF5 matrix file"); keep both in step and raise
 // kFormatVersion when a reader would need to know.
 #include <algorithm>
+#include <cstring>
 #include <limits>
 
 #include "hearthray/error.hpp"
@@ -17,9 +18,6 @@ namespace hearthray {
 namespace {
 
 constexpr std::int64_t kFormatVersion = 1;
-// Non-zeros gathered before each write: 1 Mi entries (20 MiB), so that a matrix of hundreds of
-// millions of entries is written without a second copy of it.
-constexpr std::size_t kBlock = std::size_t(1) << 20;
 
 void write_header(const hdf5::File& file, const ViewFactors& vf) {
   file.attribute("/", "format", std::string("hearthray view factors"));
@@ -35,50 +33,81 @@ void write_header(const hdf5::File& file, const ViewFactors& vf) {
   file.attribute("/", "patch_count", std::int64_t(vf.size()));
 }
 
-// F as CSR, N x (N + 1): each row's stored entries, then the surroundings when not zero.
-// standard_error is aligned with data, stored as float32: seven significant digits are more
-// than an error estimate needs, and at half the bytes (random mantissas hardly compress) it
-// no longer makes up half the file.
+// Row starts of F as CSR, N x (N + 1): each row's stored entries, then the surroundings when
+// not zero.
+std::vector<std::int64_t> row_starts(const ViewFactors& vf) {
+  std::vector<std::int64_t> indptr(vf.size() + 1, 0);
+  for (std::size_t i = 0; i < vf.size(); ++i)
+    indptr[i + 1] = indptr[i] + std::int64_t(vf.F.row(Eigen::Index(i)).nonZeros()) +
+                    (vf.to_surroundings[i] != 0 ? 1 : 0);
+  return indptr;
+}
+
+// Calls visit(k, row, column, f) for the entries [first, first + count) of the CSR rows, k
+// counting from 0 at `first`.
+template <class Visit>
+void for_entries(const ViewFactors& vf, const std::vector<std::int64_t>& indptr,
+                 std::uint64_t first, std::uint64_t count, Visit visit) {
+  const SparseMatrix& F = vf.F;
+  const std::int64_t n = std::int64_t(vf.size());
+  const auto after = std::upper_bound(indptr.begin(), indptr.end(), std::int64_t(first));
+  std::size_t i = std::size_t(after - indptr.begin()) - 1;  // the row holding `first`
+  std::uint64_t k = 0;
+  for (std::int64_t e = std::int64_t(first); k < count; ++i) {
+    const std::int64_t start = F.outerIndexPtr()[i];
+    const std::int64_t stored =
+        F.isCompressed() ? F.outerIndexPtr()[i + 1] - start : std::int64_t(F.innerNonZeroPtr()[i]);
+    for (; e < indptr[i + 1] && k < count; ++e, ++k) {
+      const std::int64_t j = e - indptr[i];
+      if (j < stored)
+        visit(k, i, std::int64_t(F.innerIndexPtr()[start + j]), F.valuePtr()[start + j]);
+      else
+        visit(k, i, n, vf.to_surroundings[i]);
+    }
+  }
+}
+
+// The entries are made chunk by chunk in parallel, straight into the file's types: the host's
+// byte order must be the file's (little-endian).
+static_assert(__BYTE_ORDER__ == __ORDER_LITTLE_ENDIAN__,
+              "the matrix file's datasets are little-endian, written from memory as they are");
+
+// Value k of a chunk being made.
+template <class T>
+void put(unsigned char* out, std::uint64_t k, T value) {
+  std::memcpy(out + k * sizeof(T), &value, sizeof(T));
+}
+
+// F as CSR, N x (N + 1). standard_error is aligned with data, stored as float32: seven
+// significant digits are more than an error estimate needs, and at half the bytes (random
+// mantissas hardly compress) it no longer makes up half the file.
 void write_matrix(const hdf5::File& file, const ViewFactors& vf) {
   const std::size_t n = vf.size();
-  std::uint64_t entries = std::uint64_t(vf.F.nonZeros());
-  for (double s : vf.to_surroundings) entries += s != 0 ? 1 : 0;
+  const std::vector<std::int64_t> indptr = row_starts(vf);
+  const std::uint64_t entries = std::uint64_t(indptr.back());
   file.group("/F");
   file.attribute("/F", "shape", std::vector<std::int64_t>{std::int64_t(n), std::int64_t(n) + 1});
   file.attribute("/F", "smoothed", std::int64_t(vf.smoothed));
   file.attribute("/F", "max_correction_sigma", vf.max_correction_sigma);
   hdf5::Dataset data(file, "/F/data", H5T_IEEE_F64LE, entries);
+  data.write_rows([&](std::uint64_t first, std::uint64_t count, unsigned char* out) {
+    for_entries(vf, indptr, first, count,
+                [&](std::uint64_t k, std::size_t, std::int64_t, double f) { put(out, k, f); });
+  });
   hdf5::Dataset indices(file, "/F/indices", H5T_STD_I32LE, entries);
+  indices.write_rows([&](std::uint64_t first, std::uint64_t count, unsigned char* out) {
+    for_entries(vf, indptr, first, count,
+                [&](std::uint64_t k, std::size_t, std::int64_t j, double) {
+                  put(out, k, std::int32_t(j));
+                });
+  });
   hdf5::Dataset errors(file, "/F/standard_error", H5T_IEEE_F32LE, entries);
-  std::vector<double> values, standard_errors;
-  std::vector<std::int32_t> columns;
-  std::vector<std::int64_t> indptr{0};
-  indptr.reserve(n + 1);
-  auto flush = [&] {
-    data.append(values.data(), values.size(), H5T_NATIVE_DOUBLE);
-    indices.append(columns.data(), columns.size(), H5T_NATIVE_INT32);
-    errors.append(standard_errors.data(), standard_errors.size(), H5T_NATIVE_DOUBLE);
-    values.clear();
-    columns.clear();
-    standard_errors.clear();
-  };
-  auto add = [&](std::size_t row, std::int64_t column, double f) {
-    values.push_back(f);
-    columns.push_back(std::int32_t(column));
-    standard_errors.push_back(vf.standard_error(row, f));
-    if (values.size() == kBlock) flush();
-  };
-  for (std::size_t i = 0; i < n; ++i) {
-    for (SparseMatrix::InnerIterator it(vf.F, Eigen::Index(i)); it; ++it)
-      add(i, it.col(), it.value());
-    if (vf.to_surroundings[i] != 0) add(i, std::int64_t(n), vf.to_surroundings[i]);
-    indptr.push_back(indptr.back() + std::int64_t(vf.F.row(Eigen::Index(i)).nonZeros()) +
-                     (vf.to_surroundings[i] != 0 ? 1 : 0));
-  }
-  flush();
-  data.finish();
-  indices.finish();
-  errors.finish();
+  errors.write_rows([&](std::uint64_t first, std::uint64_t count, unsigned char* out) {
+    for_entries(
+        vf, indptr, first, count, [&](std::uint64_t k, std::size_t i, std::int64_t, double f) {
+          put(out, k, static_cast<float>(vf.standard_error(i, f)));  // IEEE round to nearest
+        });
+  });
   file.int64s("/F/indptr", indptr);
 }
 
