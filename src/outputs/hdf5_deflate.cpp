@@ -7,17 +7,18 @@
 #include <cstring>
 #include <new>
 
+#include "outputs/deflate_blocks.hpp"
+
 namespace hearthray::hdf5 {
 
 namespace {
 
-// Deflate settings of the deflated planes. Level 1 with the run-length strategy (matches only
-// of the previous byte) suits the planes left, whose compressible part is runs of equal bytes
-// (high bytes of numbers, column indices of one row): on the 0.06 m benchmark furnace's matrix
-// it deflated the plane of the second bytes of F/indices to 8.3 % at about 490 MB/s, against
-// 9.6 % at 400 MB/s for libdeflate's level 1 and 11.7 % at 320 MB/s for zlib's default
-// strategy (one core, load average about 2.5). Raw deflate (negative window bits): the zlib
-// wrapper is written here around all the planes.
+// zlib's settings for planes of runs. Level 1 with the run-length strategy (matches only of
+// the previous byte) finds what those planes hold: on the 0.06 m benchmark furnace's matrix it
+// deflated the plane of the second bytes of F/indices to 8.3 % at about 490 MB/s, against 9.6 %
+// at 400 MB/s for libdeflate's level 1 and 11.7 % at 320 MB/s for zlib's default strategy (one
+// core, load average about 2.5). Raw deflate (negative window bits): the zlib wrapper is
+// written here around all the planes.
 constexpr int kDeflateLevel = 1;
 constexpr int kDeflateStrategy = Z_RLE;
 constexpr int kRawWindowBits = -15;
@@ -28,9 +29,9 @@ constexpr unsigned char kZlibHeader[2] = {0x78, 0x01};
 constexpr std::size_t kMaxStoredBlock = 65535;  // RFC 1951 3.2.4
 constexpr std::size_t kStoredHeader = 5;        // BFINAL/BTYPE byte, LEN, NLEN
 
-// Plane sampling (plane_looks_random).
-constexpr std::size_t kMaxSamples = 8192;
-constexpr std::size_t kMinSampledPlane = 8192;
+// Plane sampling (plane_coding).
+constexpr std::uint64_t kMaxSamples = 4096;
+constexpr std::size_t kMinSampledPlane = 4096;
 
 template <std::size_t kBytes>
 void shuffle_fixed(const unsigned char* in, std::size_t values, unsigned char* out) {
@@ -41,28 +42,17 @@ void shuffle_fixed(const unsigned char* in, std::size_t values, unsigned char* o
   }
 }
 
-std::size_t stored_size(std::size_t bytes) {
-  return bytes +
-         kStoredHeader * std::max<std::size_t>(1, (bytes + kMaxStoredBlock - 1) / kMaxStoredBlock);
-}
-
-// Copies `size` bytes as stored blocks, the last one final when `last`.
-unsigned char* put_stored(const unsigned char* in, std::size_t size, bool last,
-                          unsigned char* out) {
-  std::size_t done = 0;
-  do {
-    const std::size_t n = std::min(kMaxStoredBlock, size - done);
-    const bool final_block = last && done + n == size;
-    *out++ = final_block ? 1 : 0;  // BFINAL, BTYPE 00; the rest of the byte is padding
-    *out++ = static_cast<unsigned char>(n & 0xff);
-    *out++ = static_cast<unsigned char>(n >> 8);
-    *out++ = static_cast<unsigned char>(~n & 0xff);
-    *out++ = static_cast<unsigned char>((~n >> 8) & 0xff);
-    std::memcpy(out, in + done, n);
-    out += n;
-    done += n;
-  } while (done < size);
-  return out;
+// Bytes a plane of `size` bytes may take in the stream coded as `coding` (`deflate_bound`:
+// zlib's bound for it), counting a byte of bits pending before it.
+std::size_t plane_bound(PlaneCoding coding, std::size_t size, std::size_t deflate_bound) {
+  switch (coding) {
+    case PlaneCoding::stored:
+      return size + kStoredHeader * (size / kMaxStoredBlock + 1) + 1;
+    case PlaneCoding::literals:
+      return 2 * size + 480 + 1;
+    default:
+      return deflate_bound + 16;  // and a sync flush's empty stored block
+  }
 }
 
 }  // namespace
@@ -85,23 +75,27 @@ void shuffle_bytes(const unsigned char* in, std::size_t values, std::size_t byte
   }
 }
 
-bool plane_looks_random(const unsigned char* plane, std::size_t size) {
-  if (size < kMinSampledPlane) return false;
-  const std::size_t samples = std::min(kMaxSamples, size / 2);
+PlaneCoding plane_coding(const unsigned char* plane, std::size_t size) {
+  if (size < kMinSampledPlane) return PlaneCoding::runs;
+  const std::uint64_t samples = std::min<std::uint64_t>(kMaxSamples, size / 2);
   const std::size_t stride = size / samples;  // at least 2: each sample and its neighbour
   std::uint32_t histogram[256] = {};
-  std::size_t repeats = 0;
+  std::uint64_t repeats = 0;
   for (std::size_t k = 0; k < samples; ++k) {
     const unsigned char* at = plane + k * stride;
     ++histogram[at[0]];
     repeats += at[0] == at[1] ? 1 : 0;
   }
-  if (repeats * 64 > samples) return false;  // runs: deflate's run-length matches pay
-  // Collision entropy -log2(sum p^2) >= log2(239) as sum h(h-1) * 239 <= s(s-1): random bytes
-  // give 1/256 (8 bits), and at 4096 samples or more their spread is under 1 % of it.
+  // sum p^2 = collisions / pairs: the chance that two samples are the same byte. Random bytes
+  // give 1/256, and at 2048 samples or more their spread is under 1.2 % of it.
   std::uint64_t collisions = 0;
   for (std::uint32_t h : histogram) collisions += std::uint64_t(h) * (h > 0 ? h - 1 : 0);
-  return collisions * 239 <= std::uint64_t(samples) * (samples - 1);
+  const std::uint64_t pairs = samples * (samples - 1);
+  if (repeats * 64 <= samples && collisions * 239 <= pairs) return PlaneCoding::stored;
+  // repeats / samples > 3 collisions / pairs + 1/8, both sides times 8 pairs / samples
+  if (2 * collisions > pairs || 8 * repeats * (samples - 1) > 24 * collisions + pairs)
+    return PlaneCoding::runs;
+  return PlaneCoding::literals;
 }
 
 ChunkDeflater::ChunkDeflater() {
@@ -114,45 +108,62 @@ ChunkDeflater::~ChunkDeflater() {
   deflateEnd(&stream_);
 }
 
-bool ChunkDeflater::compress(const unsigned char* in, std::size_t values, std::size_t bytes,
-                             std::vector<unsigned char>* out) {
+std::size_t ChunkDeflater::compress(const unsigned char* in, std::size_t values, std::size_t bytes,
+                                    std::vector<unsigned char>* out) {
   const std::size_t total = values * bytes;
   shuffled_.resize(total);
   shuffle_bytes(in, values, bytes, shuffled_.data());
-  stored_.assign(bytes, 0);
-  std::size_t bound = sizeof kZlibHeader + 4;  // header, Adler-32
+  codings_.resize(bytes);
+  const std::size_t deflate_bound = deflateBound(&stream_, uLong(values));
+  std::size_t bound = sizeof kZlibHeader + 1 + 4 + 8;  // header, padding, Adler-32, spare
   for (std::size_t b = 0; b < bytes; ++b) {
-    stored_[b] = plane_looks_random(shuffled_.data() + b * values, values) ? 1 : 0;
-    // A deflated plane ends with a sync flush: at most an empty stored block more.
-    bound +=
-        stored_[b] ? stored_size(values) : std::size_t(deflateBound(&stream_, uLong(values))) + 16;
+    codings_[b] = plane_coding(shuffled_.data() + b * values, values);
+    bound += plane_bound(codings_[b], values, deflate_bound);
   }
-  out->resize(bound);
-  unsigned char* at = out->data();
-  std::memcpy(at, kZlibHeader, sizeof kZlibHeader);
-  at += sizeof kZlibHeader;
+  if (out->size() < bound) out->resize(bound);
+  std::memcpy(out->data(), kZlibHeader, sizeof kZlibHeader);
+  BitWriter writer(out->data() + sizeof kZlibHeader);
   for (std::size_t b = 0; b < bytes; ++b) {
     const unsigned char* plane = shuffled_.data() + b * values;
     const bool last = b + 1 == bytes;
-    if (stored_[b]) {
-      at = put_stored(plane, values, last, at);
-      continue;
+    switch (codings_[b]) {
+      case PlaneCoding::stored:
+        for (std::size_t done = 0; done < values; done += kMaxStoredBlock) {
+          const std::size_t n = std::min(kMaxStoredBlock, values - done);
+          put_stored_block(plane + done, n, last && done + n == values, writer);
+        }
+        break;
+      case PlaneCoding::literals:
+        put_literal_block(plane, values, last, writer);
+        break;
+      case PlaneCoding::runs:
+        if (!deflate_runs(plane, values, last, out->data() + bound, writer)) return 0;
     }
-    // A raw deflate stream of its own; a sync flush ends it on a byte boundary without a final
-    // block, so the next plane's blocks follow it in the same stream.
-    if (deflateReset(&stream_) != Z_OK) return false;
-    stream_.next_in = const_cast<unsigned char*>(plane);
-    stream_.avail_in = uInt(values);
-    stream_.next_out = at;
-    stream_.avail_out = uInt(out->data() + out->size() - at);
-    const int status = deflate(&stream_, last ? Z_FINISH : Z_SYNC_FLUSH);
-    if (status != (last ? Z_STREAM_END : Z_OK) || stream_.avail_in != 0 || stream_.avail_out == 0)
-      return false;
-    at = stream_.next_out;
   }
+  writer.align();
+  unsigned char* at = writer.out();
   const std::uint32_t adler = libdeflate_adler32(1, shuffled_.data(), total);
   for (int shift = 24; shift >= 0; shift -= 8) *at++ = static_cast<unsigned char>(adler >> shift);
-  out->resize(std::size_t(at - out->data()));
+  return std::size_t(at - out->data());
+}
+
+// A raw deflate stream of its own, started with the bits pending (deflatePrime); a sync flush
+// ends it on a byte boundary without a final block, so the next plane follows in the same
+// stream.
+bool ChunkDeflater::deflate_runs(const unsigned char* plane, std::size_t size, bool last,
+                                 unsigned char* end, BitWriter& writer) {
+  if (deflateReset(&stream_) != Z_OK) return false;
+  if (writer.pending_bits() > 0 &&
+      deflatePrime(&stream_, writer.pending_bits(), int(writer.pending())) != Z_OK)
+    return false;
+  stream_.next_in = const_cast<unsigned char*>(plane);
+  stream_.avail_in = uInt(size);
+  stream_.next_out = writer.out();
+  stream_.avail_out = uInt(end - writer.out());
+  const int status = deflate(&stream_, last ? Z_FINISH : Z_SYNC_FLUSH);
+  if (status != (last ? Z_STREAM_END : Z_OK) || stream_.avail_in != 0 || stream_.avail_out < 8)
+    return false;
+  writer.skip_to(stream_.next_out);
   return true;
 }
 

@@ -1,10 +1,8 @@
 // One chunk of the matrix file as HDF5's shuffle and deflate filters would store it: the values'
 // bytes shuffled (byte b of value v at b * values + v), then one zlib stream (RFC 1950 around
 // RFC 1951 deflate), which is what HDF5's deflate filter inflates. The stream is made plane by
-// plane (a plane: byte b of every value): a plane whose bytes look random (the low mantissa
-// bytes of factors and errors) is copied into stored blocks, since deflating it would cost most
-// of the time and save nothing; every other plane is deflated by zlib. The choice depends on
-// the plane's bytes alone, so the same values give the same stream on any thread.
+// plane (a plane: byte b of every value), each plane coded as suits it (PlaneCoding). The choice
+// depends on the plane's bytes alone, so the same values give the same stream on any thread.
 #pragma once
 
 #include <zlib.h>
@@ -18,13 +16,25 @@ namespace hearthray::hdf5 {
 void shuffle_bytes(const unsigned char* in, std::size_t values, std::size_t bytes,
                    unsigned char* out);
 
-// True when a plane of `size` bytes looks random enough to be stored rather than deflated: no
-// more repeated neighbours than 1 in 64 and a collision entropy of at least log2(239), about
-// 7.9 bits per byte (deflate could save at most about 1 %), both judged on up to 8192 samples
-// spread over the plane, in integers. Planes under 8192 bytes are always deflated.
-bool plane_looks_random(const unsigned char* plane, std::size_t size);
+enum class PlaneCoding {
+  stored,    // random-looking bytes (low mantissa bytes): copied, as deflating saves nothing
+  literals,  // mixed bytes without runs (high bytes of numbers): one block of literals under
+             // a Huffman code of their own (deflate_blocks.hpp), a fraction of zlib's time
+  runs,      // runs of equal bytes or one byte mostly (column indices of a row, exponents):
+             // zlib at level 1 with run-length matches
+};
+
+// How to code a plane of `size` bytes, judged in integers on up to 4096 samples spread over it
+// (each with its neighbour); planes under 4096 bytes go to zlib (runs). Stored: repeated
+// neighbours no more often than 1 in 64 and a collision entropy -log2(sum p^2) of at least
+// log2(239), about 7.9 bits per byte (a Huffman code could save at most about 1 %). Runs: one
+// byte value more likely than not to meet itself (sum p^2 > 1/2), or repeated neighbours more
+// often than 3 sum p^2 + 1/8 (chance alone gives sum p^2). Literals: the rest.
+PlaneCoding plane_coding(const unsigned char* plane, std::size_t size);
 
 // Compresses chunks one after another; one per thread (it holds zlib's state and a buffer).
+class BitWriter;
+
 class ChunkDeflater {
  public:
   ChunkDeflater();  // throws std::bad_alloc when zlib cannot allocate its state
@@ -32,15 +42,20 @@ class ChunkDeflater {
   ChunkDeflater(const ChunkDeflater&) = delete;
   ChunkDeflater& operator=(const ChunkDeflater&) = delete;
 
-  // Shuffles `values` values of `bytes` bytes each and writes the zlib stream to `out`
-  // (resized to fit); false when zlib fails.
-  bool compress(const unsigned char* in, std::size_t values, std::size_t bytes,
-                std::vector<unsigned char>* out);
+  // Shuffles `values` values of `bytes` bytes each and writes the zlib stream at the start of
+  // `out`, which only grows (buffers are reused without clearing); returns the stream's length,
+  // 0 when zlib fails.
+  std::size_t compress(const unsigned char* in, std::size_t values, std::size_t bytes,
+                       std::vector<unsigned char>* out);
 
  private:
+  // A plane of runs through zlib, written at the writer's position; `end`: the buffer's end.
+  bool deflate_runs(const unsigned char* plane, std::size_t size, bool last, unsigned char* end,
+                    BitWriter& writer);
+
   z_stream stream_{};
   std::vector<unsigned char> shuffled_;
-  std::vector<char> stored_;  // per plane: stored (1) or deflated (0)
+  std::vector<PlaneCoding> codings_;
 };
 
 }  // namespace hearthray::hdf5

@@ -1,6 +1,7 @@
 #include "outputs/hdf5_file.hpp"
 
 #include <tbb/blocked_range.h>
+#include <tbb/concurrent_queue.h>
 #include <tbb/enumerable_thread_specific.h>
 #include <tbb/parallel_for.h>
 #include <tbb/parallel_pipeline.h>
@@ -251,27 +252,23 @@ void Dataset::write_chunks(bool last) {
   }
   if (chunks == 0) return;
   std::vector<std::vector<unsigned char>> packed(chunks);
-  std::vector<char> failed(chunks, 0);
+  std::vector<std::size_t> sizes(chunks, 0);
   tbb::enumerable_thread_specific<ChunkDeflater> deflaters;
   tbb::parallel_for(tbb::blocked_range<std::size_t>(0, chunks, 1),
                     [&](const tbb::blocked_range<std::size_t>& range) {
                       ChunkDeflater& deflater = deflaters.local();
                       for (std::size_t c = range.begin(); c != range.end(); ++c)
-                        failed[c] = deflater.compress(pending_.data() + c * chunk_bytes,
-                                                      chunk_values, value_bytes_, &packed[c])
-                                        ? 0
-                                        : 1;
+                        sizes[c] = deflater.compress(pending_.data() + c * chunk_bytes,
+                                                     chunk_values, value_bytes_, &packed[c]);
                     });
-  for (std::size_t c = 0; c < chunks; ++c) {
-    if (failed[c]) file_->check(-1, "deflate a chunk of " + path_);
-    write_chunk(packed[c]);
-  }
+  for (std::size_t c = 0; c < chunks; ++c) write_chunk(packed[c].data(), sizes[c]);
   pending_.erase(pending_.begin(), pending_.begin() + std::ptrdiff_t(chunks * chunk_bytes));
 }
 
-void Dataset::write_chunk(const std::vector<unsigned char>& packed) {
+void Dataset::write_chunk(const unsigned char* packed, std::size_t size) {
+  if (size == 0) file_->check(-1, "deflate a chunk of " + path_);
   const hsize_t offset[2] = {next_chunk_ * chunk_rows_, 0};
-  file_->check(H5Dwrite_chunk(dataset_.get(), H5P_DEFAULT, 0, offset, packed.size(), packed.data()),
+  file_->check(H5Dwrite_chunk(dataset_.get(), H5P_DEFAULT, 0, offset, size, packed),
                "write a chunk of " + path_);
   ++next_chunk_;
 }
@@ -284,44 +281,53 @@ void Dataset::write_rows(const Fill& fill) {
   const std::uint64_t chunks = (rows_ + chunk_rows_ - 1) / chunk_rows_;
   const std::size_t chunk_values = std::size_t(chunk_rows_) * std::size_t(columns_);
   const std::size_t chunk_bytes = chunk_values * value_bytes_;
+  // A chunk on its way; chunks are used again once written, so their buffers are allocated
+  // (and their pages touched) once per write rather than once per chunk.
   struct Chunk {
     std::uint64_t index = 0;
-    std::vector<unsigned char> packed;
-    bool ok = false;
+    std::vector<unsigned char> values, packed;
+    std::size_t size = 0;  // of the stream at the start of `packed`; 0: deflate failed
   };
+  std::vector<std::unique_ptr<Chunk>> chunk_store;  // touched by the serial source only
+  tbb::concurrent_queue<Chunk*> written;
   tbb::enumerable_thread_specific<ChunkDeflater> deflaters;
-  tbb::enumerable_thread_specific<std::vector<unsigned char>> buffers;
   std::uint64_t next = 0;
-  auto source = [&](tbb::flow_control& control) -> std::shared_ptr<Chunk> {
+  auto source = [&](tbb::flow_control& control) -> Chunk* {
     if (next == chunks) {
       control.stop();
       return nullptr;
     }
-    auto chunk = std::make_shared<Chunk>();
+    Chunk* chunk = nullptr;
+    if (!written.try_pop(chunk)) {
+      chunk_store.push_back(std::make_unique<Chunk>());
+      chunk = chunk_store.back().get();
+      chunk->values.resize(chunk_bytes);
+    }
     chunk->index = next++;
     return chunk;
   };
-  auto compress = [&](std::shared_ptr<Chunk> chunk) {
-    std::vector<unsigned char>& values = buffers.local();
-    values.assign(chunk_bytes, 0);  // the last chunk's padding: zeros, HDF5's fill value
+  auto compress = [&](Chunk* chunk) {
     const std::uint64_t first = chunk->index * chunk_rows_;
-    fill(first, std::min(chunk_rows_, rows_ - first), values.data());
-    chunk->ok =
-        deflaters.local().compress(values.data(), chunk_values, value_bytes_, &chunk->packed);
+    const std::uint64_t rows = std::min(chunk_rows_, rows_ - first);
+    fill(first, rows, chunk->values.data());
+    const std::size_t filled = std::size_t(rows) * std::size_t(columns_) * value_bytes_;
+    // The last chunk's padding: zeros, HDF5's fill value.
+    std::memset(chunk->values.data() + filled, 0, chunk_bytes - filled);
+    chunk->size = deflaters.local().compress(chunk->values.data(), chunk_values, value_bytes_,
+                                             &chunk->packed);
     return chunk;
   };
-  auto write = [&](std::shared_ptr<Chunk> chunk) {
-    if (!chunk->ok) file_->check(-1, "deflate a chunk of " + path_);
-    write_chunk(chunk->packed);
+  auto write = [&](Chunk* chunk) {
+    write_chunk(chunk->packed.data(), chunk->size);
+    written.push(chunk);
   };
   // Chunks are made and compressed in parallel and written in order as they come, so the
   // writing overlaps the compressing; a few chunks in flight per thread.
-  using Token = std::shared_ptr<Chunk>;
   const std::size_t in_flight = 2 * std::size_t(tbb::this_task_arena::max_concurrency()) + 2;
   tbb::parallel_pipeline(
-      in_flight, tbb::make_filter<void, Token>(tbb::filter_mode::serial_in_order, source) &
-                     tbb::make_filter<Token, Token>(tbb::filter_mode::parallel, compress) &
-                     tbb::make_filter<Token, void>(tbb::filter_mode::serial_in_order, write));
+      in_flight, tbb::make_filter<void, Chunk*>(tbb::filter_mode::serial_in_order, source) &
+                     tbb::make_filter<Chunk*, Chunk*>(tbb::filter_mode::parallel, compress) &
+                     tbb::make_filter<Chunk*, void>(tbb::filter_mode::serial_in_order, write));
   written_ = rows_;
 }
 

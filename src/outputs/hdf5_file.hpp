@@ -59,7 +59,8 @@ class Dataset {
 
  private:
   void write_chunks(bool last);
-  void write_chunk(const std::vector<unsigned char>& packed);  // the next chunk, compressed
+  // The next chunk, compressed (`size` 0: its compression failed).
+  void write_chunk(const unsigned char* packed, std::size_t size);
 
   const File* file_;
   std::string path_;
