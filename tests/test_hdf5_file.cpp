@@ -3,7 +3,8 @@
 // pipeline (the reader h5py, MATLAB and Julia use), declare only the standard shuffle and
 // deflate filters (H5Z_FILTER_SHUFFLE = 2, H5Z_FILTER_DEFLATE = 1 in the HDF5 reference
 // manual, so no plugin is needed), and give the same bytes for 1 and 2 threads. The chunk
-// compressor's streams must inflate in zlib (RFC 1950/1951) to exactly the shuffled bytes.
+// compressor's streams must inflate in zlib (RFC 1950/1951), the inflater HDF5 uses, to exactly
+// the shuffled bytes.
 #include <tbb/task_arena.h>
 #include <unistd.h>
 #include <zlib.h>
@@ -173,7 +174,7 @@ std::vector<unsigned char> inflate_unshuffle(const std::vector<unsigned char>& p
 }
 
 // A plane's bytes of one kind: 0 random (stored), 1 few distinct values (literals), 2 long
-// runs (zlib), 3 one value (constant), 4 counts shaped like the Fibonacci numbers, which make a
+// runs (runs), 3 one value (constant), 4 counts shaped like the Fibonacci numbers, which make a
 // Huffman code deeper than deflate's 15 bits unless limited (literals).
 unsigned char plane_byte(int kind, std::size_t v, std::mt19937_64& random) {
   static const std::uint64_t fibonacci[] = {1,    1,    2,    3,    5,     8,     13,   21,
@@ -203,8 +204,8 @@ TEST_CASE("Chunks deflate plane by plane into zlib streams that inflate exactly"
   std::mt19937_64 random(20261202);
   hdf5::ChunkDeflater deflater;
   // Planes of every kind in random order, so every coding follows every other (a stored block
-  // or zlib's stream after bits left over by a Huffman block); sizes around the stored-block
-  // limit (65,535 bytes) and the sampling threshold (4096 bytes), down to one value.
+  // or another Huffman block after bits left over by a Huffman block); sizes around the
+  // stored-block limit (65,535 bytes) and the sampling threshold (4096 bytes), down to one value.
   for (const std::size_t bytes : {1, 2, 4, 8, 24}) {
     for (const std::size_t values : {1, 3, 4095, 4096, 65535, 65536, 65537, 196608}) {
       std::vector<int> kinds(bytes);
@@ -219,7 +220,7 @@ TEST_CASE("Chunks deflate plane by plane into zlib streams that inflate exactly"
       INFO(bytes << " bytes, " << values << " values");
       CHECK(inflate_unshuffle(packed, values, bytes) == in);
       // No plane of a full-size chunk grows by more than its block headers (a plane of a few
-      // bytes through zlib takes a few bytes more: its block and the sync flush).
+      // bytes takes a few bytes more: the code lengths of its block).
       if (values >= 4096) CHECK(packed.size() <= in.size() + 5 * bytes * (values / 65535 + 1) + 6);
     }
   }
@@ -243,7 +244,7 @@ TEST_CASE("Each plane gets the coding that suits it", "[io][hdf5]") {
   // Seven random bits: 7 bits of entropy per byte, under the 7.9 of the stored rule.
   for (unsigned char& byte : plane) byte = static_cast<unsigned char>(random() & 0x7f);
   CHECK(hdf5::plane_coding(plane.data(), plane.size()) == hdf5::PlaneCoding::literals);
-  // Random bytes each repeated twice: a flat histogram, but runs that zlib finds.
+  // Random bytes each repeated twice: a flat histogram, but runs.
   for (std::size_t k = 0; k < plane.size(); k += 2)
     plane[k] = plane[k + 1] = static_cast<unsigned char>(random());
   CHECK(hdf5::plane_coding(plane.data(), plane.size()) == hdf5::PlaneCoding::runs);

@@ -9,9 +9,15 @@ namespace {
 
 constexpr int kLiterals = 256;
 constexpr int kEndOfBlock = 256;
-constexpr int kLiteralLengthCodes = 257;  // HLIT = 257: the literals and the end of block
-constexpr int kDistanceCodes = 2;         // HDIST = 2, both one bit long (never used)
-constexpr int kMaxCodeLength = 15;        // RFC 1951 3.2.7
+constexpr int kLiteralLengthCodes = 257;     // HLIT = 257: the literals and the end of block
+constexpr int kDistanceCodes = 2;            // HDIST = 2, both one bit long (never used)
+constexpr int kMaxLiteralLengthCodes = 286;  // 0-255, end of block, lengths 257-285
+constexpr int kMaxCodeLength = 15;           // RFC 1951 3.2.7
+// Copy lengths: the base length of symbols 257-285 and their extra bits (RFC 1951 3.2.5).
+constexpr int kLengthBase[29] = {3,  4,  5,  6,  7,  8,  9,  10, 11,  13,  15,  17,  19,  23, 27,
+                                 31, 35, 43, 51, 59, 67, 83, 99, 115, 131, 163, 195, 227, 258};
+constexpr int kLengthExtraBits[29] = {0, 0, 0, 0, 0, 0, 0, 0, 1, 1, 1, 1, 2, 2, 2,
+                                      2, 3, 3, 3, 3, 4, 4, 4, 4, 5, 5, 5, 5, 0};
 constexpr int kCodeLengthSymbols = 19;
 constexpr int kMaxCodeLengthCodeLength = 7;
 // The order in which the code length code's lengths are sent (RFC 1951 3.2.7).
@@ -87,17 +93,14 @@ void put_fixed_symbol(int symbol, BitWriter& out) {
     out.put(reversed(0xc0 + std::uint32_t(symbol - 280), 8), 8);
 }
 
-// Appends a copy of `length` bytes (3 to 258) at distance 1: its length symbol and extra bits
-// (RFC 1951 3.2.5), then distance code 0 (5 bits, no extra bits).
+// Appends a copy of `length` bytes (3 to 258) at distance 1 under the fixed codes: its length
+// symbol and extra bits (RFC 1951 3.2.5), then distance code 0 (5 bits, no extra bits).
 void put_copy_of_previous(int length, BitWriter& out) {
-  static constexpr int kBase[29] = {3,  4,  5,  6,  7,  8,  9,  10, 11,  13,  15,  17,  19,  23, 27,
-                                    31, 35, 43, 51, 59, 67, 83, 99, 115, 131, 163, 195, 227, 258};
-  static constexpr int kExtra[29] = {0, 0, 0, 0, 0, 0, 0, 0, 1, 1, 1, 1, 2, 2, 2,
-                                     2, 3, 3, 3, 3, 4, 4, 4, 4, 5, 5, 5, 5, 0};
   int code = 28;  // 258 has a symbol of its own (285)
-  while (kBase[code] > length || (code == 28 && length != 258)) --code;
+  while (kLengthBase[code] > length || (code == 28 && length != 258)) --code;
   put_fixed_symbol(257 + code, out);
-  if (kExtra[code] > 0) out.put(std::uint64_t(length - kBase[code]), kExtra[code]);
+  if (kLengthExtraBits[code] > 0)
+    out.put(std::uint64_t(length - kLengthBase[code]), kLengthExtraBits[code]);
   out.put(0, 5);
 }
 
@@ -154,27 +157,25 @@ void code_lengths(const std::uint32_t* counts, int n, int limit, std::uint8_t* l
   }
 }
 
-void BitWriter::put_codes(const unsigned char* in, std::size_t size, const std::uint32_t* table) {
-  // Three codes (at most 45 bits) between flushes, on top of at most 7 bits pending.
+template <int kPerFlush, class Symbol>
+void BitWriter::put_symbols(const Symbol* in, std::size_t size, const std::uint64_t* table) {
   std::uint64_t buffer = buffer_;
-  int bits = bits_;
+  int bits = bits_;  // at most 7 after each flush
   unsigned char* out = out_;
-  auto add = [&](std::uint32_t code) {
-    buffer |= std::uint64_t(code & 0xffff) << bits;
-    bits += int(code >> 16);
+  auto add = [&](std::uint64_t code) {
+    buffer |= (code & 0xffffffff) << bits;
+    bits += int(code >> 32);
   };
   auto flush = [&] {
     std::memcpy(out, &buffer, 8);
     const int bytes = bits >> 3;
     out += bytes;
     bits &= 7;
-    buffer >>= 8 * bytes;  // bytes <= 6
+    buffer >>= 8 * bytes;  // bytes <= 7
   };
   std::size_t k = 0;
-  for (; k + 3 <= size; k += 3) {
-    add(table[in[k]]);
-    add(table[in[k + 1]]);
-    add(table[in[k + 2]]);
+  for (; k + kPerFlush <= size; k += kPerFlush) {
+    for (int j = 0; j < kPerFlush; ++j) add(table[in[k + std::size_t(j)]]);
     flush();
   }
   for (; k < size; ++k) {
@@ -209,6 +210,73 @@ void put_constant_block(unsigned char byte, std::size_t size, bool last, BitWrit
   put_fixed_symbol(kEndOfBlock, out);
 }
 
+namespace {
+
+// The header of a dynamic block (RFC 1951 3.2.7) whose literal/length code has the lengths
+// `lengths[0..hlit)` (hlit from 257 to 286) and whose distance code is two one-bit codes (only
+// distance code 0, distance 1, is ever used); `codes` gets the literal/length codes.
+void put_dynamic_header(const std::uint32_t* counts, int hlit, bool last, std::uint8_t* lengths,
+                        std::uint16_t* codes, BitWriter& out) {
+  code_lengths(counts, hlit, kMaxCodeLength, lengths);
+  std::fill(lengths + hlit, lengths + hlit + kDistanceCodes, 1);
+  canonical_codes(lengths, hlit, codes);
+
+  const std::vector<LengthSymbol> header = run_length_code(lengths, hlit + kDistanceCodes);
+  std::uint32_t header_counts[kCodeLengthSymbols] = {};
+  for (const LengthSymbol& s : header) ++header_counts[s.symbol];
+  std::uint8_t header_lengths[kCodeLengthSymbols];
+  code_lengths(header_counts, kCodeLengthSymbols, kMaxCodeLengthCodeLength, header_lengths);
+  std::uint16_t header_codes[kCodeLengthSymbols];
+  canonical_codes(header_lengths, kCodeLengthSymbols, header_codes);
+  int sent_lengths = kCodeLengthSymbols;  // HCLEN + 4: trailing zeros in the order are implied
+  while (sent_lengths > 4 && header_lengths[kCodeLengthOrder[sent_lengths - 1]] == 0)
+    --sent_lengths;
+
+  out.put(last ? 1 : 0, 1);  // BFINAL
+  out.put(2, 2);             // BTYPE 10: dynamic Huffman codes
+  out.put(std::uint64_t(hlit - 257), 5);
+  out.put(kDistanceCodes - 1, 5);
+  out.put(std::uint64_t(sent_lengths - 4), 4);
+  for (int i = 0; i < sent_lengths; ++i) out.put(header_lengths[kCodeLengthOrder[i]], 3);
+  for (const LengthSymbol& s : header) {
+    out.put(header_codes[s.symbol], header_lengths[s.symbol]);
+    if (kExtraBits[s.symbol] > 0) out.put(s.extra, kExtraBits[s.symbol]);
+  }
+}
+
+// Length symbols (257-285) and extra bits of copies of 3 to 258 bytes (RFC 1951 3.2.5).
+struct LengthCode {
+  std::uint16_t symbol = 0;
+  std::uint8_t extra_bits = 0, extra = 0;
+};
+struct LengthCodes {
+  LengthCode of[259];
+  LengthCodes() {
+    for (int length = 3; length <= 258; ++length) {
+      int code = 28;  // 258 has a symbol of its own (285)
+      while (kLengthBase[code] > length || (code == 28 && length != 258)) --code;
+      of[length] = {std::uint16_t(257 + code), std::uint8_t(kLengthExtraBits[code]),
+                    std::uint8_t(length - kLengthBase[code])};
+    }
+  }
+};
+const LengthCodes kLengthCodes;
+
+// The end of the run of bytes equal to in[k] that starts at k.
+std::size_t run_end(const unsigned char* in, std::size_t k, std::size_t size) {
+  std::uint64_t pattern = 0x0101010101010101ull * in[k];
+  std::size_t e = k + 1;
+  for (; e + 8 <= size; e += 8) {
+    std::uint64_t word;
+    std::memcpy(&word, in + e, 8);
+    if (word != pattern) return e + std::size_t(__builtin_ctzll(word ^ pattern) >> 3);
+  }
+  while (e < size && in[e] == in[k]) ++e;
+  return e;
+}
+
+}  // namespace
+
 void put_literal_block(const unsigned char* in, std::size_t size, bool last, BitWriter& out) {
   std::uint32_t counts[4][kLiterals] = {};  // four tables: fewer stalls on repeated bytes
   std::size_t k = 0;
@@ -224,36 +292,47 @@ void put_literal_block(const unsigned char* in, std::size_t size, bool last, Bit
     literal_counts[b] = counts[0][b] + counts[1][b] + counts[2][b] + counts[3][b];
   literal_counts[kEndOfBlock] = 1;
   std::uint8_t lengths[kLiteralLengthCodes + kDistanceCodes];
-  code_lengths(literal_counts, kLiteralLengthCodes, kMaxCodeLength, lengths);
-  std::fill(lengths + kLiteralLengthCodes, lengths + kLiteralLengthCodes + kDistanceCodes, 1);
   std::uint16_t codes[kLiteralLengthCodes];
-  canonical_codes(lengths, kLiteralLengthCodes, codes);
+  put_dynamic_header(literal_counts, kLiteralLengthCodes, last, lengths, codes, out);
+  std::uint64_t table[kLiterals];
+  for (int b = 0; b < kLiterals; ++b) table[b] = codes[b] | (std::uint64_t(lengths[b]) << 32);
+  out.put_symbols<3>(in, size, table);  // 3 codes of at most 15 bits
+  out.put(codes[kEndOfBlock], lengths[kEndOfBlock]);
+}
 
-  const std::vector<LengthSymbol> header =
-      run_length_code(lengths, kLiteralLengthCodes + kDistanceCodes);
-  std::uint32_t header_counts[kCodeLengthSymbols] = {};
-  for (const LengthSymbol& s : header) ++header_counts[s.symbol];
-  std::uint8_t header_lengths[kCodeLengthSymbols];
-  code_lengths(header_counts, kCodeLengthSymbols, kMaxCodeLengthCodeLength, header_lengths);
-  std::uint16_t header_codes[kCodeLengthSymbols];
-  canonical_codes(header_lengths, kCodeLengthSymbols, header_codes);
-  int sent_lengths = kCodeLengthSymbols;  // HCLEN + 4: trailing zeros in the order are implied
-  while (sent_lengths > 4 && header_lengths[kCodeLengthOrder[sent_lengths - 1]] == 0)
-    --sent_lengths;
-
-  out.put(last ? 1 : 0, 1);  // BFINAL
-  out.put(2, 2);             // BTYPE 10: dynamic Huffman codes
-  out.put(kLiteralLengthCodes - 257, 5);
-  out.put(kDistanceCodes - 1, 5);
-  out.put(std::uint64_t(sent_lengths - 4), 4);
-  for (int i = 0; i < sent_lengths; ++i) out.put(header_lengths[kCodeLengthOrder[i]], 3);
-  for (const LengthSymbol& s : header) {
-    out.put(header_codes[s.symbol], header_lengths[s.symbol]);
-    if (kExtraBits[s.symbol] > 0) out.put(s.extra, kExtraBits[s.symbol]);
+void put_run_block(const unsigned char* in, std::size_t size, bool last, BitWriter& out,
+                   std::vector<std::uint16_t>* tokens) {
+  // Tokens: a literal (0-255), or a copy at distance 1 (its length + 256, 259 to 514).
+  tokens->clear();
+  for (std::size_t k = 0; k < size;) {
+    const std::size_t end = run_end(in, k, size);
+    tokens->push_back(in[k]);
+    std::size_t copies = end - k - 1;
+    for (; copies >= 3; copies -= std::min<std::size_t>(copies, 258))
+      tokens->push_back(std::uint16_t(256 + std::min<std::size_t>(copies, 258)));
+    for (; copies > 0; --copies) tokens->push_back(in[k]);
+    k = end;
   }
-  std::uint32_t table[kLiterals];
-  for (int b = 0; b < kLiterals; ++b) table[b] = codes[b] | (std::uint32_t(lengths[b]) << 16);
-  out.put_codes(in, size, table);
+  std::uint32_t counts[kMaxLiteralLengthCodes] = {};
+  for (std::uint16_t t : *tokens) ++counts[t < 256 ? t : kLengthCodes.of[t - 256].symbol];
+  counts[kEndOfBlock] = 1;
+  int hlit = kMaxLiteralLengthCodes;
+  while (hlit > kLiteralLengthCodes && counts[hlit - 1] == 0) --hlit;
+  std::uint8_t lengths[kMaxLiteralLengthCodes + kDistanceCodes] = {};
+  std::uint16_t codes[kMaxLiteralLengthCodes] = {};
+  put_dynamic_header(counts, hlit, last, lengths, codes, out);
+  // Each token's bits at once: a literal's code, or a copy's length code, its extra bits and
+  // distance code 0 (the code "0" of the two one-bit distance codes), at most 21 bits.
+  std::uint64_t table[256 + 259] = {};
+  for (int t = 0; t < 256; ++t) table[t] = codes[t] | (std::uint64_t(lengths[t]) << 32);
+  for (int length = 3; length <= 258; ++length) {
+    const LengthCode& copy = kLengthCodes.of[length];
+    if (copy.symbol >= hlit) continue;  // not in this block's code: never used
+    const int code_bits = lengths[copy.symbol];
+    table[256 + length] = (codes[copy.symbol] | (std::uint64_t(copy.extra) << code_bits)) |
+                          (std::uint64_t(code_bits + copy.extra_bits + 1) << 32);
+  }
+  out.put_symbols<2>(tokens->data(), tokens->size(), table);  // 2 tokens of at most 21 bits
   out.put(codes[kEndOfBlock], lengths[kEndOfBlock]);
 }
 

@@ -1,6 +1,7 @@
 // Deflate blocks written directly (RFC 1951), for the matrix file's chunk streams
-// (hdf5_deflate.cpp): stored blocks, blocks repeating one byte, and blocks of literals only
-// under a dynamic Huffman code made for the bytes at hand. The latter is what a byte plane of mixed
+// (hdf5_deflate.cpp): stored blocks, blocks repeating one byte, blocks of literals only and
+// blocks of literals and runs (copies at distance 1) under a dynamic Huffman code made for the
+// bytes at hand. The latter is what a byte plane of mixed
 // values needs (the high bytes of factors and errors: few distinct bytes, no runs or repeats worth
 // a match), and coded here it costs a fraction of zlib's time, which searches for matches first.
 #pragma once
@@ -8,6 +9,7 @@
 #include <cstddef>
 #include <cstdint>
 #include <cstring>
+#include <vector>
 
 namespace hearthray::hdf5 {
 
@@ -38,9 +40,11 @@ class BitWriter {
     buffer_ = 0;
     bits_ = 0;
   }
-  // Appends the codes of `size` bytes: table[byte] holds the code (bit-reversed, as deflate
-  // sends Huffman codes) in its low 16 bits and the code's length above them.
-  void put_codes(const unsigned char* in, std::size_t size, const std::uint32_t* table);
+  // Appends the bits of `size` symbols (bytes or tokens): table[symbol] holds up to 24 bits in
+  // its low 32 bits and their count above them; kPerFlush symbols' bits must fit in 56.
+  // Defined for the blocks in deflate_blocks.cpp.
+  template <int kPerFlush, class Symbol>
+  void put_symbols(const Symbol* in, std::size_t size, const std::uint64_t* table);
 
  private:
   void flush_bytes() {
@@ -67,6 +71,12 @@ void put_constant_block(unsigned char byte, std::size_t size, bool last, BitWrit
 // Appends one block of `size` literals (at least 1) coded with a dynamic Huffman code built
 // from their counts, final when `last`. At most 2 * size + 480 bytes.
 void put_literal_block(const unsigned char* in, std::size_t size, bool last, BitWriter& out);
+
+// Appends one block coding `size` bytes (at least 1) as literals and copies of the previous byte
+// (runs), under a dynamic Huffman code built from their counts, final when `last`; `tokens` is
+// scratch space. At most 2 * size + 520 bytes.
+void put_run_block(const unsigned char* in, std::size_t size, bool last, BitWriter& out,
+                   std::vector<std::uint16_t>* tokens);
 
 // Huffman code lengths of at most `limit` bits for `n` symbols (n at most 288) from their
 // counts: every counted symbol gets a code, and so do unused symbols, in order, until two have
