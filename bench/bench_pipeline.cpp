@@ -35,22 +35,35 @@ double peak_gib() {
   return double(usage.ru_maxrss) / (1024.0 * 1024.0);  // ru_maxrss is in KiB on Linux
 }
 
-// Stage lines: the time since the previous line and the peak memory so far.
+// CPU seconds (user and system, all threads) of this process so far.
+double cpu_seconds() {
+  rusage usage{};
+  getrusage(RUSAGE_SELF, &usage);
+  auto seconds = [](const timeval& t) { return double(t.tv_sec) + 1e-6 * double(t.tv_usec); };
+  return seconds(usage.ru_utime) + seconds(usage.ru_stime);
+}
+
+// Stage lines: the wall and CPU time since the previous line and the peak memory so far (CPU
+// seconds tell a stage's work apart from other programs' load on a shared machine).
 class Stages {
  public:
-  Stages() : start_(now()), last_(start_) {}
+  Stages() : start_(now()), last_(start_), last_cpu_(cpu_seconds()) {}
   void done(const std::string& stage, const std::string& detail = "") {
     const auto t = now();
-    std::printf("  %-22s %9.2f s   peak %6.2f GiB   %s\n", stage.c_str(),
-                std::chrono::duration<double>(t - last_).count(), peak_gib(), detail.c_str());
+    const double cpu = cpu_seconds();
+    std::printf("  %-22s %9.2f s  cpu %8.2f s   peak %6.2f GiB   %s\n", stage.c_str(),
+                std::chrono::duration<double>(t - last_).count(), cpu - last_cpu_, peak_gib(),
+                detail.c_str());
     std::fflush(stdout);
     last_ = t;
+    last_cpu_ = cpu;
   }
   double total() const { return std::chrono::duration<double>(now() - start_).count(); }
 
  private:
   static std::chrono::steady_clock::time_point now() { return std::chrono::steady_clock::now(); }
   std::chrono::steady_clock::time_point start_, last_;
+  double last_cpu_ = 0;
 };
 
 }  // namespace
@@ -90,15 +103,16 @@ int main(int argc, char** argv) {
   stage = to_string(PipelineStage::exchange);
   std::printf(
       "  (%zu patches, %zu triangles; %llu rays, %.2f Mrays/s; smoothing %d iterations, "
-      "row error %g)\n",
+      "%d conjugate-gradient iterations, row error %g)\n",
       run.patches.size(), run.scene.triangles.size(),
       static_cast<unsigned long long>(run.stats.rays), run.stats.rays_per_second / 1e6,
-      run.smoothing.iterations, run.smoothing.max_row_error);
+      run.smoothing.iterations, run.smoothing.linear_iterations, run.smoothing.max_row_error);
   solve_model_exchange(&solved, options);
   const ExchangeResult& result = solved.result;
   stages.done(stage, to_string(result.status) + ", " + std::to_string(result.iterations) +
-                         " Newton iterations, residual " + std::to_string(result.final_residual_W) +
-                         " W");
+                         " Newton iterations, " + std::to_string(result.linear_iterations) +
+                         " GMRES iterations, residual " +
+                         std::to_string(result.final_residual_W) + " W");
   write_vtu((dir / "patches.vtu").string(), run.scene, run.patches, solve_fields(model, result));
   stages.done("write patches.vtu",
               std::to_string(fs::file_size(dir / "patches.vtu") / (1024 * 1024)) + " MiB");
