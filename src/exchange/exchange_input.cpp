@@ -229,6 +229,7 @@ Setup check_and_set_up(const ExchangeProblem& problem) {
   s.nodes = problem.nodes.size();
   if (s.faces == 0) throw InputError("the exchange problem has no faces: nothing radiates");
   s.F = &vf.F;
+  s.reciprocal = vf.smoothed;
   if (static_cast<std::size_t>(vf.F.rows()) != s.faces ||
       static_cast<std::size_t>(vf.F.cols()) != s.faces) {
     throw InputError("the view-factor matrix is " + std::to_string(vf.F.rows()) + " x " +

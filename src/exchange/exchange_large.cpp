@@ -38,14 +38,19 @@
 // needs (forcing_term below) took 45 iterations on the box furnace where a fixed 1e-12 took 90.
 // Starting the unknown nodes at the level that balances their heat in total (balanced_level
 // below) rather than at the mean known level took the pipeline benchmark's furnace (20,050
-// patches, one node each) from 6 Newton steps and 98 GMRES iterations to 3 and 49.
+// patches, one node each) from 6 Newton steps and 98 GMRES iterations to 3 and 49. With
+// smoothed factors the linear solves multiply by half of F (exchange_reciprocal.hpp: the
+// entries left of the diagonal from their mirrors, half the bytes read per product); the
+// residuals that decide convergence always use the whole F.
 #include <Eigen/Dense>
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <optional>
 #include <string>
 
 #include "exchange/exchange_krylov.hpp"
+#include "exchange/exchange_reciprocal.hpp"
 #include "exchange/exchange_setup.hpp"
 #include "hearthray/units.hpp"
 
@@ -128,6 +133,8 @@ class LargeSolver {
   Eigen::VectorXd from_surroundings_;  // F_is E_s
   Eigen::VectorXd a_;                  // per node: a_k of the current step
   bool nonlinear_ = false;             // some unknown node has convection or a wall loss
+  // Smoothed factors: the linear solves' products from half of F (usable() checked).
+  std::optional<ReciprocalProduct> half_;
   mutable Eigen::VectorXd scratch_;     // F x of the last apply_schur
   mutable Eigen::VectorXd scratch_of_;  // its x
   double previous_ratio_ = 0;  // ratio of the residuals to the allowed at the previous step
@@ -179,7 +186,11 @@ Residuals LargeSolver::evaluate(const Iterate& it) const {
 }
 
 void LargeSolver::apply_schur(const Eigen::VectorXd& x, Eigen::VectorXd* out) const {
-  multiply(*s_.F, x, &scratch_);
+  if (half_ && half_->usable()) {
+    half_->multiply(x, &scratch_);
+  } else {
+    multiply(*s_.F, x, &scratch_);
+  }
   scratch_of_ = x;
   const Eigen::VectorXd sums = node_sums(scratch_);
   out->resize(s_.faces);
@@ -344,7 +355,8 @@ bool LargeSolver::linear_solve_failed(const KrylovSummary& linear, const KrylovO
 // temperature. Returns false (with a status) when radiation alone cannot balance a node.
 bool LargeSolver::update_nodes(const Residuals& res, const Eigen::VectorXd& dJ, Iterate* it,
                                ExchangeResult* result) const {
-  // GMRES ends with the true residual of its answer: F dJ is usually the last product made.
+  // GMRES ends with the residual of its answer: F dJ is usually the last product made (from
+  // half of F for smoothed factors, equal to the whole product up to round-off).
   Eigen::VectorXd FdJ;
   const bool known = scratch_of_.size() == dJ.size() && scratch_of_ == dJ;
   if (!known) multiply(*s_.F, dJ, &FdJ);
@@ -369,6 +381,7 @@ bool LargeSolver::update_nodes(const Residuals& res, const Eigen::VectorXd& dJ, 
 }
 
 void LargeSolver::solve(ExchangeResult* result, Iterate* it) {
+  if (s_.reciprocal) half_.emplace(*s_.F, s_.area);
   start(it);
   const LinearOperator schur = [this](const Eigen::VectorXd& x, Eigen::VectorXd* out) {
     apply_schur(x, out);

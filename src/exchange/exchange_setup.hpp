@@ -16,6 +16,7 @@ struct Setup {
   std::size_t faces = 0;
   std::size_t nodes = 0;
   const SparseMatrix* F = nullptr;
+  bool reciprocal = false;  // smoothed factors: A_i F_ij = A_j F_ji, checked before use
   // Per face.
   Eigen::VectorXd eps;
   Eigen::VectorXd area;
