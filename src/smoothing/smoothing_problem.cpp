@@ -541,19 +541,11 @@ void measure_rows(const Problem& p, const Tallies& t, const ViewFactors& vf, Mea
     for (std::size_t i = first; i < last; ++i) {
       const std::uint64_t rays = t.rays[i];
       const double n_i = static_cast<double>(rays);
-      const double row_ratio = ratio.empty() ? 1.0 : ratio[i];
-      // Screening: a term whose square, with no square root or division, is clearly (by 1e-6,
-      // far above round-off) below the worst so far cannot raise it; the others are computed
-      // as before, so the result is bitwise the same at a fraction of the cost.
-      const double lo = std::min(0.5, 1 / n_i), scale = row_ratio * row_ratio / n_i;
       auto note = [&](double smoothed, double before) {
         if (smoothed == 0 && before == 0) return;
-        const double d = std::abs(smoothed - before);
-        const double f = std::clamp(std::clamp(std::max(smoothed, before), lo, 1 - lo), 0.0, 1.0);
-        const double bound = worst_correction * worst_correction * (f * (1 - f) * scale);
-        if (worst_correction > 0 && d * d <= 0.999999 * bound) return;
-        const double sigma = correction_sigma(std::max(smoothed, before), rays) * row_ratio;
-        worst_correction = std::max(worst_correction, d / sigma);
+        const double sigma =
+            correction_sigma(std::max(smoothed, before), rays) * (ratio.empty() ? 1.0 : ratio[i]);
+        worst_correction = std::max(worst_correction, std::abs(smoothed - before) / sigma);
       };
       std::uint64_t r = t.hit_offset[i];  // merge walk: both lists ascend
       double sum = 0;
