@@ -110,6 +110,11 @@ class LargeSolver {
   }
 
   void solve(ExchangeResult* result, Iterate* it);
+  // F J as multiply() gave it in the last evaluation, if that was at this J; else null.
+  const Eigen::VectorXd* product_at(const Eigen::VectorXd& J) const {
+    const bool same = evaluated_J_.size() == J.size() && evaluated_J_ == J;
+    return same ? &evaluated_FJ_ : nullptr;
+  }
 
  private:
   Residuals evaluate(const Iterate& it) const;
@@ -137,6 +142,7 @@ class LargeSolver {
   std::optional<ReciprocalProduct> half_;
   mutable Eigen::VectorXd scratch_;     // F x of the last apply_schur
   mutable Eigen::VectorXd scratch_of_;  // its x
+  mutable Eigen::VectorXd evaluated_FJ_, evaluated_J_;  // F J (whole F) of the last evaluate()
   double previous_ratio_ = 0;  // ratio of the residuals to the allowed at the previous step
 };
 
@@ -152,6 +158,8 @@ Eigen::VectorXd LargeSolver::node_sums(const Eigen::VectorXd& v) const {
 Residuals LargeSolver::evaluate(const Iterate& it) const {
   Eigen::VectorXd G;
   multiply(*s_.F, it.J, &G);
+  evaluated_FJ_ = G;
+  evaluated_J_ = it.J;
   G += from_surroundings_;
   Residuals res;
   res.face.resize(s_.faces);
@@ -423,9 +431,16 @@ void LargeSolver::solve(ExchangeResult* result, Iterate* it) {
 }  // namespace
 
 void solve_large(const Setup& s, const ExchangeOptions& options, ExchangeResult* result,
-                 Eigen::VectorXd* J, Eigen::VectorXd* node_K) {
+                 Eigen::VectorXd* J, Eigen::VectorXd* node_K, Eigen::VectorXd* FJ) {
   Iterate it;
-  LargeSolver(s, options).solve(result, &it);
+  LargeSolver solver(s, options);
+  solver.solve(result, &it);
+  const Eigen::VectorXd* known = solver.product_at(it.J);
+  if (known != nullptr) {
+    *FJ = *known;
+  } else {
+    FJ->resize(0);
+  }
   *J = std::move(it.J);
   *node_K = std::move(it.T);
 }
