@@ -111,8 +111,8 @@ int main(int argc, char** argv) {
   const ExchangeResult& result = solved.result;
   stages.done(stage, to_string(result.status) + ", " + std::to_string(result.iterations) +
                          " Newton iterations, " + std::to_string(result.linear_iterations) +
-                         " GMRES iterations, residual " +
-                         std::to_string(result.final_residual_W) + " W");
+                         " GMRES iterations, residual " + std::to_string(result.final_residual_W) +
+                         " W");
   write_vtu((dir / "patches.vtu").string(), run.scene, run.patches, solve_fields(model, result));
   stages.done("write patches.vtu",
               std::to_string(fs::file_size(dir / "patches.vtu") / (1024 * 1024)) + " MiB");

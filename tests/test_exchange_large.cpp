@@ -416,8 +416,7 @@ TEST_CASE("products from half of a reciprocal F equal the whole product, for any
   CHECK(one == four);
 }
 
-TEST_CASE("products from half of F are refused for factors that are not reciprocal",
-          "[exchange]") {
+TEST_CASE("products from half of F are refused for factors that are not reciprocal", "[exchange]") {
   ViewFactors vf = random_enclosure(3000, 60, 0.1, 111);
   const Eigen::VectorXd area = Eigen::Map<const Eigen::VectorXd>(vf.areas.data(), 3000);
   CHECK(exchange_detail::ReciprocalProduct(vf.F, area).usable());
@@ -436,9 +435,10 @@ TEST_CASE("products from half of F are refused for factors that are not reciproc
   CHECK_FALSE(exchange_detail::ReciprocalProduct(vf.F, other).usable());
 }
 
-TEST_CASE("smoothed factors (half products in the linear solves) give the same solution, "
-          "bitwise for any thread count",
-          "[exchange]") {
+TEST_CASE(
+    "smoothed factors (half products in the linear solves) give the same solution, "
+    "bitwise for any thread count",
+    "[exchange]") {
   ViewFactors vf = random_enclosure(6000, 100, 0.1, 121);
   const ExchangeProblem p = make_problem(vf, Mix::conduction, 1, 0, 122);
   auto solve_with = [&](int threads, bool smoothed) {

@@ -140,8 +140,8 @@ class LargeSolver {
   bool nonlinear_ = false;             // some unknown node has convection or a wall loss
   // Smoothed factors: the linear solves' products from half of F (usable() checked).
   std::optional<ReciprocalProduct> half_;
-  mutable Eigen::VectorXd scratch_;     // F x of the last apply_schur
-  mutable Eigen::VectorXd scratch_of_;  // its x
+  mutable Eigen::VectorXd scratch_;                     // F x of the last apply_schur
+  mutable Eigen::VectorXd scratch_of_;                  // its x
   mutable Eigen::VectorXd evaluated_FJ_, evaluated_J_;  // F J (whole F) of the last evaluate()
   double previous_ratio_ = 0;  // ratio of the residuals to the allowed at the previous step
 };

@@ -93,19 +93,19 @@ void ReciprocalProduct::multiply(const Eigen::VectorXd& x, Eigen::VectorXd* y) c
         }
       },
       tbb::simple_partitioner());
-  tbb::parallel_for(tbb::blocked_range<Eigen::Index>(0, n, 2048),
-                    [&](const tbb::blocked_range<Eigen::Index>& rows) {
-                      std::size_t last = 0;  // last block starting at or before row i
-                      for (Eigen::Index i = rows.begin(); i != rows.end(); ++i) {
-                        while (last + 1 < blocks && block_[last + 1] <= i) ++last;
-                        double from_left = 0;
-                        for (std::size_t b = 0; b <= last; ++b) {
-                          from_left += buffer_[b * static_cast<std::size_t>(n) +
-                                               static_cast<std::size_t>(i)];
-                        }
-                        out[i] += from_left / area_[i];
-                      }
-                    });
+  tbb::parallel_for(
+      tbb::blocked_range<Eigen::Index>(0, n, 2048),
+      [&](const tbb::blocked_range<Eigen::Index>& rows) {
+        std::size_t last = 0;  // last block starting at or before row i
+        for (Eigen::Index i = rows.begin(); i != rows.end(); ++i) {
+          while (last + 1 < blocks && block_[last + 1] <= i) ++last;
+          double from_left = 0;
+          for (std::size_t b = 0; b <= last; ++b) {
+            from_left += buffer_[b * static_cast<std::size_t>(n) + static_cast<std::size_t>(i)];
+          }
+          out[i] += from_left / area_[i];
+        }
+      });
 }
 
 }  // namespace exchange_detail
