@@ -281,7 +281,8 @@ std::ofstream open_output(const std::filesystem::path& path) {
 }
 
 int solve_scene_printing(const std::string& input, const RaySettings& settings,
-                         const CacheChoice& cache, bool comfort, SolvedScene* out, bool exchange) {
+                         const CacheChoice& cache, bool comfort, SolvedScene* out, bool exchange,
+                         const std::function<void(const SolvedScene&)>& before_exchange) {
   const PipelineOptions options = pipeline_options(settings, &cache);
   SceneFile file = open_scene(input);
   Scene scene = load_scene(file);
@@ -292,6 +293,7 @@ int solve_scene_printing(const std::string& input, const RaySettings& settings,
     print_warnings(out->warnings);
     print_no_cache_folder(out->run);
     if (!settings.quiet) print_notes(out->notes);
+    if (before_exchange) before_exchange(*out);
     if (exchange) solve_model_exchange(out, options);
   } catch (const RefusedInput& e) {
     end_progress_line();
