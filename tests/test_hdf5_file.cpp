@@ -173,7 +173,7 @@ std::vector<unsigned char> inflate_unshuffle(const std::vector<unsigned char>& p
 }
 
 // A plane's bytes of one kind: 0 random (stored), 1 few distinct values (literals), 2 long
-// runs (zlib), 3 one value (zlib), 4 counts shaped like the Fibonacci numbers, which make a
+// runs (zlib), 3 one value (constant), 4 counts shaped like the Fibonacci numbers, which make a
 // Huffman code deeper than deflate's 15 bits unless limited (literals).
 unsigned char plane_byte(int kind, std::size_t v, std::mt19937_64& random) {
   static const std::uint64_t fibonacci[] = {1,    1,    2,    3,    5,     8,     13,   21,
@@ -236,7 +236,9 @@ TEST_CASE("Each plane gets the coding that suits it", "[io][hdf5]") {
   CHECK(hdf5::plane_coding(plane.data(), 4095) == hdf5::PlaneCoding::runs);  // too small to judge
   CHECK(coding(1) == hdf5::PlaneCoding::literals);
   CHECK(coding(2) == hdf5::PlaneCoding::runs);
-  CHECK(coding(3) == hdf5::PlaneCoding::runs);
+  CHECK(coding(3) == hdf5::PlaneCoding::constant);
+  plane[plane.size() / 2 + 3] = 0;  // one other byte, where no sample looks
+  CHECK(hdf5::plane_coding(plane.data(), plane.size()) == hdf5::PlaneCoding::runs);
   CHECK(coding(4) == hdf5::PlaneCoding::literals);
   // Seven random bits: 7 bits of entropy per byte, under the 7.9 of the stored rule.
   for (unsigned char& byte : plane) byte = static_cast<unsigned char>(random() & 0x7f);

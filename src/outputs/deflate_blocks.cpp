@@ -68,6 +68,39 @@ std::vector<LengthSymbol> run_length_code(const std::uint8_t* lengths, int n) {
   return out;
 }
 
+// A Huffman code as deflate sends it: bit-reversed.
+std::uint32_t reversed(std::uint32_t code, int length) {
+  std::uint32_t out = 0;
+  for (int bit = 0; bit < length; ++bit) out |= ((code >> bit) & 1) << (length - 1 - bit);
+  return out;
+}
+
+// Appends literal/length symbol `symbol` under the fixed Huffman code (RFC 1951 3.2.6).
+void put_fixed_symbol(int symbol, BitWriter& out) {
+  if (symbol < 144)
+    out.put(reversed(0x30 + std::uint32_t(symbol), 8), 8);
+  else if (symbol < 256)
+    out.put(reversed(0x190 + std::uint32_t(symbol - 144), 9), 9);
+  else if (symbol < 280)
+    out.put(reversed(std::uint32_t(symbol - 256), 7), 7);
+  else
+    out.put(reversed(0xc0 + std::uint32_t(symbol - 280), 8), 8);
+}
+
+// Appends a copy of `length` bytes (3 to 258) at distance 1: its length symbol and extra bits
+// (RFC 1951 3.2.5), then distance code 0 (5 bits, no extra bits).
+void put_copy_of_previous(int length, BitWriter& out) {
+  static constexpr int kBase[29] = {3,  4,  5,  6,  7,  8,  9,  10, 11,  13,  15,  17,  19,  23, 27,
+                                    31, 35, 43, 51, 59, 67, 83, 99, 115, 131, 163, 195, 227, 258};
+  static constexpr int kExtra[29] = {0, 0, 0, 0, 0, 0, 0, 0, 1, 1, 1, 1, 2, 2, 2,
+                                     2, 3, 3, 3, 3, 4, 4, 4, 4, 5, 5, 5, 5, 0};
+  int code = 28;  // 258 has a symbol of its own (285)
+  while (kBase[code] > length || (code == 28 && length != 258)) --code;
+  put_fixed_symbol(257 + code, out);
+  if (kExtra[code] > 0) out.put(std::uint64_t(length - kBase[code]), kExtra[code]);
+  out.put(0, 5);
+}
+
 }  // namespace
 
 void code_lengths(const std::uint32_t* counts, int n, int limit, std::uint8_t* lengths) {
@@ -161,6 +194,19 @@ void put_stored_block(const unsigned char* in, std::size_t size, bool last, BitW
   unsigned char* at = out.out();
   std::memcpy(at, in, size);
   out.skip_to(at + size);
+}
+
+void put_constant_block(unsigned char byte, std::size_t size, bool last, BitWriter& out) {
+  out.put(last ? 1 : 0, 1);  // BFINAL
+  out.put(1, 2);             // BTYPE 01: fixed Huffman codes
+  put_fixed_symbol(byte, out);
+  std::size_t left = size - 1;
+  for (; left >= 258; left -= 258) put_copy_of_previous(258, out);
+  if (left >= 3)
+    put_copy_of_previous(int(left), out);
+  else
+    for (; left > 0; --left) put_fixed_symbol(byte, out);
+  put_fixed_symbol(kEndOfBlock, out);
 }
 
 void put_literal_block(const unsigned char* in, std::size_t size, bool last, BitWriter& out) {

@@ -1,8 +1,8 @@
 // Deflate blocks written directly (RFC 1951), for the matrix file's chunk streams
-// (hdf5_deflate.cpp): stored blocks, and blocks of literals only under a dynamic Huffman code
-// made for the bytes at hand. The latter is what a byte plane of mixed values needs (the high
-// bytes of factors and errors: few distinct bytes, no runs or repeats worth a match), and
-// coded here it costs a fraction of zlib's time, which searches for matches first.
+// (hdf5_deflate.cpp): stored blocks, blocks repeating one byte, and blocks of literals only
+// under a dynamic Huffman code made for the bytes at hand. The latter is what a byte plane of mixed
+// values needs (the high bytes of factors and errors: few distinct bytes, no runs or repeats worth
+// a match), and coded here it costs a fraction of zlib's time, which searches for matches first.
 #pragma once
 
 #include <cstddef>
@@ -58,6 +58,11 @@ class BitWriter {
 
 // Appends a stored block of `size` bytes (at most 65,535), final when `last`.
 void put_stored_block(const unsigned char* in, std::size_t size, bool last, BitWriter& out);
+
+// Appends a block holding `size` (at least 1) copies of `byte` under deflate's fixed Huffman
+// codes: the byte, then copies of it at distance 1, 258 bytes at a time (13 bits each). At most
+// size / 128 + 8 bytes.
+void put_constant_block(unsigned char byte, std::size_t size, bool last, BitWriter& out);
 
 // Appends one block of `size` literals (at least 1) coded with a dynamic Huffman code built
 // from their counts, final when `last`. At most 2 * size + 480 bytes.

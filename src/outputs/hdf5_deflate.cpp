@@ -50,6 +50,8 @@ std::size_t plane_bound(PlaneCoding coding, std::size_t size, std::size_t deflat
       return size + kStoredHeader * (size / kMaxStoredBlock + 1) + 1;
     case PlaneCoding::literals:
       return 2 * size + 480 + 1;
+    case PlaneCoding::constant:
+      return size / 128 + 8 + 1;
     default:
       return deflate_bound + 16;  // and a sync flush's empty stored block
   }
@@ -93,6 +95,9 @@ PlaneCoding plane_coding(const unsigned char* plane, std::size_t size) {
   const std::uint64_t pairs = samples * (samples - 1);
   if (repeats * 64 <= samples && collisions * 239 <= pairs) return PlaneCoding::stored;
   // repeats / samples > 3 collisions / pairs + 1/8, both sides times 8 pairs / samples
+  if (collisions == pairs &&
+      std::all_of(plane, plane + size, [&](unsigned char byte) { return byte == plane[0]; }))
+    return PlaneCoding::constant;
   if (2 * collisions > pairs || 8 * repeats * (samples - 1) > 24 * collisions + pairs)
     return PlaneCoding::runs;
   return PlaneCoding::literals;
@@ -135,6 +140,9 @@ std::size_t ChunkDeflater::compress(const unsigned char* in, std::size_t values,
         break;
       case PlaneCoding::literals:
         put_literal_block(plane, values, last, writer);
+        break;
+      case PlaneCoding::constant:
+        put_constant_block(plane[0], values, last, writer);
         break;
       case PlaneCoding::runs:
         if (!deflate_runs(plane, values, last, out->data() + bound, writer)) return 0;

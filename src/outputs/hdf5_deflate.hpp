@@ -22,6 +22,7 @@ enum class PlaneCoding {
              // a Huffman code of their own (deflate_blocks.hpp), a fraction of zlib's time
   runs,      // runs of equal bytes or one byte mostly (column indices of a row, exponents):
              // zlib at level 1 with run-length matches
+  constant,  // one byte throughout (high bytes of small numbers): a block that repeats it
 };
 
 // How to code a plane of `size` bytes, judged in integers on up to 4096 samples spread over it
@@ -29,7 +30,8 @@ enum class PlaneCoding {
 // neighbours no more often than 1 in 64 and a collision entropy -log2(sum p^2) of at least
 // log2(239), about 7.9 bits per byte (a Huffman code could save at most about 1 %). Runs: one
 // byte value more likely than not to meet itself (sum p^2 > 1/2), or repeated neighbours more
-// often than 3 sum p^2 + 1/8 (chance alone gives sum p^2). Literals: the rest.
+// often than 3 sum p^2 + 1/8 (chance alone gives sum p^2); constant when every byte of the
+// plane (all checked) is the one sampled. Literals: the rest.
 PlaneCoding plane_coding(const unsigned char* plane, std::size_t size);
 
 // Compresses chunks one after another; one per thread (it holds zlib's state and a buffer).
