@@ -6,6 +6,9 @@
 // the per-patch fields (VTU) and the compressed matrix file (HDF5) are written.
 //
 // Usage: hearthray_bench_pipeline <patch size in m | triangles> [rays per patch] [threads]
+// Each stage's line gives its wall-clock and CPU seconds (all threads: on a shared machine the
+// steadier figure) and the peak memory so far. HEARTHRAY_BENCH_KEEP_H5=PATH keeps a copy of the
+// matrix file there (to study its compression).
 #include <sys/resource.h>
 #include <tbb/task_arena.h>
 #include <unistd.h>
@@ -29,22 +32,20 @@ namespace fs = std::filesystem;
 
 namespace {
 
+double cpu_seconds() {
+  rusage usage{};
+  getrusage(RUSAGE_SELF, &usage);
+  return double(usage.ru_utime.tv_sec + usage.ru_stime.tv_sec) +
+         1e-6 * double(usage.ru_utime.tv_usec + usage.ru_stime.tv_usec);
+}
+
 double peak_gib() {
   rusage usage{};
   getrusage(RUSAGE_SELF, &usage);
   return double(usage.ru_maxrss) / (1024.0 * 1024.0);  // ru_maxrss is in KiB on Linux
 }
 
-// CPU seconds (user and system, all threads) of this process so far.
-double cpu_seconds() {
-  rusage usage{};
-  getrusage(RUSAGE_SELF, &usage);
-  auto seconds = [](const timeval& t) { return double(t.tv_sec) + 1e-6 * double(t.tv_usec); };
-  return seconds(usage.ru_utime) + seconds(usage.ru_stime);
-}
-
-// Stage lines: the wall and CPU time since the previous line and the peak memory so far (CPU
-// seconds tell a stage's work apart from other programs' load on a shared machine).
+// Stage lines: the wall-clock and CPU time since the previous line and the peak memory so far.
 class Stages {
  public:
   Stages() : start_(now()), last_(start_), last_cpu_(cpu_seconds()) {}
@@ -63,7 +64,7 @@ class Stages {
  private:
   static std::chrono::steady_clock::time_point now() { return std::chrono::steady_clock::now(); }
   std::chrono::steady_clock::time_point start_, last_;
-  double last_cpu_ = 0;
+  double last_cpu_;
 };
 
 }  // namespace
@@ -126,11 +127,13 @@ int main(int argc, char** argv) {
   }
   stages.done("write view_factors.h5",
               std::to_string(fs::file_size(dir / "view_factors.h5") / (1024 * 1024)) + " MiB");
+  if (const char* keep = std::getenv("HEARTHRAY_BENCH_KEEP_H5"))
+    fs::copy_file(dir / "view_factors.h5", keep, fs::copy_options::overwrite_existing);
   const double nonzeros = double(model.factors.F.nonZeros());
   std::printf(
-      "  total %.1f s, peak memory %.2f GiB, %.1f bytes per stored non-zero of F "
+      "  total %.1f s (cpu %.1f s), peak memory %.2f GiB, %.1f bytes per stored non-zero of F "
       "(%.1f M non-zeros)\n",
-      stages.total(), peak_gib(), peak_gib() * 1024 * 1024 * 1024 / nonzeros, nonzeros / 1e6);
+      stages.total(), cpu_seconds(), peak_gib(), peak_gib() * 1024 * 1024 * 1024 / nonzeros, nonzeros / 1e6);
   fs::remove_all(dir);
   return result.status == ExchangeStatus::converged ? 0 : 1;
 }

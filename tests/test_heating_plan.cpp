@@ -130,6 +130,30 @@ TEST_CASE("size prints the power per layout, ranks them and writes the report",
   CHECK(run_cli("size " + scenes + "' --operative 20 --split evenly -q", dir).status == 2);
 }
 
+TEST_CASE("size exits 5 when a layout's ray target is missed", "[heating_plan][cli]") {
+  ScratchDir dir("size_target");
+  write_text(dir / "mesh.obj", box_obj(4, 3, 2.5));
+  // The heating room with a ray target (first rounds of 1024 rays): 1e-5 is out of reach within
+  // 4096 rays per patch (standard errors near sqrt(0.2 x 0.8 / 4096) = 0.006), 0.05 is met
+  // by the first round.
+  auto scene = [&](const char* name, const char* target) {
+    std::string text = heating_room_scene("400 W");
+    const std::string rays = "per_patch = 3000\n";
+    text.replace(text.find(rays), rays.size(),
+                 std::string("per_patch = 1024\ntarget_error = ") + target +
+                     "\nmax_per_patch = 4096\n");
+    write_text(dir / name, "[mesh]\nfile = \"mesh.obj\"\n" + text);
+    return "'" + (dir / name).string() + "'";
+  };
+  const std::string missed = scene("missed.toml", "1e-5"), met = scene("met.toml", "0.05");
+  CliResult r = run_cli("size " + met + " " + missed + " --operative 20 --threads 1 -q", dir);
+  INFO(r.out << r.err);
+  CHECK(r.status == 5);
+  CHECK_THAT(r.err, Catch::Contains("missed.toml: ray target NOT reached"));
+  CHECK_THAT(r.err, !Catch::Contains("met.toml:"));
+  CHECK(run_cli("size " + met + " --operative 20 --threads 1 -q", dir).status == 0);
+}
+
 TEST_CASE("size --split: two panels shared for the least power, or kept in proportion",
           "[heating_plan][cli]") {
   // The heating room with a second panel on the north wall (validation/

@@ -1,6 +1,7 @@
 #include "factors/emitter_sampling.hpp"
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 
 #include "hearthray/sampling.hpp"
@@ -106,15 +107,40 @@ EmitterSampler::Cursor EmitterSampler::start(std::uint32_t patch, std::uint64_t 
   return c;
 }
 
+std::uint32_t upper_bound_near(const double* c, std::uint32_t b, std::uint32_t e, double x,
+                               std::uint32_t hint) {
+  std::uint32_t lo, hi, step = 1;
+  if (c[hint] > x) {  // a <= hint
+    hi = lo = hint;
+    while (lo > b) {
+      const std::uint32_t next = lo - std::min(step, lo - b);
+      if (c[next] <= x) {
+        lo = next + 1;
+        break;
+      }
+      hi = lo = next;
+      step *= 2;
+    }
+  } else {  // a > hint
+    lo = hi = hint + 1;
+    while (hi < e && c[hi] <= x) {
+      lo = hi + 1;
+      hi = std::min(e, hi + step);
+      step *= 2;
+    }
+  }
+  return std::uint32_t(std::upper_bound(c + lo, c + hi, x) - c);
+}
+
 void EmitterSampler::emit(std::uint32_t p, float sign, double u0, double u1, double u2, double u3,
-                          Ray* ray, float* offset) const {
+                          std::uint32_t* triangle, Ray* ray, float* offset) const {
   const std::uint32_t t_begin = patches_->triangle_offset[p];
   const std::uint32_t t_end = patches_->triangle_offset[p + 1];
   const double target = u0 * cumulative_[t_end - 1];
-  std::uint32_t j = static_cast<std::uint32_t>(
-      std::upper_bound(cumulative_.begin() + t_begin, cumulative_.begin() + t_end, target) -
-      cumulative_.begin());
-  j = std::min(j, t_end - 1);
+  const std::uint32_t hint = std::min(std::max(*triangle, t_begin), t_end - 1);
+  const std::uint32_t j =
+      std::min(upper_bound_near(cumulative_.data(), t_begin, t_end, target, hint), t_end - 1);
+  *triangle = j;
   const double below = j > t_begin ? cumulative_[j - 1] : 0.0;
   const double r = std::min(std::max((target - below) * inverse_area_[j], 0.0), 1.0 - 1e-16);
   place_ray(frames_[patches_->triangle_index[j]], sample_triangle_uniform(r, u1),
@@ -127,8 +153,52 @@ void EmitterSampler::sample_sobol(Cursor& cursor, std::uint64_t first, std::size
   const float sign = patches_->patches[p].side == Side::back ? -1.0f : 1.0f;
   for (std::size_t i = 0; i < count; ++i) {
     const auto u = scrambled_sobol(std::uint32_t(first + i - cursor.replicate_first), cursor.seeds);
-    emit(p, sign, u[0], u[1], u[2], u[3], rays + i, offset + i);
+    emit(p, sign, u[0], u[1], u[2], u[3], &cursor.triangle, rays + i, offset + i);
   }
+}
+
+void EmitterSampler::sample_points(Cursor& cursor, const SobolPoint* points, std::size_t count,
+                                   Ray* rays, float* offset) const {
+  const std::uint32_t p = cursor.patch;
+  const float sign = patches_->patches[p].side == Side::back ? -1.0f : 1.0f;
+  constexpr double k32 = 1.0 / 4294967296.0;
+  for (std::size_t i = 0; i < count; ++i) {
+    const std::uint32_t* x = points[i].x;
+    emit(p, sign, double(x[0]) * k32, double(x[1]) * k32, double(x[2]) * k32, double(x[3]) * k32,
+         &cursor.triangle, rays + i, offset + i);
+  }
+}
+
+void EmitterSampler::sobol_points(const Cursor& cursor, std::uint64_t first, std::uint64_t last,
+                                  std::vector<SobolPoint>* points, std::vector<SobolPoint>* scratch,
+                                  std::vector<std::uint32_t>* buckets) const {
+  const std::size_t n = std::size_t(last - first);
+  const bool walk = cursor.triangle_end - patches_->triangle_offset[cursor.patch] > 1;
+  std::vector<SobolPoint>& made = walk ? *scratch : *points;
+  made.resize(n);
+  // Point j is point j - 1 with direction number ctz(j) added (sobol_point's Gray code).
+  const SobolTable& table = sobol_table();
+  std::uint32_t j = std::uint32_t(first - cursor.replicate_first);
+  std::array<std::uint32_t, kSobolDimensions> x = sobol_point(j);
+  for (std::size_t i = 0; i < n; ++i, ++j) {
+    if (i > 0) {
+      const int b = __builtin_ctz(j);
+      for (int d = 0; d < kSobolDimensions; ++d) x[d] ^= table.v[d][b];
+    }
+    for (int d = 0; d < kSobolDimensions; ++d)
+      made[i].x[d] = owen_scramble(x[d], cursor.seeds.s[d]);
+  }
+  if (!walk) return;
+  // A counting sort on the leading bits of the first coordinate: about one ray per bucket,
+  // enough to walk the list (the order inside a bucket does not matter).
+  int bits = 1;
+  while (bits < 16 && (std::size_t{1} << bits) < n) ++bits;
+  std::vector<std::uint32_t>& start = *buckets;
+  start.assign((std::size_t{1} << bits) + 1, 0);
+  for (const SobolPoint& q : made) ++start[(q.x[0] >> (32 - bits)) + 1];
+  for (std::size_t k = 1; k < start.size(); ++k) start[k] += start[k - 1];
+  points->resize(n);
+  for (const SobolPoint& q : made) (*points)[start[q.x[0] >> (32 - bits)]++] = q;
 }
 
 void EmitterSampler::sample(Cursor& cursor, std::uint64_t first, std::size_t count, Ray* rays,

@@ -49,6 +49,23 @@ class EmitterSampler {
   void sample(Cursor& cursor, std::uint64_t first, std::size_t count, Ray* rays,
               float* offset) const;
 
+  // Sampler sobol: the scrambled points (32-bit fractions in four dimensions) of the rays
+  // [first, last) of the cursor's replicate, made one from the next in Gray-code order (one
+  // exclusive-or per dimension), and put in an order that walks the patch's triangle list (by
+  // the first coordinate, which picks the place along the list), so that a patch of many
+  // triangles is traced with coherent origins as the stratified sampler's are. Hits are
+  // counted, so the order changes no result. A one-triangle patch keeps the natural order.
+  struct SobolPoint {
+    std::uint32_t x[kSobolDimensions];
+  };
+  void sobol_points(const Cursor& cursor, std::uint64_t first, std::uint64_t last,
+                    std::vector<SobolPoint>* points, std::vector<SobolPoint>* scratch,
+                    std::vector<std::uint32_t>* buckets) const;
+
+  // Sampler sobol: the rays of the given points, as sample().
+  void sample_points(Cursor& cursor, const SobolPoint* points, std::size_t count, Ray* rays,
+                     float* offset) const;
+
   // Everything the sampler needs of a triangle, in float as the rays are.
   struct TriangleFrame {
     float v0[3], e1[3], e2[3];
@@ -58,9 +75,10 @@ class EmitterSampler {
 
  private:
   // One ray from a point of the patch's triangle list (u0 in [0,1) by area), u1 the second
-  // coordinate on the triangle, (u2, u3) the direction.
-  void emit(std::uint32_t patch, float sign, double u0, double u1, double u2, double u3, Ray* ray,
-            float* offset) const;
+  // coordinate on the triangle, (u2, u3) the direction. `triangle`: where in the list the
+  // previous ray was (the search starts there), updated to this ray's.
+  void emit(std::uint32_t patch, float sign, double u0, double u1, double u2, double u3,
+            std::uint32_t* triangle, Ray* ray, float* offset) const;
   void sample_sobol(Cursor& cursor, std::uint64_t first, std::size_t count, Ray* rays,
                     float* offset) const;
 
@@ -71,6 +89,13 @@ class EmitterSampler {
   // Along each patch's triangle list: cumulative area, and 1 / the triangle's area.
   std::vector<double> cumulative_, inverse_area_;
 };
+
+// The first index a in [b, e) with c[a] > x (e if none) of the ascending c, as
+// std::upper_bound finds it, but searched outwards from `hint` (in [b, e)) in steps that
+// double: rays drawn in sobol_order land near the previous one, and a patch of many triangles
+// then costs a few comparisons per ray, not a binary search over its whole list.
+std::uint32_t upper_bound_near(const double* c, std::uint32_t b, std::uint32_t e, double x,
+                               std::uint32_t hint);
 
 // A back-face hit within a few offsets of the origin is not radiation arriving anywhere (the
 // sampled point rounded onto the plane of a neighbour meeting the emitter at an edge): traces

@@ -41,7 +41,17 @@ struct HitTally {
   std::vector<std::uint64_t> count;  // rays that arrived at each
   std::uint64_t escaped = 0;         // rays that hit nothing
   std::uint64_t back_face = 0;       // rays absorbed on the back of a one-sided surface
+  // A whole view-factor row traced with the sobol sampler: per receiver, and for the escaped
+  // and back-face rays, the sum over the replicates of (c_r / M_r)^2 in replicate order.
+  std::vector<double> square;
+  double escaped_square = 0, back_face_square = 0;
 };
+
+// Sorts `v` (patch indices below `n_patches`) ascending: a radix sort of two or three passes
+// over the few hundred receivers of a row, several times cheaper than a comparison sort there.
+// `scratch` is working space.
+void sort_patches(std::vector<std::uint32_t>& v, std::vector<std::uint32_t>& scratch,
+                  std::size_t n_patches);
 
 // One thread's counter of ray arrivals: dense per-patch counters with a list of the touched
 // entries. Runs of rays are counted one after another (add ..., take); the per-surface
@@ -68,6 +78,23 @@ class HitCounter {
   // The tally of the rays added since the last take (patches ascending); the next run starts
   // from zero.
   HitTally take();
+  // The same into `out`, whose vectors keep their capacity (no allocation once warm).
+  void take(HitTally* out);
+
+  // The same tally unsorted and without allocating: calls f(patch, count) for each patch the
+  // run reached, in no particular order, and returns the run's escaped and back-face rays in
+  // `rest`; the next run starts from zero.
+  template <class F>
+  void drain(F&& f, HitTally* rest) {
+    for (std::uint32_t q : touched_) {
+      f(q, count_[q]);
+      count_[q] = 0;
+    }
+    touched_.clear();
+    rest->escaped = run_.escaped;
+    rest->back_face = run_.back_face;
+    run_.escaped = run_.back_face = 0;
+  }
 
   // Over every ray added: arrivals (front and back) per surface, and back-face arrivals.
   const std::vector<std::uint64_t>& hits_on_surface() const { return hits_on_surface_; }
@@ -78,7 +105,7 @@ class HitCounter {
  private:
   const PatchLookup* lookup_;
   std::vector<std::uint64_t> count_;  // per patch, zero outside the current run's touched_
-  std::vector<std::uint32_t> touched_;
+  std::vector<std::uint32_t> touched_, sort_scratch_;
   HitTally run_;  // escaped and back_face of the current run
   std::vector<std::uint64_t> hits_on_surface_, back_face_hits_on_surface_;
 };

@@ -10,6 +10,7 @@
 #include <chrono>
 #include <functional>
 #include <mutex>
+#include <new>
 #include <stdexcept>
 
 #include "factors/emitter_sampling.hpp"
@@ -47,7 +48,8 @@ namespace {
 struct Chunk {
   std::uint32_t patch;
   std::uint64_t first, last, total;
-  std::uint32_t replicate;  // sampler sobol: the replicate the rays belong to (else 0)
+  std::uint32_t replicate;  // a row split over chunks, sampler sobol: the chunk's replicate
+  bool whole_row;           // every ray of the patch: the chunk's tally is the whole row
 };
 
 constexpr std::uint64_t kChunkRays = 16384;
@@ -77,7 +79,9 @@ std::uint64_t rays_of(const ViewFactorOptions& options, std::uint32_t patch) {
   return options.rays_for_patch.empty() ? options.rays_per_patch : options.rays_for_patch[patch];
 }
 
-// Chunks in emitter order; with the sobol sampler no chunk straddles two replicates.
+// Chunks in emitter order. A patch of at most kChunkRays rays is one chunk, traced whole by
+// one thread; a larger one is split, and with the sobol sampler no chunk straddles two
+// replicates.
 std::vector<Chunk> plan_chunks(const ViewFactorOptions& options, std::uint32_t begin,
                                std::uint32_t end) {
   std::vector<Chunk> chunks;
@@ -85,41 +89,145 @@ std::vector<Chunk> plan_chunks(const ViewFactorOptions& options, std::uint32_t b
   const std::uint32_t replicates = sobol ? kSobolReplicates : 1;
   for (std::uint32_t p = begin; p < end; ++p) {
     const std::uint64_t N = rays_of(options, p);
+    if (N <= kChunkRays) {
+      chunks.push_back({p, 0, N, N, 0, true});
+      continue;
+    }
     for (std::uint32_t r = 0; r < replicates; ++r) {
       const std::uint64_t a = sobol ? replicate_first_ray(N, r) : 0;
       const std::uint64_t b = sobol ? replicate_first_ray(N, r + 1) : N;
       for (std::uint64_t k = a; k < b; k += kChunkRays)
-        chunks.push_back({p, k, std::min<std::uint64_t>(b, k + kChunkRays), N, r});
+        chunks.push_back({p, k, std::min<std::uint64_t>(b, k + kChunkRays), N, r, false});
     }
   }
   return chunks;
 }
 
+// The squared replicate estimate (c / M)^2 of c hits among M rays.
+inline double replicate_square(std::uint64_t c, double m) {
+  return (double(c) / m) * (double(c) / m);
+}
+
+// One thread's sums over the replicates of a whole row (sampler sobol): per receiver the hits
+// and the squared replicate estimates, added in replicate order, as RowMerger adds them for a
+// row split over chunks, so the row is the same either way.
+class ReplicateRow {
+ public:
+  explicit ReplicateRow(std::size_t n_patches) : count_(n_patches, 0), square_(n_patches, 0.0) {}
+
+  // Moves the counter's run, one replicate of `rays` rays, into the row.
+  void add_replicate(HitCounter& counter, std::uint64_t rays) {
+    HitTally rest;
+    const double m = double(rays);
+    counter.drain(
+        [&](std::uint32_t q, std::uint64_t c) {
+          if (count_[q] == 0) touched_.push_back(q);
+          count_[q] += c;
+          square_[q] += replicate_square(c, m);
+        },
+        &rest);
+    if (rays == 0) return;
+    row_.escaped += rest.escaped;
+    row_.back_face += rest.back_face;
+    row_.escaped_square += replicate_square(rest.escaped, m);
+    row_.back_face_square += replicate_square(rest.back_face, m);
+  }
+
+  // The row (receivers ascending) into `out`, whose vectors keep their capacity; the next
+  // row starts from zero.
+  void take(HitTally* out) {
+    sort_patches(touched_, sort_scratch_, count_.size());
+    out->patch.clear();
+    out->count.clear();
+    out->square.clear();
+    for (std::uint32_t q : touched_) {
+      out->patch.push_back(q);
+      out->count.push_back(count_[q]);
+      out->square.push_back(square_[q]);
+      count_[q] = 0;
+      square_[q] = 0;
+    }
+    touched_.clear();
+    out->escaped = row_.escaped;
+    out->back_face = row_.back_face;
+    out->escaped_square = row_.escaped_square;
+    out->back_face_square = row_.back_face_square;
+    row_ = HitTally{};
+  }
+
+ private:
+  std::vector<std::uint64_t> count_;
+  std::vector<double> square_;
+  std::vector<std::uint32_t> touched_, sort_scratch_;
+  HitTally row_;
+};
+
 // Per-thread scratch: the hit counter and one batch of rays.
 struct Scratch {
-  explicit Scratch(const PatchLookup& lookup)
-      : counter(lookup), rays(kBatch), hits(kBatch), offset(kBatch) {}
+  Scratch(const PatchLookup& lookup, bool sobol)
+      : counter(lookup),
+        row(sobol ? lookup.patch_count() : 0),
+        rays(kBatch),
+        hits(kBatch),
+        offset(kBatch) {}
   HitCounter counter;
+  ReplicateRow row;  // sampler sobol
   std::vector<Ray> rays;
   std::vector<RayHit> hits;
-  std::vector<float> offset;  // origin offset of each ray of the batch
+  std::vector<float> offset;         // origin offset of each ray of the batch
+  // Sampler sobol: the points of a run of rays in tracing order, and scratch to sort them.
+  std::vector<EmitterSampler::SobolPoint> points, unsorted;
+  std::vector<std::uint32_t> buckets;
   std::uint64_t retraced = 0;
 };
 
-HitTally trace_chunk(const Chunk& chunk, const EmitterSampler& emitters, const Tracer& tracer,
-                     Scratch& s) {
-  EmitterSampler::Cursor cursor = emitters.start(chunk.patch, chunk.total, chunk.first);
-  for (std::uint64_t k0 = chunk.first; k0 < chunk.last; k0 += kBatch) {
-    const std::size_t m = std::size_t(std::min<std::uint64_t>(kBatch, chunk.last - k0));
-    emitters.sample(cursor, k0, m, s.rays.data(), s.offset.data());
-    tracer.trace(s.rays.data(), s.hits.data(), m);
-    for (std::size_t i = 0; i < m; ++i) {
-      s.retraced += s.hits[i].retraced;
-      trace_past_edge_neighbour(tracer, s.offset[i], s.rays[i], s.hits[i]);
-      s.counter.add(s.hits[i]);
-    }
+// Traces one batch of rays already in s.rays and counts the hits.
+void trace_batch(std::size_t m, const Tracer& tracer, Scratch& s) {
+  tracer.trace(s.rays.data(), s.hits.data(), m);
+  for (std::size_t i = 0; i < m; ++i) {
+    s.retraced += s.hits[i].retraced;
+    trace_past_edge_neighbour(tracer, s.offset[i], s.rays[i], s.hits[i]);
+    s.counter.add(s.hits[i]);
   }
-  return s.counter.take();
+}
+
+// Traces rays [first, last) of a patch emitting `total`, counting them in s.counter; with the
+// sobol sampler they lie in one replicate.
+void trace_rays(std::uint32_t patch, std::uint64_t total, std::uint64_t first, std::uint64_t last,
+                const EmitterSampler& emitters, bool sobol, const Tracer& tracer, Scratch& s) {
+  EmitterSampler::Cursor cursor = emitters.start(patch, total, first);
+  if (sobol) {
+    emitters.sobol_points(cursor, first, last, &s.points, &s.unsorted, &s.buckets);
+    for (std::size_t i = 0; i < s.points.size(); i += kBatch) {
+      const std::size_t m = std::min(kBatch, s.points.size() - i);
+      emitters.sample_points(cursor, s.points.data() + i, m, s.rays.data(), s.offset.data());
+      trace_batch(m, tracer, s);
+    }
+    return;
+  }
+  for (std::uint64_t k0 = first; k0 < last; k0 += kBatch) {
+    const std::size_t m = std::size_t(std::min<std::uint64_t>(kBatch, last - k0));
+    emitters.sample(cursor, k0, m, s.rays.data(), s.offset.data());
+    trace_batch(m, tracer, s);
+  }
+}
+
+// Traces a chunk; its tally goes to `out` (whose vectors keep their capacity from chunk to
+// chunk: the tallies of a window of chunks are not allocated and freed again every window).
+void trace_chunk(const Chunk& chunk, const EmitterSampler& emitters, bool sobol,
+                 const Tracer& tracer, Scratch& s, HitTally* out) {
+  if (!chunk.whole_row || !sobol) {
+    trace_rays(chunk.patch, chunk.total, chunk.first, chunk.last, emitters, sobol, tracer, s);
+    s.counter.take(out);
+    return;
+  }
+  const std::uint64_t N = chunk.total;
+  for (std::uint32_t r = 0; r < kSobolReplicates; ++r) {
+    const std::uint64_t a = replicate_first_ray(N, r), b = replicate_first_ray(N, r + 1);
+    trace_rays(chunk.patch, N, a, b, emitters, sobol, tracer, s);
+    s.row.add_replicate(s.counter, b - a);
+  }
+  s.row.take(out);
 }
 
 // Calls the progress callback from worker threads at most every 0.25 s, and at the end.
@@ -182,8 +290,7 @@ class RowMerger {
   void end_replicate(std::uint64_t rays) {
     if (!squares_ || rays == 0) return;
     const double m = static_cast<double>(rays);
-    auto sq = [m](std::uint64_t c) { return (double(c) / m) * (double(c) / m); };
-    std::sort(rep_touched_.begin(), rep_touched_.end());
+    auto sq = [m](std::uint64_t c) { return replicate_square(c, m); };
     for (std::uint32_t q : rep_touched_) {
       square_[q] += sq(replicate_[q]);
       replicate_[q] = 0;
@@ -192,6 +299,19 @@ class RowMerger {
     escaped_square_ += sq(rep_escaped_);
     back_square_ += sq(rep_back_);
     rep_escaped_ = rep_back_ = 0;
+  }
+
+  // A row traced whole by one thread (its tally from trace_chunk), appended as it is.
+  void add_row(const HitTally& r, std::uint64_t rays, Tallies* t) const {
+    t->hit_patch.insert(t->hit_patch.end(), r.patch.begin(), r.patch.end());
+    t->hit_count.insert(t->hit_count.end(), r.count.begin(), r.count.end());
+    if (squares_) t->hit_square.insert(t->hit_square.end(), r.square.begin(), r.square.end());
+    t->hit_offset.push_back(t->hit_patch.size());
+    t->rays.push_back(rays);
+    t->escaped.push_back(r.escaped);
+    t->back_face.push_back(r.back_face);
+    if (squares_) t->escaped_square.push_back(r.escaped_square);
+    if (squares_) t->back_face_square.push_back(r.back_face_square);
   }
 
   void end_row(std::uint64_t rays, Tallies* t) {
@@ -240,21 +360,24 @@ void finish_tallies(std::uint32_t begin, const PatchLookup& lookup,
   }
 }
 
-// Appends the rows of the chunks [first, first + results.size()) (whole rows, in chunk order,
-// which is emitter order) to `tallies`, freeing each chunk's tally as it goes.
+// Appends the rows of the chunks [first, end) (whole rows, in chunk order, which is emitter
+// order; chunk c's tally is results[c - first]) to `tallies`.
 void merge_rows(const ViewFactorOptions& options, const std::vector<Chunk>& chunks,
-                std::size_t first, std::vector<HitTally>& results, RowMerger& row,
-                Tallies* tallies) {
+                std::size_t first, std::size_t end, const std::vector<HitTally>& results,
+                RowMerger& row, Tallies* tallies) {
   const bool sobol = options.sampler == EmissionSampler::sobol;
-  const std::size_t end = first + results.size();
   std::size_t c = first;
   while (c < end) {
     const std::uint32_t p = chunks[c].patch;
     const std::uint64_t N = chunks[c].total;
+    if (chunks[c].whole_row) {
+      row.add_row(results[c - first], N, tallies);
+      ++c;
+      continue;
+    }
     for (std::uint32_t r = 0; r < (sobol ? kSobolReplicates : 1); ++r) {
       for (; c < end && chunks[c].patch == p && chunks[c].replicate == r; ++c) {
         row.add_chunk(results[c - first]);
-        results[c - first] = HitTally{};
       }
       if (sobol) row.end_replicate(replicate_first_ray(N, r + 1) - replicate_first_ray(N, r));
     }
@@ -262,10 +385,34 @@ void merge_rows(const ViewFactorOptions& options, const std::vector<Chunk>& chun
   }
 }
 
+// Reserves the tallies' per-entry arrays for as many entries as there can be: at most one per
+// ray and one per receiver in a row. Only the pages written become memory, so a generous
+// reservation costs nothing, and it spares the copies (and the kernel's clearing of fresh
+// pages) of arrays that double as they grow; where the address space cannot be had the arrays
+// grow as usual.
+void reserve_entries(const ViewFactorOptions& options, std::uint32_t begin, std::uint32_t end,
+                     std::size_t n_patches, Tallies* tallies) {
+  std::uint64_t entries = 0;
+  for (std::uint32_t p = begin; p < end; ++p)
+    entries += std::min<std::uint64_t>(rays_of(options, p), n_patches);
+  const bool sobol = options.sampler == EmissionSampler::sobol;
+  try {
+    tallies->hit_patch.reserve(entries);
+    tallies->hit_count.reserve(entries);
+    if (sobol) tallies->hit_square.reserve(entries);
+  } catch (const std::bad_alloc&) {
+  } catch (const std::length_error&) {
+  }
+  tallies->hit_offset.reserve(std::size_t(end - begin) + 1);
+  tallies->rays.reserve(end - begin);
+}
+
 // The end of the window of chunks starting at `first`: about kWindowChunks chunks, ending at a
 // row's end. Chunks are traced and merged window by window, so that the chunks' own tallies
-// (about 12 bytes per receiver per chunk) never exist for the whole run at once.
-constexpr std::size_t kWindowChunks = std::size_t{1} << 14;
+// (12 to 20 bytes per receiver per chunk) never exist for the whole run at once: 2048 chunks
+// of whole rows of 1000 rays hold about 40 MB; a window's tail, where one thread may wait for
+// the other's last chunk, is a chunk's time (under a millisecond at 1000 rays).
+constexpr std::size_t kWindowChunks = std::size_t{1} << 11;
 std::size_t window_end(const std::vector<Chunk>& chunks, std::size_t first) {
   std::size_t end = std::min(chunks.size(), first + kWindowChunks);
   while (end < chunks.size() && chunks[end].patch == chunks[end - 1].patch) ++end;
@@ -280,7 +427,8 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
   const EmitterSampler emitters(scene, patches, tracer.centre(), options.seed, options.sampler);
   const PatchLookup lookup(scene, patches);
   const std::vector<Chunk> chunks = plan_chunks(options, begin, end);
-  tbb::enumerable_thread_specific<Scratch> scratch([&] { return Scratch(lookup); });
+  const bool sobol = options.sampler == EmissionSampler::sobol;
+  tbb::enumerable_thread_specific<Scratch> scratch([&] { return Scratch(lookup, sobol); });
 
   std::uint64_t rays_total = 0;
   for (std::uint32_t p = begin; p < end; ++p) rays_total += rays_of(options, p);
@@ -288,24 +436,26 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
   const int threads = options.threads > 0 ? options.threads : tbb::info::default_concurrency();
   tbb::task_arena arena(threads);
   Tallies tallies;
-  RowMerger row(lookup.patch_count(), options.sampler == EmissionSampler::sobol);
-  std::vector<HitTally> results;
+  reserve_entries(options, begin, end, lookup.patch_count(), &tallies);
+  RowMerger row(lookup.patch_count(), sobol);
+  std::vector<HitTally> results;  // per chunk of the window; reused window after window
   for (std::size_t first = 0; first < chunks.size();) {
     const std::size_t last = window_end(chunks, first);
-    results.assign(last - first, HitTally{});
+    if (results.size() < last - first) results.resize(last - first);
     arena.execute([&] {
       tbb::parallel_for(tbb::blocked_range<std::size_t>(first, last, 1),
                         [&](const tbb::blocked_range<std::size_t>& range) {
                           for (std::size_t c = range.begin(); c != range.end(); ++c) {
-                            results[c - first] =
-                                trace_chunk(chunks[c], emitters, tracer, scratch.local());
+                            trace_chunk(chunks[c], emitters, sobol, tracer, scratch.local(),
+                                        &results[c - first]);
                             progress.add(chunks[c].last - chunks[c].first);
                           }
                         });
     });
-    merge_rows(options, chunks, first, results, row, &tallies);
+    merge_rows(options, chunks, first, last, results, row, &tallies);
     first = last;
   }
+  results = std::vector<HitTally>{};
   const double seconds = progress.seconds();
   finish_tallies(begin, lookup, scratch, &tallies);
 

@@ -1,14 +1,19 @@
 #include "outputs/hdf5_file.hpp"
 
 #include <tbb/blocked_range.h>
+#include <tbb/concurrent_queue.h>
+#include <tbb/enumerable_thread_specific.h>
 #include <tbb/parallel_for.h>
-#include <zlib.h>
+#include <tbb/parallel_pipeline.h>
+#include <tbb/task_arena.h>
 
 #include <algorithm>
 #include <cstring>
+#include <memory>
 #include <stdexcept>
 
 #include "hearthray/error.hpp"
+#include "outputs/hdf5_deflate.hpp"
 
 namespace hearthray::hdf5 {
 
@@ -20,16 +25,10 @@ constexpr std::uint64_t kChunkRows = 1 << 16;
 // Chunks compressed together (in parallel) before they are written: 16 chunks of doubles are
 // 8 MiB held at a time per dataset.
 constexpr std::uint64_t kBatchChunks = 16;
-// Deflate settings. Level 1 with the run-length strategy (matches only of the previous byte)
-// suits shuffled numbers, whose compressible part is runs of equal high bytes: measured on the
-// 1000-rays furnace matrix (2 busy cores) it compressed F/data, F/indices and
-// F/standard_error to 82 %, 32 % and 71 % at about 140-240 MB/s per core, against 80 %, 27 %
-// and 66 % at 40-70 MB/s for HDF5's own deflate at level 4. Every deflate stream inflates the
-// same way, so readers see the standard deflate filter whatever the settings.
-constexpr int kDeflateLevel = 1;
-constexpr int kDeflateStrategy = Z_RLE;
-constexpr int kZlibWindowBits = 15;  // the zlib wrapper HDF5's deflate filter reads
-constexpr int kZlibMemoryLevel = 8;  // zlib's default
+// The deflate level declared with the filter. HDF5 passes it only to its own compressor, which
+// never runs here (hearthray compresses the chunks itself, hdf5_deflate.cpp); readers inflate
+// any deflate stream alike.
+constexpr unsigned kDeflateLevel = 1;
 
 // Object creation properties without access and modification times: HDF5 records them by
 // default, and they would make two runs of the same matrix differ.
@@ -241,32 +240,6 @@ void Dataset::finish() {
   if (chunk_rows_ > 0) write_chunks(true);
 }
 
-namespace {
-
-// HDF5's shuffle filter: byte b of value v goes to position b * values + v.
-void shuffle(const unsigned char* in, std::size_t values, std::size_t bytes, unsigned char* out) {
-  for (std::size_t b = 0; b < bytes; ++b)
-    for (std::size_t v = 0; v < values; ++v) out[b * values + v] = in[v * bytes + b];
-}
-
-// One deflate stream of `size` bytes in the zlib format; false when zlib fails.
-bool deflate_chunk(const unsigned char* in, std::size_t size, std::vector<unsigned char>* out) {
-  z_stream stream{};
-  if (deflateInit2(&stream, kDeflateLevel, Z_DEFLATED, kZlibWindowBits, kZlibMemoryLevel,
-                   kDeflateStrategy) != Z_OK)
-    return false;
-  out->resize(deflateBound(&stream, uLong(size)));
-  stream.next_in = const_cast<unsigned char*>(in);
-  stream.avail_in = uInt(size);
-  stream.next_out = out->data();
-  stream.avail_out = uInt(out->size());
-  const int status = deflate(&stream, Z_FINISH);
-  out->resize(out->size() - stream.avail_out);
-  return deflateEnd(&stream) == Z_OK && status == Z_STREAM_END;
-}
-
-}  // namespace
-
 // Compresses the whole chunks held (with `last`, also the partial one, padded) in parallel,
 // then writes them in order.
 void Dataset::write_chunks(bool last) {
@@ -279,25 +252,83 @@ void Dataset::write_chunks(bool last) {
   }
   if (chunks == 0) return;
   std::vector<std::vector<unsigned char>> packed(chunks);
-  std::vector<char> failed(chunks, 0);
+  std::vector<std::size_t> sizes(chunks, 0);
+  tbb::enumerable_thread_specific<ChunkDeflater> deflaters;
   tbb::parallel_for(tbb::blocked_range<std::size_t>(0, chunks, 1),
                     [&](const tbb::blocked_range<std::size_t>& range) {
-                      std::vector<unsigned char> shuffled(chunk_bytes);
-                      for (std::size_t c = range.begin(); c != range.end(); ++c) {
-                        shuffle(pending_.data() + c * chunk_bytes, chunk_values, value_bytes_,
-                                shuffled.data());
-                        failed[c] = deflate_chunk(shuffled.data(), chunk_bytes, &packed[c]) ? 0 : 1;
-                      }
+                      ChunkDeflater& deflater = deflaters.local();
+                      for (std::size_t c = range.begin(); c != range.end(); ++c)
+                        sizes[c] = deflater.compress(pending_.data() + c * chunk_bytes,
+                                                     chunk_values, value_bytes_, &packed[c]);
                     });
-  for (std::size_t c = 0; c < chunks; ++c) {
-    if (failed[c]) file_->check(-1, "deflate a chunk of " + path_);
-    const hsize_t offset[2] = {next_chunk_ * chunk_rows_, 0};
-    file_->check(
-        H5Dwrite_chunk(dataset_.get(), H5P_DEFAULT, 0, offset, packed[c].size(), packed[c].data()),
-        "write a chunk of " + path_);
-    ++next_chunk_;
-  }
+  for (std::size_t c = 0; c < chunks; ++c) write_chunk(packed[c].data(), sizes[c]);
   pending_.erase(pending_.begin(), pending_.begin() + std::ptrdiff_t(chunks * chunk_bytes));
+}
+
+void Dataset::write_chunk(const unsigned char* packed, std::size_t size) {
+  if (size == 0) file_->check(-1, "deflate a chunk of " + path_);
+  const hsize_t offset[2] = {next_chunk_ * chunk_rows_, 0};
+  file_->check(H5Dwrite_chunk(dataset_.get(), H5P_DEFAULT, 0, offset, size, packed),
+               "write a chunk of " + path_);
+  ++next_chunk_;
+}
+
+void Dataset::write_rows(const Fill& fill) {
+  if (rows_ == 0) return;
+  if (written_ != 0 || chunk_rows_ == 0)
+    throw std::logic_error("HDF5 dataset " + path_ +
+                           ": write_rows needs a compressed dataset with no rows appended");
+  const std::uint64_t chunks = (rows_ + chunk_rows_ - 1) / chunk_rows_;
+  const std::size_t chunk_values = std::size_t(chunk_rows_) * std::size_t(columns_);
+  const std::size_t chunk_bytes = chunk_values * value_bytes_;
+  // A chunk on its way; chunks are used again once written, so their buffers are allocated
+  // (and their pages touched) once per write rather than once per chunk.
+  struct Chunk {
+    std::uint64_t index = 0;
+    std::vector<unsigned char> values, packed;
+    std::size_t size = 0;  // of the stream at the start of `packed`; 0: deflate failed
+  };
+  std::vector<std::unique_ptr<Chunk>> chunk_store;  // touched by the serial source only
+  tbb::concurrent_queue<Chunk*> written;
+  tbb::enumerable_thread_specific<ChunkDeflater> deflaters;
+  std::uint64_t next = 0;
+  auto source = [&](tbb::flow_control& control) -> Chunk* {
+    if (next == chunks) {
+      control.stop();
+      return nullptr;
+    }
+    Chunk* chunk = nullptr;
+    if (!written.try_pop(chunk)) {
+      chunk_store.push_back(std::make_unique<Chunk>());
+      chunk = chunk_store.back().get();
+      chunk->values.resize(chunk_bytes);
+    }
+    chunk->index = next++;
+    return chunk;
+  };
+  auto compress = [&](Chunk* chunk) {
+    const std::uint64_t first = chunk->index * chunk_rows_;
+    const std::uint64_t rows = std::min(chunk_rows_, rows_ - first);
+    fill(first, rows, chunk->values.data());
+    const std::size_t filled = std::size_t(rows) * std::size_t(columns_) * value_bytes_;
+    // The last chunk's padding: zeros, HDF5's fill value.
+    std::memset(chunk->values.data() + filled, 0, chunk_bytes - filled);
+    chunk->size = deflaters.local().compress(chunk->values.data(), chunk_values, value_bytes_,
+                                             &chunk->packed);
+    return chunk;
+  };
+  auto write = [&](Chunk* chunk) {
+    write_chunk(chunk->packed.data(), chunk->size);
+    written.push(chunk);
+  };
+  // Chunks are made and compressed in parallel and written in order as they come, so the
+  // writing overlaps the compressing; a few chunks in flight per thread.
+  const std::size_t in_flight = 2 * std::size_t(tbb::this_task_arena::max_concurrency()) + 2;
+  tbb::parallel_pipeline(
+      in_flight, tbb::make_filter<void, Chunk*>(tbb::filter_mode::serial_in_order, source) &
+                     tbb::make_filter<Chunk*, Chunk*>(tbb::filter_mode::parallel, compress) &
+                     tbb::make_filter<Chunk*, void>(tbb::filter_mode::serial_in_order, write));
+  written_ = rows_;
 }
 
 }  // namespace hearthray::hdf5

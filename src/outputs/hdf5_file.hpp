@@ -7,6 +7,7 @@
 #include <hdf5.h>
 
 #include <cstdint>
+#include <functional>
 #include <string>
 #include <vector>
 
@@ -32,10 +33,11 @@ class Handle {
 class File;
 
 // A dataset of `rows` x `columns` (columns 1: a vector) filled in row order by append(), then
-// finish(). A compressed dataset is cut into chunks that are shuffled and deflated here, in
-// parallel on the calling task arena, and written as they are (H5Dwrite_chunk) under the
-// standard shuffle and deflate filters, so any HDF5 reader inflates them without a plugin; each
-// chunk's bytes depend on its values alone, so any thread count writes the same file.
+// finish(), or all at once by write_rows(). A compressed dataset is cut into chunks that are
+// shuffled and deflated here (hdf5_deflate.hpp), in parallel on the calling task arena, and
+// written as they are (H5Dwrite_chunk) under the standard shuffle and deflate filters, so any
+// HDF5 reader inflates them without a plugin; each chunk's bytes depend on its values alone and
+// the chunks are written in order, so any thread count writes the same file.
 class Dataset {
  public:
   Dataset(const File& file, const std::string& path, hid_t type, std::uint64_t rows,
@@ -46,11 +48,19 @@ class Dataset {
   // Writes the rows still held (the last chunk padded with zeros, HDF5's fill value, as HDF5
   // pads it); throws std::logic_error when fewer rows were appended than declared.
   void finish();
+  // Makes rows [first, first + rows) of one chunk: rows x columns values in the file's type
+  // and byte order at `out`. Called in parallel for different chunks.
+  using Fill = std::function<void(std::uint64_t first, std::uint64_t rows, unsigned char* out)>;
+  // Writes every row of a compressed dataset with none appended, chunk by chunk from `fill`:
+  // chunks are made and compressed in parallel while the ones before are written.
+  void write_rows(const Fill& fill);
   std::uint64_t written() const { return written_; }
   hid_t get() const { return dataset_.get(); }
 
  private:
   void write_chunks(bool last);
+  // The next chunk, compressed (`size` 0: its compression failed).
+  void write_chunk(const unsigned char* packed, std::size_t size);
 
   const File* file_;
   std::string path_;

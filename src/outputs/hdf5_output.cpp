@@ -3,6 +3,8 @@
 // compressed. The layout is in the README ("HDF5 matrix file"); keep both in step and raise
 // kFormatVersion when a reader would need to know.
 #include <algorithm>
+#include <cmath>
+#include <cstring>
 #include <limits>
 
 #include "hearthray/error.hpp"
@@ -17,9 +19,6 @@ namespace hearthray {
 namespace {
 
 constexpr std::int64_t kFormatVersion = 1;
-// Non-zeros gathered before each write: 1 Mi entries (20 MiB), so that a matrix of hundreds of
-// millions of entries is written without a second copy of it.
-constexpr std::size_t kBlock = std::size_t(1) << 20;
 
 void write_header(const hdf5::File& file, const ViewFactors& vf) {
   file.attribute("/", "format", std::string("hearthray view factors"));
@@ -35,50 +34,103 @@ void write_header(const hdf5::File& file, const ViewFactors& vf) {
   file.attribute("/", "patch_count", std::int64_t(vf.size()));
 }
 
-// F as CSR, N x (N + 1): each row's stored entries, then the surroundings when not zero.
-// standard_error is aligned with data, stored as float32: seven significant digits are more
-// than an error estimate needs, and at half the bytes (random mantissas hardly compress) it
-// no longer makes up half the file.
+// Row starts of F as CSR, N x (N + 1): each row's stored entries, then the surroundings when
+// not zero.
+std::vector<std::int64_t> row_starts(const ViewFactors& vf) {
+  std::vector<std::int64_t> indptr(vf.size() + 1, 0);
+  for (std::size_t i = 0; i < vf.size(); ++i)
+    indptr[i + 1] = indptr[i] + std::int64_t(vf.F.row(Eigen::Index(i)).nonZeros()) +
+                    (vf.to_surroundings[i] != 0 ? 1 : 0);
+  return indptr;
+}
+
+// Calls part(k, i, p0, p1, surroundings) for each row i holding some of the entries
+// [first, first + count) of the CSR rows: its stored entries p0..p1 (positions in F's arrays)
+// fall at k.. from `first`, followed by its surroundings entry when `surroundings`.
+template <class Part>
+void for_row_parts(const ViewFactors& vf, const std::vector<std::int64_t>& indptr,
+                   std::uint64_t first, std::uint64_t count, Part part) {
+  const SparseMatrix& F = vf.F;
+  const auto after = std::upper_bound(indptr.begin(), indptr.end(), std::int64_t(first));
+  std::size_t i = std::size_t(after - indptr.begin()) - 1;  // the row holding `first`
+  const std::int64_t end = std::int64_t(first + count);
+  for (std::int64_t e = std::int64_t(first); e < end; ++i) {
+    const std::int64_t row_end = std::min(indptr[i + 1], end) - indptr[i];  // within the row
+    if (e - indptr[i] >= row_end) continue;                                 // an empty row
+    const std::int64_t start = F.outerIndexPtr()[i];
+    const std::int64_t stored =
+        F.isCompressed() ? F.outerIndexPtr()[i + 1] - start : std::int64_t(F.innerNonZeroPtr()[i]);
+    const std::int64_t j0 = e - indptr[i], j1 = std::max(j0, std::min(stored, row_end));
+    part(std::uint64_t(e) - first, i, start + j0, start + j1, row_end > stored);
+    e = indptr[i] + row_end;
+  }
+}
+
+// The entries are made chunk by chunk in parallel, straight into the file's types: the host's
+// byte order must be the file's (little-endian).
+static_assert(__BYTE_ORDER__ == __ORDER_LITTLE_ENDIAN__,
+              "the matrix file's datasets are little-endian, written from memory as they are");
+
+// Value k of a chunk being made.
+template <class T>
+void put(unsigned char* out, std::uint64_t k, T value) {
+  std::memcpy(out + k * sizeof(T), &value, sizeof(T));
+}
+
+// A standard error as stored: float32 rounded to 16 significant bits (the low byte of its
+// significand zero; half away from zero, from the double in one step), a relative rounding of
+// at most 2^-16, about 1.5e-5. An error estimate needs far less: it is itself uncertain by
+// about 1/(2 sqrt(hits)) relative, 1.6e-3 even for a factor of 1 from 10^5 rays, and
+// uncertainties are usually quoted to at most two significant digits (GUM, JCGM 100:2008,
+// 7.2.6; recalled). The byte dropped is random and incompressible: it would take one byte per
+// entry, about a tenth of the file.
+float error_to_store(double se) {
+  if (!std::isfinite(se)) return static_cast<float>(se);
+  constexpr int kDropped = 52 - 15;  // of a double's 52 significand bits, 15 kept (+ the hidden 1)
+  std::uint64_t bits;
+  std::memcpy(&bits, &se, sizeof bits);
+  bits = (bits + (std::uint64_t(1) << (kDropped - 1))) & ~((std::uint64_t(1) << kDropped) - 1);
+  std::memcpy(&se, &bits, sizeof se);
+  return static_cast<float>(se);  // exact: 16 significant bits fit in a float's 24
+}
+
+// F as CSR, N x (N + 1); standard_error aligned with data, as float32 (error_to_store): at a
+// quarter of the bytes of doubles it no longer makes up half the file.
 void write_matrix(const hdf5::File& file, const ViewFactors& vf) {
   const std::size_t n = vf.size();
-  std::uint64_t entries = std::uint64_t(vf.F.nonZeros());
-  for (double s : vf.to_surroundings) entries += s != 0 ? 1 : 0;
+  const std::vector<std::int64_t> indptr = row_starts(vf);
+  const std::uint64_t entries = std::uint64_t(indptr.back());
   file.group("/F");
   file.attribute("/F", "shape", std::vector<std::int64_t>{std::int64_t(n), std::int64_t(n) + 1});
   file.attribute("/F", "smoothed", std::int64_t(vf.smoothed));
   file.attribute("/F", "max_correction_sigma", vf.max_correction_sigma);
+  const std::int32_t surroundings_column = std::int32_t(n);
   hdf5::Dataset data(file, "/F/data", H5T_IEEE_F64LE, entries);
+  data.write_rows([&](std::uint64_t first, std::uint64_t count, unsigned char* out) {
+    for_row_parts(vf, indptr, first, count,
+                  [&](std::uint64_t k, std::size_t i, std::int64_t p0, std::int64_t p1, bool s) {
+                    std::memcpy(out + 8 * k, vf.F.valuePtr() + p0, 8 * std::size_t(p1 - p0));
+                    if (s) put(out, k + std::uint64_t(p1 - p0), vf.to_surroundings[i]);
+                  });
+  });
   hdf5::Dataset indices(file, "/F/indices", H5T_STD_I32LE, entries);
+  indices.write_rows([&](std::uint64_t first, std::uint64_t count, unsigned char* out) {
+    for_row_parts(vf, indptr, first, count,
+                  [&](std::uint64_t k, std::size_t, std::int64_t p0, std::int64_t p1, bool s) {
+                    for (std::int64_t p = p0; p < p1; ++p, ++k)
+                      put(out, k, std::int32_t(vf.F.innerIndexPtr()[p]));
+                    if (s) put(out, k, surroundings_column);
+                  });
+  });
   hdf5::Dataset errors(file, "/F/standard_error", H5T_IEEE_F32LE, entries);
-  std::vector<double> values, standard_errors;
-  std::vector<std::int32_t> columns;
-  std::vector<std::int64_t> indptr{0};
-  indptr.reserve(n + 1);
-  auto flush = [&] {
-    data.append(values.data(), values.size(), H5T_NATIVE_DOUBLE);
-    indices.append(columns.data(), columns.size(), H5T_NATIVE_INT32);
-    errors.append(standard_errors.data(), standard_errors.size(), H5T_NATIVE_DOUBLE);
-    values.clear();
-    columns.clear();
-    standard_errors.clear();
-  };
-  auto add = [&](std::size_t row, std::int64_t column, double f) {
-    values.push_back(f);
-    columns.push_back(std::int32_t(column));
-    standard_errors.push_back(vf.standard_error(row, f));
-    if (values.size() == kBlock) flush();
-  };
-  for (std::size_t i = 0; i < n; ++i) {
-    for (SparseMatrix::InnerIterator it(vf.F, Eigen::Index(i)); it; ++it)
-      add(i, it.col(), it.value());
-    if (vf.to_surroundings[i] != 0) add(i, std::int64_t(n), vf.to_surroundings[i]);
-    indptr.push_back(indptr.back() + std::int64_t(vf.F.row(Eigen::Index(i)).nonZeros()) +
-                     (vf.to_surroundings[i] != 0 ? 1 : 0));
-  }
-  flush();
-  data.finish();
-  indices.finish();
-  errors.finish();
+  errors.write_rows([&](std::uint64_t first, std::uint64_t count, unsigned char* out) {
+    for_row_parts(vf, indptr, first, count,
+                  [&](std::uint64_t k, std::size_t i, std::int64_t p0, std::int64_t p1, bool s) {
+                    for (std::int64_t p = p0; p < p1; ++p, ++k)
+                      put(out, k, error_to_store(vf.standard_error(i, vf.F.valuePtr()[p])));
+                    if (s) put(out, k, error_to_store(vf.standard_error(i, vf.to_surroundings[i])));
+                  });
+  });
   file.int64s("/F/indptr", indptr);
 }
 

@@ -1,0 +1,122 @@
+// The view-factor emitter's helpers that only change speed, never results: the search from a
+// hint must find what std::upper_bound finds, and the Sobol' points made incrementally and
+// put in tracing order must be the replicate's points, sorted by the place they pick along
+// the triangle list.
+#include <algorithm>
+#include <array>
+#include <catch2/catch.hpp>
+#include <cstdint>
+#include <random>
+#include <sstream>
+#include <vector>
+
+#include "factors/emitter_sampling.hpp"
+#include "factors/hit_counter.hpp"
+#include "hearthray/patches.hpp"
+#include "hearthray/scene.hpp"
+#include "hearthray/sobol.hpp"
+
+using namespace hearthray;
+
+TEST_CASE("upper_bound_near finds what std::upper_bound finds, from any hint") {
+  std::mt19937_64 rng(7);
+  std::uniform_int_distribution<int> step(0, 2);  // steps of 0 give ties
+  for (int trial = 0; trial < 200; ++trial) {
+    const std::uint32_t n = 1 + std::uint32_t(rng() % 40);
+    std::vector<double> c(n + 3);
+    double v = 0;
+    for (double& x : c) x = v += step(rng);
+    const std::uint32_t b = std::uint32_t(rng() % 3), e = b + n;
+    for (double x = -1; x <= v + 1; x += 0.5) {
+      const auto expected =
+          std::uint32_t(std::upper_bound(c.data() + b, c.data() + e, x) - c.data());
+      for (std::uint32_t hint = b; hint < e; ++hint)
+        REQUIRE(upper_bound_near(c.data(), b, e, x, hint) == expected);
+    }
+  }
+}
+
+namespace {
+
+// A 1 x 1 plate of 2 n^2 triangles: one surface, hence one patch of many triangles.
+Scene plate(int n) {
+  std::ostringstream obj;
+  obj << "o plate\n";
+  for (int j = 0; j <= n; ++j)
+    for (int i = 0; i <= n; ++i) obj << "v " << double(i) / n << " " << double(j) / n << " 0\n";
+  for (int j = 0; j < n; ++j)
+    for (int i = 0; i < n; ++i) {
+      const int a = j * (n + 1) + i + 1, b = a + 1, c = a + n + 1, d = c + 1;  // 1-based
+      obj << "f " << a << " " << b << " " << d << "\nf " << a << " " << d << " " << c << "\n";
+    }
+  std::istringstream in(obj.str());
+  return load_obj(in, "plate");
+}
+
+}  // namespace
+
+TEST_CASE("the Sobol' tracing order is a permutation walking the triangle list") {
+  const Scene scene = plate(8);
+  const PatchSet patches = make_surface_patches(scene);
+  REQUIRE(patches.size() == 1);
+  REQUIRE(patches.triangle_offset[1] == 128);
+  const EmitterSampler sampler(scene, patches, Vec3{0.5, 0.5, 0}, 11, EmissionSampler::sobol);
+  const std::uint64_t total = 8000, first = 1000, last = 2000;  // replicate 1 is [1000, 2000)
+  EmitterSampler::Cursor cursor = sampler.start(0, total, first);
+  REQUIRE(cursor.replicate_first == first);
+  std::vector<EmitterSampler::SobolPoint> points, scratch;
+  std::vector<std::uint32_t> buckets;
+  sampler.sobol_points(cursor, first, last, &points, &scratch, &buckets);
+  REQUIRE(points.size() == last - first);
+  // The same points as scrambled_sobol gives one by one (made incrementally, then reordered).
+  using Key = std::array<std::uint32_t, 4>;
+  std::vector<Key> got, expected;
+  for (const auto& p : points) got.push_back({p.x[0], p.x[1], p.x[2], p.x[3]});
+  for (std::uint64_t k = first; k < last; ++k) {
+    const auto u = scrambled_sobol(std::uint32_t(k - first), cursor.seeds);
+    Key key;
+    for (int d = 0; d < 4; ++d) key[d] = std::uint32_t(u[d] * 4294967296.0);
+    expected.push_back(key);
+  }
+  std::sort(got.begin(), got.end());
+  std::sort(expected.begin(), expected.end());
+  REQUIRE(got == expected);
+
+  // Each ray drawn in that order lands in the triangle that a full binary search over the
+  // cumulative areas gives for its point's first coordinate, and the triangles move forward
+  // along the list: back by at most one (two rays of a bucket, 1/1024 of the area, may swap).
+  std::vector<double> cumulative;
+  double area = 0;
+  for (std::uint32_t k = 0; k < 128; ++k)
+    cumulative.push_back(area += scene.triangle_area(patches.triangle_index[k]));
+  std::uint32_t previous = 0, moves = 0;
+  for (const auto& p : points) {
+    Ray ray;
+    float offset;
+    sampler.sample_points(cursor, &p, 1, &ray, &offset);
+    const double u0 = double(p.x[0]) / 4294967296.0;
+    const auto expected = std::uint32_t(
+        std::upper_bound(cumulative.begin(), cumulative.end(), u0 * area) - cumulative.begin());
+    REQUIRE(cursor.triangle == std::min<std::uint32_t>(expected, 127));
+    REQUIRE(cursor.triangle + 1 >= previous);
+    moves += cursor.triangle != previous;
+    previous = cursor.triangle;
+  }
+  CHECK(moves < 300);  // ~128 forward steps and a few swaps; a random order makes ~990
+}
+
+TEST_CASE("sort_patches sorts receiver lists as std::sort does") {
+  std::mt19937_64 rng(3);
+  std::vector<std::uint32_t> scratch;
+  for (std::uint64_t n_patches : {std::uint64_t{5}, std::uint64_t{2048}, std::uint64_t{98592},
+                                  std::uint64_t{1} << 22, std::uint64_t{4294967295}}) {
+    for (std::size_t size : {0, 1, 63, 64, 700, 5000}) {
+      std::vector<std::uint32_t> v(size);
+      for (auto& x : v) x = std::uint32_t(rng() % n_patches);
+      std::vector<std::uint32_t> expected = v;
+      std::sort(expected.begin(), expected.end());
+      sort_patches(v, scratch, std::size_t(n_patches));
+      REQUIRE(v == expected);
+    }
+  }
+}
