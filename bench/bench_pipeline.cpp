@@ -104,14 +104,15 @@ int main(int argc, char** argv) {
   stage = to_string(PipelineStage::exchange);
   std::printf(
       "  (%zu patches, %zu triangles; %llu rays, %.2f Mrays/s; smoothing %d iterations, "
-      "row error %g)\n",
+      "%d conjugate-gradient iterations, row error %g)\n",
       run.patches.size(), run.scene.triangles.size(),
       static_cast<unsigned long long>(run.stats.rays), run.stats.rays_per_second / 1e6,
-      run.smoothing.iterations, run.smoothing.max_row_error);
+      run.smoothing.iterations, run.smoothing.linear_iterations, run.smoothing.max_row_error);
   solve_model_exchange(&solved, options);
   const ExchangeResult& result = solved.result;
   stages.done(stage, to_string(result.status) + ", " + std::to_string(result.iterations) +
-                         " Newton iterations, residual " + std::to_string(result.final_residual_W) +
+                         " Newton iterations, " + std::to_string(result.linear_iterations) +
+                         " GMRES iterations, residual " + std::to_string(result.final_residual_W) +
                          " W");
   write_vtu((dir / "patches.vtu").string(), run.scene, run.patches, solve_fields(model, result));
   stages.done("write patches.vtu",

@@ -3,8 +3,10 @@
 //
 // The mesh: a closed box furnace 4 x 3 x 2.5 m with finely tessellated walls, holding closed
 // obstructions (spheres and boxes), about 100k triangles in all. Embree alone traces rays
-// generated beforehand (untimed) in the same order as hearthray emits them; hearthray's time
-// includes its sampling and tallying. Both use the same scene flags and thread count.
+// generated beforehand (untimed) as hearthray's stratified sampler emits them, in its order;
+// hearthray's time includes its sampling and tallying, with its default sampler (Sobol'
+// points) and, on the default edge checks, with the stratified one too. Both sides use the same
+// scene flags and thread count.
 #include <embree3/rtcore.h>
 #include <tbb/info.h>
 #include <tbb/parallel_for.h>
@@ -56,7 +58,10 @@ void run_case(const std::string& name, const std::string& obj_text, std::uint64_
 
   // Alternate the runs, three rounds, and keep the best time of each: other load on the
   // machine only ever slows a run down.
-  double t_robust = 1e300, t_plain = 1e300, t_checked = 1e300, t_hr_robust = 1e300;
+  double t_robust = 1e300, t_plain = 1e300, t_checked = 1e300, t_hr_robust = 1e300,
+         t_stratified = 1e300;
+  ViewFactorOptions stratified = options;
+  stratified.sampler = EmissionSampler::stratified;
   std::uint64_t missed_robust = 0, missed_plain = 0, escaped = 0, retraced = 0;
   for (int round = 0; round < 3; ++round) {
     t_robust = std::min(t_robust, robust.trace(arena, rays, &missed_robust));
@@ -69,6 +74,8 @@ void run_case(const std::string& name, const std::string& obj_text, std::uint64_
     for (auto e : tallies.escaped) escaped += e;
     tallies = trace_tallies(scene, patches, robust_tracer, options, &stats);
     t_hr_robust = std::min(t_hr_robust, stats.seconds);
+    trace_tallies(scene, patches, checked_tracer, stratified, &stats);
+    t_stratified = std::min(t_stratified, stats.seconds);
   }
   std::printf("  embree alone, robust intersector   %8.3f s %8.3f Mrays/s  (%llu missed)\n",
               t_robust, n / t_robust / 1e6, static_cast<unsigned long long>(missed_robust));
@@ -80,8 +87,12 @@ void run_case(const std::string& name, const std::string& obj_text, std::uint64_
       static_cast<unsigned long long>(retraced));
   std::printf("  hearthray, edges robust            %8.3f s %8.3f Mrays/s\n", t_hr_robust,
               n / t_hr_robust / 1e6);
+  std::printf("  hearthray, checked, stratified     %8.3f s %8.3f Mrays/s\n",
+              t_stratified, n / t_stratified / 1e6);
   std::printf("  ratio hearthray / embree alone, both leak-free (checked / robust):   %.3f\n",
               t_robust / t_checked);
+  std::printf("  the same, stratified sampler (checked, stratified / robust):         %.3f\n",
+              t_robust / t_stratified);
   std::printf("  ratio hearthray / embree alone, same intersector (robust / robust):  %.3f\n",
               t_robust / t_hr_robust);
   std::printf("  ratio hearthray / embree alone, fastest each (checked / default):    %.3f\n",

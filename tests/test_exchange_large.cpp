@@ -1,7 +1,8 @@
 // The exchange solver's large path (sparse Newton-Krylov) against its dense path (LU of the
 // radiosity matrix, Newton on the node temperatures alone) on the same problems, each path
 // forced through ExchangeOptions::dense_face_limit; the energy balance of closed enclosures;
-// reported non-convergence; independence from the thread count; and the GMRES helper itself.
+// reported non-convergence; independence from the thread count; the GMRES helper itself; and
+// the products from half of a reciprocal F that the linear solves use for smoothed factors.
 // The problems are synthetic (random sparse symmetric exchange areas: reciprocity exact by
 // construction), common practice for checking one solver against another; no published
 // source. The two paths share only the input checks and the final flux formula, so agreement
@@ -18,6 +19,7 @@
 #include <vector>
 
 #include "../src/exchange/exchange_krylov.hpp"
+#include "../src/exchange/exchange_reciprocal.hpp"
 #include "hearthray/exchange.hpp"
 #include "hearthray/units.hpp"
 
@@ -379,4 +381,90 @@ TEST_CASE("GMRES solves a non-symmetric system to its stated residual", "[exchan
   CHECK(singular.breakdown);
   CHECK_FALSE(singular.converged);
   CHECK(singular.iterations == 1);
+}
+
+TEST_CASE("products from half of a reciprocal F equal the whole product, for any thread count",
+          "[exchange]") {
+  // 6000 faces with about 100 partners each: some 300k entries right of the diagonal, so the
+  // scattered sums come from 4 blocks of rows (2^16 entries each), added in block order.
+  const ViewFactors vf = random_enclosure(6000, 100, 0.1, 101);
+  const Eigen::VectorXd area = Eigen::Map<const Eigen::VectorXd>(vf.areas.data(), 6000);
+  std::mt19937_64 rng(102);
+  std::uniform_real_distribution<double> unit(-1.0, 1.0);
+  Eigen::VectorXd x(6000);
+  for (Eigen::Index i = 0; i < x.size(); ++i) x[i] = 1e5 * unit(rng);
+  const Eigen::VectorXd whole = vf.F * x;
+  const Eigen::VectorXd size = vf.F.cwiseAbs() * x.cwiseAbs();
+  auto half_with = [&](int threads) {
+    tbb::global_control allow(tbb::global_control::max_allowed_parallelism, threads);
+    tbb::task_arena arena(threads);
+    Eigen::VectorXd y;
+    arena.execute([&] {
+      const exchange_detail::ReciprocalProduct half(vf.F, area);
+      REQUIRE(half.usable());
+      half.multiply(x, &y);
+    });
+    return y;
+  };
+  const Eigen::VectorXd one = half_with(1), four = half_with(4);
+  double worst = 0;
+  for (Eigen::Index i = 0; i < x.size(); ++i) {
+    worst = std::max(worst, std::abs(one[i] - whole[i]) / size[i]);
+  }
+  CHECK(worst <= 1e-14);  // A_i F_ij = S_ij to round-off of one division
+  CHECK(worst > 0);       // the entries left of the diagonal really came from their mirrors
+  CHECK(one == four);
+}
+
+TEST_CASE("products from half of F are refused for factors that are not reciprocal", "[exchange]") {
+  ViewFactors vf = random_enclosure(3000, 60, 0.1, 111);
+  const Eigen::VectorXd area = Eigen::Map<const Eigen::VectorXd>(vf.areas.data(), 3000);
+  CHECK(exchange_detail::ReciprocalProduct(vf.F, area).usable());
+  // One entry left of the diagonal off by 1e-9 of itself (far above round-off).
+  for (SparseMatrix::InnerIterator it(vf.F, 1500); it; ++it) {
+    if (it.col() < 1500) {
+      it.valueRef() *= 1 + 1e-9;
+      break;
+    }
+  }
+  CHECK_FALSE(exchange_detail::ReciprocalProduct(vf.F, area).usable());
+  // Areas that do not go with the factors (raw Monte Carlo factors are like this).
+  Eigen::VectorXd other = area;
+  other[7] *= 1.01;
+  vf = random_enclosure(3000, 60, 0.1, 111);
+  CHECK_FALSE(exchange_detail::ReciprocalProduct(vf.F, other).usable());
+}
+
+TEST_CASE(
+    "smoothed factors (half products in the linear solves) give the same solution, "
+    "bitwise for any thread count",
+    "[exchange]") {
+  ViewFactors vf = random_enclosure(6000, 100, 0.1, 121);
+  const ExchangeProblem p = make_problem(vf, Mix::conduction, 1, 0, 122);
+  auto solve_with = [&](int threads, bool smoothed) {
+    vf.smoothed = smoothed;
+    tbb::global_control allow(tbb::global_control::max_allowed_parallelism, threads);
+    tbb::task_arena arena(threads);
+    ExchangeResult r;
+    arena.execute([&] { r = solve_exchange(p, forced(true, 6000)); });
+    return r;
+  };
+  const ExchangeResult whole = solve_with(2, false), one = solve_with(1, true),
+                       four = solve_with(4, true);
+  REQUIRE(whole.status == ExchangeStatus::converged);
+  REQUIRE(one.status == ExchangeStatus::converged);
+  CHECK(one.iterations == four.iterations);
+  CHECK(one.linear_iterations == four.linear_iterations);
+  const double flow = largest_flow(whole);
+  bool same = true;
+  for (std::size_t k = 0; k < p.nodes.size(); ++k) {
+    CHECK(one.nodes[k].temperature_K == Approx(whole.nodes[k].temperature_K).epsilon(1e-9));
+    CHECK(one.nodes[k].heat_input_W == Approx(whole.nodes[k].heat_input_W).margin(1e-9 * flow));
+    same = same && one.nodes[k].temperature_K == four.nodes[k].temperature_K;
+  }
+  for (std::size_t i = 0; i < p.faces.size(); ++i) {
+    same = same && one.faces[i].radiosity == four.faces[i].radiosity &&
+           one.faces[i].net_flux == four.faces[i].net_flux;
+  }
+  CHECK(same);
 }

@@ -28,6 +28,7 @@ inline constexpr int kSobolDimensions = 4;
 // Direction numbers v[d][b] (32-bit fractions) of dimension d, bit b of the Gray-coded index.
 struct SobolTable {
   std::uint32_t v[kSobolDimensions][32];
+  std::uint32_t reversed[kSobolDimensions][32];  // the same with their bits reversed
 };
 const SobolTable& sobol_table();
 
@@ -51,15 +52,21 @@ inline std::uint32_t reverse_bits32(std::uint32_t x) {
   return (x >> 16) | (x << 16);
 }
 
+// owen_scramble of the fraction whose bits reversed are `r`: a point kept bit-reversed (built
+// from SobolTable::reversed; reversal commutes with the exclusive-or that builds points)
+// spares one of the scramble's two reversals.
+inline std::uint32_t owen_scramble_reversed(std::uint32_t r, std::uint32_t seed) {
+  r += seed;
+  r ^= r * 0x6c50b47cu;
+  r ^= r * 0xb82f1e52u;
+  r ^= r * 0xc7afe638u;
+  r ^= r * 0x8d22f6e6u;
+  return reverse_bits32(r);
+}
+
 // Burley's nested uniform scramble of a 32-bit fraction under a 32-bit seed.
 inline std::uint32_t owen_scramble(std::uint32_t x, std::uint32_t seed) {
-  x = reverse_bits32(x);
-  x += seed;
-  x ^= x * 0x6c50b47cu;
-  x ^= x * 0xb82f1e52u;
-  x ^= x * 0xc7afe638u;
-  x ^= x * 0x8d22f6e6u;
-  return reverse_bits32(x);
+  return owen_scramble_reversed(reverse_bits32(x), seed);
 }
 
 // One independent randomisation of the sequence: a seed per dimension.

@@ -7,6 +7,7 @@
 #include <filesystem>
 #include <fstream>
 #include <iostream>
+#include <optional>
 
 #include "commands.hpp"
 #include "core/text.hpp"
@@ -101,70 +102,93 @@ std::vector<std::string> write_solve_pictures(const SolveArgs& args, const Solve
   return files;
 }
 
-// The output folder: view factors, per-patch fields, pictures, the surface table and the report.
-// The view-factor file (at 100k patches a compressed matrix of hundreds of millions of entries)
-// is written by a task of its own on the run's threads while the other files are made; every
-// file has one writer, so the bytes do not depend on the threads.
-void write_solve_outputs(const SolveArgs& args, const SolvedScene& solved, UnitSystem units) {
-  const FactorRun& run = solved.run;
-  const ThermalModel& model = solved.model;
-  const ExchangeResult& result = solved.result;
-  OutputFolder out(args.output_dir);
-  const FactorReportInfo factor_info = report_info(solved.file, run);
-  SolveReportInfo info = solve_info(solved.file, run, model, solved.warnings);
-  // Dense view-factor files for a few surfaces; for many patches only the sparse one.
-  const ViewFactors& used = solved.model.factors;  // as the exchange used them
-  const bool dense = used.size() <= kDenseFactorFileLimit;
-  const std::vector<std::string> factor_files =
-      dense ? std::vector<std::string>{"view_factors.csv", "view_factors.json"}
-            : std::vector<std::string>{args.matrix_text ? "view_factors.mtx" : "view_factors.h5"};
-  std::vector<std::string> factor_paths;
-  for (const std::string& name : factor_files) factor_paths.push_back(out.file(name));
-  tbb::task_arena arena(args.rays.threads > 0 ? args.rays.threads : tbb::task_arena::automatic);
-  tbb::task_group factor_writer;
-  arena.execute([&] {
-    factor_writer.run([&] {
-      for (const std::string& path : factor_paths)
-        write_factors_file(path, used, factor_info, &run.scene, &run.patches);
+// The output folder of a solve: view factors, per-patch fields, pictures, the surface table and
+// the report. The view-factor file (at 100k patches a compressed matrix of hundreds of millions
+// of entries) depends only on the model, so a task of its own writes it from the moment the
+// model is built, during the exchange solve and while the other files are made; every file has
+// one writer, so the bytes do not depend on the threads.
+class SolveOutputs {
+ public:
+  // Right after the model is built (`solved` stays where it is until finish()).
+  SolveOutputs(const SolveArgs& args, const SolvedScene& solved)
+      : out_(args.output_dir),
+        arena_(args.rays.threads > 0 ? args.rays.threads : tbb::task_arena::automatic) {
+    const ViewFactors& used = solved.model.factors;  // as the exchange uses them
+    // Dense view-factor files for a few surfaces; for many patches only the sparse one.
+    factor_files_ = used.size() <= kDenseFactorFileLimit
+                        ? std::vector<std::string>{"view_factors.csv", "view_factors.json"}
+                        : std::vector<std::string>{args.matrix_text ? "view_factors.mtx"
+                                                                    : "view_factors.h5"};
+    std::vector<std::string> paths;
+    for (const std::string& name : factor_files_) paths.push_back(out_.file(name));
+    // Read here: the exchange may change the scene file's state (the solved room air).
+    const FactorReportInfo info = report_info(solved.file, solved.run);
+    arena_.execute([&] {
+      writer_.run([paths, info, &used, &solved] {
+        for (const std::string& path : paths)
+          write_factors_file(path, used, info, &solved.run.scene, &solved.run.patches);
+      });
     });
-  });
-  try {
-    const std::vector<PatchField> fields = solve_fields(model, result);
-    write_vtu(out.file("patches.vtu"), run.scene, run.patches, fields,
-              {{"converged", result.status == ExchangeStatus::converged ? 1 : 0}});
-    write_patches_csv_file(out.file("patches.csv"), run.scene, run.patches);
-    info.files = {"surfaces.csv", "patches.vtu", "patches.csv"};
-    const std::vector<std::string> pictures =
-        write_solve_pictures(args, solved, fields, units, out);
-    info.files.insert(info.files.end(), pictures.begin(), pictures.end());
-    info.files.insert(info.files.end(), factor_files.begin(), factor_files.end());
-    std::ofstream csv = open_output(out.file("surfaces.csv"));
-    write_surfaces_csv(csv, model, result, units);
-  } catch (...) {
-    // The writer refers to this frame: let it end; the error already thrown is the one told.
-    arena.execute([&] {
+  }
+  // An unfinished run (an error, a refusal): the writer refers to the caller's scene, so it
+  // ends first; the error already on its way is the one told, and the folder is not made.
+  ~SolveOutputs() {
+    if (waited_) return;
+    arena_.execute([&] {
       try {
-        factor_writer.wait();
+        writer_.wait();
       } catch (...) {
       }
     });
-    throw;
   }
-  arena.execute([&] { factor_writer.wait(); });  // rethrows the writer's error
-  {
-    // Last: report.json names the files of its run.
-    std::ofstream report = open_output(out.file(kManifestName));
-    write_solve_json(report, info, model, result);
-    report.close();
-    if (!report) throw InputError("cannot write '" + out.target() + "/report.json'");
+  SolveOutputs(const SolveOutputs&) = delete;
+  SolveOutputs& operator=(const SolveOutputs&) = delete;
+
+  // After the exchange solve: the other files, then the report, then the folder is swapped in.
+  void finish(const SolveArgs& args, const SolvedScene& solved, UnitSystem units) {
+    const FactorRun& run = solved.run;
+    const ThermalModel& model = solved.model;
+    const ExchangeResult& result = solved.result;
+    SolveReportInfo info = solve_info(solved.file, run, model, solved.warnings);
+    const std::vector<PatchField> fields = solve_fields(model, result);
+    write_vtu(out_.file("patches.vtu"), run.scene, run.patches, fields,
+              {{"converged", result.status == ExchangeStatus::converged ? 1 : 0}});
+    write_patches_csv_file(out_.file("patches.csv"), run.scene, run.patches);
+    info.files = {"surfaces.csv", "patches.vtu", "patches.csv"};
+    const std::vector<std::string> pictures =
+        write_solve_pictures(args, solved, fields, units, out_);
+    info.files.insert(info.files.end(), pictures.begin(), pictures.end());
+    info.files.insert(info.files.end(), factor_files_.begin(), factor_files_.end());
+    {
+      std::ofstream csv = open_output(out_.file("surfaces.csv"));
+      write_surfaces_csv(csv, model, result, units);
+      csv.close();
+      if (!csv) throw InputError("cannot write '" + out_.target() + "/surfaces.csv'");
+    }
+    waited_ = true;
+    arena_.execute([&] { writer_.wait(); });  // rethrows the writer's error
+    {
+      // Last: report.json names the files of its run.
+      std::ofstream report = open_output(out_.file(kManifestName));
+      write_solve_json(report, info, model, result);
+      report.close();
+      if (!report) throw InputError("cannot write '" + out_.target() + "/report.json'");
+    }
+    out_.commit();
+    if (!args.rays.quiet) {
+      std::cout << "\nwrote " << (fs::path(out_.target()) / kManifestName).string();
+      for (const std::string& name : info.files) std::cout << ", " << name;
+      std::cout << "\n";
+    }
   }
-  out.commit();
-  if (!args.rays.quiet) {
-    std::cout << "\nwrote " << (fs::path(out.target()) / kManifestName).string();
-    for (const std::string& name : info.files) std::cout << ", " << name;
-    std::cout << "\n";
-  }
-}
+
+ private:
+  OutputFolder out_;
+  tbb::task_arena arena_;
+  tbb::task_group writer_;
+  std::vector<std::string> factor_files_;
+  bool waited_ = false;
+};
 
 // The solved room air ([room_air]): its temperature and what flows through it (SI).
 void print_room_air(std::ostream& out, const RoomAirResult& a) {
@@ -192,7 +216,12 @@ int run_solve_command(const SolveArgs& args) {
   cache.dir = args.cache_dir;
   const UnitSystem units = parse_unit_system(args.units);  // before the work: a typo stops it
   SolvedScene solved;
-  if (const int status = solve_scene_printing(args.input, args.rays, cache, false, &solved))
+  std::optional<SolveOutputs> outputs;  // started once the model is built
+  const auto start_outputs = [&](const SolvedScene& s) {
+    if (!args.output_dir.empty()) outputs.emplace(args, s);
+  };
+  if (const int status =
+          solve_scene_printing(args.input, args.rays, cache, false, &solved, true, start_outputs))
     return status;
   const SceneFile& file = solved.file;
   const FactorRun& run = solved.run;
@@ -211,7 +240,7 @@ int run_solve_command(const SolveArgs& args) {
     if (solved.room_air) print_room_air(std::cout, *solved.room_air);
   }
 
-  if (!args.output_dir.empty()) write_solve_outputs(args, solved, units);
+  if (outputs) outputs->finish(args, solved, units);
 
   const int target = target_status(run);  // the warning, also when the solve failed
   if (result.status != ExchangeStatus::converged) {

@@ -19,13 +19,40 @@ namespace {
 
 std::atomic<bool> progress_shown{false};
 
-// "\r  tracing  42 %  3.1 Mrays/s  12 s left" on a terminal.
+// What a long stage after the tracing is doing, for the progress line; null for the stages
+// that are quick or followed by output of their own.
+const char* long_stage_doing(PipelineStage stage) {
+  switch (stage) {
+    case PipelineStage::smooth:
+      return "smoothing the view factors";
+    case PipelineStage::thermal_model:
+      return "building the thermal model";
+    case PipelineStage::exchange:
+      return "solving the exchange";
+    default:
+      return nullptr;
+  }
+}
+
+// "\r  tracing  42 %  3.1 Mrays/s  12 s left" on a terminal, then the stage that follows
+// ("smoothing the view factors"): at 100k patches each takes seconds.
 void show_progress(const PipelineProgress& p) {
   if (p.stage != PipelineStage::trace) {
     end_progress_line();
+    if (const char* doing = long_stage_doing(p.stage)) {
+      std::fprintf(stderr, "\r  %s ... ", doing);
+      std::fflush(stderr);
+      progress_shown = true;
+    }
     return;
   }
-  const double fraction = p.total ? double(p.done) / double(p.total) : 1.0;
+  if (p.total == 0) {  // the stage's start: no rays counted yet
+    std::fprintf(stderr, "\r  tracing ... ");
+    std::fflush(stderr);
+    progress_shown = true;
+    return;
+  }
+  const double fraction = double(p.done) / double(p.total);
   const double rate = p.seconds > 0 ? double(p.done) / p.seconds : 0.0;
   const double left = rate > 0 ? double(p.total - p.done) / rate : 0.0;
   std::fprintf(stderr, "\r  tracing %5.1f %%  %6.2f Mrays/s  %6.0f s left ", 100 * fraction,
@@ -53,13 +80,25 @@ double progress_interval() {
   return seconds;
 }
 
+// Set once a tracing line is logged: the run is long enough that the stages after the
+// tracing get a line each too (a short run's log stays as it was); a stage started again
+// (the exchange, solved at each step of a goal seek) is not logged again.
+std::atomic<bool> progress_logged{false};
+std::atomic<int> last_stage_logged{-1};
+
 void log_progress(const PipelineProgress& p) {
   if (p.stage != PipelineStage::trace) {
     next_progress_line = progress_line_seconds.load();
+    const char* doing = long_stage_doing(p.stage);
+    if (doing && progress_logged && last_stage_logged.exchange(int(p.stage)) != int(p.stage)) {
+      std::fprintf(stderr, "progress: %s\n", doing);
+      std::fflush(stderr);
+    }
     return;
   }
   if (p.seconds < next_progress_line || p.done >= p.total) return;
   next_progress_line = p.seconds + progress_line_seconds;
+  progress_logged = true;
   const double fraction = p.total ? double(p.done) / double(p.total) : 1.0;
   const double rate = p.seconds > 0 ? double(p.done) / p.seconds : 0.0;
   const double left = rate > 0 ? double(p.total - p.done) / rate : 0.0;
@@ -281,7 +320,8 @@ std::ofstream open_output(const std::filesystem::path& path) {
 }
 
 int solve_scene_printing(const std::string& input, const RaySettings& settings,
-                         const CacheChoice& cache, bool comfort, SolvedScene* out, bool exchange) {
+                         const CacheChoice& cache, bool comfort, SolvedScene* out, bool exchange,
+                         const std::function<void(const SolvedScene&)>& before_exchange) {
   const PipelineOptions options = pipeline_options(settings, &cache);
   SceneFile file = open_scene(input);
   Scene scene = load_scene(file);
@@ -292,7 +332,9 @@ int solve_scene_printing(const std::string& input, const RaySettings& settings,
     print_warnings(out->warnings);
     print_no_cache_folder(out->run);
     if (!settings.quiet) print_notes(out->notes);
+    if (before_exchange) before_exchange(*out);
     if (exchange) solve_model_exchange(out, options);
+    end_progress_line();
   } catch (const RefusedInput& e) {
     end_progress_line();
     return refuse(e);

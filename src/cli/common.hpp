@@ -5,6 +5,7 @@
 
 #include <cstdint>
 #include <filesystem>
+#include <functional>
 #include <fstream>
 #include <memory>
 #include <optional>
@@ -93,9 +94,12 @@ std::ofstream open_output(const std::filesystem::path& path);
 // unless quiet, its notes) to stderr. Returns 0, or 2 after printing `error: ...` and the ray
 // warnings when the thermal model or the exchange refuses the input. `comfort`: the [comfort]
 // table is checked before anything is traced. The result may be unconverged: check its status.
-// `exchange` false: the thermal model only (no steady solve).
+// `exchange` false: the thermal model only (no steady solve). `before_exchange`, if given, is
+// called with the built model before the exchange solve (e.g. to start writing what depends
+// only on the view factors while the solve runs); `*out` stays where it is.
 int solve_scene_printing(const std::string& input, const RaySettings& settings,
                          const CacheChoice& cache, bool comfort, SolvedScene* out,
-                         bool exchange = true);
+                         bool exchange = true,
+                         const std::function<void(const SolvedScene&)>& before_exchange = {});
 
 }  // namespace hearthray::cli

@@ -314,9 +314,10 @@ ExchangeResult solve_exchange(const ExchangeProblem& problem, const ExchangeOpti
   }
   if (s.faces > static_cast<std::size_t>(options.dense_face_limit)) {
     result.iterative = true;
-    Eigen::VectorXd J, node_K;
-    exchange_detail::solve_large(s, options, &result, &J, &node_K);
-    exchange_detail::fill_results(s, J, node_K, &result);  // the last iterate
+    Eigen::VectorXd J, node_K, FJ;
+    exchange_detail::solve_large(s, options, &result, &J, &node_K, &FJ);
+    exchange_detail::fill_results(s, J, node_K, &result,  // the last iterate
+                                  FJ.size() == J.size() ? &FJ : nullptr);
     require_closed_balance(s, &result);
     return result;
   }
@@ -357,9 +358,13 @@ double reference_temperature(const Setup& s) {
 }
 
 void fill_results(const Setup& s, const Eigen::VectorXd& J, const Eigen::VectorXd& node_K,
-                  ExchangeResult* result) {
+                  ExchangeResult* result, const Eigen::VectorXd* FJ) {
   Eigen::VectorXd G;
-  multiply(*s.F, J, &G);
+  if (FJ != nullptr) {
+    G = *FJ;
+  } else {
+    multiply(*s.F, J, &G);
+  }
   G += s.to_surroundings * s.surroundings_Eb;
   result->faces.assign(s.faces, FaceResult{});
   for (NodeResult& n : result->nodes) n.net_radiation_W = 0;

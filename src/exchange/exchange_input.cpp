@@ -1,5 +1,9 @@
 // Input checks of the exchange solver: every refusal names the face or node and says what to
 // change, before any solving starts.
+#include <tbb/blocked_range.h>
+#include <tbb/parallel_reduce.h>
+
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <numeric>
@@ -44,12 +48,19 @@ void require_size(std::size_t size, std::size_t faces, const std::string& what, 
 // Union-find over nodes: nodes whose faces see each other exchange heat and share a level.
 struct Groups {
   std::vector<std::uint32_t> parent;
-  explicit Groups(std::size_t n) : parent(n) { std::iota(parent.begin(), parent.end(), 0u); }
+  std::size_t count;  // groups left
+  explicit Groups(std::size_t n) : parent(n), count(n) {
+    std::iota(parent.begin(), parent.end(), 0u);
+  }
   std::uint32_t find(std::uint32_t a) {
     while (parent[a] != a) a = parent[a] = parent[parent[a]];
     return a;
   }
-  void join(std::uint32_t a, std::uint32_t b) { parent[find(a)] = find(b); }
+  void join(std::uint32_t a, std::uint32_t b) {
+    const std::uint32_t from = find(a), to = find(b);
+    parent[from] = to;
+    if (from != to) --count;
+  }
 };
 
 // A temperature level comes from a fixed temperature, convection, a wall loss or a view to
@@ -58,7 +69,10 @@ struct Groups {
 void check_temperature_level(const ExchangeProblem& problem, const Setup& s) {
   Groups groups(s.nodes);
   const SparseMatrix& F = *s.F;
-  for (int i = 0; i < F.outerSize(); ++i) {
+  // Once every node is in one group the rest of F can join nothing (an enclosure is usually
+  // joined within its first rows): stopping there leaves the groups, and their roots, as the
+  // whole pass would.
+  for (int i = 0; i < F.outerSize() && groups.count > 1; ++i) {
     for (SparseMatrix::InnerIterator it(F, i); it; ++it) {
       if (it.value() > 0) groups.join(s.node_of_face[i], s.node_of_face[it.col()]);
     }
@@ -158,10 +172,28 @@ void set_up_faces(const ExchangeProblem& problem, Setup* s) {
     s->node_of_face[i] = face.node;
     s->node_area[face.node] += vf.areas[i];
   }
-  for (int i = 0; i < vf.F.outerSize(); ++i) {
+  // Rows checked in parallel (F holds up to some 1e8 entries); the first bad row is reported.
+  auto row_ok = [&vf](int i) {
+    bool ok = true;
     for (SparseMatrix::InnerIterator it(vf.F, i); it; ++it) {
+      ok = ok && std::isfinite(it.value()) && it.value() >= 0;
+    }
+    return ok;
+  };
+  const int rows = static_cast<int>(vf.F.outerSize());
+  const int first_bad = tbb::parallel_reduce(
+      tbb::blocked_range<int>(0, rows, 256), rows,
+      [&](const tbb::blocked_range<int>& range, int found) {
+        for (int i = range.begin(); i != range.end() && i < found; ++i) {
+          if (!row_ok(i)) return i;
+        }
+        return found;
+      },
+      [](int a, int b) { return std::min(a, b); });
+  if (first_bad < rows) {
+    for (SparseMatrix::InnerIterator it(vf.F, first_bad); it; ++it) {
       if (!(std::isfinite(it.value()) && it.value() >= 0)) {
-        throw InputError("the view factor from " + face_label(problem, i) + " to " +
+        throw InputError("the view factor from " + face_label(problem, first_bad) + " to " +
                          face_label(problem, it.col()) + " is " + rounded("%.6g", it.value()) +
                          "; view factors must be finite and not negative");
       }
@@ -229,6 +261,7 @@ Setup check_and_set_up(const ExchangeProblem& problem) {
   s.nodes = problem.nodes.size();
   if (s.faces == 0) throw InputError("the exchange problem has no faces: nothing radiates");
   s.F = &vf.F;
+  s.reciprocal = vf.smoothed;
   if (static_cast<std::size_t>(vf.F.rows()) != s.faces ||
       static_cast<std::size_t>(vf.F.cols()) != s.faces) {
     throw InputError("the view-factor matrix is " + std::to_string(vf.F.rows()) + " x " +

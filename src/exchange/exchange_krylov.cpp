@@ -28,6 +28,28 @@ void multiply(const SparseMatrix& F, const Eigen::VectorXd& x, Eigen::VectorXd* 
                     });
 }
 
+void multiply_two(const SparseMatrix& F, const Eigen::VectorXd& x1, const Eigen::VectorXd& x2,
+                  Eigen::VectorXd* y1, Eigen::VectorXd* y2) {
+  y1->resize(F.rows());
+  y2->resize(F.rows());
+  double* out1 = y1->data();
+  double* out2 = y2->data();
+  const double* in1 = x1.data();
+  const double* in2 = x2.data();
+  tbb::parallel_for(tbb::blocked_range<Eigen::Index>(0, F.rows(), 64),
+                    [&](const tbb::blocked_range<Eigen::Index>& rows) {
+                      for (Eigen::Index i = rows.begin(); i != rows.end(); ++i) {
+                        double sum1 = 0, sum2 = 0;
+                        for (SparseMatrix::InnerIterator it(F, i); it; ++it) {
+                          sum1 += it.value() * in1[it.col()];
+                          sum2 += it.value() * in2[it.col()];
+                        }
+                        out1[i] = sum1;
+                        out2[i] = sum2;
+                      }
+                    });
+}
+
 namespace {
 
 // Column j of the Hessenberg matrix from w = A M^-1 v_j: w orthogonalised against the basis

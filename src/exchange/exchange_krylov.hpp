@@ -14,6 +14,10 @@ namespace exchange_detail {
 // so y is bitwise the same for any thread count.
 void multiply(const SparseMatrix& F, const Eigen::VectorXd& x, Eigen::VectorXd* y);
 
+// y1 = F x1 and y2 = F x2 in one pass over F (each bitwise as multiply would give it).
+void multiply_two(const SparseMatrix& F, const Eigen::VectorXd& x1, const Eigen::VectorXd& x2,
+                  Eigen::VectorXd* y1, Eigen::VectorXd* y2);
+
 // out = A in, for a linear operator given as a function (never a stored matrix).
 using LinearOperator = std::function<void(const Eigen::VectorXd& in, Eigen::VectorXd* out)>;
 

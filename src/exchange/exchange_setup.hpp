@@ -16,6 +16,7 @@ struct Setup {
   std::size_t faces = 0;
   std::size_t nodes = 0;
   const SparseMatrix* F = nullptr;
+  bool reciprocal = false;  // smoothed factors: A_i F_ij = A_j F_ji, checked before use
   // Per face.
   Eigen::VectorXd eps;
   Eigen::VectorXd area;
@@ -42,14 +43,16 @@ double reference_temperature(const Setup& s);
 
 // Face and node results from radiosities J (per face) and temperatures (per node), with the
 // net flux q = eps (E - G), G = F J + F_s E_s; also the largest radiosity residual.
+// FJ, when given, is F J as multiply() gives it (saves that product).
 void fill_results(const Setup& s, const Eigen::VectorXd& J, const Eigen::VectorXd& node_K,
-                  ExchangeResult* result);
+                  ExchangeResult* result, const Eigen::VectorXd* FJ = nullptr);
 
 // The large path (src/exchange/exchange_large.cpp): Newton-Krylov on radiosities and node
 // temperatures together. Fills status, message, iterations and the linear-solve fields of `result`,
-// and leaves the last iterate in J and node_K (also when it did not converge).
+// and leaves the last iterate in J and node_K (also when it did not converge), and F J in FJ
+// (empty if not known).
 void solve_large(const Setup& s, const ExchangeOptions& options, ExchangeResult* result,
-                 Eigen::VectorXd* J, Eigen::VectorXd* node_K);
+                 Eigen::VectorXd* J, Eigen::VectorXd* node_K, Eigen::VectorXd* FJ);
 
 }  // namespace exchange_detail
 }  // namespace hearthray

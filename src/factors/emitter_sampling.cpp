@@ -176,17 +176,19 @@ void EmitterSampler::sobol_points(const Cursor& cursor, std::uint64_t first, std
   const bool walk = cursor.triangle_end - patches_->triangle_offset[cursor.patch] > 1;
   std::vector<SobolPoint>& made = walk ? *scratch : *points;
   made.resize(n);
-  // Point j is point j - 1 with direction number ctz(j) added (sobol_point's Gray code).
+  // Point j is point j - 1 with direction number ctz(j) added (sobol_point's Gray code), here
+  // kept bit-reversed for the scramble.
   const SobolTable& table = sobol_table();
   std::uint32_t j = std::uint32_t(first - cursor.replicate_first);
   std::array<std::uint32_t, kSobolDimensions> x = sobol_point(j);
+  for (std::uint32_t& r : x) r = reverse_bits32(r);
   for (std::size_t i = 0; i < n; ++i, ++j) {
     if (i > 0) {
       const int b = __builtin_ctz(j);
-      for (int d = 0; d < kSobolDimensions; ++d) x[d] ^= table.v[d][b];
+      for (int d = 0; d < kSobolDimensions; ++d) x[d] ^= table.reversed[d][b];
     }
     for (int d = 0; d < kSobolDimensions; ++d)
-      made[i].x[d] = owen_scramble(x[d], cursor.seeds.s[d]);
+      made[i].x[d] = owen_scramble_reversed(x[d], cursor.seeds.s[d]);
   }
   if (!walk) return;
   // A counting sort on the leading bits of the first coordinate: about one ray per bucket,

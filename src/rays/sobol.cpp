@@ -28,6 +28,8 @@ SobolTable make_table() {
       for (int k = 1; k < p.s; ++k) v[i] ^= ((p.a >> (p.s - 1 - k)) & 1u) * v[i - k];
     }
   }
+  for (int d = 0; d < kSobolDimensions; ++d)
+    for (int b = 0; b < 32; ++b) t.reversed[d][b] = reverse_bits32(t.v[d][b]);
   return t;
 }
 
