@@ -255,6 +255,9 @@ TEST_CASE("comfort and compare commands run end to end", "[comfort]") {
   r = run_cli("compare " + (dir / "a.toml").string() + " " + (dir / "b.toml").string(), dir);
   REQUIRE(r.status == 0);
   CHECK_THAT(r.out, Catch::Contains("points within both limits") && Catch::Contains("b"));
+  // Each scene's notes say which scene they are about.
+  CHECK_THAT(r.err, Catch::Contains("note: a: [defaults] emissivity = 1: taken by") &&
+                        Catch::Contains("note: b: [defaults] emissivity = 1: taken by"));
   // The named point is listed for each scene, and so are the points over a limit.
   CHECK_THAT(r.out, Catch::Contains("at middle: t_o (C), limits") &&
                         Catch::Contains("points over a limit:"));

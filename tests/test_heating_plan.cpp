@@ -123,6 +123,11 @@ TEST_CASE("size prints the power per layout, ranks them and writes the report",
   CHECK_THAT(html, Catch::Contains("Layouts a and b. Target: operative temperature "
                                    "20.0\u00a0\u00b0C at chair."));
   CHECK_THAT(html, Catch::Contains("rank by power"));
+  // Not quiet: each layout's notes say which layout they are about.
+  const CliResult loud = run_cli("size " + scenes + "' --operative 20 --threads 1", dir);
+  CHECK(loud.status == 0);
+  CHECK_THAT(loud.err, Catch::Contains("note: a: [defaults] emissivity = 0.9: taken by"));
+  CHECK_THAT(loud.err, Catch::Contains("note: b: [defaults] emissivity = 0.9: taken by"));
   // One target, given once.
   CHECK(run_cli("size " + scenes + "' -q", dir).status == 2);
   CHECK(run_cli("size " + scenes + "' --operative 20 --pmv -0.5,0.5 -q", dir).status == 2);

@@ -46,7 +46,9 @@ CacheChoice cache_choice(const ComfortArgs& args) {
 // Solves `input` and computes its comfort figures. Returns an exit code (0 when all went well).
 int run_comfort(const std::string& input, const ComfortArgs& args, ComfortRun* out) {
   SolvedScene& s = out->solved;
-  if (const int status = solve_scene_printing(input, args.rays, cache_choice(args), true, &s))
+  RaySettings rays = args.rays;  // compare: each scene's warnings and notes name it
+  if (args.inputs.size() > 1) rays.scene_label = fs::path(input).stem().string();
+  if (const int status = solve_scene_printing(input, rays, cache_choice(args), true, &s))
     return status;
   if (s.result.status != ExchangeStatus::converged) {
     std::cerr << "error: " << input << ": the exchange solve did not converge ("
@@ -56,7 +58,7 @@ int run_comfort(const std::string& input, const ComfortArgs& args, ComfortRun* o
   }
   SceneComfort comfort = scene_comfort(s, pipeline_options(args.rays));
   end_progress_line();
-  print_warnings(comfort.warnings);
+  print_warnings(comfort.warnings, rays.scene_label);
   out->points = std::move(comfort.points);
   out->surfaces = surface_heat(s.model, s.result);
   out->heaters = summarise_heaters(s.model, out->surfaces);

@@ -97,7 +97,9 @@ int run_size_command(const SizeArgs& args) {
   for (std::size_t k = 0; k < args.inputs.size(); ++k) {
     names.push_back(fs::path(args.inputs[k]).stem().string());
     SolvedScene& s = layouts[k].scene;
-    if (const int status = solve_scene_printing(args.inputs[k], args.rays, cache, true, &s))
+    RaySettings rays = args.rays;  // several layouts: each one's warnings and notes name it
+    if (args.inputs.size() > 1) rays.scene_label = names.back();
+    if (const int status = solve_scene_printing(args.inputs[k], rays, cache, true, &s))
       return status;
     HeatingPlanOptions plan_options;
     plan_options.split =

@@ -294,12 +294,14 @@ std::vector<std::string> warning_texts(const std::vector<Warning>& warnings) {
   return texts;
 }
 
-void print_warnings(const std::vector<Warning>& warnings) {
-  for (const Warning& w : warnings) std::cerr << "warning: " << w.text << "\n";
+void print_warnings(const std::vector<Warning>& warnings, const std::string& label) {
+  const std::string prefix = label.empty() ? "" : label + ": ";
+  for (const Warning& w : warnings) std::cerr << "warning: " << prefix << w.text << "\n";
 }
 
-void print_notes(const std::vector<std::string>& notes) {
-  for (const std::string& n : notes) std::cerr << "note: " << n << "\n";
+void print_notes(const std::vector<std::string>& notes, const std::string& label) {
+  const std::string prefix = label.empty() ? "" : label + ": ";
+  for (const std::string& n : notes) std::cerr << "note: " << prefix << n << "\n";
 }
 
 std::string smoothing_line(const FactorRun& run) {
@@ -329,9 +331,9 @@ int solve_scene_printing(const std::string& input, const RaySettings& settings,
   try {
     *out = model_scene(std::move(file), std::move(scene), options);
     end_progress_line();
-    print_warnings(out->warnings);
+    print_warnings(out->warnings, settings.scene_label);
     print_no_cache_folder(out->run);
-    if (!settings.quiet) print_notes(out->notes);
+    if (!settings.quiet) print_notes(out->notes, settings.scene_label);
     if (before_exchange) before_exchange(*out);
     if (exchange) solve_model_exchange(out, options);
     end_progress_line();

@@ -28,6 +28,9 @@ struct RaySettings {
   bool raw = false;    // skip smoothing
   bool quiet = false;  // no progress line, no summary
   bool force = false;  // run even when the estimated size is past the limits
+  // Not an option: set by commands that solve several scenes (compare, size), so that each
+  // scene's warnings and notes say which scene they are about ("layout-a: ...").
+  std::string scene_label;
 };
 
 struct CacheChoice {
@@ -81,8 +84,9 @@ FactorReportInfo report_info(const SceneFile& file, const FactorRun& run);
 std::vector<std::string> warning_texts(const std::vector<Warning>& warnings);
 
 // To stderr: "warning: ..." per warning, then (when `notes`) "note: ..." per note.
-void print_warnings(const std::vector<Warning>& warnings);
-void print_notes(const std::vector<std::string>& notes);
+// "warning: ..." and "note: ..." lines on stderr, each after `label: ` when a label is given.
+void print_warnings(const std::vector<Warning>& warnings, const std::string& label = "");
+void print_notes(const std::vector<std::string>& notes, const std::string& label = "");
 
 // One line about the smoothing, e.g. for the terminal.
 std::string smoothing_line(const FactorRun& run);
