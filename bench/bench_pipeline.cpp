@@ -133,7 +133,8 @@ int main(int argc, char** argv) {
   std::printf(
       "  total %.1f s (cpu %.1f s), peak memory %.2f GiB, %.1f bytes per stored non-zero of F "
       "(%.1f M non-zeros)\n",
-      stages.total(), cpu_seconds(), peak_gib(), peak_gib() * 1024 * 1024 * 1024 / nonzeros, nonzeros / 1e6);
+      stages.total(), cpu_seconds(), peak_gib(), peak_gib() * 1024 * 1024 * 1024 / nonzeros,
+      nonzeros / 1e6);
   fs::remove_all(dir);
   return result.status == ExchangeStatus::converged ? 0 : 1;
 }

@@ -87,8 +87,8 @@ void run_case(const std::string& name, const std::string& obj_text, std::uint64_
       static_cast<unsigned long long>(retraced));
   std::printf("  hearthray, edges robust            %8.3f s %8.3f Mrays/s\n", t_hr_robust,
               n / t_hr_robust / 1e6);
-  std::printf("  hearthray, checked, stratified     %8.3f s %8.3f Mrays/s\n",
-              t_stratified, n / t_stratified / 1e6);
+  std::printf("  hearthray, checked, stratified     %8.3f s %8.3f Mrays/s\n", t_stratified,
+              n / t_stratified / 1e6);
   std::printf("  ratio hearthray / embree alone, both leak-free (checked / robust):   %.3f\n",
               t_robust / t_checked);
   std::printf("  the same, stratified sampler (checked, stratified / robust):         %.3f\n",

@@ -144,9 +144,9 @@ TEST_CASE("size exits 5 when a layout's ray target is missed", "[heating_plan][c
   auto scene = [&](const char* name, const char* target) {
     std::string text = heating_room_scene("400 W");
     const std::string rays = "per_patch = 3000\n";
-    text.replace(text.find(rays), rays.size(),
-                 std::string("per_patch = 1024\ntarget_error = ") + target +
-                     "\nmax_per_patch = 4096\n");
+    text.replace(
+        text.find(rays), rays.size(),
+        std::string("per_patch = 1024\ntarget_error = ") + target + "\nmax_per_patch = 4096\n");
     write_text(dir / name, "[mesh]\nfile = \"mesh.obj\"\n" + text);
     return "'" + (dir / name).string() + "'";
   };

@@ -115,10 +115,10 @@ class SolveOutputs {
         arena_(args.rays.threads > 0 ? args.rays.threads : tbb::task_arena::automatic) {
     const ViewFactors& used = solved.model.factors;  // as the exchange uses them
     // Dense view-factor files for a few surfaces; for many patches only the sparse one.
-    factor_files_ = used.size() <= kDenseFactorFileLimit
-                        ? std::vector<std::string>{"view_factors.csv", "view_factors.json"}
-                        : std::vector<std::string>{args.matrix_text ? "view_factors.mtx"
-                                                                    : "view_factors.h5"};
+    factor_files_ =
+        used.size() <= kDenseFactorFileLimit
+            ? std::vector<std::string>{"view_factors.csv", "view_factors.json"}
+            : std::vector<std::string>{args.matrix_text ? "view_factors.mtx" : "view_factors.h5"};
     std::vector<std::string> paths;
     for (const std::string& name : factor_files_) paths.push_back(out_.file(name));
     // Read here: the exchange may change the scene file's state (the solved room air).

@@ -174,7 +174,7 @@ struct Scratch {
   ReplicateRow row;  // sampler sobol
   std::vector<Ray> rays;
   std::vector<RayHit> hits;
-  std::vector<float> offset;         // origin offset of each ray of the batch
+  std::vector<float> offset;  // origin offset of each ray of the batch
   // Sampler sobol: the points of a run of rays in tracing order, and scratch to sort them.
   std::vector<EmitterSampler::SobolPoint> points, unsorted;
   std::vector<std::uint32_t> buckets;
