@@ -10,44 +10,38 @@
 namespace hearthray {
 namespace exchange_detail {
 
-void multiply(const SparseMatrix& F, const Eigen::VectorXd& x, Eigen::VectorXd* y) {
-  y->resize(F.rows());
-  double* out = y->data();
-  const double* in = x.data();
+namespace {
+
+// y_k = F x_k for K vectors in one pass over F, each row's sum in column order whatever the
+// threads (so each y_k is bitwise what a product alone gives).
+template <int K>
+void multiply_rows(const SparseMatrix& F, const double* const (&in)[K], double* const (&out)[K]) {
   // Rows of a few hundred non-zeros each: blocks of 64 rows are large enough to amortise the
   // scheduling and small enough to balance rows of very different lengths.
   tbb::parallel_for(tbb::blocked_range<Eigen::Index>(0, F.rows(), 64),
                     [&](const tbb::blocked_range<Eigen::Index>& rows) {
                       for (Eigen::Index i = rows.begin(); i != rows.end(); ++i) {
-                        double sum = 0;
+                        double sum[K] = {};
                         for (SparseMatrix::InnerIterator it(F, i); it; ++it) {
-                          sum += it.value() * in[it.col()];
+                          for (int k = 0; k < K; ++k) sum[k] += it.value() * in[k][it.col()];
                         }
-                        out[i] = sum;
+                        for (int k = 0; k < K; ++k) out[k][i] = sum[k];
                       }
                     });
+}
+
+}  // namespace
+
+void multiply(const SparseMatrix& F, const Eigen::VectorXd& x, Eigen::VectorXd* y) {
+  y->resize(F.rows());
+  multiply_rows<1>(F, {x.data()}, {y->data()});
 }
 
 void multiply_two(const SparseMatrix& F, const Eigen::VectorXd& x1, const Eigen::VectorXd& x2,
                   Eigen::VectorXd* y1, Eigen::VectorXd* y2) {
   y1->resize(F.rows());
   y2->resize(F.rows());
-  double* out1 = y1->data();
-  double* out2 = y2->data();
-  const double* in1 = x1.data();
-  const double* in2 = x2.data();
-  tbb::parallel_for(tbb::blocked_range<Eigen::Index>(0, F.rows(), 64),
-                    [&](const tbb::blocked_range<Eigen::Index>& rows) {
-                      for (Eigen::Index i = rows.begin(); i != rows.end(); ++i) {
-                        double sum1 = 0, sum2 = 0;
-                        for (SparseMatrix::InnerIterator it(F, i); it; ++it) {
-                          sum1 += it.value() * in1[it.col()];
-                          sum2 += it.value() * in2[it.col()];
-                        }
-                        out1[i] = sum1;
-                        out2[i] = sum2;
-                      }
-                    });
+  multiply_rows<2>(F, {x1.data(), x2.data()}, {y1->data(), y2->data()});
 }
 
 namespace {
