@@ -252,6 +252,13 @@ ExchangeProblem box_problem(const Box& box, const ViewFactors& vf, bool tunnel,
     p.nodes.push_back({"p" + std::to_string(i), c});
     const double eps = tunnel ? 0.8 : (w.axis == 2 ? (w.high ? 0.9 : 0.85) : 0.7);
     p.faces.push_back({std::uint32_t(i), emissivity > 0 ? emissivity : eps});
+    // The patch's centre (for the preconditioner's aggregates, as the pipeline gives them).
+    const std::size_t local = i - w.first;
+    double at[3];
+    at[w.axis] = w.high ? box.size[w.axis] : 0.0;
+    at[w.u] = (double(local / w.nv) + 0.5) * box.size[w.u] / w.nu;
+    at[w.v] = (double(local % w.nv) + 0.5) * box.size[w.v] / w.nv;
+    p.face_centres.push_back(Vec3{at[0], at[1], at[2]});
   }
   return p;
 }

@@ -20,6 +20,7 @@
 #include <vector>
 
 #include "hearthray/conditions.hpp"
+#include "hearthray/geometry.hpp"
 #include "hearthray/view_factors.hpp"
 
 namespace hearthray {
@@ -40,6 +41,10 @@ struct ExchangeProblem {
   // Areas, F, to_surroundings and to_back_faces per face (the last two may be empty: none).
   const ViewFactors* view_factors = nullptr;
   std::optional<double> surroundings_K;  // needed when any face sees the surroundings
+  // Optional, one per face (m): a point on it, such as its patch's centroid. The large path's
+  // preconditioner then groups faces that lie close together (better than faces in their
+  // order); empty: faces taken in their order. Changes the iterations, not the answer.
+  std::vector<Vec3> face_centres;
 };
 
 struct ExchangeOptions {
@@ -65,6 +70,12 @@ struct ExchangeOptions {
   double linear_tolerance = 1e-12;
   int max_linear_iterations = 2000;  // GMRES iterations per Newton step
   int gmres_restart = 100;           // Krylov vectors kept (memory: that many doubles per face)
+  // Large path only: GMRES is preconditioned by a coarse correction on about this many
+  // aggregates of faces (at most an eighth of the faces, and fewer where F has so few
+  // non-zeros that the coarse matrix's LU would outweigh a product with F;
+  // src/exchange/exchange_coarse.hpp). 0: no preconditioner. Changes the iterations, not the
+  // answer (within the tolerance).
+  int coarse_aggregates = 1024;
 
   bool IsValid(std::string* error) const;
 };

@@ -45,6 +45,7 @@ struct ThermalModel {
   std::vector<std::uint32_t> node_surface;        // per node: its surface
   std::vector<ExchangeFace> faces;                // one per patch, in patch order
   std::vector<Side> face_side;                    // per face: front or back of its surface
+  std::vector<Vec3> face_centres;                 // per face: its patch's centroid, m
   std::vector<std::string> surface_names;         // per surface
   std::vector<NodeCondition> surface_conditions;  // per surface, as given (power not split)
   std::vector<bool> two_sided;                    // per surface

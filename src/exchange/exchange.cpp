@@ -414,6 +414,9 @@ bool ExchangeOptions::IsValid(std::string* error) const {
   } else if (max_linear_iterations < 1) {
     problem = "max_linear_iterations is " + std::to_string(max_linear_iterations) +
               "; it must be at least 1";
+  } else if (coarse_aggregates < 0) {
+    problem = "coarse_aggregates is " + std::to_string(coarse_aggregates) +
+              "; it must be 0 (none) or more";
   } else if (gmres_restart < 1) {
     problem = "gmres_restart is " + std::to_string(gmres_restart) + "; it must be at least 1";
   }

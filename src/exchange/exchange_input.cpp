@@ -172,6 +172,19 @@ void set_up_faces(const ExchangeProblem& problem, Setup* s) {
     s->node_of_face[i] = face.node;
     s->node_area[face.node] += vf.areas[i];
   }
+  if (!problem.face_centres.empty()) {
+    if (problem.face_centres.size() != s->faces) {
+      throw InputError("the exchange problem has " + std::to_string(problem.face_centres.size()) +
+                       " face centres for " + std::to_string(s->faces) + " faces");
+    }
+    for (std::size_t i = 0; i < s->faces; ++i) {
+      const Vec3& c = problem.face_centres[i];
+      if (!std::isfinite(c.x + c.y + c.z)) {
+        throw InputError(face_label(problem, i) + " has a centre that is not finite");
+      }
+    }
+    s->centres = &problem.face_centres;
+  }
   // Rows checked in parallel (F holds up to some 1e8 entries); the first bad row is reported.
   auto row_ok = [&vf](int i) {
     bool ok = true;

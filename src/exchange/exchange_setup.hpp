@@ -22,6 +22,7 @@ struct Setup {
   Eigen::VectorXd area;
   Eigen::VectorXd to_surroundings;  // escaped plus back-face fractions
   std::vector<std::uint32_t> node_of_face;
+  const std::vector<Vec3>* centres = nullptr;  // ExchangeProblem::face_centres; null if none
   // Per node.
   std::vector<std::string> node_names;
   Eigen::VectorXd node_area;      // sum of the node's faces' areas

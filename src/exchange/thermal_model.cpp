@@ -10,6 +10,7 @@
 
 #include "core/text.hpp"
 #include "hearthray/error.hpp"
+#include "hearthray/patch_geometry.hpp"
 
 namespace hearthray {
 namespace {
@@ -115,6 +116,7 @@ ExchangeProblem ThermalModel::problem() const {
   p.faces = faces;
   p.view_factors = &factors;
   p.surroundings_K = surroundings_K;
+  p.face_centres = face_centres;
   return p;
 }
 
@@ -244,6 +246,7 @@ ThermalModel build_thermal_model(const ThermalInput& input, const Scene& scene,
   m.factors = std::move(factors);
   m.surroundings_K = input.surroundings_K;
   add_nodes_and_faces(m, input.surfaces, scene, patches);
+  m.face_centres = patch_geometry(scene, patches).centroid;
   // Only the one-sided surfaces can close an enclosure: the back of a two-sided sheet that is
   // part of the outer boundary looks out of it, and what it sends there is no leak.
   m.mesh_closed = analyse_topology(scene).one_sided_closed;
