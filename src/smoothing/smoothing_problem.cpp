@@ -189,25 +189,25 @@ void histograms_to_cursors(std::vector<T>* count, std::size_t blocks, std::size_
 struct RowSumKernel {
   const double* mu;
   const double* count;
-  double* weight;
+  float* weight;
   double mu_i = 0;
   void row(std::size_t i) { mu_i = mu[i]; }
   std::array<double, 2> pair(std::size_t j, std::uint64_t k) {
     const double inverse = 1 / (mu_i + mu[j]);  // one division per pair
     const double s = count[k] * inverse;
     const double w = s * inverse;
-    weight[k] = w;
+    weight[k] = static_cast<float>(w);
     return {s, w};
   }
 };
 
 struct ProductKernel {
-  const double* weight;
+  const float* weight;
   const double* v;
   double v_i = 0;
   void row(std::size_t i) { v_i = v[i]; }
   std::array<double, 1> pair(std::size_t j, std::uint64_t k) const {
-    return {weight[k] * (v_i + v[j])};
+    return {static_cast<double>(weight[k]) * (v_i + v[j])};
   }
 };
 
