@@ -30,9 +30,8 @@ struct Problem {
   std::size_t pairs = 0;
   SparseMatrix F;                        // the storage described above until finish()
   std::vector<std::uint64_t> row_begin;  // n + 1: row i's pairs are [row_begin[i], row_begin[i+1])
-  // Per block b and row j (index b n + j): partners i < j in block b's rows; finish() lays out
-  // the entries left of the diagonal with them.
-  std::vector<SparseMatrix::StorageIndex> block_lower;
+  // Per row j: partners i < j, the final layout's entries left of the diagonal.
+  std::vector<SparseMatrix::StorageIndex> lower;
   // Per patch: self hits N_ii, escaped and back-face rays, their sum c_i, and the area.
   Eigen::VectorXd self, escaped, back, lumped, area;
   Eigen::VectorXd own_weight;      // c_i / mu_i^2 at the last row_sums()
