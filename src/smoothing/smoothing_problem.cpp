@@ -36,7 +36,9 @@ inline double own_area(double count, double mu_i) {
 
 // Visits the partners j > i of row i in ascending order: receivers j of row i's rays and
 // senders j whose rays reached i (sent_from[sent_begin[i] .. sent_begin[i+1])), each once, as
-// visit(j, N_ij, whether j sent rays to i).
+// visit(j, N_ij, position s of j in sent_from, or kNotSent when j sent no ray to i).
+constexpr std::uint64_t kNotSent = std::numeric_limits<std::uint64_t>::max();
+
 template <class Visit>
 void for_each_partner(const Tallies& t, const std::vector<std::uint64_t>& sent_begin,
                       const std::vector<std::uint32_t>& sent_from, std::size_t i, Visit visit) {
@@ -56,13 +58,11 @@ void for_each_partner(const Tallies& t, const std::vector<std::uint64_t>& sent_b
     const std::uint32_t received = k < end ? t.hit_patch[k] : kNone;
     const std::uint32_t sent = s < s_end ? sent_from[s] : kNone;
     if (received < sent) {
-      visit(received, t.hit_count[k++], false);
+      visit(received, t.hit_count[k++], kNotSent);
     } else if (sent < received) {
-      visit(sent, std::uint64_t{0}, true);
-      ++s;
+      visit(sent, std::uint64_t{0}, s++);
     } else {
-      visit(received, t.hit_count[k++], true);
-      ++s;
+      visit(received, t.hit_count[k++], s++);
     }
   }
 }
@@ -298,8 +298,9 @@ std::uint64_t count_pairs(const Tallies& t, const Senders& senders, Problem* p) 
                     [&](const tbb::blocked_range<std::size_t>& range) {
                       for (std::size_t i = range.begin(); i != range.end(); ++i) {
                         std::uint64_t partners = 0;
-                        for_each_partner(t, senders.begin, senders.from, i,
-                                         [&](std::uint32_t, std::uint64_t, bool) { ++partners; });
+                        for_each_partner(
+                            t, senders.begin, senders.from, i,
+                            [&](std::uint32_t, std::uint64_t, std::uint64_t) { ++partners; });
                         p->row_begin[i + 1] = partners;
                       }
                     });
@@ -314,33 +315,41 @@ std::uint64_t count_pairs(const Tallies& t, const Senders& senders, Problem* p) 
   return entries;
 }
 
+// The rays that senders j > i sent to the rows i of [first, last), in the order of
+// senders.from (position s at index s - senders.begin[first]). Each row j of the tallies is
+// read once, over its run of receivers in [first, last); the writes stay within the block's
+// rows, not spread over the tallies as looking each count up from its row would be.
+std::vector<std::uint64_t> sent_counts(const Tallies& t, const Senders& senders, std::size_t first,
+                                       std::size_t last) {
+  const std::size_t n = senders.begin.size() - 1;
+  const std::uint64_t base = senders.begin[first];
+  std::vector<std::uint64_t> count(senders.begin[last] - base);
+  std::vector<std::uint64_t> next(senders.begin.begin() + static_cast<std::ptrdiff_t>(first),
+                                  senders.begin.begin() + static_cast<std::ptrdiff_t>(last));
+  for (std::size_t j = first + 1; j < n; ++j) {
+    const std::uint32_t* row = t.hit_patch.data() + t.hit_offset[j];
+    const std::uint32_t* row_end = t.hit_patch.data() + t.hit_offset[j + 1];
+    const std::uint32_t* q = std::lower_bound(row, row_end, static_cast<std::uint32_t>(first));
+    for (; q != row_end && *q < last && *q < j; ++q) {
+      const std::uint64_t rays = t.hit_count[static_cast<std::size_t>(q - t.hit_patch.data())];
+      if (rays > 0) count[next[*q - first]++ - base] = rays;
+    }
+  }
+  return count;
+}
+
 // Fills each row's pairs: partner and the rays exchanged both ways, into p.F's arrays.
 void fill_pairs(const Tallies& t, const Senders& senders, Problem* p) {
-  const std::size_t n = p->n;
   Index* partner = p->F.innerIndexPtr();
   double* count = p->F.valuePtr();
   for_each_block(p->block, [&](std::size_t, std::size_t first, std::size_t last) {
-    // Row j's rays to partners i < j are read in ascending i as the block's rows are filled,
-    // from the first one at or after the block's first row (only senders j > first matter).
-    std::vector<std::uint64_t> next(n);
-    for (std::size_t j = first + 1; j < n; ++j) {
-      const std::uint32_t* row = t.hit_patch.data() + t.hit_offset[j];
-      next[j] =
-          t.hit_offset[j] +
-          static_cast<std::uint64_t>(std::lower_bound(row, t.hit_patch.data() + t.hit_offset[j + 1],
-                                                      static_cast<std::uint32_t>(first)) -
-                                     row);
-    }
+    const std::vector<std::uint64_t> sent = sent_counts(t, senders, first, last);
+    const std::uint64_t base = senders.begin[first];
     for (std::size_t i = first; i < last; ++i) {
       std::uint64_t out = p->row_begin[i];
       for_each_partner(t, senders.begin, senders.from, i,
-                       [&](std::uint32_t j, std::uint64_t received, bool sent) {
-                         std::uint64_t both = received;
-                         if (sent) {
-                           std::uint64_t& q = next[j];
-                           while (t.hit_patch[q] != i) ++q;
-                           both += t.hit_count[q++];
-                         }
+                       [&](std::uint32_t j, std::uint64_t received, std::uint64_t s) {
+                         const std::uint64_t both = received + (s == kNotSent ? 0 : sent[s - base]);
                          partner[out] = static_cast<Index>(j);
                          count[out] = static_cast<double>(both);  // exact below 2^53
                          ++out;
