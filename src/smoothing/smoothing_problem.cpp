@@ -315,15 +315,13 @@ std::uint64_t count_pairs(const Tallies& t, const Senders& senders, Problem* p) 
   return entries;
 }
 
-// The rays that senders j > i sent to the rows i of [first, last), in the order of
-// senders.from (position s at index s - senders.begin[first]). Each row j of the tallies is
-// read once, over its run of receivers in [first, last); the writes stay within the block's
-// rows, not spread over the tallies as looking each count up from its row would be.
-std::vector<std::uint64_t> sent_counts(const Tallies& t, const Senders& senders, std::size_t first,
-                                       std::size_t last) {
+// Writes sent[s] = the rays that sender senders.from[s] (a row j > i) sent to row i, for the
+// rows i of [first, last). Each row j of the tallies is read once, over its run of receivers
+// in the block; the writes stay within the block's rows, not spread over the tallies as
+// looking each count up from its row would be.
+void gather_sent(const Tallies& t, const Senders& senders, std::size_t first, std::size_t last,
+                 double* sent) {
   const std::size_t n = senders.begin.size() - 1;
-  const std::uint64_t base = senders.begin[first];
-  std::vector<std::uint64_t> count(senders.begin[last] - base);
   std::vector<std::uint64_t> next(senders.begin.begin() + static_cast<std::ptrdiff_t>(first),
                                   senders.begin.begin() + static_cast<std::ptrdiff_t>(last));
   for (std::size_t j = first + 1; j < n; ++j) {
@@ -332,26 +330,27 @@ std::vector<std::uint64_t> sent_counts(const Tallies& t, const Senders& senders,
     const std::uint32_t* q = std::lower_bound(row, row_end, static_cast<std::uint32_t>(first));
     for (; q != row_end && *q < last && *q < j; ++q) {
       const std::uint64_t rays = t.hit_count[static_cast<std::size_t>(q - t.hit_patch.data())];
-      if (rays > 0) count[next[*q - first]++ - base] = rays;
+      if (rays > 0) sent[next[*q - first]++] = static_cast<double>(rays);  // exact below 2^53
     }
   }
-  return count;
 }
 
-// Fills each row's pairs: partner and the rays exchanged both ways, into p.F's arrays.
+// Fills each row's pairs: partner and the rays exchanged both ways, into p.F's arrays. The
+// rays from senders are first gathered into the values from `pairs` on (free until the
+// weights; there are fewer senders than pairs).
 void fill_pairs(const Tallies& t, const Senders& senders, Problem* p) {
   Index* partner = p->F.innerIndexPtr();
   double* count = p->F.valuePtr();
+  double* sent = p->F.valuePtr() + p->pairs;
   for_each_block(p->block, [&](std::size_t, std::size_t first, std::size_t last) {
-    const std::vector<std::uint64_t> sent = sent_counts(t, senders, first, last);
-    const std::uint64_t base = senders.begin[first];
+    gather_sent(t, senders, first, last, sent);
     for (std::size_t i = first; i < last; ++i) {
       std::uint64_t out = p->row_begin[i];
       for_each_partner(t, senders.begin, senders.from, i,
                        [&](std::uint32_t j, std::uint64_t received, std::uint64_t s) {
-                         const std::uint64_t both = received + (s == kNotSent ? 0 : sent[s - base]);
                          partner[out] = static_cast<Index>(j);
-                         count[out] = static_cast<double>(both);  // exact below 2^53
+                         // exact below 2^53
+                         count[out] = static_cast<double>(received) + (s == kNotSent ? 0 : sent[s]);
                          ++out;
                        });
     }
