@@ -209,59 +209,6 @@ TEST_CASE("smoothing lays out each pair in both rows, on the pattern of the coun
   CHECK(worst <= 1e-15);
 }
 
-TEST_CASE("symmetric counts over several blocks of rows are left unchanged", "[smoothing]") {
-  // Symmetric counts M_ij = M_ji with A_i = N_i / K make the raw estimate exact:
-  // A_i F_ij = M_ij / K, so the likelihood is maximal at the raw factors (Daun, Morton &
-  // Howell 2005) and smoothing must return them. About 250k pairs: the pair list is built in
-  // several blocks of rows, each gathering the rays its rows received from later rows; a count
-  // lost or given to the wrong pair there would move the answer off the raw factors.
-  const std::size_t n = 1000;
-  const double K = 1000;
-  std::mt19937_64 rng(5);
-  std::vector<std::vector<std::uint64_t>> M(n, std::vector<std::uint64_t>(n, 0));
-  for (std::size_t i = 0; i < n; ++i) {
-    for (std::size_t j = i + 1; j < n; ++j) {
-      if (rng() % 2 == 0) M[i][j] = M[j][i] = 1 + rng() % 20;
-    }
-  }
-  Tallies t;
-  t.patch_count = n;
-  PatchSet patches;
-  for (std::size_t i = 0; i < n; ++i) {
-    std::uint64_t total = 0;
-    for (std::size_t j = 0; j < n; ++j) {
-      total += M[i][j];
-      if (M[i][j] == 0) continue;
-      t.hit_patch.push_back(static_cast<std::uint32_t>(j));
-      t.hit_count.push_back(M[i][j]);
-    }
-    t.hit_offset.push_back(t.hit_patch.size());
-    t.rays.push_back(total);
-    t.escaped.push_back(0);
-    t.back_face.push_back(0);
-    Patch p;
-    p.name = "p" + std::to_string(i);
-    p.area = static_cast<double>(total) / K;
-    patches.patches.push_back(p);
-  }
-  SmoothingSummary summary;
-  const ViewFactors vf = smooth_view_factors(patches, t, SmoothingOptions{}, &summary);
-  const ViewFactors raw = raw_view_factors(patches, t);
-  INFO(summary.message);
-  REQUIRE(summary.converged);
-  CHECK(summary.iterations == 0);
-  REQUIRE(vf.F.nonZeros() == raw.F.nonZeros());
-  const auto entries = static_cast<std::size_t>(vf.F.nonZeros());
-  CHECK(std::equal(vf.F.innerIndexPtr(), vf.F.innerIndexPtr() + entries, raw.F.innerIndexPtr()));
-  double worst = 0;
-  for (std::size_t k = 0; k < entries; ++k) {
-    worst =
-        std::max(worst, std::abs(vf.F.valuePtr()[k] - raw.F.valuePtr()[k]) / raw.F.valuePtr()[k]);
-  }
-  CAPTURE(worst);
-  CHECK(worst <= 1e-14);
-}
-
 TEST_CASE("smoothing refuses a forced dense solve of a large problem", "[smoothing]") {
   // A ring of 5000 patches, each sending half its rays to either neighbour.
   const std::size_t n = 5000;

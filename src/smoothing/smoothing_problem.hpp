@@ -9,8 +9,10 @@
 // first half of values [pairs, 2 pairs). The conjugate-gradient products, bound by reading the
 // pairs, so read 8 bytes a pair rather than 12; the Newton gradient (the row sums) stays in
 // double precision, so only the step direction is approximate (to about 1e-7, far inside the
-// forcing terms) and the answer is the same. finish() then rewrites F in place into the final
-// symmetric pattern.
+// forcing terms) and the answer is the same. While the list is built, the rays each row
+// received from later rows are gathered into values [pairs, 2 pairs) too (fewer senders than
+// pairs). finish() then rewrites F in place into the final symmetric pattern, the entries left
+// of the diagonal by blocks of destination rows, so that each block's writes stay in cache.
 //
 // Every pass runs over fixed blocks of rows (set by the counts alone); sums that cross rows go
 // to per-block buffers added in block order, so results never depend on the thread count.
