@@ -411,6 +411,13 @@ TEST_CASE("a default wall or convection can be switched off per surface", "[scen
         "[defaults] wall (U = 1 W/m2K, outside 20 C; two-sided sheets take none): "
         "taken by hearth, wall (2 of 4 surfaces); switched off by wall = false in "
         "door");
+  // A default every surface overrides is named as taken by none.
+  const SceneFile overridden = read_scene_file(dir.scene(
+      "[defaults]\nemissivity = 0.8\n[surface.hearth]\nemissivity = 0.7\n[surface.wall]\n"
+      "emissivity = 0.7\n[surface.door]\nemissivity = 0.7\n[surface.panel]\nemissivity = 0.7\n"));
+  const std::vector<std::string> none = defaults_taken(overridden, load_scene(overridden));
+  REQUIRE(none.size() == 1);
+  CHECK(none[0] == "[defaults] emissivity = 0.8: taken by none of the 4 surfaces");
   // true means nothing, and false belongs to a surface, not to [defaults].
   CHECK_THROWS_WITH(read_scene_file(dir.scene("[surface.door]\nwall = true\n")),
                     Catch::Contains("scene.toml:4:") && Catch::Contains("wall = true") &&

@@ -227,6 +227,38 @@ double max_correction(const ViewFactors& smooth, const ViewFactors& raw) {
   return worst;
 }
 
+// Symmetric counts M (M_ij = M_ji) as the tallies of patches with areas A_i = N_i / K: the raw
+// estimate is then exact, A_i F_ij = M_ij / K.
+struct CountedEnclosure {
+  PatchSet patches;
+  Tallies tallies;
+};
+
+CountedEnclosure symmetric_counts(const std::vector<std::vector<std::uint64_t>>& M, double K) {
+  CountedEnclosure c;
+  Tallies& t = c.tallies;
+  t.patch_count = M.size();
+  for (std::size_t i = 0; i < M.size(); ++i) {
+    std::uint64_t total = 0;
+    for (std::size_t j = 0; j < M.size(); ++j) {
+      total += M[i][j];
+      if (M[i][j] == 0) continue;
+      t.hit_patch.push_back(static_cast<std::uint32_t>(j));
+      t.hit_count.push_back(M[i][j]);
+    }
+    t.hit_offset.push_back(t.hit_patch.size());
+    t.rays.push_back(total);
+    t.escaped.push_back(0);
+    t.back_face.push_back(0);
+    Patch p;
+    p.name = "p" + std::to_string(i);
+    p.surface = static_cast<std::uint32_t>(i);
+    p.area = static_cast<double>(total) / K;
+    c.patches.patches.push_back(p);
+  }
+  return c;
+}
+
 }  // namespace
 
 TEST_CASE("closed-form references: cube catalogue values and box closure", "[smoothing]") {
@@ -408,26 +440,9 @@ TEST_CASE("counts that already satisfy reciprocity and closure are left unchange
   // The likelihood is then maximal at the raw factors, so smoothing must return them.
   const std::vector<std::vector<std::uint64_t>> M = {
       {0, 300, 500, 200}, {300, 0, 100, 600}, {500, 100, 40, 60}, {200, 600, 60, 0}};
-  const double K = 1000;
-  Enclosure e;
-  Tallies t;
-  t.patch_count = 4;
-  for (std::size_t i = 0; i < 4; ++i) {
-    std::uint64_t total = 0;
-    for (std::size_t j = 0; j < 4; ++j) {
-      total += M[i][j];
-      if (M[i][j] == 0) continue;
-      t.hit_patch.push_back(static_cast<std::uint32_t>(j));
-      t.hit_count.push_back(M[i][j]);
-    }
-    t.hit_offset.push_back(t.hit_patch.size());
-    t.rays.push_back(total);
-    t.escaped.push_back(0);
-    t.back_face.push_back(0);
-    e.names.push_back("p" + std::to_string(i));
-    e.area.push_back(static_cast<double>(total) / K);
-  }
-  const PatchSet patches = patches_of(e);
+  const CountedEnclosure c = symmetric_counts(M, 1000);
+  const PatchSet& patches = c.patches;
+  const Tallies& t = c.tallies;
   SmoothingSummary summary;
   const ViewFactors vf = smooth_view_factors(patches, t, SmoothingOptions{}, &summary);
   const ViewFactors raw = raw_view_factors(patches, t);
@@ -437,6 +452,40 @@ TEST_CASE("counts that already satisfy reciprocity and closure are left unchange
   CHECK((Eigen::MatrixXd(vf.F) - Eigen::MatrixXd(raw.F)).cwiseAbs().maxCoeff() < 1e-15);
   CHECK(vf.F.coeff(2, 2) == Approx(40.0 / 700).epsilon(1e-14));  // self view kept
   CHECK(vf.F.nonZeros() == raw.F.nonZeros());
+}
+
+TEST_CASE("symmetric counts over several blocks of rows are left unchanged", "[smoothing]") {
+  // Symmetric counts M_ij = M_ji with A_i = N_i / K make the raw estimate exact:
+  // A_i F_ij = M_ij / K, so the likelihood is maximal at the raw factors (Daun, Morton &
+  // Howell 2005) and smoothing must return them. About 250k pairs: the pair list is built in
+  // several blocks of rows, each gathering the rays its rows received from later rows; a count
+  // lost or given to the wrong pair there would move the answer off the raw factors.
+  const std::size_t n = 1000;
+  const double K = 1000;
+  std::mt19937_64 rng(5);
+  std::vector<std::vector<std::uint64_t>> M(n, std::vector<std::uint64_t>(n, 0));
+  for (std::size_t i = 0; i < n; ++i) {
+    for (std::size_t j = i + 1; j < n; ++j) {
+      if (rng() % 2 == 0) M[i][j] = M[j][i] = 1 + rng() % 20;
+    }
+  }
+  const CountedEnclosure c = symmetric_counts(M, K);
+  SmoothingSummary summary;
+  const ViewFactors vf = smooth_view_factors(c.patches, c.tallies, SmoothingOptions{}, &summary);
+  const ViewFactors raw = raw_view_factors(c.patches, c.tallies);
+  INFO(summary.message);
+  REQUIRE(summary.converged);
+  CHECK(summary.iterations == 0);
+  REQUIRE(vf.F.nonZeros() == raw.F.nonZeros());
+  const auto entries = static_cast<std::size_t>(vf.F.nonZeros());
+  CHECK(std::equal(vf.F.innerIndexPtr(), vf.F.innerIndexPtr() + entries, raw.F.innerIndexPtr()));
+  double worst = 0;
+  for (std::size_t k = 0; k < entries; ++k) {
+    worst =
+        std::max(worst, std::abs(vf.F.valuePtr()[k] - raw.F.valuePtr()[k]) / raw.F.valuePtr()[k]);
+  }
+  CAPTURE(worst);
+  CHECK(worst <= 1e-14);
 }
 
 TEST_CASE("smoothing solves rows whose multiplier must be negative", "[smoothing]") {

@@ -132,15 +132,7 @@ class SolveOutputs {
   }
   // An unfinished run (an error, a refusal): the writer refers to the caller's scene, so it
   // ends first; the error already on its way is the one told, and the folder is not made.
-  ~SolveOutputs() {
-    if (waited_) return;
-    arena_.execute([&] {
-      try {
-        writer_.wait();
-      } catch (...) {
-      }
-    });
-  }
+  ~SolveOutputs() { wait_quietly(); }
   SolveOutputs(const SolveOutputs&) = delete;
   SolveOutputs& operator=(const SolveOutputs&) = delete;
 
@@ -151,22 +143,33 @@ class SolveOutputs {
     const ExchangeResult& result = solved.result;
     SolveReportInfo info = solve_info(solved.file, run, model, solved.warnings);
     const std::vector<PatchField> fields = solve_fields(model, result);
-    write_vtu(out_.file("patches.vtu"), run.scene, run.patches, fields,
-              {{"converged", result.status == ExchangeStatus::converged ? 1 : 0}});
-    write_patches_csv_file(out_.file("patches.csv"), run.scene, run.patches);
+    // The per-patch files and the surface table are written by a task while the pictures are
+    // drawn (each file has one writer; the paths are taken here, in a fixed order).
+    const std::string vtu = out_.file("patches.vtu"), patches = out_.file("patches.csv"),
+                      surfaces = out_.file("surfaces.csv"), target = out_.target();
+    arena_.execute([&] {
+      writer_.run([&] {
+        write_vtu(vtu, run.scene, run.patches, fields,
+                  {{"converged", result.status == ExchangeStatus::converged ? 1 : 0}});
+        write_patches_csv_file(patches, run.scene, run.patches);
+        std::ofstream csv = open_output(surfaces);
+        write_surfaces_csv(csv, model, result, units);
+        csv.close();
+        if (!csv) throw InputError("cannot write '" + target + "/surfaces.csv'");
+      });
+    });
     info.files = {"surfaces.csv", "patches.vtu", "patches.csv"};
-    const std::vector<std::string> pictures =
-        write_solve_pictures(args, solved, fields, units, out_);
+    std::vector<std::string> pictures;
+    try {
+      pictures = write_solve_pictures(args, solved, fields, units, out_);
+    } catch (...) {
+      wait_quietly();  // the task reads this function's locals
+      throw;
+    }
     info.files.insert(info.files.end(), pictures.begin(), pictures.end());
     info.files.insert(info.files.end(), factor_files_.begin(), factor_files_.end());
-    {
-      std::ofstream csv = open_output(out_.file("surfaces.csv"));
-      write_surfaces_csv(csv, model, result, units);
-      csv.close();
-      if (!csv) throw InputError("cannot write '" + out_.target() + "/surfaces.csv'");
-    }
     waited_ = true;
-    arena_.execute([&] { writer_.wait(); });  // rethrows the writer's error
+    arena_.execute([&] { writer_.wait(); });  // rethrows a writer's error
     {
       // Last: report.json names the files of its run.
       std::ofstream report = open_output(out_.file(kManifestName));
@@ -183,6 +186,18 @@ class SolveOutputs {
   }
 
  private:
+  // Lets the writing tasks end, their errors dropped (one already on its way is the one told).
+  void wait_quietly() {
+    if (waited_) return;
+    waited_ = true;
+    arena_.execute([&] {
+      try {
+        writer_.wait();
+      } catch (...) {
+      }
+    });
+  }
+
   OutputFolder out_;
   tbb::task_arena arena_;
   tbb::task_group writer_;

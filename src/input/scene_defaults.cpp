@@ -35,14 +35,18 @@ std::string condition_text(const SurfaceSpec& d) {
   return "adiabatic = true";
 }
 
-// "[defaults] WHAT: taken by a, b (2 of 5 surfaces)[; switched off in c]".
+// "[defaults] WHAT: taken by a, b (2 of 5 surfaces)[; switched off in c]", or "taken by none of
+// the 5 surfaces" when every surface has its own.
 std::string taken_line(const std::string& what, const std::vector<std::string>& takers,
                        const std::vector<std::string>& off, const std::string& off_key,
                        std::size_t surfaces) {
-  std::string line = "[defaults] " + what + ": taken by " +
-                     (takers.empty() ? std::string("no surface") : join_at_most(takers, 12)) +
-                     " (" + std::to_string(takers.size()) + " of " + std::to_string(surfaces) +
-                     " surfaces)";
+  std::string line = "[defaults] " + what + ": taken by ";
+  if (takers.empty()) {
+    line += "none of the " + std::to_string(surfaces) + " surfaces";
+  } else {
+    line += join_at_most(takers, 12) + " (" + std::to_string(takers.size()) + " of " +
+            std::to_string(surfaces) + " surfaces)";
+  }
   if (!off.empty()) line += "; switched off by " + off_key + " in " + join_at_most(off, 12);
   return line;
 }

@@ -36,7 +36,9 @@ inline double own_area(double count, double mu_i) {
 
 // Visits the partners j > i of row i in ascending order: receivers j of row i's rays and
 // senders j whose rays reached i (sent_from[sent_begin[i] .. sent_begin[i+1])), each once, as
-// visit(j, N_ij, whether j sent rays to i).
+// visit(j, N_ij, position s of j in sent_from, or kNotSent when j sent no ray to i).
+constexpr std::uint64_t kNotSent = std::numeric_limits<std::uint64_t>::max();
+
 template <class Visit>
 void for_each_partner(const Tallies& t, const std::vector<std::uint64_t>& sent_begin,
                       const std::vector<std::uint32_t>& sent_from, std::size_t i, Visit visit) {
@@ -56,13 +58,11 @@ void for_each_partner(const Tallies& t, const std::vector<std::uint64_t>& sent_b
     const std::uint32_t received = k < end ? t.hit_patch[k] : kNone;
     const std::uint32_t sent = s < s_end ? sent_from[s] : kNone;
     if (received < sent) {
-      visit(received, t.hit_count[k++], false);
+      visit(received, t.hit_count[k++], kNotSent);
     } else if (sent < received) {
-      visit(sent, std::uint64_t{0}, true);
-      ++s;
+      visit(sent, std::uint64_t{0}, s++);
     } else {
-      visit(received, t.hit_count[k++], true);
-      ++s;
+      visit(received, t.hit_count[k++], s++);
     }
   }
 }
@@ -189,25 +189,25 @@ void histograms_to_cursors(std::vector<T>* count, std::size_t blocks, std::size_
 struct RowSumKernel {
   const double* mu;
   const double* count;
-  double* weight;
+  float* weight;
   double mu_i = 0;
   void row(std::size_t i) { mu_i = mu[i]; }
   std::array<double, 2> pair(std::size_t j, std::uint64_t k) {
     const double inverse = 1 / (mu_i + mu[j]);  // one division per pair
     const double s = count[k] * inverse;
     const double w = s * inverse;
-    weight[k] = w;
+    weight[k] = static_cast<float>(w);
     return {s, w};
   }
 };
 
 struct ProductKernel {
-  const double* weight;
+  const float* weight;
   const double* v;
   double v_i = 0;
   void row(std::size_t i) { v_i = v[i]; }
   std::array<double, 1> pair(std::size_t j, std::uint64_t k) const {
-    return {weight[k] * (v_i + v[j])};
+    return {static_cast<double>(weight[k]) * (v_i + v[j])};
   }
 };
 
@@ -298,8 +298,9 @@ std::uint64_t count_pairs(const Tallies& t, const Senders& senders, Problem* p) 
                     [&](const tbb::blocked_range<std::size_t>& range) {
                       for (std::size_t i = range.begin(); i != range.end(); ++i) {
                         std::uint64_t partners = 0;
-                        for_each_partner(t, senders.begin, senders.from, i,
-                                         [&](std::uint32_t, std::uint64_t, bool) { ++partners; });
+                        for_each_partner(
+                            t, senders.begin, senders.from, i,
+                            [&](std::uint32_t, std::uint64_t, std::uint64_t) { ++partners; });
                         p->row_begin[i + 1] = partners;
                       }
                     });
@@ -314,35 +315,42 @@ std::uint64_t count_pairs(const Tallies& t, const Senders& senders, Problem* p) 
   return entries;
 }
 
-// Fills each row's pairs: partner and the rays exchanged both ways, into p.F's arrays.
+// Writes sent[s] = the rays that sender senders.from[s] (a row j > i) sent to row i, for the
+// rows i of [first, last). Each row j of the tallies is read once, over its run of receivers
+// in the block; the writes stay within the block's rows, not spread over the tallies as
+// looking each count up from its row would be.
+void gather_sent(const Tallies& t, const Senders& senders, std::size_t first, std::size_t last,
+                 double* sent) {
+  const std::size_t n = senders.begin.size() - 1;
+  std::vector<std::uint64_t> next(senders.begin.begin() + static_cast<std::ptrdiff_t>(first),
+                                  senders.begin.begin() + static_cast<std::ptrdiff_t>(last));
+  for (std::size_t j = first + 1; j < n; ++j) {
+    const std::uint32_t* row = t.hit_patch.data() + t.hit_offset[j];
+    const std::uint32_t* row_end = t.hit_patch.data() + t.hit_offset[j + 1];
+    const std::uint32_t* q = std::lower_bound(row, row_end, static_cast<std::uint32_t>(first));
+    for (; q != row_end && *q < last && *q < j; ++q) {
+      const std::uint64_t rays = t.hit_count[static_cast<std::size_t>(q - t.hit_patch.data())];
+      if (rays > 0) sent[next[*q - first]++] = static_cast<double>(rays);  // exact below 2^53
+    }
+  }
+}
+
+// Fills each row's pairs: partner and the rays exchanged both ways, into p.F's arrays. The
+// rays from senders are first gathered into the values from `pairs` on (free until the
+// weights; there are fewer senders than pairs).
 void fill_pairs(const Tallies& t, const Senders& senders, Problem* p) {
-  const std::size_t n = p->n;
   Index* partner = p->F.innerIndexPtr();
   double* count = p->F.valuePtr();
+  double* sent = p->F.valuePtr() + p->pairs;
   for_each_block(p->block, [&](std::size_t, std::size_t first, std::size_t last) {
-    // Row j's rays to partners i < j are read in ascending i as the block's rows are filled,
-    // from the first one at or after the block's first row (only senders j > first matter).
-    std::vector<std::uint64_t> next(n);
-    for (std::size_t j = first + 1; j < n; ++j) {
-      const std::uint32_t* row = t.hit_patch.data() + t.hit_offset[j];
-      next[j] =
-          t.hit_offset[j] +
-          static_cast<std::uint64_t>(std::lower_bound(row, t.hit_patch.data() + t.hit_offset[j + 1],
-                                                      static_cast<std::uint32_t>(first)) -
-                                     row);
-    }
+    gather_sent(t, senders, first, last, sent);
     for (std::size_t i = first; i < last; ++i) {
       std::uint64_t out = p->row_begin[i];
       for_each_partner(t, senders.begin, senders.from, i,
-                       [&](std::uint32_t j, std::uint64_t received, bool sent) {
-                         std::uint64_t both = received;
-                         if (sent) {
-                           std::uint64_t& q = next[j];
-                           while (t.hit_patch[q] != i) ++q;
-                           both += t.hit_count[q++];
-                         }
+                       [&](std::uint32_t j, std::uint64_t received, std::uint64_t s) {
                          partner[out] = static_cast<Index>(j);
-                         count[out] = static_cast<double>(both);  // exact below 2^53
+                         // exact below 2^53
+                         count[out] = static_cast<double>(received) + (s == kNotSent ? 0 : sent[s]);
                          ++out;
                        });
     }
@@ -373,16 +381,18 @@ Problem make_problem(const PatchSet& patches, const Tallies& t) {
   p.F.resizeNonZeros(static_cast<Eigen::Index>(entries));
   fill_pairs(t, senders, &p);
 
-  // Partners j < i of each row i per block (the final layout's entries left of the diagonal).
+  // Partners j < i of each row i (the final layout's entries left of the diagonal).
   const Index* partner = p.F.innerIndexPtr();
-  p.block_lower = block_histograms<Index>(p.block, n, [&](std::size_t b, auto&& add) {
-    for (std::uint64_t k = p.row_begin[p.block[b]]; k < p.row_begin[p.block[b + 1]]; ++k) {
-      add(static_cast<std::size_t>(partner[k]));
-    }
-  });
+  const std::vector<Index> block_lower =
+      block_histograms<Index>(p.block, n, [&](std::size_t b, auto&& add) {
+        for (std::uint64_t k = p.row_begin[p.block[b]]; k < p.row_begin[p.block[b + 1]]; ++k) {
+          add(static_cast<std::size_t>(partner[k]));
+        }
+      });
+  p.lower.resize(n);
   for (std::size_t i = 0; i < n; ++i) {
-    if (p.lumped[at(i)] == 0 && p.row_begin[i + 1] == p.row_begin[i] &&
-        column_total(p.block_lower, blocks, n, i) == 0) {
+    p.lower[i] = column_total(block_lower, blocks, n, i);
+    if (p.lumped[at(i)] == 0 && p.row_begin[i + 1] == p.row_begin[i] && p.lower[i] == 0) {
       throw InputError("patch " + std::to_string(i) + " '" + patches.patches[i].name +
                        "': no ray from it or to it was counted, so its row cannot be smoothed");
     }
@@ -455,18 +465,15 @@ double step_to_boundary(Problem& p, const Eigen::VectorXd& mu, const Eigen::Vect
 namespace {
 
 // Lays out the final rows of p.F around the pair list: for each row its entries left of the
-// diagonal, its own entry, then its pairs (moved there). Returns the count left of the
-// diagonal per row.
-std::vector<Index> final_row_layout(Problem& p) {
-  const std::size_t n = p.n, blocks = p.block.size() - 1;
+// diagonal, its own entry, then its pairs (moved there).
+void final_row_layout(Problem& p) {
+  const std::size_t n = p.n;
   Index* offset = p.F.outerIndexPtr();
   Index* column = p.F.innerIndexPtr();
   double* value = p.F.valuePtr();
-  std::vector<Index> lower(n);
   offset[0] = 0;
   for (std::size_t i = 0; i < n; ++i) {
-    lower[i] = column_total(p.block_lower, blocks, n, i);
-    offset[i + 1] = offset[i] + lower[i] + has_self(p, i) +
+    offset[i + 1] = offset[i] + p.lower[i] + has_self(p, i) +
                     static_cast<Index>(p.row_begin[i + 1] - p.row_begin[i]);
   }
   // Move each row's pairs to the end of its final row, last row first: a row only moves to
@@ -478,59 +485,110 @@ std::vector<Index> final_row_layout(Problem& p) {
     // No pairs: nothing to move (and with no non-zeros at all the arrays are null, which
     // memmove must not be given even for zero bytes).
     if (len == 0) continue;
-    const std::uint64_t to = static_cast<std::uint64_t>(offset[i] + lower[i] + has_self(p, i));
+    const std::uint64_t to = static_cast<std::uint64_t>(offset[i] + p.lower[i] + has_self(p, i));
     std::memmove(column + to, column + from, len * sizeof(Index));
     std::memmove(value + to, value + from, len * sizeof(double));
   }
-  return lower;
+}
+
+// Index of row i's first pair (in the final layout) per block of destination rows: entry
+// d n + i is the first pair of row i whose partner is at least dest[d], for d = 0 .. blocks.
+std::vector<Index> first_pair_per_block(const Problem& p, const std::vector<std::size_t>& dest) {
+  const std::size_t n = p.n, blocks = dest.size() - 1;
+  const Index* offset = p.F.outerIndexPtr();
+  const Index* column = p.F.innerIndexPtr();
+  std::vector<Index> first((blocks + 1) * n);
+  for_each_block(p, [&](std::size_t, std::size_t begin, std::size_t end) {
+    for (std::size_t i = begin; i < end; ++i) {
+      Index k = offset[i] + p.lower[i] + has_self(p, i);
+      for (std::size_t d = 0; d <= blocks; ++d) {
+        while (k < offset[i + 1] && static_cast<std::size_t>(column[k]) < dest[d]) ++k;
+        first[d * n + i] = k;
+      }
+    }
+  });
+  return first;
+}
+
+// Blocks of destination rows for fill_factors with about equal entries left of the diagonal:
+// at least kMaxBlocks, and more for large n, so that a block's write cursors (two cache lines
+// per row) stay within about 1 MB. Set by the data alone (the results do not depend on them).
+std::vector<std::size_t> mirror_blocks(const Problem& p) {
+  constexpr std::size_t kRowsPerMirrorBlock = 8192;
+  const std::size_t n = p.n;
+  std::vector<std::uint64_t> cumulative(n + 1, 0);
+  for (std::size_t i = 0; i < n; ++i) cumulative[i + 1] = cumulative[i] + p.lower[i];
+  const std::size_t blocks = std::clamp<std::size_t>(
+      std::max(kMaxBlocks, (n + kRowsPerMirrorBlock - 1) / kRowsPerMirrorBlock), 1,
+      std::max<std::size_t>(n, 1));
+  std::vector<std::size_t> dest(blocks + 1, n);
+  dest[0] = 0;
+  for (std::size_t b = 1; b < blocks; ++b) {
+    const std::uint64_t target = cumulative[n] * b / blocks;
+    dest[b] = static_cast<std::size_t>(
+        std::lower_bound(cumulative.begin(), cumulative.end(), target) - cumulative.begin());
+  }
+  return dest;
 }
 
 // Exchange areas S_ij = n_ij / (mu_i + mu_j) once per pair, divided by A_i in row i and by
-// A_j in row j, whose entries left of the diagonal fill up in ascending i (each block from
-// its own cursors). Reciprocity is measured on the stored values: returns the largest
-// |S_ij - S_ji| relative to the largest S.
-double fill_factors(Problem& p, const Eigen::VectorXd& mu, const std::vector<Index>& lower,
-                    ViewFactors* vf) {
+// A_j in row j, whose entries left of the diagonal fill up in ascending i. The mirrored
+// entries are written by blocks of destination rows: each block reads the pairs that reach
+// its rows from every row above, so its writes stay within its rows' cursors (in cache)
+// rather than spread over the whole matrix. Reciprocity is measured on the stored values:
+// returns the largest |S_ij - S_ji| relative to the largest S.
+double fill_factors(Problem& p, const Eigen::VectorXd& mu, ViewFactors* vf) {
   const std::size_t n = p.n, blocks = p.block.size() - 1;
   Index* offset = p.F.outerIndexPtr();
   Index* column = p.F.innerIndexPtr();
   double* value = p.F.valuePtr();
-  histograms_to_cursors(&p.block_lower, blocks, n, offset);
   vf->to_surroundings.resize(n);
   vf->to_back_faces.resize(n);
-  std::vector<double> largest(blocks, 0.0), asymmetry(blocks, 0.0);
+  std::vector<double> largest(blocks, 0.0);
   for_each_block(p, [&](std::size_t b, std::size_t first, std::size_t last) {
-    Index* next_lower = p.block_lower.data() + b * n;
-    double top = 0, worst = 0;
+    double top = 0;
     for (std::size_t i = first; i < last; ++i) {
       const double a = p.area[at(i)], mu_i = mu[at(i)];
-      Index k = offset[i] + lower[i];
       if (has_self(p, i)) {
+        const Index k = offset[i] + p.lower[i];
         column[k] = static_cast<Index>(i);
         value[k] = own_area(p.self[at(i)], mu_i) / a;
         top = std::max(top, a * value[k]);
-        ++k;
       }
-      for (; k < offset[i + 1]; ++k) {
+      vf->to_surroundings[i] = own_area(p.escaped[at(i)], mu_i) / a;
+      vf->to_back_faces[i] = own_area(p.back[at(i)], mu_i) / a;
+    }
+    largest[b] = top;
+  });
+  const std::vector<std::size_t> dest = mirror_blocks(p);
+  const std::size_t dest_blocks = dest.size() - 1;
+  const std::vector<Index> first = first_pair_per_block(p, dest);
+  std::vector<double> pair_largest(dest_blocks, 0.0), asymmetry(dest_blocks, 0.0);
+  for_each_block(dest, [&](std::size_t d, std::size_t begin, std::size_t end) {
+    std::vector<Index> next(offset + begin, offset + end);  // next free slot left of diagonal
+    const Index* from = first.data() + d * n;
+    const Index* to = first.data() + (d + 1) * n;
+    double top = 0, worst = 0;
+    for (std::size_t i = 0; i + 1 < end; ++i) {
+      const double a = p.area[at(i)], mu_i = mu[at(i)];
+      for (Index k = from[i]; k < to[i]; ++k) {
         const Index j = column[k];
         const double s = value[k] / (mu_i + mu[j]);
         const double a_j = p.area[j];
         value[k] = s / a;
-        const Index mirror = next_lower[j]++;
+        const Index mirror = next[static_cast<std::size_t>(j) - begin]++;
         column[mirror] = static_cast<Index>(i);
         value[mirror] = s / a_j;
         const double s_ij = a * value[k], s_ji = a_j * value[mirror];
         top = std::max({top, s_ij, s_ji});
         worst = std::max(worst, std::abs(s_ij - s_ji));
       }
-      vf->to_surroundings[i] = own_area(p.escaped[at(i)], mu_i) / a;
-      vf->to_back_faces[i] = own_area(p.back[at(i)], mu_i) / a;
     }
-    largest[b] = top;
-    asymmetry[b] = worst;
+    pair_largest[d] = top;
+    asymmetry[d] = worst;
   });
-  std::vector<Index>().swap(p.block_lower);
-  const double top = *std::max_element(largest.begin(), largest.end());
+  const double top = std::max(*std::max_element(largest.begin(), largest.end()),
+                              *std::max_element(pair_largest.begin(), pair_largest.end()));
   return top > 0 ? *std::max_element(asymmetry.begin(), asymmetry.end()) / top : 0;
 }
 
@@ -579,9 +637,9 @@ void measure_rows(const Problem& p, const Tallies& t, const ViewFactors& vf, Mea
 }  // namespace
 
 Measures finish(Problem& p, const Eigen::VectorXd& mu, const Tallies& t, ViewFactors* vf) {
-  const std::vector<Index> lower = final_row_layout(p);
+  final_row_layout(p);
   Measures m;
-  m.max_reciprocity_error = fill_factors(p, mu, lower, vf);
+  m.max_reciprocity_error = fill_factors(p, mu, vf);
   measure_rows(p, t, *vf, &m);
   vf->F.swap(p.F);
   return m;
