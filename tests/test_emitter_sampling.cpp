@@ -120,3 +120,74 @@ TEST_CASE("sort_patches sorts receiver lists as std::sort does") {
     }
   }
 }
+
+TEST_CASE("HitCounter's sorted runs count as a dense per-patch count does") {
+  const Scene scene = plate(8);  // 128 triangles, one surface
+  const PatchSet patches = make_patches(scene, {PatchSpec{PatchSpec::Mode::per_triangle}});
+  REQUIRE(patches.size() == 128);  // front patches only: the back is one-sided
+  const PatchLookup lookup(scene, patches);
+  HitCounter counter(lookup);
+  std::mt19937_64 rng(5);
+  HitTally tally;
+  std::uint64_t hits = 0;
+  for (std::size_t rays : {0, 1, 63, 64, 125, 1000, 16384}) {
+    for (bool drain : {false, true}) {
+      std::vector<std::uint64_t> dense(patches.size(), 0);
+      std::uint64_t escaped = 0, back = 0;
+      for (std::size_t k = 0; k < rays; ++k) {
+        RayHit hit;
+        const std::uint64_t kind = rng() % 10;
+        if (kind == 0) {
+          ++escaped;
+        } else {
+          hit.triangle = std::uint32_t(rng() % (kind < 5 ? 4 : 128));  // some patches often
+          hit.surface = 0;
+          hit.front = kind != 1;
+          const std::uint32_t q = lookup.patch_of(hit);
+          if (q == PatchSet::kNoPatch) ++back; else ++dense[q];
+          ++hits;
+        }
+        counter.add(hit);
+      }
+      std::vector<std::uint32_t> patch;
+      std::vector<std::uint64_t> count;
+      if (drain) {
+        counter.drain(
+            [&](std::uint32_t q, std::uint64_t c) {
+              patch.push_back(q);
+              count.push_back(c);
+            },
+            &tally);
+      } else {
+        counter.take(&tally);
+        patch = tally.patch;
+        count = tally.count;
+      }
+      std::vector<std::uint32_t> expected_patch;
+      std::vector<std::uint64_t> expected_count;
+      for (std::uint32_t q = 0; q < dense.size(); ++q)
+        if (dense[q] > 0) expected_patch.push_back(q), expected_count.push_back(dense[q]);
+      REQUIRE(patch == expected_patch);
+      REQUIRE(count == expected_count);
+      REQUIRE(tally.escaped == escaped);
+      REQUIRE(tally.back_face == back);
+    }
+  }
+  REQUIRE(counter.hits_on_surface()[0] == hits);
+}
+
+TEST_CASE("sort_keys sorts 64-bit keys as std::sort does") {
+  std::mt19937_64 rng(4);
+  std::vector<std::uint64_t> scratch;
+  for (std::uint64_t bound : {std::uint64_t{5}, std::uint64_t{98592} << 3, std::uint64_t{1} << 35,
+                              ~std::uint64_t{0}}) {
+    for (std::size_t size : {0, 1, 63, 64, 1000, 5000}) {
+      std::vector<std::uint64_t> v(size);
+      for (auto& x : v) x = rng() % bound;
+      std::vector<std::uint64_t> expected = v;
+      std::sort(expected.begin(), expected.end());
+      sort_keys(v, scratch, bound);
+      REQUIRE(v == expected);
+    }
+  }
+}

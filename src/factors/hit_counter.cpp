@@ -20,32 +20,48 @@ PatchLookup::PatchLookup(const Scene& scene, const PatchSet& patches)
   }
 }
 
-void sort_patches(std::vector<std::uint32_t>& v, std::vector<std::uint32_t>& scratch,
-                  std::size_t n_patches) {
+namespace {
+
+// Least-significant-digit radix sort of keys below `bound`, in passes of at most 11 bits;
+// std::sort for short lists.
+template <class Key>
+void radix_sort(std::vector<Key>& v, std::vector<Key>& scratch, std::uint64_t bound) {
   if (v.size() < 64) {
     std::sort(v.begin(), v.end());
     return;
   }
+  const int max_bits = int(8 * sizeof(Key));
   int bits = 1;
-  while (bits < 32 && (std::uint64_t{1} << bits) < n_patches) ++bits;
+  while (bits < max_bits && (std::uint64_t{1} << bits) < bound) ++bits;
   const int passes = (bits + 10) / 11;  // digits of at most 11 bits
   const int digit = (bits + passes - 1) / passes;
-  const std::uint32_t mask = (1u << digit) - 1;
+  const Key mask = (Key{1} << digit) - 1;
   std::uint32_t count[(1u << 11) + 1];
   scratch.resize(v.size());
   for (int pass = 0; pass < passes; ++pass) {
     const int shift = pass * digit;
     std::fill(count, count + mask + 2, 0u);
-    for (std::uint32_t x : v) ++count[((x >> shift) & mask) + 1];
-    for (std::uint32_t d = 1; d <= mask + 1; ++d) count[d] += count[d - 1];
-    for (std::uint32_t x : v) scratch[count[(x >> shift) & mask]++] = x;
+    for (Key x : v) ++count[((x >> shift) & mask) + 1];
+    for (Key d = 1; d <= mask + 1; ++d) count[d] += count[d - 1];
+    for (Key x : v) scratch[count[(x >> shift) & mask]++] = x;
     v.swap(scratch);
   }
 }
 
+}  // namespace
+
+void sort_patches(std::vector<std::uint32_t>& v, std::vector<std::uint32_t>& scratch,
+                  std::size_t n_patches) {
+  radix_sort(v, scratch, n_patches);
+}
+
+void sort_keys(std::vector<std::uint64_t>& v, std::vector<std::uint64_t>& scratch,
+               std::uint64_t bound) {
+  radix_sort(v, scratch, bound);
+}
+
 HitCounter::HitCounter(const PatchLookup& lookup)
     : lookup_(&lookup),
-      count_(lookup.patch_count(), 0),
       hits_on_surface_(lookup.surface_count(), 0),
       back_face_hits_on_surface_(lookup.surface_count(), 0) {}
 
@@ -56,20 +72,16 @@ HitTally HitCounter::take() {
 }
 
 void HitCounter::take(HitTally* out) {
-  sort_patches(touched_, sort_scratch_, count_.size());
   out->patch.clear();
   out->count.clear();
   out->square.clear();
-  out->escaped = run_.escaped;
-  out->back_face = run_.back_face;
   out->escaped_square = out->back_face_square = 0;
-  run_.escaped = run_.back_face = 0;
-  for (std::uint32_t q : touched_) {
-    out->patch.push_back(q);
-    out->count.push_back(count_[q]);
-    count_[q] = 0;
-  }
-  touched_.clear();
+  drain(
+      [out](std::uint32_t q, std::uint64_t c) {
+        out->patch.push_back(q);
+        out->count.push_back(c);
+      },
+      out);
 }
 
 }  // namespace hearthray

@@ -110,23 +110,21 @@ inline double replicate_square(std::uint64_t c, double m) {
 
 // One thread's sums over the replicates of a whole row (sampler sobol): per receiver the hits
 // and the squared replicate estimates, added in replicate order, as RowMerger adds them for a
-// row split over chunks, so the row is the same either way.
+// row split over chunks, so the row is the same either way. Each ray that reached a patch
+// leaves a key patch * 8 + replicate; one radix sort of the row's keys (a thousand or so)
+// groups them by receiver and, within it, by replicate, so no per-patch array is touched.
 class ReplicateRow {
  public:
-  explicit ReplicateRow(std::size_t n_patches) : count_(n_patches, 0), square_(n_patches, 0.0) {}
+  static_assert(kSobolReplicates == 8, "keys hold the replicate in 3 bits");
 
-  // Moves the counter's run, one replicate of `rays` rays, into the row.
-  void add_replicate(HitCounter& counter, std::uint64_t rays) {
+  // Moves the counter's run, replicate r of `rays` rays, into the row.
+  void add_replicate(HitCounter& counter, std::uint32_t r, std::uint64_t rays) {
     HitTally rest;
-    const double m = double(rays);
-    counter.drain(
-        [&](std::uint32_t q, std::uint64_t c) {
-          if (count_[q] == 0) touched_.push_back(q);
-          count_[q] += c;
-          square_[q] += replicate_square(c, m);
-        },
-        &rest);
+    counter.drain_arrivals([&](std::uint32_t q) { keys_.push_back(std::uint64_t{q} << 3 | r); },
+                           &rest);
+    rays_[r] = double(rays);
     if (rays == 0) return;
+    const double m = double(rays);
     row_.escaped += rest.escaped;
     row_.back_face += rest.back_face;
     row_.escaped_square += replicate_square(rest.escaped, m);
@@ -135,19 +133,29 @@ class ReplicateRow {
 
   // The row (receivers ascending) into `out`, whose vectors keep their capacity; the next
   // row starts from zero.
-  void take(HitTally* out) {
-    sort_patches(touched_, sort_scratch_, count_.size());
+  void take(HitTally* out, std::size_t n_patches) {
+    sort_keys(keys_, sort_scratch_, std::uint64_t{n_patches} << 3);
     out->patch.clear();
     out->count.clear();
     out->square.clear();
-    for (std::uint32_t q : touched_) {
-      out->patch.push_back(q);
-      out->count.push_back(count_[q]);
-      out->square.push_back(square_[q]);
-      count_[q] = 0;
-      square_[q] = 0;
+    const std::size_t n = keys_.size();
+    for (std::size_t i = 0; i < n;) {
+      const std::uint64_t q = keys_[i] >> 3;
+      std::uint64_t count = 0;
+      double square = 0;
+      for (; i < n && keys_[i] >> 3 == q;) {  // the replicates reaching q, in order
+        const std::uint64_t key = keys_[i];
+        std::size_t j = i + 1;
+        while (j < n && keys_[j] == key) ++j;
+        square += replicate_square(j - i, rays_[key & 7]);
+        count += j - i;
+        i = j;
+      }
+      out->patch.push_back(std::uint32_t(q));
+      out->count.push_back(count);
+      out->square.push_back(square);
     }
-    touched_.clear();
+    keys_.clear();
     out->escaped = row_.escaped;
     out->back_face = row_.back_face;
     out->escaped_square = row_.escaped_square;
@@ -156,17 +164,15 @@ class ReplicateRow {
   }
 
  private:
-  std::vector<std::uint64_t> count_;
-  std::vector<double> square_;
-  std::vector<std::uint32_t> touched_, sort_scratch_;
-  HitTally row_;
+  std::vector<std::uint64_t> keys_, sort_scratch_;
+  double rays_[kSobolReplicates] = {};
+  HitTally row_;  // escaped and back-face sums
 };
 
 // Per-thread scratch: the hit counter and one batch of rays.
 struct Scratch {
-  Scratch(const PatchLookup& lookup, bool sobol)
+  explicit Scratch(const PatchLookup& lookup)
       : counter(lookup),
-        row(sobol ? lookup.patch_count() : 0),
         rays(kBatch),
         hits(kBatch),
         offset(kBatch) {}
@@ -225,9 +231,9 @@ void trace_chunk(const Chunk& chunk, const EmitterSampler& emitters, bool sobol,
   for (std::uint32_t r = 0; r < kSobolReplicates; ++r) {
     const std::uint64_t a = replicate_first_ray(N, r), b = replicate_first_ray(N, r + 1);
     trace_rays(chunk.patch, N, a, b, emitters, sobol, tracer, s);
-    s.row.add_replicate(s.counter, b - a);
+    s.row.add_replicate(s.counter, r, b - a);
   }
-  s.row.take(out);
+  s.row.take(out, s.counter.patch_count());
 }
 
 // Calls the progress callback from worker threads at most every 0.25 s, and at the end.
@@ -428,7 +434,7 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
   const PatchLookup lookup(scene, patches);
   const std::vector<Chunk> chunks = plan_chunks(options, begin, end);
   const bool sobol = options.sampler == EmissionSampler::sobol;
-  tbb::enumerable_thread_specific<Scratch> scratch([&] { return Scratch(lookup, sobol); });
+  tbb::enumerable_thread_specific<Scratch> scratch([&] { return Scratch(lookup); });
 
   std::uint64_t rays_total = 0;
   for (std::uint32_t p = begin; p < end; ++p) rays_total += rays_of(options, p);
