@@ -16,13 +16,11 @@
 #include <cstring>
 #include <filesystem>
 #include <fstream>
-#include <optional>
 #include <random>
 #include <sstream>
 #include <string>
 #include <vector>
 
-#include "hearthray/error.hpp"
 #include "outputs/hdf5_deflate.hpp"
 #include "outputs/hdf5_file.hpp"
 
@@ -40,13 +38,11 @@ double value(std::uint64_t k) {
   return std::sin(0.001 * double(k)) * 1e-3 + 1.0 / double(k + 3);
 }
 
-// Writes the test file, appending in uneven pieces, on `threads` threads, through the O_DIRECT
-// page driver with `driver`'s options or HDF5's default driver (empty).
-void write_file(const std::string& path, int threads,
-                const std::optional<hdf5::DirectOptions>& driver = hdf5::DirectOptions()) {
+// Writes the test file, appending in uneven pieces, on `threads` threads.
+void write_file(const std::string& path, int threads) {
   tbb::task_arena arena(threads);
   arena.execute([&] {
-    hdf5::File file(path, path, driver);
+    hdf5::File file(path, path);
     std::vector<double> long_values(kLongRows);
     for (std::uint64_t k = 0; k < kLongRows; ++k) long_values[k] = value(k);
     hdf5::Dataset doubles(file, "/doubles", H5T_IEEE_F64LE, kLongRows);
@@ -145,58 +141,6 @@ TEST_CASE("HDF5 compressed datasets read back exactly through HDF5's filters", "
   CHECK(fs::file_size(one) < kLongRows * (8 + 8 + 4 + 4) + kTableRows * 25);
   H5Fclose(file);
   fs::remove_all(dir);
-}
-
-// The page driver must give the file HDF5's default driver (sec2) writes, byte for byte, however
-// its pages fall: the default 1 MiB pages, 4 KiB pages with only two held (every few writes
-// evict a page, and HDF5's later metadata writes and reads land in pages already on the file,
-// which are read back), and without O_DIRECT (the path taken where a file system refuses it).
-// The written files must also open and read back through HDF5's default driver.
-TEST_CASE("HDF5 page driver writes the default driver's bytes", "[io][hdf5]") {
-  const fs::path dir =
-      fs::temp_directory_path() / ("hearthray-hdf5-driver-" + std::to_string(::getpid()));
-  fs::create_directories(dir);
-  const std::string reference = (dir / "sec2.h5").string();
-  write_file(reference, 2, std::nullopt);
-  const std::string expected = slurp(reference);
-  REQUIRE(expected.size() > 4 * 4096);
-  hdf5::DirectOptions small;
-  small.page_bytes = 4096;
-  small.resident_pages = 2;
-  hdf5::DirectOptions buffered;
-  buffered.direct = false;
-  hdf5::DirectOptions odd = small;
-  odd.page_bytes = 3 * 4096;  // page boundaries that cut HDF5's blocks elsewhere
-  odd.resident_pages = 1;
-  int k = 0;
-  for (const hdf5::DirectOptions& options : {hdf5::DirectOptions(), small, buffered, odd}) {
-    const std::string path = (dir / ("direct" + std::to_string(k++) + ".h5")).string();
-    write_file(path, 2, options);
-    CHECK(slurp(path) == expected);
-    const hid_t file = H5Fopen(path.c_str(), H5F_ACC_RDONLY, H5P_DEFAULT);
-    REQUIRE(file >= 0);
-    const auto made = read_all<double>(file, "/made", H5T_NATIVE_DOUBLE, kLongRows);
-    std::uint64_t wrong = 0;
-    for (std::uint64_t r = 0; r < kLongRows; ++r) wrong += made[r] != value(r);
-    CHECK(wrong == 0);
-    H5Fclose(file);
-  }
-  fs::remove_all(dir);
-}
-
-// Options the driver cannot use are refused when the file is created, with the file's name.
-TEST_CASE("HDF5 page driver refuses unaligned pages", "[io][hdf5]") {
-  const fs::path path = fs::temp_directory_path() /
-                        ("hearthray-hdf5-unaligned-" + std::to_string(::getpid()) + ".h5");
-  hdf5::DirectOptions unaligned;
-  unaligned.page_bytes = 1000;
-  try {
-    hdf5::File file(path.string(), "named.h5", unaligned);
-    FAIL("the file was created");
-  } catch (const InputError& e) {
-    CHECK(std::string(e.what()).find("named.h5") != std::string::npos);
-  }
-  fs::remove(path);
 }
 
 TEST_CASE("HDF5 dataset refuses fewer rows than declared", "[io][hdf5]") {

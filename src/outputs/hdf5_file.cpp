@@ -61,21 +61,18 @@ Handle::~Handle() {
   if (id_ >= 0 && close_) close_(id_);
 }
 
-File::File(const std::string& path, std::string name, const std::optional<DirectOptions>& driver)
-    : name_(std::move(name)) {
+File::File(const std::string& path, std::string name) : name_(std::move(name)) {
   // Errors come back as status values and are reported by check(); no printing from HDF5.
   H5Eset_auto2(H5E_DEFAULT, nullptr, nullptr);
-  Handle access(check_id(H5Pcreate(H5P_FILE_ACCESS), "file access properties"), H5Pclose);
-  if (driver) check(use_direct_driver(access.get(), *driver), "set the file driver");
-  file_ = Handle(check_id(H5Fcreate(path.c_str(), H5F_ACC_TRUNC, H5P_DEFAULT, access.get()),
-                          "create the file"),
-                 H5Fclose);
+  file_ = Handle(
+      check_id(H5Fcreate(path.c_str(), H5F_ACC_TRUNC, H5P_DEFAULT, H5P_DEFAULT), "create the file"),
+      H5Fclose);
 }
 
 void File::close() {
-  check(H5Fflush(file_.get(), H5F_SCOPE_GLOBAL), "flush");
-  // The driver writes its last pages and cuts the file to length on close: checked too.
-  check(H5Fclose(file_.release()), "close");
+  const hid_t id = file_.get();
+  check(H5Fflush(id, H5F_SCOPE_GLOBAL), "flush");
+  file_ = Handle();  // closes; a failure there shows in the flush above
 }
 
 void File::check(herr_t status, const std::string& what) const {

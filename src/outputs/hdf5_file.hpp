@@ -8,11 +8,8 @@
 
 #include <cstdint>
 #include <functional>
-#include <optional>
 #include <string>
 #include <vector>
-
-#include "outputs/hdf5_direct.hpp"
 
 namespace hearthray::hdf5 {
 
@@ -27,12 +24,6 @@ class Handle {
   Handle& operator=(const Handle&) = delete;
   ~Handle();
   hid_t get() const { return id_; }
-  // Gives up the identifier without closing it.
-  hid_t release() {
-    const hid_t id = id_;
-    id_ = -1;
-    return id;
-  }
 
  private:
   hid_t id_ = -1;
@@ -87,11 +78,8 @@ class Dataset {
 class File {
  public:
   // Creates (truncates) `path`; `name` is the file named in messages (the final path when
-  // `path` is a temporary one). Written through the O_DIRECT page driver (hdf5_direct.hpp)
-  // with `driver`'s options, or through HDF5's default driver when `driver` is empty (the
-  // same bytes either way).
-  File(const std::string& path, std::string name,
-       const std::optional<DirectOptions>& driver = DirectOptions());
+  // `path` is a temporary one).
+  File(const std::string& path, std::string name);
   void close();  // flushes and closes; throws when that fails
   hid_t get() const { return file_.get(); }
   // Throws InputError "writing NAME failed: what" when `status` is negative.
