@@ -14,6 +14,7 @@
 #include "hearthray/defaults.hpp"
 #include "hearthray/patches.hpp"
 #include "hearthray/scene.hpp"
+#include "hearthray/statistics.hpp"
 #include "hearthray/tracer.hpp"
 
 namespace hearthray {
@@ -126,7 +127,10 @@ struct ViewFactors {
   std::size_t size() const { return names.size(); }
   // Standard error of a factor estimated from `rays[i]` rays: sqrt(F(1-F)/N_i)
   // (factor_standard_error in statistics.hpp), times error_ratio[i] when there is one.
-  double standard_error(std::size_t i, double f) const;
+  double standard_error(std::size_t i, double f) const {
+    const double binomial = factor_standard_error(f, rays.at(i));
+    return error_ratio.empty() ? binomial : binomial * error_ratio.at(i);
+  }
 
   // Eigen 3.4's SparseMatrix has no move operations: a "move" would copy a matrix that holds
   // gigabytes at 100k patches. These swap it instead. (Keep the member list complete.)

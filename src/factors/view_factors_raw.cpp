@@ -78,11 +78,6 @@ void check_tallies(const PatchSet& patches, const Tallies& t) {
 
 }  // namespace tallies_detail
 
-double ViewFactors::standard_error(std::size_t i, double f) const {
-  const double binomial = factor_standard_error(f, rays.at(i));
-  return error_ratio.empty() ? binomial : binomial * error_ratio.at(i);
-}
-
 namespace {
 
 // Row r's replicate standard error over the binomial one (1 when it cannot be estimated).
