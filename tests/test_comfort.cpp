@@ -6,6 +6,7 @@
 #include <catch2/catch.hpp>
 #include <cmath>
 #include <filesystem>
+#include <map>
 #include <sstream>
 #include <string>
 
@@ -327,6 +328,45 @@ TEST_CASE("comfort cautions say by their kind which are general", "[comfort]") {
   CHECK(cautions[2].kind == CautionKind::estimates);
   CHECK(cautions[1].general());
   CHECK(cautions[2].text == kComfortCaution);
+}
+
+TEST_CASE("comfort names every hot surface near a glass surface in one caution", "[comfort]") {
+  // A window (x = 0) with parallel 1 m squares at 0.2 m, 0.5 m and 3 m, and a cool one at
+  // 0.1 m; glass within 0.6 m of a surface above 40 C is cautioned. (Own case, no source.)
+  std::string obj;
+  int vertices = 0;
+  for (const auto& [name, x] : std::vector<std::pair<std::string, double>>{{"window", 0.0},
+                                                                           {"panel_a", 0.2},
+                                                                           {"panel_b", 0.5},
+                                                                           {"panel_far", 3.0},
+                                                                           {"cool_wall", 0.1}}) {
+    for (const auto& [y, z] :
+         std::vector<std::pair<double, double>>{{0, 1}, {1, 1}, {1, 2}, {0, 2}})
+      obj += "v " + std::to_string(x) + " " + std::to_string(y) + " " + std::to_string(z) + "\n";
+    obj += "g " + name + "\nf " + std::to_string(vertices + 1) + " " +
+           std::to_string(vertices + 2) + " " + std::to_string(vertices + 3) + "\nf " +
+           std::to_string(vertices + 1) + " " + std::to_string(vertices + 3) + " " +
+           std::to_string(vertices + 4) + "\n";
+    vertices += 4;
+  }
+  std::istringstream in(obj);
+  const Scene scene = load_obj(in, "glass");
+  std::vector<SurfaceHeat> surfaces(scene.surfaces.size());
+  const std::map<std::string, double> celsius = {
+      {"window", 20}, {"panel_a", 60}, {"panel_b", 55}, {"panel_far", 70}, {"cool_wall", 20}};
+  for (std::size_t s = 0; s < surfaces.size(); ++s) {
+    surfaces[s].name = scene.surfaces[s].name;
+    surfaces[s].temperature_max_K = kZeroCelsius + celsius.at(surfaces[s].name);
+  }
+  const std::vector<Caution> cautions = comfort_cautions(scene, surfaces);
+  std::vector<std::string> glass;
+  for (const Caution& c : cautions)
+    if (c.kind == CautionKind::glass_near_heat) glass.push_back(c.text);
+  REQUIRE(glass.size() == 1);
+  CHECK_THAT(glass[0], Catch::StartsWith("window (glass) is near heat: panel_a at 0.20 m (60 C) "
+                                         "and panel_b at 0.50 m (55 C);"));
+  CHECK_THAT(glass[0], !Catch::Contains("panel_far") && !Catch::Contains("cool_wall"));
+  CHECK(cautions.back().kind == CautionKind::estimates);
 }
 
 TEST_CASE("comfort summary gives exact shares and lists the points over a limit", "[comfort]") {

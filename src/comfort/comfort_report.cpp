@@ -250,33 +250,42 @@ std::vector<Caution> comfort_cautions(const Scene& scene,
                                       const std::vector<SurfaceHeat>& surfaces) {
   std::vector<Caution> out;
   const double floor = scene.bounds.lo.z;
-  for (std::size_t s = 0; s < surfaces.size() && s < scene.surfaces.size(); ++s) {
-    const SurfaceHeat& hot = surfaces[s];
-    const double t_C = hot.temperature_max_K - kZeroCelsius;
-    if (t_C <= kHot_C) continue;
-    const Box3 box = surface_box(scene, std::uint32_t(s));
-    const double low = box.lo.z - floor;
+  const std::size_t n = std::min(surfaces.size(), scene.surfaces.size());
+  auto hot_C = [&](std::size_t s) { return surfaces[s].temperature_max_K - kZeroCelsius; };
+  for (std::size_t s = 0; s < n; ++s) {
+    const double t_C = hot_C(s), low = surface_box(scene, std::uint32_t(s)).lo.z - floor;
     if (t_C > kTouchLimit_C && low < kReachHeight_m) {
       out.push_back({CautionKind::hot_in_reach,
-                     hot.name + " reaches " + rounded("%.0f C", t_C) + " and comes down to " +
-                         rounded("%.1f m", low) +
+                     surfaces[s].name + " reaches " + rounded("%.0f C", t_C) +
+                         " and comes down to " + rounded("%.1f m", low) +
                          " above the floor, within reach: surfaces above about 43 C can burn on "
                          "longer contact; guard it or place it out of reach, as the maker says."});
     }
-    for (std::size_t g = 0; g < scene.surfaces.size(); ++g) {
-      const std::string n = lower(scene.surfaces[g].name);
-      if (g == s || (n.find("window") == std::string::npos &&
-                     n.find("glass") == std::string::npos && n.find("glaz") == std::string::npos))
-        continue;
-      const double gap = box_gap(box, surface_box(scene, std::uint32_t(g)));
+  }
+  // One caution per glass surface, naming every hot surface near it.
+  for (std::size_t g = 0; g < scene.surfaces.size(); ++g) {
+    const std::string name = lower(scene.surfaces[g].name);
+    if (name.find("window") == std::string::npos && name.find("glass") == std::string::npos &&
+        name.find("glaz") == std::string::npos)
+      continue;
+    const Box3 glass = surface_box(scene, std::uint32_t(g));
+    std::vector<std::string> near;
+    for (std::size_t s = 0; s < n; ++s) {
+      if (s == g || hot_C(s) <= kHot_C) continue;
+      const double gap = box_gap(surface_box(scene, std::uint32_t(s)), glass);
       if (gap <= kNearGlass_m) {
-        out.push_back({CautionKind::glass_near_heat,
-                       scene.surfaces[g].name + " (glass) is " + rounded("%.2f m", gap) + " from " +
-                           hot.name + " at " + rounded("%.0f C", t_C) +
-                           ": uneven heating can crack glass; keep the clearance the panel maker "
-                           "gives."});
+        near.push_back(surfaces[s].name + " at " + rounded("%.2f m", gap) + " (" +
+                       rounded("%.0f C", hot_C(s)) + ")");
       }
     }
+    if (near.empty()) continue;
+    std::string list = near[0];
+    for (std::size_t k = 1; k < near.size(); ++k)
+      list += (k + 1 == near.size() ? " and " : ", ") + near[k];
+    out.push_back({CautionKind::glass_near_heat,
+                   scene.surfaces[g].name + " (glass) is near heat: " + list +
+                       "; uneven heating can crack glass: keep the clearance the panel maker "
+                       "gives."});
   }
   out.push_back(
       {CautionKind::clearances,
