@@ -155,13 +155,8 @@ CachedTallies load_cached_tallies(const std::string& dir, const TallyCacheKey& k
   const std::uint64_t fixed =
       kHeaderBytes + rows * 8 * (squares ? 5 : 3) + (rows + 1) * 8 + n_surfaces * 8 * 2;
   const std::uint64_t per_hit = squares ? 20 : 12;
-  if (data.size() < fixed || (data.size() - fixed) % per_hit != 0 ||
-      (data.size() - fixed) / per_hit != hits) {
-    return reject("its length does not match its header (a truncated or damaged file)");
-  }
-  if (!(payload_hash(data, kHeaderBytes) == checksum)) {
-    return reject("its contents do not match their checksum (a damaged file)");
-  }
+  const std::string body = check_cache_body(data, fixed, per_hit, hits, kHeaderBytes, checksum);
+  if (!body.empty()) return reject(body);
   Tallies& t = out.tallies;
   t.patch_count = n_patches;
   t.emitter_begin = 0;

@@ -64,6 +64,17 @@ std::string read_cache_file(const std::string& path, const char (&magic)[8], std
   return "";
 }
 
+std::string check_cache_body(const std::string& data, std::uint64_t fixed, std::uint64_t per_item,
+                             std::uint64_t items, std::size_t header_bytes,
+                             const TallyCacheKey& checksum) {
+  if (data.size() < fixed || (data.size() - fixed) % per_item != 0 ||
+      (data.size() - fixed) / per_item != items)
+    return "its length does not match its header (a truncated or damaged file)";
+  if (!(payload_hash(data, header_bytes) == checksum))
+    return "its contents do not match their checksum (a damaged file)";
+  return "";
+}
+
 CacheWrite write_cache_file(const std::string& dir, const std::string& path,
                             const std::string& data) {
   namespace fs = std::filesystem;

@@ -147,6 +147,13 @@ std::string read_cache_file(const std::string& path, const char (&magic)[8], std
                             const TallyCacheKey& key, std::size_t header_bytes,
                             const std::string& what, std::string* data, std::uint32_t* flags);
 
+// Checks a cache file's body after its header: `fixed` bytes plus `items` records of `per_item`
+// bytes (the one size a header cannot bound by the scene, checked before anything is
+// allocated), and the payload from `header_bytes` on matching `checksum`. Returns why not, or "".
+std::string check_cache_body(const std::string& data, std::uint64_t fixed, std::uint64_t per_item,
+                             std::uint64_t items, std::size_t header_bytes,
+                             const TallyCacheKey& checksum);
+
 // Writes `data` to `path` in `dir` (created when needed) atomically: a temporary file of a
 // name no other writer uses, renamed into place, so a reader never sees half a file.
 // Failure is reported, not thrown.

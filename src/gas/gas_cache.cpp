@@ -102,11 +102,9 @@ CachedGasScores load_cached_gas_scores(const std::string& dir, const TallyCacheK
   // Sizes are bounded by the run except `entries`: check it against the length first.
   const std::uint64_t fixed = kHeaderBytes + 8 * (rows + n_cells + rows + 1 + rows * gases);
   const std::uint64_t per_entry = 4 + 16 * gases;
-  if (data.size() < fixed || (data.size() - fixed) % per_entry != 0 ||
-      (data.size() - fixed) / per_entry != entries)
-    return reject("its length does not match its header (a truncated or damaged file)");
-  if (!(payload_hash(data, kHeaderBytes) == checksum))
-    return reject("its contents do not match their checksum (a damaged file)");
+  const std::string body =
+      check_cache_body(data, fixed, per_entry, entries, kHeaderBytes, checksum);
+  if (!body.empty()) return reject(body);
   GasScores& s = out.scores;
   s.gases = gases;
   s.rays = c.all<std::uint64_t>(rows);
