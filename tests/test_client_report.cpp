@@ -98,6 +98,28 @@ TEST_CASE("client report escapes every text it is given", "[client-report]") {
   CHECK(markup_escape("\x01\x7f\xC3\xA9") == "\xEF\xBF\xBD\xEF\xBF\xBD\xC3\xA9");  // UTF-8 kept
 }
 
+// Every report (the heating plan's, the comfort report's, the comparison's) shows the
+// terminal's "63 C" as "63 °C" with a no-break space, in every kind of text; "C" not after a
+// number, or starting a word, stays as it is. (Own case, no source.)
+TEST_CASE("client report writes temperatures in degrees Celsius", "[client-report]") {
+  ClientReport r;
+  r.title = "Plan at 20 C";
+  r.cautions = {"window (glass) is near heat: panel_1 at 0.50 m (63 C); keep the clearance.",
+                "Class C fittings at 5 Celsius and 3 Cm"};
+  ReportSection s;
+  s.heading = "Room";
+  s.tables.push_back({"table at 21.5 C", {"point", "T"}, {{"desk", "19.0 C"}}});
+  s.verdicts.push_back({"floor under 29 C", true, "24.0 C against 29 C", "EN 1264 (recalled)"});
+  r.sections.push_back(s);
+  const std::string html = client_report_html(r);
+  const std::string deg = "\u00a0\u00b0C";
+  for (const std::string& expected : {"Plan at 20" + deg, "(63" + deg + ")", "table at 21.5" + deg,
+                                      "19.0" + deg, "24.0" + deg + " against 29" + deg})
+    CHECK_THAT(html, Catch::Contains(expected));
+  CHECK_THAT(html, Catch::Contains("Class C fittings at 5 Celsius and 3 Cm"));
+  CHECK_THAT(html, !Catch::Contains("63 C"));
+}
+
 TEST_CASE("client report embeds its pictures and fetches nothing", "[client-report]") {
   ScratchDir dir("client-report-embed");
   const std::string html = client_report_html(sample_report(dir));

@@ -1,7 +1,8 @@
 // A report for the client: one self-contained HTML file (styles inline, pictures embedded as
 // data: URIs, no scripts, nothing fetched from a network), laid out for the screen and for
 // printing on A4. Every text given here is plain text: the writer escapes it, so a surface or
-// point named "<b>" appears as written.
+// point named "<b>" appears as written. Temperatures written as the terminal writes them
+// ("20.5 C": a digit, a space, C, no letter after) appear as "20.5 °C", kept on one line.
 //
 // The caller fills the plain structs below; `write_client_report` lays them out in this order:
 // title and subtitle, a box "at a glance" with every verdict of every section (what, and

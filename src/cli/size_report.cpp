@@ -23,32 +23,6 @@ std::string celsius(double K) {
   return rounded("%.1f C", K - kZeroCelsius);
 }
 
-// The report's words for what the terminal says in ASCII: "20.5 C" becomes "20.5 °C" with a
-// no-break space (a digit, a space, C, then no letter), so that no line breaks before the unit.
-std::string degrees(std::string text) {
-  for (std::size_t at = text.find(" C"); at != std::string::npos; at = text.find(" C", at + 1)) {
-    const bool number = at > 0 && std::isdigit(static_cast<unsigned char>(text[at - 1]));
-    const bool word_ends =
-        at + 2 == text.size() || !std::isalpha(static_cast<unsigned char>(text[at + 2]));
-    if (number && word_ends) text.replace(at, 2, "\u00a0\u00b0C");
-  }
-  return text;
-}
-
-void degrees_in(ReportSection* s) {
-  s->heading = degrees(s->heading);
-  for (std::string& p : s->paragraphs) p = degrees(p);
-  for (ReportTable& t : s->tables) {
-    t.caption = degrees(t.caption);
-    for (std::string& h : t.header) h = degrees(h);
-    for (auto& row : t.rows)
-      for (std::string& cell : row) cell = degrees(cell);
-  }
-  for (ReportVerdict& v : s->verdicts)
-    v.what = degrees(v.what), v.detail = degrees(v.detail), v.source = degrees(v.source);
-  for (ReportFigure& f : s->figures) f.caption = degrees(f.caption);
-}
-
 // Electric radiant panels: the hazards a planner hands on (issue 12's caution).
 constexpr const char* kPanelCaution =
     "Radiant panels run hot: their faces can burn on contact and must keep the maker's "
@@ -332,10 +306,6 @@ std::vector<std::string> write_size_outputs(const fs::path& dir, const HeatingTa
   }
   report.assumptions = assumptions(layouts);
   report.cautions = size_cautions(layouts, names);
-  report.subtitle = degrees(report.subtitle);
-  for (ReportSection& s : report.sections) degrees_in(&s);
-  for (std::string& a : report.assumptions) a = degrees(a);
-  for (std::string& c : report.cautions) c = degrees(c);
   write_client_report(report, dir / "report.html");
   files.push_back("report.html");
   return files;

@@ -173,9 +173,44 @@ void write_glance(std::ostream& out, const ClientReport& r) {
   out << "<div class=\"glance\">\n<h2>At a glance</h2>\n<ul>\n" << items.str() << "</ul>\n</div>\n";
 }
 
+// What the terminal says in ASCII, as the report says it: "20.5 C" becomes "20.5 °C" with a
+// no-break space (a digit, a space, C, then no letter), so that no line breaks before the unit.
+std::string degrees(std::string text) {
+  for (std::size_t at = text.find(" C"); at != std::string::npos; at = text.find(" C", at + 1)) {
+    const bool number = at > 0 && std::isdigit(static_cast<unsigned char>(text[at - 1]));
+    const bool word_ends =
+        at + 2 == text.size() || !std::isalpha(static_cast<unsigned char>(text[at + 2]));
+    if (number && word_ends) text.replace(at, 2, "\u00a0\u00b0C");
+  }
+  return text;
+}
+
+// Every text of the report with its temperatures in degrees Celsius (degrees above).
+ClientReport with_degrees(ClientReport r) {
+  r.title = degrees(r.title);
+  r.subtitle = degrees(r.subtitle);
+  for (ReportSection& s : r.sections) {
+    s.heading = degrees(s.heading);
+    for (std::string& p : s.paragraphs) p = degrees(p);
+    for (ReportTable& t : s.tables) {
+      t.caption = degrees(t.caption);
+      for (std::string& h : t.header) h = degrees(h);
+      for (auto& row : t.rows)
+        for (std::string& cell : row) cell = degrees(cell);
+    }
+    for (ReportVerdict& v : s.verdicts)
+      v.what = degrees(v.what), v.detail = degrees(v.detail), v.source = degrees(v.source);
+    for (ReportFigure& f : s.figures) f.caption = degrees(f.caption);
+  }
+  for (std::string& a : r.assumptions) a = degrees(a);
+  for (std::string& c : r.cautions) c = degrees(c);
+  return r;
+}
+
 }  // namespace
 
-std::string client_report_html(const ClientReport& r) {
+std::string client_report_html(const ClientReport& report) {
+  const ClientReport r = with_degrees(report);
   std::ostringstream out;
   out << "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
       << "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n"
