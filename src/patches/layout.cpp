@@ -5,7 +5,6 @@
 #include <algorithm>
 #include <cmath>
 #include <numeric>
-#include <unordered_map>
 
 #include "hearthray/units.hpp"
 #include "mesh/topology.hpp"
@@ -40,19 +39,6 @@ int how_many(double x) {
   return !(n > 1) ? 1 : static_cast<int>(std::min(n, double(kMaxCount)));
 }
 
-// Welded edge -> the triangles (of `triangles`) using it, in order.
-std::unordered_map<std::uint64_t, std::vector<std::uint32_t>> edge_users(
-    const Scene& scene, const std::vector<std::uint32_t>& triangles,
-    const std::vector<std::uint32_t>& weld) {
-  std::unordered_map<std::uint64_t, std::vector<std::uint32_t>> users;
-  for (std::uint32_t t : triangles) {
-    const Triangle& tri = scene.triangles[t];
-    for (int k = 0; k < 3; ++k)
-      users[edge_key(weld[tri.v[k]], weld[tri.v[(k + 1) % 3]])].push_back(t);
-  }
-  return users;
-}
-
 // Edge-connected pieces of surface s that bend by less than 40 degrees between neighbours.
 std::vector<std::vector<std::uint32_t>> segment(const Scene& scene, std::uint32_t s,
                                                 const std::vector<std::uint32_t>& weld) {
@@ -61,11 +47,12 @@ std::vector<std::vector<std::uint32_t>> segment(const Scene& scene, std::uint32_
   std::vector<std::uint32_t> all(n);
   std::iota(all.begin(), all.end(), t0);
   UnionFind sets(n);
-  for (const auto& [key, users] : edge_users(scene, all, weld)) {
-    if (users.size() != 2) continue;  // boundary or non-manifold: no join
-    if (dot(scene.normal(users[0]), scene.normal(users[1])) >= kSmoothCos)
-      sets.unite(users[0] - t0, users[1] - t0);
-  }
+  const auto edges = sorted_edges(scene, all, weld);
+  for_each_edge(edges, [&](std::size_t first, std::size_t last) {
+    if (last - first != 2) return;  // boundary or non-manifold: no join
+    const std::uint32_t u = all[edges[first].second / 3], v = all[edges[first + 1].second / 3];
+    if (dot(scene.normal(u), scene.normal(v)) >= kSmoothCos) sets.unite(u - t0, v - t0);
+  });
   std::vector<std::vector<std::uint32_t>> charts;
   std::vector<std::int64_t> chart_of_root(n, -1);
   for (std::uint32_t i = 0; i < n; ++i) {
@@ -88,13 +75,17 @@ Vec3 centroid_of(const Scene& scene, std::uint32_t t) {
 // their lengths.
 std::vector<std::pair<Vec3, double>> boundary_edges(const Scene& scene, const Chart& chart,
                                                     const std::vector<std::uint32_t>& weld) {
-  const auto users = edge_users(scene, chart.triangles, weld);
+  const auto edges = sorted_edges(scene, chart.triangles, weld);
+  std::vector<bool> single(edges.size(), false);  // by 3 p + k: an edge no other triangle uses
+  for_each_edge(edges, [&](std::size_t first, std::size_t last) {
+    if (last - first == 1) single[edges[first].second] = true;
+  });
   std::vector<std::pair<Vec3, double>> out;
-  for (std::uint32_t t : chart.triangles) {
-    const Triangle& tri = scene.triangles[t];
-    for (int k = 0; k < 3; ++k) {
+  for (std::uint32_t p = 0; p < chart.triangles.size(); ++p) {
+    const Triangle& tri = scene.triangles[chart.triangles[p]];
+    for (std::uint32_t k = 0; k < 3; ++k) {
       const std::uint32_t a = tri.v[k], b = tri.v[(k + 1) % 3];
-      if (users.at(edge_key(weld[a], weld[b])).size() != 1) continue;
+      if (!single[3 * p + k]) continue;
       const Vec3 d = scene.vertices[b] - scene.vertices[a];
       const double length = norm(d);
       if (length > 0) out.push_back({d / length, length});
@@ -361,6 +352,20 @@ std::uint32_t cell(double x, double width, int count) {
 
 std::vector<std::uint32_t> weld_ids(const std::vector<Vec3>& vertices) {
   return mesh_detail::weld_by_position(vertices);
+}
+
+std::vector<std::pair<std::uint64_t, std::uint32_t>> sorted_edges(
+    const Scene& scene, const std::vector<std::uint32_t>& triangles,
+    const std::vector<std::uint32_t>& weld) {
+  std::vector<std::pair<std::uint64_t, std::uint32_t>> edges;
+  edges.reserve(3 * triangles.size());
+  for (std::uint32_t p = 0; p < triangles.size(); ++p) {
+    const Triangle& tri = scene.triangles[triangles[p]];
+    for (std::uint32_t k = 0; k < 3; ++k)
+      edges.push_back({edge_key(weld[tri.v[k]], weld[tri.v[(k + 1) % 3]]), 3 * p + k});
+  }
+  std::sort(edges.begin(), edges.end());
+  return edges;
 }
 
 std::uint64_t edge_key(std::uint32_t a, std::uint32_t b) {

@@ -33,6 +33,7 @@
 #include <algorithm>
 #include <cstdint>
 #include <numeric>
+#include <utility>
 #include <vector>
 
 #include "hearthray/scene.hpp"
@@ -78,6 +79,24 @@ struct UnionFind {
 // Weld ids (vertices at exactly the same position share one) and the key of a welded edge.
 std::vector<std::uint32_t> weld_ids(const std::vector<Vec3>& vertices);
 std::uint64_t edge_key(std::uint32_t a, std::uint32_t b);
+
+// The welded edges of `triangles`, sorted: (edge key, 3 p + k) for edge k of triangles[p], so
+// the uses of one edge are a run, in the order of the triangles (a sort rather than a hash map
+// of lists: cutting surfaces of 100k triangles spent most of its time in such maps).
+std::vector<std::pair<std::uint64_t, std::uint32_t>> sorted_edges(
+    const Scene& scene, const std::vector<std::uint32_t>& triangles,
+    const std::vector<std::uint32_t>& weld);
+
+// Calls f(first, last) for each run [first, last) of uses of one edge in `edges` (sorted_edges).
+template <class F>
+void for_each_edge(const std::vector<std::pair<std::uint64_t, std::uint32_t>>& edges, F f) {
+  for (std::size_t i = 0; i < edges.size();) {
+    std::size_t j = i + 1;
+    while (j < edges.size() && edges[j].first == edges[i].first) ++j;
+    f(i, j);
+    i = j;
+  }
+}
 
 // The charts of surface `surface` for patches of `size` metres, ordered by first triangle.
 std::vector<Chart> lay_out(const Scene& scene, std::uint32_t surface, double size,

@@ -1,7 +1,10 @@
 #include "hearthray/patches.hpp"
 
+#include <tbb/parallel_for.h>
+
 #include <algorithm>
 #include <cmath>
+#include <exception>
 #include <map>
 #include <optional>
 #include <tuple>
@@ -137,34 +140,49 @@ std::vector<std::vector<std::uint32_t>> size_groups(const Scene& scene, std::uin
 PatchSet make_patches(const Scene& scene, const std::vector<PatchSpec>& specs) {
   if (specs.size() != scene.surfaces.size())
     throw InputError("make_patches: one patch spec per surface expected");
+  const auto n_surfaces = static_cast<std::uint32_t>(scene.surfaces.size());
+  const bool by_size = std::any_of(specs.begin(), specs.end(), [](const PatchSpec& spec) {
+    return spec.mode == PatchSpec::Mode::size;
+  });
+  // Welded vertex ids, made once when a surface needs them.
+  const std::vector<std::uint32_t> weld =
+      by_size ? patch_layout::weld_ids(scene.vertices) : std::vector<std::uint32_t>();
+  // Each surface's groups depend on that surface alone: made in parallel (cutting surfaces by
+  // size is the costly part), then numbered in surface order, so the patches do not depend on
+  // the thread count.
+  std::vector<std::vector<std::vector<std::uint32_t>>> groups(n_surfaces);
+  std::vector<std::exception_ptr> failed(n_surfaces);  // the first in surface order is told
+  tbb::parallel_for(std::uint32_t(0), n_surfaces, [&](std::uint32_t s) {
+    try {
+      const Surface& surface = scene.surfaces[s];
+      const std::uint32_t t0 = surface.first_triangle, t1 = t0 + surface.triangle_count;
+      switch (specs[s].mode) {
+        case PatchSpec::Mode::whole: {
+          groups[s].emplace_back();
+          for (std::uint32_t t = t0; t < t1; ++t) groups[s].back().push_back(t);
+          break;
+        }
+        case PatchSpec::Mode::per_triangle: {
+          for (std::uint32_t t = t0; t < t1; ++t) groups[s].push_back({t});
+          break;
+        }
+        case PatchSpec::Mode::size: {
+          groups[s] = size_groups(scene, s, specs[s].size, weld);
+          break;
+        }
+      }
+    } catch (...) {
+      failed[s] = std::current_exception();
+    }
+  });
+  for (const std::exception_ptr& e : failed)
+    if (e) std::rethrow_exception(e);
   PatchSet set;
   const std::size_t n_tri = scene.triangles.size();
   set.front_patch_of_triangle.assign(n_tri, PatchSet::kNoPatch);
   set.back_patch_of_triangle.assign(n_tri, PatchSet::kNoPatch);
   set.triangle_offset.push_back(0);
-  std::vector<std::uint32_t> weld;  // welded vertex ids, made when a surface needs them
-  for (std::uint32_t s = 0; s < scene.surfaces.size(); ++s) {
-    const Surface& surface = scene.surfaces[s];
-    const std::uint32_t t0 = surface.first_triangle, t1 = t0 + surface.triangle_count;
-    std::vector<std::vector<std::uint32_t>> groups;
-    switch (specs[s].mode) {
-      case PatchSpec::Mode::whole: {
-        groups.emplace_back();
-        for (std::uint32_t t = t0; t < t1; ++t) groups.back().push_back(t);
-        break;
-      }
-      case PatchSpec::Mode::per_triangle: {
-        for (std::uint32_t t = t0; t < t1; ++t) groups.push_back({t});
-        break;
-      }
-      case PatchSpec::Mode::size: {
-        if (weld.empty()) weld = patch_layout::weld_ids(scene.vertices);
-        groups = size_groups(scene, s, specs[s].size, weld);
-        break;
-      }
-    }
-    add_groups(scene, s, groups, set);
-  }
+  for (std::uint32_t s = 0; s < n_surfaces; ++s) add_groups(scene, s, groups[s], set);
   return set;
 }
 

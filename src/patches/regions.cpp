@@ -6,7 +6,6 @@
 #include <map>
 #include <queue>
 #include <tuple>
-#include <unordered_map>
 
 namespace hearthray::patch_layout {
 
@@ -29,24 +28,25 @@ Graph chart_graph(const Scene& scene, const Chart& chart, const std::vector<std:
   g.centroid.resize(n);
   g.area.resize(n);
   g.neighbours.resize(n);
-  std::unordered_map<std::uint64_t, std::vector<std::uint32_t>> users;
   for (std::uint32_t i = 0; i < n; ++i) {
     const std::uint32_t t = chart.triangles[i];
     const Triangle& tri = scene.triangles[t];
     g.centroid[i] =
         (scene.vertices[tri.v[0]] + scene.vertices[tri.v[1]] + scene.vertices[tri.v[2]]) / 3.0;
     g.area[i] = scene.triangle_area(t);
-    for (int k = 0; k < 3; ++k)
-      users[edge_key(weld[tri.v[k]], weld[tri.v[(k + 1) % 3]])].push_back(i);
   }
-  for (std::uint32_t i = 0; i < n; ++i) {
-    const Triangle& tri = scene.triangles[chart.triangles[i]];
-    for (int k = 0; k < 3; ++k)
-      for (std::uint32_t j : users[edge_key(weld[tri.v[k]], weld[tri.v[(k + 1) % 3]])])
+  // Triangles sharing an edge are neighbours.
+  const auto edges = sorted_edges(scene, chart.triangles, weld);
+  for_each_edge(edges, [&](std::size_t first, std::size_t last) {
+    for (std::size_t a = first; a < last; ++a)
+      for (std::size_t b = first; b < last; ++b) {
+        const std::uint32_t i = edges[a].second / 3, j = edges[b].second / 3;
         if (j != i) g.neighbours[i].push_back(j);
-    std::sort(g.neighbours[i].begin(), g.neighbours[i].end());
-    g.neighbours[i].erase(std::unique(g.neighbours[i].begin(), g.neighbours[i].end()),
-                          g.neighbours[i].end());
+      }
+  });
+  for (std::vector<std::uint32_t>& list : g.neighbours) {
+    std::sort(list.begin(), list.end());
+    list.erase(std::unique(list.begin(), list.end()), list.end());
   }
   return g;
 }
