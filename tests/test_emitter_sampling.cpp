@@ -144,7 +144,10 @@ TEST_CASE("HitCounter's sorted runs count as a dense per-patch count does") {
           hit.surface = 0;
           hit.front = kind != 1;
           const std::uint32_t q = lookup.patch_of(hit);
-          if (q == PatchSet::kNoPatch) ++back; else ++dense[q];
+          if (q == PatchSet::kNoPatch)
+            ++back;
+          else
+            ++dense[q];
           ++hits;
         }
         counter.add(hit);
@@ -179,8 +182,8 @@ TEST_CASE("HitCounter's sorted runs count as a dense per-patch count does") {
 TEST_CASE("sort_keys sorts 64-bit keys as std::sort does") {
   std::mt19937_64 rng(4);
   std::vector<std::uint64_t> scratch;
-  for (std::uint64_t bound : {std::uint64_t{5}, std::uint64_t{98592} << 3, std::uint64_t{1} << 35,
-                              ~std::uint64_t{0}}) {
+  for (std::uint64_t bound :
+       {std::uint64_t{5}, std::uint64_t{98592} << 3, std::uint64_t{1} << 35, ~std::uint64_t{0}}) {
     for (std::size_t size : {0, 1, 63, 64, 1000, 5000}) {
       std::vector<std::uint64_t> v(size);
       for (auto& x : v) x = rng() % bound;

@@ -172,10 +172,7 @@ class ReplicateRow {
 // Per-thread scratch: the hit counter and one batch of rays.
 struct Scratch {
   explicit Scratch(const PatchLookup& lookup)
-      : counter(lookup),
-        rays(kBatch),
-        hits(kBatch),
-        offset(kBatch) {}
+      : counter(lookup), rays(kBatch), hits(kBatch), offset(kBatch) {}
   HitCounter counter;
   ReplicateRow row;  // sampler sobol
   std::vector<Ray> rays;
