@@ -1,5 +1,6 @@
 // Private to smoothing (smoothing.cpp): the counts of one maximum-likelihood smoothing problem
-// laid out for passes that cost O(non-zeros), and those passes.
+// laid out for passes that cost O(non-zeros), and those passes (smoothing_problem.cpp; finish()
+// in smoothing_finish.cpp; the fixed blocks of rows they share in smoothing_blocks.hpp).
 //
 // The counts form a symmetric pair list: every pair i < j with n_ij = N_ij + N_ji > 0, row by
 // row in ascending j (upper-triangular compressed rows), plus per-patch terms. To keep memory
