@@ -38,16 +38,8 @@ void write_fire_outputs(const SolveArgs& args, const SolvedScene& solved, const 
   j["scene"] = solved.file.path;
   j["files"] = files;
   j["firing"] = nlohmann::json::parse(firing_report_json(r, in));
-  {
-    std::ofstream report = open_output(out.file(kManifestName));  // last: names the files
-    report << j.dump(2) << '\n';
-    report.close();
-    if (!report) throw InputError("cannot write '" + out.target() + "/report.json'");
-  }
-  out.commit();
-  if (!args.rays.quiet)
-    std::cout << "\nwrote " << (fs::path(out.target()) / kManifestName).string() << ", "
-              << join(files) << "\n";
+  commit_with_report(
+      out, [&](std::ostream& report) { report << j.dump(2) << '\n'; }, files, args.rays.quiet);
 }
 
 }  // namespace

@@ -170,19 +170,9 @@ class SolveOutputs {
     info.files.insert(info.files.end(), factor_files_.begin(), factor_files_.end());
     waited_ = true;
     arena_.execute([&] { writer_.wait(); });  // rethrows a writer's error
-    {
-      // Last: report.json names the files of its run.
-      std::ofstream report = open_output(out_.file(kManifestName));
-      write_solve_json(report, info, model, result);
-      report.close();
-      if (!report) throw InputError("cannot write '" + out_.target() + "/report.json'");
-    }
-    out_.commit();
-    if (!args.rays.quiet) {
-      std::cout << "\nwrote " << (fs::path(out_.target()) / kManifestName).string();
-      for (const std::string& name : info.files) std::cout << ", " << name;
-      std::cout << "\n";
-    }
+    commit_with_report(
+        out_, [&](std::ostream& report) { write_solve_json(report, info, model, result); },
+        info.files, args.rays.quiet);
   }
 
  private:

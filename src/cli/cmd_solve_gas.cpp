@@ -91,18 +91,9 @@ int run_gas_solve(const SolveArgs& args, const SceneFile& file) {
               {{"converged", run.solve.converged ? 1 : 0}});
     const Picture cut = zone_cut_picture(run, plan.scene);
     for (const char* name : {"gas_zones.png", "gas_zones.svg"}) write_picture(out.file(name), cut);
-    {
-      std::ofstream report = open_output(out.file(kManifestName));  // last: names the files
-      write_gas_report(report, info, run, names);
-      report.close();
-      if (!report) throw InputError("cannot write '" + out.target() + "/report.json'");
-    }
-    out.commit();
-    if (!args.rays.quiet) {
-      std::cout << "\nwrote " << (fs::path(out.target()) / kManifestName).string();
-      for (const std::string& name : info.files) std::cout << ", " << name;
-      std::cout << "\n";
-    }
+    commit_with_report(
+        out, [&](std::ostream& report) { write_gas_report(report, info, run, names); }, info.files,
+        args.rays.quiet);
   }
   for (const std::string& w : run.warnings) std::cerr << "warning: " << w << "\n";
   if (!run.solve.converged) {

@@ -10,6 +10,7 @@
 #include <cstdlib>
 #include <cstring>
 #include <fstream>
+#include <iostream>
 #include <nlohmann/json.hpp>
 #include <optional>
 #include <set>
@@ -201,14 +202,24 @@ void OutputFolder::commit() {
   committed_ = true;
 }
 
-void write_manifest(OutputFolder& out, const json& manifest) {
+void commit_with_report(OutputFolder& out, const std::function<void(std::ostream&)>& write,
+                        const std::vector<std::string>& files, bool quiet) {
   {
     std::ofstream report(out.file(kManifestName), std::ios::binary | std::ios::trunc);
-    report << manifest.dump(2) << '\n';
+    if (report) write(report);
     report.close();
     if (!report) throw InputError("cannot write '" + out.target() + "/" + kManifestName + "'");
   }
   out.commit();
+  if (quiet) return;
+  std::cout << "\nwrote " << (fs::path(out.target()) / kManifestName).string();
+  for (const std::string& name : files) std::cout << ", " << name;
+  std::cout << "\n";
+}
+
+void write_manifest(OutputFolder& out, const json& manifest) {
+  commit_with_report(
+      out, [&](std::ostream& report) { report << manifest.dump(2) << '\n'; }, {}, true);
 }
 
 StagedFiles::~StagedFiles() {

@@ -15,6 +15,8 @@
 #pragma once
 
 #include <filesystem>
+#include <functional>
+#include <iosfwd>
 #include <map>
 #include <nlohmann/json_fwd.hpp>
 #include <string>
@@ -61,6 +63,11 @@ class OutputFolder {
   std::size_t files_ = 0;
   bool committed_ = false;
 };
+
+// Writes the folder's report.json by `write` (last: it names the files of its run) and commits
+// `out`; unless `quiet`, then says "wrote DIR/report.json, FILE, ..." with `files`.
+void commit_with_report(OutputFolder& out, const std::function<void(std::ostream&)>& write,
+                        const std::vector<std::string>& files, bool quiet);
 
 // Writes `manifest` as the folder's report.json (the last file) and commits `out`.
 void write_manifest(OutputFolder& out, const nlohmann::json& manifest);
