@@ -6,6 +6,7 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <limits>
 #include <numeric>
 
 #include "exchange/exchange_setup.hpp"
@@ -186,10 +187,17 @@ void set_up_faces(const ExchangeProblem& problem, Setup* s) {
     s->centres = &problem.face_centres;
   }
   // Rows checked in parallel (F holds up to some 1e8 entries); the first bad row is reported.
-  auto row_ok = [&vf](int i) {
+  // Branch-free: v >= 0 && v <= DBL_MAX is "finite and not negative" (NaN fails both), and a
+  // loop without early exits is vectorised; the bad entry itself is found below.
+  const double* values = vf.F.valuePtr();
+  const SparseMatrix::StorageIndex* outer = vf.F.outerIndexPtr();
+  const SparseMatrix::StorageIndex* nonzeros = vf.F.innerNonZeroPtr();  // null when compressed
+  auto row_ok = [values, outer, nonzeros](int i) {
     bool ok = true;
-    for (SparseMatrix::InnerIterator it(vf.F, i); it; ++it) {
-      ok = ok && std::isfinite(it.value()) && it.value() >= 0;
+    const SparseMatrix::StorageIndex end = nonzeros ? outer[i] + nonzeros[i] : outer[i + 1];
+    for (SparseMatrix::StorageIndex k = outer[i]; k < end; ++k) {
+      const double v = values[k];
+      ok &= (v >= 0) & (v <= std::numeric_limits<double>::max());
     }
     return ok;
   };
