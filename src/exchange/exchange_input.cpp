@@ -137,6 +137,45 @@ void check_surroundings(const ExchangeProblem& problem, const Setup& s) {
                    "; add a [surroundings] temperature, or close the geometry");
 }
 
+// Every entry of F finite and not negative. Rows checked in parallel (F holds up to some 1e8
+// entries); the first bad row is reported.
+void check_factor_entries(const ExchangeProblem& problem) {
+  const ViewFactors& vf = *problem.view_factors;
+  // Branch-free: v >= 0 && v <= DBL_MAX is "finite and not negative" (NaN fails both), and a
+  // loop without early exits is vectorised; the bad entry itself is found below.
+  const double* values = vf.F.valuePtr();
+  const SparseMatrix::StorageIndex* outer = vf.F.outerIndexPtr();
+  const SparseMatrix::StorageIndex* nonzeros = vf.F.innerNonZeroPtr();  // null when compressed
+  auto row_ok = [values, outer, nonzeros](int i) {
+    bool ok = true;
+    const SparseMatrix::StorageIndex end = nonzeros ? outer[i] + nonzeros[i] : outer[i + 1];
+    for (SparseMatrix::StorageIndex k = outer[i]; k < end; ++k) {
+      const double v = values[k];
+      ok &= (v >= 0) & (v <= std::numeric_limits<double>::max());
+    }
+    return ok;
+  };
+  const int rows = static_cast<int>(vf.F.outerSize());
+  const int first_bad = tbb::parallel_reduce(
+      tbb::blocked_range<int>(0, rows, 256), rows,
+      [&](const tbb::blocked_range<int>& range, int found) {
+        for (int i = range.begin(); i != range.end() && i < found; ++i) {
+          if (!row_ok(i)) return i;
+        }
+        return found;
+      },
+      [](int a, int b) { return std::min(a, b); });
+  if (first_bad < rows) {
+    for (SparseMatrix::InnerIterator it(vf.F, first_bad); it; ++it) {
+      if (!(std::isfinite(it.value()) && it.value() >= 0)) {
+        throw InputError("the view factor from " + face_label(problem, first_bad) + " to " +
+                         face_label(problem, it.col()) + " is " + rounded("%.6g", it.value()) +
+                         "; view factors must be finite and not negative");
+      }
+    }
+  }
+}
+
 // The faces: node, emissivity, area and fractions lost, each checked; and the view factors.
 void set_up_faces(const ExchangeProblem& problem, Setup* s) {
   const ViewFactors& vf = *problem.view_factors;
@@ -186,40 +225,7 @@ void set_up_faces(const ExchangeProblem& problem, Setup* s) {
     }
     s->centres = &problem.face_centres;
   }
-  // Rows checked in parallel (F holds up to some 1e8 entries); the first bad row is reported.
-  // Branch-free: v >= 0 && v <= DBL_MAX is "finite and not negative" (NaN fails both), and a
-  // loop without early exits is vectorised; the bad entry itself is found below.
-  const double* values = vf.F.valuePtr();
-  const SparseMatrix::StorageIndex* outer = vf.F.outerIndexPtr();
-  const SparseMatrix::StorageIndex* nonzeros = vf.F.innerNonZeroPtr();  // null when compressed
-  auto row_ok = [values, outer, nonzeros](int i) {
-    bool ok = true;
-    const SparseMatrix::StorageIndex end = nonzeros ? outer[i] + nonzeros[i] : outer[i + 1];
-    for (SparseMatrix::StorageIndex k = outer[i]; k < end; ++k) {
-      const double v = values[k];
-      ok &= (v >= 0) & (v <= std::numeric_limits<double>::max());
-    }
-    return ok;
-  };
-  const int rows = static_cast<int>(vf.F.outerSize());
-  const int first_bad = tbb::parallel_reduce(
-      tbb::blocked_range<int>(0, rows, 256), rows,
-      [&](const tbb::blocked_range<int>& range, int found) {
-        for (int i = range.begin(); i != range.end() && i < found; ++i) {
-          if (!row_ok(i)) return i;
-        }
-        return found;
-      },
-      [](int a, int b) { return std::min(a, b); });
-  if (first_bad < rows) {
-    for (SparseMatrix::InnerIterator it(vf.F, first_bad); it; ++it) {
-      if (!(std::isfinite(it.value()) && it.value() >= 0)) {
-        throw InputError("the view factor from " + face_label(problem, first_bad) + " to " +
-                         face_label(problem, it.col()) + " is " + rounded("%.6g", it.value()) +
-                         "; view factors must be finite and not negative");
-      }
-    }
-  }
+  check_factor_entries(problem);
 }
 
 // Node k's condition (given temperature, heat flux, power or none) and its convection and
