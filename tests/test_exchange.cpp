@@ -339,9 +339,10 @@ TEST_CASE("bad exchange problems are refused with a message naming what to fix",
     p.view_factors = &neg;
     CHECK_THROWS_WITH(solve_exchange(p, o), Catch::Contains("not negative"));
   }
-  SECTION("a view factor that is not a number or infinite") {
+  SECTION("a view factor that is not a number, infinite or the least negative number") {
     for (double bad :
-         {std::numeric_limits<double>::quiet_NaN(), std::numeric_limits<double>::infinity()}) {
+         {std::numeric_limits<double>::quiet_NaN(), -std::numeric_limits<double>::quiet_NaN(),
+          std::numeric_limits<double>::infinity(), -std::numeric_limits<double>::denorm_min()}) {
       const ViewFactors odd = exact_factors({{0, 1}, {bad, 0}}, {1.0, 1.0});
       p.view_factors = &odd;
       CHECK_THROWS_WITH(solve_exchange(p, o), Catch::Contains("must be finite"));

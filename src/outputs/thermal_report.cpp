@@ -390,6 +390,28 @@ void write_solve_json(std::ostream& out, const SolveReportInfo& info, const Ther
   out << doc.dump(2, ' ', false, json::error_handler_t::replace) << "\n";
 }
 
+namespace {
+
+// The largest standard error of row f's factors and of its fraction to the surroundings, as
+// the largest of vf.standard_error(f, F_fj) (0 for an empty row). That error,
+// sqrt(p (1 - p) / N) times the row's error ratio, is a non-decreasing function of the rounded
+// p (1 - p) (each rounded operation is monotone), so the largest is the one of the largest
+// p (1 - p): one square root a row rather than one an entry, and the same value. NaN terms are
+// skipped by the max as before.
+double largest_standard_error(const ViewFactors& vf, std::size_t f) {
+  double term = 0;  // largest p (1 - p)
+  const auto add = [&term](double value) {
+    const double p = std::clamp(value, 0.0, 1.0);
+    term = std::max(term, p * (1 - p));
+  };
+  for (SparseMatrix::InnerIterator it(vf.F, Eigen::Index(f)); it; ++it) add(it.value());
+  if (f < vf.to_surroundings.size()) add(vf.to_surroundings[f]);
+  const double binomial = std::sqrt(term / static_cast<double>(vf.rays[f]));
+  return std::max(0.0, vf.error_ratio.empty() ? binomial : binomial * vf.error_ratio.at(f));
+}
+
+}  // namespace
+
 std::vector<PatchField> solve_fields(const ThermalModel& model, const ExchangeResult& result) {
   const std::size_t n = model.faces.size();
   PatchField temperature{"temperature", "°C", std::vector<double>(n)};
@@ -403,29 +425,23 @@ std::vector<PatchField> solve_fields(const ThermalModel& model, const ExchangeRe
   const ViewFactors& vf = model.factors;
   // Each face on its own (the largest standard error reads the face's row of F, some 1e8
   // entries in all): in parallel, the same values for any thread count.
-  tbb::parallel_for(tbb::blocked_range<std::size_t>(0, std::min(n, result.faces.size()), 512),
-                    [&](const tbb::blocked_range<std::size_t>& range) {
-                      for (std::size_t f = range.begin(); f != range.end(); ++f) {
-                        const std::uint32_t k = model.faces[f].node;
-                        const NodeResult& node = result.nodes[k];
-                        const FaceResult& face = result.faces[f];
-                        temperature.values[f] = node.temperature_K - kZeroCelsius;
-                        net.values[f] = face.net_flux;
-                        irradiation.values[f] = face.irradiation;
-                        radiosity.values[f] = face.radiosity;
-                        // Convection and wall loss are per m^2 of the node's faces.
-                        input.values[f] =
-                            face.net_flux + (node.convection_W + node.wall_loss_W) / node_area[k];
-                        double worst = 0;
-                        if (f < vf.rays.size() && vf.rays[f] > 0) {
-                          for (SparseMatrix::InnerIterator it(vf.F, Eigen::Index(f)); it; ++it)
-                            worst = std::max(worst, vf.standard_error(f, it.value()));
-                          if (f < vf.to_surroundings.size())
-                            worst = std::max(worst, vf.standard_error(f, vf.to_surroundings[f]));
-                        }
-                        error.values[f] = f < vf.rays.size() && vf.rays[f] > 0 ? worst : NAN;
-                      }
-                    });
+  tbb::parallel_for(
+      tbb::blocked_range<std::size_t>(0, std::min(n, result.faces.size()), 512),
+      [&](const tbb::blocked_range<std::size_t>& range) {
+        for (std::size_t f = range.begin(); f != range.end(); ++f) {
+          const std::uint32_t k = model.faces[f].node;
+          const NodeResult& node = result.nodes[k];
+          const FaceResult& face = result.faces[f];
+          temperature.values[f] = node.temperature_K - kZeroCelsius;
+          net.values[f] = face.net_flux;
+          irradiation.values[f] = face.irradiation;
+          radiosity.values[f] = face.radiosity;
+          // Convection and wall loss are per m^2 of the node's faces.
+          input.values[f] = face.net_flux + (node.convection_W + node.wall_loss_W) / node_area[k];
+          error.values[f] =
+              f < vf.rays.size() && vf.rays[f] > 0 ? largest_standard_error(vf, f) : NAN;
+        }
+      });
   return {temperature, net, irradiation, radiosity, input, error};
 }
 
