@@ -8,6 +8,8 @@
 #include <cstdint>
 #include <random>
 #include <sstream>
+#include <string>
+#include <utility>
 #include <vector>
 
 #include "factors/emitter_sampling.hpp"
@@ -103,6 +105,58 @@ TEST_CASE("the Sobol' tracing order is a permutation walking the triangle list")
     previous = cursor.triangle;
   }
   CHECK(moves < 300);  // ~128 forward steps and a few swaps; a random order makes ~990
+}
+
+namespace {
+
+// The rays of rays [first, last) of `patch` drawn the tracer's way (sobol_points, then
+// sample_points on the whole run: the vectorised loops) and the reference way (sample(),
+// which draws each ray by itself through EmitterSampler::emit), each as sorted byte strings.
+std::pair<std::vector<std::string>, std::vector<std::string>> both_ways(
+    const EmitterSampler& sampler, std::uint32_t patch, std::uint64_t total, std::uint64_t first,
+    std::uint64_t last) {
+  auto bytes = [](const Ray& r, float offset) {
+    std::string b(reinterpret_cast<const char*>(&r), sizeof(Ray));
+    return b + std::string(reinterpret_cast<const char*>(&offset), sizeof(float));
+  };
+  std::vector<EmitterSampler::SobolPoint> points, scratch;
+  std::vector<std::uint32_t> buckets;
+  EmitterSampler::Cursor cursor = sampler.start(patch, total, first);
+  sampler.sobol_points(cursor, first, last, &points, &scratch, &buckets);
+  std::vector<Ray> rays(points.size());
+  std::vector<float> offsets(points.size());
+  sampler.sample_points(cursor, points.data(), points.size(), rays.data(), offsets.data());
+  std::vector<std::string> fast, reference;
+  for (std::size_t i = 0; i < rays.size(); ++i) fast.push_back(bytes(rays[i], offsets[i]));
+  EmitterSampler::Cursor scalar = sampler.start(patch, total, first);
+  std::vector<Ray> one(last - first);
+  std::vector<float> one_offset(last - first);
+  sampler.sample(scalar, first, last - first, one.data(), one_offset.data());
+  for (std::size_t i = 0; i < one.size(); ++i) reference.push_back(bytes(one[i], one_offset[i]));
+  std::sort(fast.begin(), fast.end());
+  std::sort(reference.begin(), reference.end());
+  return {fast, reference};
+}
+
+}  // namespace
+
+TEST_CASE("the tracer's vectorised ray loops give the scalar sampler's rays to the bit") {
+  const Scene scene = plate(8);
+  // One patch per triangle (the one-triangle loop), and one patch of 128 triangles (the walk).
+  const PatchSet single = make_patches(scene, {PatchSpec{PatchSpec::Mode::per_triangle}});
+  const PatchSet whole = make_surface_patches(scene);
+  for (const PatchSet* patches : {&single, &whole}) {
+    const EmitterSampler sampler(scene, *patches, Vec3{0.3, 0.6, 0.1}, 5, EmissionSampler::sobol);
+    for (std::uint32_t p : {0u, std::uint32_t(patches->size() - 1)}) {
+      // Replicates 0 and 3 of 1003 rays (125 and 126 rays: vector loops' remainders).
+      for (std::uint32_t r : {0u, 3u}) {
+        const std::uint64_t a = replicate_first_ray(1003, r), b = replicate_first_ray(1003, r + 1);
+        const auto [fast, reference] = both_ways(sampler, p, 1003, a, b);
+        REQUIRE(fast.size() == b - a);
+        REQUIRE(fast == reference);
+      }
+    }
+  }
 }
 
 TEST_CASE("sort_patches sorts receiver lists as std::sort does") {

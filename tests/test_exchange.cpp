@@ -5,6 +5,7 @@
 #include <Eigen/SparseCore>
 #include <catch2/catch.hpp>
 #include <cmath>
+#include <limits>
 #include <random>
 #include <vector>
 
@@ -337,6 +338,15 @@ TEST_CASE("bad exchange problems are refused with a message naming what to fix",
     const ViewFactors neg = exact_factors({{0, -1}, {1, 0}}, {1.0, 1.0});
     p.view_factors = &neg;
     CHECK_THROWS_WITH(solve_exchange(p, o), Catch::Contains("not negative"));
+  }
+  SECTION("a view factor that is not a number, infinite or the least negative number") {
+    for (double bad :
+         {std::numeric_limits<double>::quiet_NaN(), -std::numeric_limits<double>::quiet_NaN(),
+          std::numeric_limits<double>::infinity(), -std::numeric_limits<double>::denorm_min()}) {
+      const ViewFactors odd = exact_factors({{0, 1}, {bad, 0}}, {1.0, 1.0});
+      p.view_factors = &odd;
+      CHECK_THROWS_WITH(solve_exchange(p, o), Catch::Contains("must be finite"));
+    }
   }
   SECTION("no temperature level anywhere") {
     p.nodes[0].condition = adiabatic();

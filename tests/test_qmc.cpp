@@ -160,3 +160,58 @@ TEST_CASE("sobol sampler: reported standard errors match the spread over seeds",
     for (double r : vf.error_ratio) CHECK(r < 1);
   }
 }
+
+TEST_CASE("replicate error ratio: the standard error of a mean of replicates over the binomial",
+          "[qmc]") {
+  // One row of 800 rays in 8 replicates of 100. The reference is the textbook standard error
+  // of the mean of R independent replicates, s^2 / R with s^2 = sum_r (f_r - f)^2 / (R - 1)
+  // (e.g. Owen, "Monte Carlo theory, methods and examples", randomised quasi-Monte Carlo;
+  // recalled), against the binomial variance f (1 - f) / N, summed over the row's entries.
+  // Counts below and above 32 and an entry with no spread at all (the back faces) are there.
+  const std::vector<std::vector<double>> counts = {
+      {3, 5, 4, 6, 2, 5, 4, 3},          // 32 rays in all
+      {0, 1, 0, 0, 1, 0, 0, 0},          // 2
+      {40, 37, 45, 41, 38, 44, 39, 42},  // 326
+  };
+  const std::vector<double> escaped = {57, 57, 51, 53, 59, 51, 57, 55};  // the rest: 440
+  const double R = kSobolReplicates, N = 800, M = N / R;
+  Tallies t;
+  t.patch_count = 4;
+  t.rays = {800};
+  t.back_face = {0};
+  t.back_face_square = {0};
+  t.hit_offset = {0};
+  double spread = 0, binomial = 0;
+  auto add = [&](const std::vector<double>& c, std::uint64_t* total, double* square) {
+    double sum = 0, sum_squares = 0;
+    for (double x : c) {
+      sum += x;
+      sum_squares += (x / M) * (x / M);
+    }
+    const double f = sum / N;
+    double deviation = 0;
+    for (double x : c) deviation += (x / M - f) * (x / M - f);
+    spread += deviation / (R - 1) / R;
+    binomial += f * (1 - f) / N;
+    *total = static_cast<std::uint64_t>(sum);
+    *square = sum_squares;
+  };
+  for (std::size_t e = 0; e < counts.size(); ++e) {
+    std::uint64_t total = 0;
+    double square = 0;
+    add(counts[e], &total, &square);
+    t.hit_patch.push_back(static_cast<std::uint32_t>(e + 1));
+    t.hit_count.push_back(total);
+    t.hit_square.push_back(square);
+  }
+  t.hit_offset.push_back(t.hit_patch.size());
+  std::uint64_t escaped_total = 0;
+  double escaped_square = 0;
+  add(escaped, &escaped_total, &escaped_square);
+  t.escaped = {escaped_total};
+  t.escaped_square = {escaped_square};
+  REQUIRE(escaped_total + 32 + 2 + 326 == 800);
+  const std::vector<double> ratio = replicate_error_ratio(t);
+  REQUIRE(ratio.size() == 1);
+  CHECK(ratio[0] == Approx(std::sqrt(spread / binomial)).epsilon(1e-12));
+}

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <array>
 #include <cmath>
+#include <cstdint>
 
 #include "hearthray/sampling.hpp"
 
@@ -58,6 +59,99 @@ inline void place_ray(const EmitterSampler::TriangleFrame& f, const Barycentric&
   ray->tnear = 0;
   ray->tfar = 3.0e38f;
   *offset = f.offset;
+}
+
+// double(v) / 2^32, through a signed conversion (v - 2^31 is exact in int32 and the sum back
+// exact in double) because SSE2 and AVX2 convert only signed integers to double.
+inline double fraction32(std::uint32_t v) {
+  return (double(std::int32_t(v ^ 0x80000000u)) + 2147483648.0) * (1.0 / 4294967296.0);
+}
+
+// The local direction of every point (z along the normal, times `sign`), put in the rays'
+// dir for place_origin to turn into the triangle's frame: sample_cosine_hemisphere's
+// arithmetic on (x[2], x[3]) written without calls, lookups or branches so that the loop is
+// vectorised; every operation is the same, so every bit is. The file is compiled
+// with -fno-math-errno and -fno-trapping-math (CMakeLists.txt): sqrt's errno branch and
+// selects between doubles would otherwise keep the loops here from being vectorised.
+[[gnu::target_clones("avx2", "default")]] void local_directions(
+    const EmitterSampler::SobolPoint* points, std::size_t count, float sign, Ray* rays) {
+  for (std::size_t i = 0; i < count; ++i) {
+    const double u1 = fraction32(points[i].x[2]), u2 = fraction32(points[i].x[3]);
+    // sincos_2pi(u2), with floor(q + 0.5) as a truncation (q + 0.5 > 0).
+    const double q = u2 * 4.0;
+    const double k = double(std::int32_t(q + 0.5));
+    const double x = (q - k) * (kPi / 2);
+    const double x2 = x * x;
+    const double sn = x * (1 + x2 * (-1.0 / 6 + x2 * (1.0 / 120 - x2 / 5040)));
+    const double cs = 1 + x2 * (-0.5 + x2 * (1.0 / 24 + x2 * (-1.0 / 720 + x2 / 40320)));
+    const int quadrant = static_cast<int>(k) & 3;
+    const double s_abs = (quadrant & 1) ? cs : sn;
+    const double c_abs = (quadrant & 1) ? sn : cs;
+    const double sine = (quadrant & 2) ? -s_abs : s_abs;
+    const double cosine = ((quadrant + 1) & 2) ? -c_abs : c_abs;
+    const double r = std::sqrt(static_cast<float>(u1));
+    const double z = std::sqrt(static_cast<float>(1.0 - u1));  // = max(0, 1 - u1): u1 < 1
+    rays[i].dir[0] = float(r * cosine);
+    rays[i].dir[1] = float(r * sine);
+    rays[i].dir[2] = float(z) * sign;
+  }
+}
+
+// owen_scramble_reversed of every coordinate of the points, in place: a loop of integer
+// arithmetic that the compiler vectorises (kept apart from the Gray-code walk, which is serial).
+[[gnu::target_clones("avx2", "default")]] void scramble_points(EmitterSampler::SobolPoint* points,
+                                                               std::size_t count,
+                                                               const OwenSeeds& seeds) {
+  const OwenSeeds local = seeds;
+  for (std::size_t i = 0; i < count; ++i) {
+    for (int d = 0; d < kSobolDimensions; ++d)
+      points[i].x[d] = owen_scramble_reversed(points[i].x[d], local.s[d]);
+  }
+}
+
+// The ray's origin at barycentric point `bc` of frame `f`, lifted off the surface, and its
+// direction turned from the local one local_directions left in ray->dir (as place_ray).
+inline void place_origin(const EmitterSampler::TriangleFrame& f, const Barycentric& bc, float sign,
+                         Ray* ray, float* offset) {
+  const float b1 = float(bc.b1), b2 = float(bc.b2);
+  const float dx = ray->dir[0], dy = ray->dir[1], dz = ray->dir[2];
+  for (int c = 0; c < 3; ++c) {
+    ray->org[c] = f.v0[c] + b1 * f.e1[c] + b2 * f.e2[c] + sign * f.offset * f.n[c];
+    ray->dir[c] = dx * f.t[c] + dy * f.b[c] + dz * f.n[c];
+  }
+  ray->tnear = 0;
+  ray->tfar = 3.0e38f;
+  *offset = f.offset;
+}
+
+// The rays of points on a patch of one triangle (frame f, area and 1 / area) whose local
+// directions local_directions left in the rays: EmitterSampler::emit's arithmetic for that
+// case, with the clamps and the triangle map's select written as ternaries the compiler turns
+// into min, max and blends, so that the loop is vectorised; the same bits.
+[[gnu::target_clones("avx2", "default")]] void one_triangle_rays(
+    const EmitterSampler::SobolPoint* points, std::size_t count,
+    const EmitterSampler::TriangleFrame& frame, double area, double inverse, float sign, Ray* rays,
+    float* offset) {
+  const EmitterSampler::TriangleFrame f = frame;
+  for (std::size_t i = 0; i < count; ++i) {
+    const double u0 = fraction32(points[i].x[0]), u1 = fraction32(points[i].x[1]);
+    double r = u0 * area * inverse;
+    r = r < 0.0 ? 0.0 : r;                  // std::max(r, 0.0)
+    r = 1.0 - 1e-16 < r ? 1.0 - 1e-16 : r;  // std::min(r, 1 - 1e-16)
+    // sample_triangle_uniform(r, u1)
+    const bool lower = r < u1;
+    const double h1 = 0.5 * r, h2 = 0.5 * u1;
+    const float b1 = float(lower ? h1 : r - h2), b2 = float(lower ? u1 - h1 : h2);
+    Ray& ray = rays[i];
+    const float dx = ray.dir[0], dy = ray.dir[1], dz = ray.dir[2];
+    for (int c = 0; c < 3; ++c) {
+      ray.org[c] = f.v0[c] + b1 * f.e1[c] + b2 * f.e2[c] + sign * f.offset * f.n[c];
+      ray.dir[c] = dx * f.t[c] + dy * f.b[c] + dz * f.n[c];
+    }
+    ray.tnear = 0;
+    ray.tfar = 3.0e38f;
+    offset[i] = f.offset;
+  }
 }
 
 }  // namespace
@@ -161,11 +255,29 @@ void EmitterSampler::sample_points(Cursor& cursor, const SobolPoint* points, std
                                    Ray* rays, float* offset) const {
   const std::uint32_t p = cursor.patch;
   const float sign = patches_->patches[p].side == Side::back ? -1.0f : 1.0f;
+  const std::uint32_t t_begin = patches_->triangle_offset[p];
+  const std::uint32_t t_end = patches_->triangle_offset[p + 1];
   constexpr double k32 = 1.0 / 4294967296.0;
+  // Directions first, for every point of the run: arithmetic only, which the compiler
+  // vectorises (the same operations as sample_cosine_hemisphere, so the same bits).
+  local_directions(points, count, sign, rays);
+  if (t_end - t_begin == 1) {  // one triangle: no lookup, one frame
+    one_triangle_rays(points, count, frames_[patches_->triangle_index[t_begin]],
+                      cumulative_[t_begin], inverse_area_[t_begin], sign, rays, offset);
+    return;
+  }
+  const double area = cumulative_[t_end - 1];
   for (std::size_t i = 0; i < count; ++i) {
     const std::uint32_t* x = points[i].x;
-    emit(p, sign, double(x[0]) * k32, double(x[1]) * k32, double(x[2]) * k32, double(x[3]) * k32,
-         &cursor.triangle, rays + i, offset + i);
+    const double target = double(x[0]) * k32 * area;
+    const std::uint32_t hint = std::min(std::max(cursor.triangle, t_begin), t_end - 1);
+    const std::uint32_t j =
+        std::min(upper_bound_near(cumulative_.data(), t_begin, t_end, target, hint), t_end - 1);
+    cursor.triangle = j;
+    const double below = j > t_begin ? cumulative_[j - 1] : 0.0;
+    const double r = std::min(std::max((target - below) * inverse_area_[j], 0.0), 1.0 - 1e-16);
+    place_origin(frames_[patches_->triangle_index[j]],
+                 sample_triangle_uniform(r, double(x[1]) * k32), sign, rays + i, offset + i);
   }
 }
 
@@ -187,9 +299,9 @@ void EmitterSampler::sobol_points(const Cursor& cursor, std::uint64_t first, std
       const int b = __builtin_ctz(j);
       for (int d = 0; d < kSobolDimensions; ++d) x[d] ^= table.reversed[d][b];
     }
-    for (int d = 0; d < kSobolDimensions; ++d)
-      made[i].x[d] = owen_scramble_reversed(x[d], cursor.seeds.s[d]);
+    for (int d = 0; d < kSobolDimensions; ++d) made[i].x[d] = x[d];
   }
+  scramble_points(made.data(), n, cursor.seeds);
   if (!walk) return;
   // A counting sort on the leading bits of the first coordinate: about one ray per bucket,
   // enough to walk the list (the order inside a bucket does not matter).

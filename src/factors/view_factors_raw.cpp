@@ -81,6 +81,8 @@ void check_tallies(const PatchSet& patches, const Tallies& t) {
 namespace {
 
 // Row r's replicate standard error over the binomial one (1 when it cannot be estimated).
+// Per count: f = count / N, R f f and f (1 - f) / N, kept for the small counts that most of a
+// row's are (each computed as for any other count, so the sums are the same).
 double row_error_ratio(const Tallies& t, std::size_t r) {
   const std::uint64_t n = t.rays[r];
   std::uint32_t replicates = 0;
@@ -88,11 +90,22 @@ double row_error_ratio(const Tallies& t, std::size_t r) {
     replicates += replicate_first_ray(n, k + 1) > replicate_first_ray(n, k) ? 1 : 0;
   if (replicates < 2) return 1.0;
   const double R = replicates, N = static_cast<double>(n);
+  struct Terms {
+    double squared = 0, binomial = 0;  // R f f and f (1 - f) / N
+  };
+  auto terms = [&](std::uint64_t count) {
+    const double f = static_cast<double>(count) / N;
+    return Terms{R * f * f, f * (1 - f) / N};
+  };
+  constexpr std::uint64_t kSmall = 32;
+  Terms small[kSmall];
+  for (std::uint64_t c = 0; c < kSmall; ++c) small[c] = terms(c);
   double spread = 0, binomial = 0;
   auto add = [&](std::uint64_t count, double square) {
-    const double f = static_cast<double>(count) / N;
-    spread += std::max(0.0, square - R * f * f) / (R * (R - 1));
-    binomial += f * (1 - f) / N;
+    const Terms term = count < kSmall ? small[count] : terms(count);
+    // max(0, .) / (R (R - 1)) adds +0 where the square is not above R f f: skipped.
+    if (square - term.squared > 0) spread += (square - term.squared) / (R * (R - 1));
+    binomial += term.binomial;
   };
   for (std::uint64_t k = t.hit_offset[r]; k < t.hit_offset[r + 1]; ++k)
     add(t.hit_count[k], t.hit_square[k]);

@@ -2,6 +2,8 @@
 // errors, the patches (names, areas, geometry, rays), the surfaces, the mesh and the run, all
 // compressed. The layout is in the README ("HDF5 matrix file"); keep both in step and raise
 // kFormatVersion when a reader would need to know.
+#include <tbb/enumerable_thread_specific.h>
+
 #include <algorithm>
 #include <cmath>
 #include <cstring>
@@ -94,6 +96,33 @@ float error_to_store(double se) {
   return static_cast<float>(se);  // exact: 16 significant bits fit in a float's 24
 }
 
+// error_to_store(vf.standard_error(i, f)) of the factors f of a row emitting `rays` > 0 rays,
+// `ratio` its error ratio (1 without one): factor_standard_error, the ratio and the rounding
+// above written as one loop of selects and bit operations that GCC vectorises (this file is
+// compiled with -fno-math-errno and -fno-trapping-math, CMakeLists.txt), instead of three calls
+// with branches per entry. The same operations, so the same bits (tests/test_hdf5_output.cpp);
+// x * 1 is x, so a row without a ratio takes 1.
+[[gnu::target_clones("avx2", "default")]] void stored_errors(const double* factors,
+                                                             std::size_t count, double rays,
+                                                             double ratio, float* out) {
+  constexpr int kDropped = 52 - 15;
+  constexpr std::uint64_t kHalf = std::uint64_t(1) << (kDropped - 1);
+  constexpr std::uint64_t kKept = ~((std::uint64_t(1) << kDropped) - 1);
+  constexpr std::uint64_t kExponent = 0x7ff0000000000000ull;
+  for (std::size_t k = 0; k < count; ++k) {
+    const double f = factors[k];
+    const double p = f < 0.0 ? 0.0 : (1.0 < f ? 1.0 : f);  // std::clamp(f, 0.0, 1.0)
+    const double se = std::sqrt(p * (1 - p) / rays) * ratio;
+    std::uint64_t bits;
+    std::memcpy(&bits, &se, sizeof bits);
+    const std::uint64_t rounded = (bits + kHalf) & kKept;
+    bits = (bits & kExponent) == kExponent ? bits : rounded;  // infinities and NaN kept
+    double kept;
+    std::memcpy(&kept, &bits, sizeof kept);
+    out[k] = static_cast<float>(kept);
+  }
+}
+
 // F as CSR, N x (N + 1); standard_error aligned with data, as float32 (error_to_store): at a
 // quarter of the bytes of doubles it no longer makes up half the file.
 void write_matrix(const hdf5::File& file, const ViewFactors& vf) {
@@ -123,11 +152,22 @@ void write_matrix(const hdf5::File& file, const ViewFactors& vf) {
                   });
   });
   hdf5::Dataset errors(file, "/F/standard_error", H5T_IEEE_F32LE, entries);
+  tbb::enumerable_thread_specific<std::vector<float>> scratch;
   errors.write_rows([&](std::uint64_t first, std::uint64_t count, unsigned char* out) {
     for_row_parts(vf, indptr, first, count,
                   [&](std::uint64_t k, std::size_t i, std::int64_t p0, std::int64_t p1, bool s) {
-                    for (std::int64_t p = p0; p < p1; ++p, ++k)
-                      put(out, k, error_to_store(vf.standard_error(i, vf.F.valuePtr()[p])));
+                    if (vf.rays.at(i) > 0) {
+                      std::vector<float>& row = scratch.local();
+                      row.resize(std::size_t(p1 - p0));
+                      stored_errors(vf.F.valuePtr() + p0, row.size(), double(vf.rays[i]),
+                                    vf.error_ratio.empty() ? 1.0 : vf.error_ratio.at(i),
+                                    row.data());
+                      std::memcpy(out + 4 * k, row.data(), 4 * row.size());
+                      k += row.size();
+                    } else {
+                      for (std::int64_t p = p0; p < p1; ++p, ++k)
+                        put(out, k, error_to_store(vf.standard_error(i, vf.F.valuePtr()[p])));
+                    }
                     if (s) put(out, k, error_to_store(vf.standard_error(i, vf.to_surroundings[i])));
                   });
   });

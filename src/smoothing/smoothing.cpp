@@ -78,6 +78,10 @@ constexpr int kMaxLinearIterations = 1000;
 // steps and 48 conjugate-gradient iterations, the looser 0.5 / 0.9 5 steps and 46.
 constexpr double kForcingFirst = 0.1;
 constexpr double kForcingMax = 0.1;
+// A conjugate-gradient solve also stops once its largest scaled residual is this fraction of
+// the tolerance: the linear model's row errors are then inside it with room for the rest of
+// the step's error (quadratic in the step, negligible when the step is this small).
+constexpr double kLinearEnough = 0.5;
 
 struct RowErrors {
   double max = 0;   // max_i |g_i| / A_i
@@ -111,12 +115,15 @@ bool solve_directly(const Problem& p, const VectorXd& H_diag, const VectorXd& g,
 
 // Jacobi-preconditioned conjugate gradients on H delta = -g from delta = 0 (e.g. Saad,
 // "Iterative Methods for Sparse Linear Systems", 2nd ed., ch. 9), stopped when the
-// residual's 2-norm, scaled by the areas like g, is at most eta |g / A|. Every iterate
-// minimises the quadratic model q(d) = g.d + d.H.d / 2 over a subspace containing 0, so
-// g.d <= -d.H.d / 2 < 0: even an unfinished solve is a descent direction. Returns the
-// iterations; *reached is the relative residual attained.
+// residual's 2-norm, scaled by the areas like g, is at most eta |g / A|, or when its largest
+// scaled entry is at most `enough`: the residual is the linear model's next g, and the Newton
+// loop stops on the largest row error, so a step that brings that well below the tolerance
+// needs no more accuracy (in the last step the 2-norm, summed over all rows, still asks for
+// a few more iterations). Every iterate minimises the quadratic model q(d) = g.d + d.H.d / 2
+// over a subspace containing 0, so g.d <= -d.H.d / 2 < 0: even an unfinished solve is a
+// descent direction. Returns the iterations; *reached is the relative residual attained.
 int conjugate_gradients(Problem& p, const VectorXd& H_diag, const VectorXd& g, double eta,
-                        VectorXd* delta, double* reached) {
+                        double enough, VectorXd* delta, double* reached) {
   const VectorXd inv_area = p.area.cwiseInverse();
   const double g_norm = g.cwiseProduct(inv_area).norm();
   VectorXd r = -g;
@@ -135,7 +142,7 @@ int conjugate_gradients(Problem& p, const VectorXd& H_diag, const VectorXd& g, d
     r -= step * q;
     ++iterations;
     *reached = r.cwiseProduct(inv_area).norm() / g_norm;
-    if (*reached <= eta) break;
+    if (*reached <= eta || r.cwiseProduct(inv_area).lpNorm<Eigen::Infinity>() <= enough) break;
     z = r.cwiseQuotient(H_diag);
     const double rz_next = r.dot(z);
     d = z + (rz_next / rz) * d;
@@ -239,7 +246,8 @@ std::string newton(Problem& p, const SmoothingOptions& options, bool direct, New
     if (direct) {
       if (!solve_directly(p, st->H_diag, st->g, &delta, &failure)) return failure;
     } else {
-      s->linear_iterations += conjugate_gradients(p, st->H_diag, st->g, eta, &delta, &reached);
+      s->linear_iterations += conjugate_gradients(
+          p, st->H_diag, st->g, eta, kLinearEnough * options.tolerance, &delta, &reached);
     }
     if (!delta.allFinite())
       return "the Newton step is not finite (the rays give no unique smoothed matrix)";

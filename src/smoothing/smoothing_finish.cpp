@@ -151,6 +151,49 @@ double fill_factors(Problem& p, const Eigen::VectorXd& mu, ViewFactors* vf) {
   return top > 0 ? *std::max_element(asymmetry.begin(), asymmetry.end()) / top : 0;
 }
 
+// The raw factors count / rays of one row for counts below kSmallCounts (most of a row's: a
+// patch's rays spread over many receivers), each the same division as for larger counts.
+constexpr std::uint64_t kSmallCounts = 64;
+
+struct RawFactors {
+  double rays = 0;
+  double small[kSmallCounts];
+  explicit RawFactors(std::uint64_t n) : rays(static_cast<double>(n)) {
+    for (std::uint64_t c = 0; c < kSmallCounts; ++c) small[c] = static_cast<double>(c) / rays;
+  }
+  double operator()(std::uint64_t count) const {
+    return count < kSmallCounts ? small[count] : static_cast<double>(count) / rays;
+  }
+};
+
+// The largest |smoothed - raw| / sigma of one row, sigma = correction_sigma(larger of the two,
+// rays) * ratio. Every sigma of the row is at least floor = the standard error at a proportion
+// one ray from 0 (p (1 - p) is smallest at the ends of the clamp), so a change with
+// |smoothed - raw| below worst * floor cannot raise the row's largest and its square root and
+// divisions are skipped. floor is halved: a margin far above round-off (at the clamp's upper
+// end 1 - (1 - lo) is lo only to within 2^-53). The largest is thus exactly the one computed
+// entry by entry.
+class RowCorrections {
+ public:
+  RowCorrections(std::uint64_t rays, double ratio, double worst)
+      : rays_(rays), ratio_(ratio), worst_(worst) {
+    const double lo = std::min(0.5, 1 / static_cast<double>(rays));
+    floor_ = rays > 0 ? 0.5 * factor_standard_error(lo, rays) * ratio : 0.0;
+  }
+  void note(double smoothed, double before) {
+    if (smoothed == 0 && before == 0) return;
+    const double change = std::abs(smoothed - before);
+    if (change < worst_ * floor_) return;
+    const double sigma = correction_sigma(std::max(smoothed, before), rays_) * ratio_;
+    worst_ = std::max(worst_, change / sigma);
+  }
+  double worst() const { return worst_; }
+
+ private:
+  std::uint64_t rays_;
+  double ratio_, worst_, floor_ = 0;
+};
+
 // Row sums and the largest change from the raw factors F_ij = N_ij / N_i, row by row.
 void measure_rows(const Problem& p, const Tallies& t, const ViewFactors& vf, Measures* m) {
   const std::size_t blocks = p.block.size() - 1;
@@ -164,14 +207,8 @@ void measure_rows(const Problem& p, const Tallies& t, const ViewFactors& vf, Mea
   for_each_block(p, [&](std::size_t b, std::size_t first, std::size_t last) {
     double worst_row = 0, worst_correction = 0;
     for (std::size_t i = first; i < last; ++i) {
-      const std::uint64_t rays = t.rays[i];
-      const double n_i = static_cast<double>(rays);
-      auto note = [&](double smoothed, double before) {
-        if (smoothed == 0 && before == 0) return;
-        const double sigma =
-            correction_sigma(std::max(smoothed, before), rays) * (ratio.empty() ? 1.0 : ratio[i]);
-        worst_correction = std::max(worst_correction, std::abs(smoothed - before) / sigma);
-      };
+      const RawFactors raw(t.rays[i]);
+      RowCorrections row(t.rays[i], ratio.empty() ? 1.0 : ratio[i], worst_correction);
       std::uint64_t r = t.hit_offset[i];  // merge walk: both lists ascend
       double sum = 0;
       for (Index k = offset[i]; k < offset[i + 1]; ++k) {
@@ -179,12 +216,13 @@ void measure_rows(const Problem& p, const Tallies& t, const ViewFactors& vf, Mea
         const auto col = static_cast<std::uint32_t>(column[k]);
         while (r < t.hit_offset[i + 1] && t.hit_patch[r] < col) ++r;
         const bool counted = r < t.hit_offset[i + 1] && t.hit_patch[r] == col;
-        note(value[k], counted ? static_cast<double>(t.hit_count[r]) / n_i : 0.0);
+        row.note(value[k], counted ? raw(t.hit_count[r]) : 0.0);
       }
       sum += vf.to_surroundings[i] + vf.to_back_faces[i];
       worst_row = std::max(worst_row, std::abs(sum - 1));
-      note(vf.to_surroundings[i], static_cast<double>(t.escaped[i]) / n_i);
-      note(vf.to_back_faces[i], static_cast<double>(t.back_face[i]) / n_i);
+      row.note(vf.to_surroundings[i], raw(t.escaped[i]));
+      row.note(vf.to_back_faces[i], raw(t.back_face[i]));
+      worst_correction = row.worst();
     }
     row_error[b] = worst_row;
     correction[b] = worst_correction;

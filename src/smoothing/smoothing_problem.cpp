@@ -212,19 +212,39 @@ std::uint64_t count_pairs(const Tallies& t, const Senders& senders, Problem* p) 
   return entries;
 }
 
+// Where each fixed block's rows start in every row of the tallies: entry b n + j is the first
+// receiver of row j at or after block b's first row. Found row by row, so that a row's
+// searches share its cache lines (block by block, each search would fetch them again).
+std::vector<std::uint64_t> block_starts(const Tallies& t, const std::vector<std::size_t>& block) {
+  const std::size_t n = t.rows(), blocks = block.size() - 1;
+  std::vector<std::uint64_t> start(blocks * n);
+  tbb::parallel_for(tbb::blocked_range<std::size_t>(0, n, 1024),
+                    [&](const tbb::blocked_range<std::size_t>& range) {
+                      for (std::size_t j = range.begin(); j != range.end(); ++j) {
+                        const std::uint32_t* q = t.hit_patch.data() + t.hit_offset[j];
+                        const std::uint32_t* row_end = t.hit_patch.data() + t.hit_offset[j + 1];
+                        for (std::size_t b = 0; b < blocks; ++b) {
+                          q = std::lower_bound(q, row_end, static_cast<std::uint32_t>(block[b]));
+                          start[b * n + j] = static_cast<std::uint64_t>(q - t.hit_patch.data());
+                        }
+                      }
+                    });
+  return start;
+}
+
 // Writes sent[s] = the rays that sender senders.from[s] (a row j > i) sent to row i, for the
-// rows i of [first, last). Each row j of the tallies is read once, over its run of receivers
-// in the block; the writes stay within the block's rows, not spread over the tallies as
-// looking each count up from its row would be.
+// rows i of [first, last), whose receivers start in row j at start[j] (block_starts). Each row
+// j of the tallies is read once, over its run of receivers in the block; the writes stay
+// within the block's rows, not spread over the tallies as looking each count up from its row
+// would be.
 void gather_sent(const Tallies& t, const Senders& senders, std::size_t first, std::size_t last,
-                 double* sent) {
+                 const std::uint64_t* start, double* sent) {
   const std::size_t n = senders.begin.size() - 1;
   std::vector<std::uint64_t> next(senders.begin.begin() + static_cast<std::ptrdiff_t>(first),
                                   senders.begin.begin() + static_cast<std::ptrdiff_t>(last));
   for (std::size_t j = first + 1; j < n; ++j) {
-    const std::uint32_t* row = t.hit_patch.data() + t.hit_offset[j];
     const std::uint32_t* row_end = t.hit_patch.data() + t.hit_offset[j + 1];
-    const std::uint32_t* q = std::lower_bound(row, row_end, static_cast<std::uint32_t>(first));
+    const std::uint32_t* q = t.hit_patch.data() + start[j];
     for (; q != row_end && *q < last && *q < j; ++q) {
       const std::uint64_t rays = t.hit_count[static_cast<std::size_t>(q - t.hit_patch.data())];
       if (rays > 0) sent[next[*q - first]++] = static_cast<double>(rays);  // exact below 2^53
@@ -239,8 +259,9 @@ void fill_pairs(const Tallies& t, const Senders& senders, Problem* p) {
   Index* partner = p->F.innerIndexPtr();
   double* count = p->F.valuePtr();
   double* sent = p->F.valuePtr() + p->pairs;
-  for_each_block(p->block, [&](std::size_t, std::size_t first, std::size_t last) {
-    gather_sent(t, senders, first, last, sent);
+  const std::vector<std::uint64_t> start = block_starts(t, p->block);
+  for_each_block(p->block, [&](std::size_t b, std::size_t first, std::size_t last) {
+    gather_sent(t, senders, first, last, start.data() + b * p->n, sent);
     for (std::size_t i = first; i < last; ++i) {
       std::uint64_t out = p->row_begin[i];
       for_each_partner(t, senders.begin, senders.from, i,

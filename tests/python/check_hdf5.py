@@ -133,6 +133,12 @@ def main():
     expected = np.sqrt(F.data * (1 - F.data) / np.repeat(rays, np.diff(F.indptr)))
     check(np.allclose(se.data, expected, rtol=1.53e-5, atol=0), "standard errors")
     check(len(se_bits) > 0 and not np.any(se_bits & 0xFF), "16 significant bits")
+    # To the bit: the double sqrt(p (1 - p) / N) rounded half away from zero to 16 significant
+    # bits (2^36 added to its bits, the low 37 cleared), then made a float32 (exact).
+    bits = expected.astype(np.float64).view(np.uint64)
+    rounded = ((bits + np.uint64(1 << 36)) & ~np.uint64((1 << 37) - 1)).view(np.float64)
+    check(np.array_equal(se.data.view(np.uint32), rounded.astype(np.float32).view(np.uint32)),
+          "standard errors stored to the bit as the README's rounding gives them")
 
     # Patch geometry: each patch a quarter of its face (0.25 m2), centroid on the face's plane
     # at a quarter point, normal the face's inward normal; its triangles cover its area.
