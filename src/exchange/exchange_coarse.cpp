@@ -7,6 +7,7 @@
 #include <algorithm>
 #include <cmath>
 #include <numeric>
+#include <stdexcept>
 #include <tuple>
 
 namespace hearthray {
@@ -18,6 +19,11 @@ constexpr std::uint32_t kNone = ~std::uint32_t{0};
 constexpr double kSmallestRcond = 1e-13;
 // m^3 at most this many times the non-zeros of F (see the constructor).
 constexpr double kFlopsPerNonZero = 16;
+// S_c is factored again when some a_k moved by more than this share of itself. On the
+// 98,592-patch furnace (walls losing 1.2-1.5 W/m2K) a_k moves by ~1e-5 of itself between
+// Newton steps (the wall loss's share of a_k is ~0.2 %), so the first LU serves all steps:
+// measured 4 -> 1 LU (0.05-0.08 s each) and the same 33 GMRES iterations.
+constexpr double kRefactor = 1e-3;
 
 // Classes of faces an aggregate never mixes, tried from the finest to the coarsest: the first
 // with at most `most` classes is taken. Level 0: node (where nodes hold several faces), kind
@@ -80,7 +86,7 @@ void CoarseSpace::bisect(std::size_t begin, std::size_t end, std::size_t pieces)
   bisect(middle, end, pieces - left);
 }
 
-CoarseSpace::CoarseSpace(const Setup& s, int target) : s_(s) {
+CoarseSpace::CoarseSpace(const Setup& s, int target, const PassProducts& products) : s_(s) {
   const std::size_t n = s.faces;
   // At most an eighth of the faces, and few enough that the LU of S_c (2 m^3 / 3 flops, dense
   // and fast) costs about as much as one product with F (memory-bound): measured at 98,592
@@ -134,14 +140,16 @@ CoarseSpace::CoarseSpace(const Setup& s, int target) : s_(s) {
     }
     pairs_.back().weight += s.area[i] * s.eps[i];
   }
-  build_coarse_factors();
+  build_coarse_factors(products);
 }
 
 // F_c = R F P: one pass over F, a row of F_c per aggregate summed by one task in face order,
-// so any thread count gives the same bits.
-void CoarseSpace::build_coarse_factors() {
+// so any thread count gives the same bits; the same pass makes y_k = F x_k (K of them), each
+// row of F summed in column order as multiply() does. Making those products here rather than
+// in a pass of their own saved the start's pass over F (0.2-0.3 CPU-s at 98,592 faces).
+template <int K>
+void CoarseSpace::coarse_pass(const double* const* in, double* const* out) {
   const std::size_t m = size();
-  Fc_.resize(Eigen::Index(m), Eigen::Index(m));
   const SparseMatrix& F = *s_.F;
   tbb::parallel_for(tbb::blocked_range<std::size_t>(0, m, 1),
                     [&](const tbb::blocked_range<std::size_t>& range) {
@@ -151,9 +159,12 @@ void CoarseSpace::build_coarse_factors() {
                         for (std::uint32_t q = first_[I]; q < first_[I + 1]; ++q) {
                           const std::uint32_t i = order_[q];
                           const double a = s_.area[i];
+                          double sum[K > 0 ? K : 1] = {};
                           for (SparseMatrix::InnerIterator it(F, i); it; ++it) {
                             row[aggregate_[it.col()]] += a * it.value();
+                            for (int k = 0; k < K; ++k) sum[k] += it.value() * in[k][it.col()];
                           }
+                          for (int k = 0; k < K; ++k) out[k][i] = sum[k];
                         }
                         for (std::size_t J = 0; J < m; ++J) {
                           Fc_(Eigen::Index(I), Eigen::Index(J)) = row[J] / area_[Eigen::Index(I)];
@@ -162,7 +173,49 @@ void CoarseSpace::build_coarse_factors() {
                     });
 }
 
+void CoarseSpace::build_coarse_factors(const PassProducts& products) {
+  const std::size_t m = size();
+  Fc_.resize(Eigen::Index(m), Eigen::Index(m));
+  const std::size_t K = products.in.size();
+  if (K > 3 || products.out.size() != K) {
+    throw std::invalid_argument("CoarseSpace: at most three products, each with its output");
+  }
+  const double* in[3] = {};
+  double* out[3] = {};
+  for (std::size_t k = 0; k < K; ++k) {
+    products.out[k]->resize(Eigen::Index(s_.faces));
+    in[k] = products.in[k]->data();
+    out[k] = products.out[k]->data();
+  }
+  switch (K) {
+    case 0:
+      coarse_pass<0>(in, out);
+      break;
+    case 1:
+      coarse_pass<1>(in, out);
+      break;
+    case 2:
+      coarse_pass<2>(in, out);
+      break;
+    default:
+      coarse_pass<3>(in, out);
+  }
+}
+
 bool CoarseSpace::factor(const Eigen::VectorXd& a) {
+  if (factored_a_.size() == a.size()) {
+    bool close = true;
+    for (const Pair& p : pairs_) {
+      close = close && std::abs(a[p.node] - factored_a_[p.node]) <= kRefactor * factored_a_[p.node];
+    }
+    if (close) return factored_ok_;
+  }
+  factored_a_ = a;
+  factored_ok_ = factor_now(a);
+  return factored_ok_;
+}
+
+bool CoarseSpace::factor_now(const Eigen::VectorXd& a) {
   const Eigen::Index m = Eigen::Index(size());
   // W_c = diag(d) + sum over unknown nodes k of (c_k / A) c_k^T / a_k, with c_I,k the pairs'
   // weights (a node on one aggregate adds to the diagonal); S_c = I - W_c F_c.

@@ -29,21 +29,33 @@
 namespace hearthray {
 namespace exchange_detail {
 
+// Products y_k = F x_k (at most three) that the pass over F building the coarse matrix also
+// makes, each row summed in column order: bitwise what multiply() gives.
+struct PassProducts {
+  std::vector<const Eigen::VectorXd*> in;
+  std::vector<Eigen::VectorXd*> out;
+};
+
 class CoarseSpace {
  public:
   // About `target` aggregates (fewer for small problems, see the constructor; a few more where
-  // classes of faces end mid-way). One pass over F.
-  CoarseSpace(const Setup& s, int target);
+  // classes of faces end mid-way). One pass over F, which also makes `products`.
+  CoarseSpace(const Setup& s, int target, const PassProducts& products = {});
   std::size_t size() const { return area_.size(); }
   // The coarse operator for the node coefficients a_k of a Newton step (any value on fixed
-  // nodes). Returns false if S_c is singular or not finite (then do not precondition).
+  // nodes). Returns false if S_c is singular or not finite (then do not precondition). Keeps
+  // the last factorisation when no unknown node's a_k moved by more than kRefactor of itself
+  // since (a preconditioner need not be exact: only the linear solves' paths can change).
   bool factor(const Eigen::VectorXd& a);
   // out = M^-1 in.
   void apply(const Eigen::VectorXd& in, Eigen::VectorXd* out) const;
 
  private:
   void bisect(std::size_t begin, std::size_t end, std::size_t pieces);
-  void build_coarse_factors();
+  void build_coarse_factors(const PassProducts& products);
+  template <int K>
+  void coarse_pass(const double* const* in, double* const* out);
+  bool factor_now(const Eigen::VectorXd& a);
   const Setup& s_;
   std::vector<std::uint32_t> aggregate_;  // per face
   std::vector<std::uint32_t> first_;      // faces of aggregate I: order_[first_[I]..first_[I+1])
@@ -58,6 +70,8 @@ class CoarseSpace {
   std::vector<Pair> pairs_;
   Eigen::MatrixXd Fc_;  // R F P, m x m
   Eigen::PartialPivLU<Eigen::MatrixXd> lu_;
+  Eigen::VectorXd factored_a_;  // the a_k of lu_ (empty: none yet)
+  bool factored_ok_ = false;    // what factor() returned for them
   mutable Eigen::VectorXd coarse_;
 };
 

@@ -6,6 +6,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 
 namespace hearthray {
 namespace exchange_detail {
@@ -42,6 +43,15 @@ void multiply_two(const SparseMatrix& F, const Eigen::VectorXd& x1, const Eigen:
   y1->resize(F.rows());
   y2->resize(F.rows());
   multiply_rows<2>(F, {x1.data(), x2.data()}, {y1->data(), y2->data()});
+}
+
+void multiply_three(const SparseMatrix& F, const Eigen::VectorXd& x1, const Eigen::VectorXd& x2,
+                    const Eigen::VectorXd& x3, Eigen::VectorXd* y1, Eigen::VectorXd* y2,
+                    Eigen::VectorXd* y3) {
+  y1->resize(F.rows());
+  y2->resize(F.rows());
+  y3->resize(F.rows());
+  multiply_rows<3>(F, {x1.data(), x2.data(), x3.data()}, {y1->data(), y2->data(), y3->data()});
 }
 
 namespace {
@@ -81,11 +91,51 @@ bool arnoldi_column(const Eigen::MatrixXd& V, Eigen::Index j, Eigen::VectorXd* w
 
 }  // namespace
 
-KrylovSummary gmres(const LinearOperator& A, const LinearOperator& precondition,
-                    const Eigen::VectorXd& b, const KrylovOptions& options, Eigen::VectorXd* x) {
+namespace {
+
+// Round-off allowed for, relative to the sizes of the terms, in a residual taken as a
+// combination of products (b - sum_j y_j A z_j): the products' own sums (rows of thousands of
+// terms) and the combination's. Loose tolerances (1e-3 to 1e-8, the Newton steps' usual
+// ones) are far above it; a tolerance near it is checked by a product.
+constexpr double kCombinationRoundOff = 4096 * std::numeric_limits<double>::epsilon();
+
+void apply_preconditioner(const LinearOperator& precondition, const Eigen::VectorXd& in,
+                          Eigen::VectorXd* out) {
+  if (precondition) {
+    precondition(in, out);
+  } else {
+    *out = in;
+  }
+}
+
+// The end of a cycle of j > 0 steps: x += M^-1 V y, y minimising the cycle's residual; when the
+// products are kept (Bx given), r -= AZ y and Bx += BZ y, adding the round-off bound of that
+// combination to *drift.
+void close_cycle(const Eigen::MatrixXd& V, const Eigen::MatrixXd& H, const Eigen::VectorXd& g,
+                 Eigen::Index j, const LinearOperator& precondition, const Eigen::MatrixXd& AZ,
+                 const Eigen::MatrixXd& BZ, Eigen::VectorXd* x, Eigen::VectorXd* r,
+                 Eigen::VectorXd* Bx, double* drift) {
+  const Eigen::VectorXd y = H.topLeftCorner(j, j).triangularView<Eigen::Upper>().solve(g.head(j));
+  const Eigen::VectorXd update = V.leftCols(j) * y;
+  Eigen::VectorXd z;
+  apply_preconditioner(precondition, update, &z);
+  *x += z;
+  if (Bx == nullptr) return;
+  double size = r->norm();
+  for (Eigen::Index q = 0; q < j; ++q) size += std::abs(y[q]) * AZ.col(q).norm();
+  r->noalias() -= AZ.leftCols(j) * y;
+  Bx->noalias() += BZ.leftCols(j) * y;
+  *drift += kCombinationRoundOff * size;
+}
+
+// The loop of both forms; Bx null: the plain form (the residual by a product after each cycle).
+KrylovSummary restarted_gmres(const PairedOperator& A, const LinearOperator& precondition,
+                              const Eigen::VectorXd& b, const KrylovOptions& options,
+                              Eigen::VectorXd* x, Eigen::VectorXd* Bx) {
   using Eigen::Index;
   const Index n = b.size();
   x->setZero(n);
+  if (Bx != nullptr) Bx->setZero(n);
   KrylovSummary summary;
   const double b_norm = b.norm();
   if (!(b_norm > 0)) {
@@ -94,19 +144,18 @@ KrylovSummary gmres(const LinearOperator& A, const LinearOperator& precondition,
   }
   const Index m = std::max<Index>(1, std::min<Index>(options.restart, n));
   const double target = options.tolerance * b_norm;
-  auto apply_preconditioner = [&](const Eigen::VectorXd& in, Eigen::VectorXd* out) {
-    if (precondition) {
-      precondition(in, out);
-    } else {
-      *out = in;
-    }
-  };
-
   Eigen::MatrixXd V(n, m + 1);                          // orthonormal Krylov basis
   Eigen::MatrixXd H = Eigen::MatrixXd::Zero(m + 1, m);  // Hessenberg, rotated to triangular
+  Eigen::MatrixXd AZ, BZ;                               // A z_j and B z_j of the cycle
+  if (Bx != nullptr) {
+    AZ.resize(n, m);
+    BZ.resize(n, m);
+  }
   Eigen::VectorXd cs(m), sn(m), g(m + 1);
-  Eigen::VectorXd r = b, w(n), z(n);
+  Eigen::VectorXd r = b, w(n), z(n), side;
   double beta = b_norm;  // ||b - A x|| for the current x (x = 0 at the start)
+  // Bound on the round-off in r since it was last measured by a product (none yet: r = b).
+  double drift = 0;
   bool broke_down = false;
   while (beta > target && summary.iterations < options.max_iterations) {
     V.col(0) = r / beta;
@@ -115,8 +164,14 @@ KrylovSummary gmres(const LinearOperator& A, const LinearOperator& precondition,
     g[0] = beta;
     Index j = 0;
     while (j < m && summary.iterations < options.max_iterations) {
-      apply_preconditioner(V.col(j), &z);
-      A(z, &w);
+      apply_preconditioner(precondition, V.col(j), &z);
+      if (Bx != nullptr) {
+        A(z, &w, &side);
+        AZ.col(j) = w;
+        BZ.col(j) = side;
+      } else {
+        A(z, &w, nullptr);
+      }
       ++summary.iterations;
       double h_next = 0;
       if (!arnoldi_column(V, j, &w, &H, &cs, &sn, &g, &h_next)) {
@@ -127,24 +182,40 @@ KrylovSummary gmres(const LinearOperator& A, const LinearOperator& precondition,
       if (!(h_next > 0) || std::abs(g[j]) <= target) break;
       V.col(j) = w / h_next;
     }
-    if (j > 0) {
-      const Eigen::VectorXd y =
-          H.topLeftCorner(j, j).triangularView<Eigen::Upper>().solve(g.head(j));
-      const Eigen::VectorXd update = V.leftCols(j) * y;
-      apply_preconditioner(update, &z);
-      *x += z;
-    }
-    // The true residual, not the recurrence's estimate, decides (and restarts from it).
-    A(*x, &w);
-    r = b - w;
+    const bool combined = Bx != nullptr && j > 0;  // r and Bx from this cycle's products
+    if (j > 0) close_cycle(V, H, g, j, precondition, AZ, BZ, x, &r, Bx, &drift);
     const double previous = beta;
-    beta = r.norm();
+    if (combined) beta = r.norm();
+    const bool settled = combined && beta + drift <= target;
+    const bool last = broke_down || summary.iterations >= options.max_iterations || j == 0;
+    if (!settled && (!combined || beta <= target || last || !std::isfinite(beta))) {
+      // The true residual, measured by a product (and restarted from).
+      A(*x, &w, Bx);
+      r = b - w;
+      beta = r.norm();
+      drift = 0;
+    }
     if (broke_down || !std::isfinite(beta) || (j == 0 && beta >= previous)) break;
   }
   summary.relative_residual = beta / b_norm;
   summary.converged = beta <= target;
   summary.breakdown = broke_down && !summary.converged;
   return summary;
+}
+
+}  // namespace
+
+KrylovSummary gmres(const LinearOperator& A, const LinearOperator& precondition,
+                    const Eigen::VectorXd& b, const KrylovOptions& options, Eigen::VectorXd* x) {
+  const PairedOperator plain = [&A](const Eigen::VectorXd& in, Eigen::VectorXd* out,
+                                    Eigen::VectorXd*) { A(in, out); };
+  return restarted_gmres(plain, precondition, b, options, x, nullptr);
+}
+
+KrylovSummary gmres(const PairedOperator& A, const LinearOperator& precondition,
+                    const Eigen::VectorXd& b, const KrylovOptions& options, Eigen::VectorXd* x,
+                    Eigen::VectorXd* Bx) {
+  return restarted_gmres(A, precondition, b, options, x, Bx);
 }
 
 }  // namespace exchange_detail

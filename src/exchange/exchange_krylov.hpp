@@ -17,6 +17,10 @@ void multiply(const SparseMatrix& F, const Eigen::VectorXd& x, Eigen::VectorXd* 
 // y1 = F x1 and y2 = F x2 in one pass over F (each bitwise as multiply would give it).
 void multiply_two(const SparseMatrix& F, const Eigen::VectorXd& x1, const Eigen::VectorXd& x2,
                   Eigen::VectorXd* y1, Eigen::VectorXd* y2);
+// The same for three vectors.
+void multiply_three(const SparseMatrix& F, const Eigen::VectorXd& x1, const Eigen::VectorXd& x2,
+                    const Eigen::VectorXd& x3, Eigen::VectorXd* y1, Eigen::VectorXd* y2,
+                    Eigen::VectorXd* y3);
 
 // out = A in, for a linear operator given as a function (never a stored matrix).
 using LinearOperator = std::function<void(const Eigen::VectorXd& in, Eigen::VectorXd* out)>;
@@ -30,7 +34,7 @@ struct KrylovOptions {
 struct KrylovSummary {
   bool converged = false;
   int iterations = 0;            // products with A
-  double relative_residual = 0;  // ||b - A x||_2 / ||b||_2, recomputed from x at the end
+  double relative_residual = 0;  // ||b - A x||_2 / ||b||_2, of the x returned (see below)
   bool breakdown = false;        // A z = 0 for some z != 0: the operator is singular
 };
 
@@ -43,6 +47,21 @@ struct KrylovSummary {
 // depend on the thread count.
 KrylovSummary gmres(const LinearOperator& A, const LinearOperator& precondition,
                     const Eigen::VectorXd& b, const KrylovOptions& options, Eigen::VectorXd* x);
+
+// out = A in, and side = B in for a second linear map B of the same input (e.g. F in, where
+// A in = in - W F in): what a caller needs of B x besides x.
+using PairedOperator =
+    std::function<void(const Eigen::VectorXd& in, Eigen::VectorXd* out, Eigen::VectorXd* side)>;
+
+// The same GMRES on a paired operator, also giving Bx = B x. It keeps the products A z_j and
+// B z_j of each cycle (2 more vectors per iteration) and, at a cycle's end, takes the residual
+// b - A x and B x as the same combinations of them as x is of the z_j (by linearity) instead
+// of one more product with A: when that residual plus a bound on its round-off is under the
+// tolerance, the solve ends there; otherwise (near the tolerance, a tight tolerance, or at the
+// end of the iterations) the residual and B x are measured by a product with x, as above.
+KrylovSummary gmres(const PairedOperator& A, const LinearOperator& precondition,
+                    const Eigen::VectorXd& b, const KrylovOptions& options, Eigen::VectorXd* x,
+                    Eigen::VectorXd* Bx);
 
 }  // namespace exchange_detail
 }  // namespace hearthray
