@@ -2,6 +2,7 @@
 // kind of bad file rejected rather than trusted.
 #include <catch2/catch.hpp>
 #include <cstdlib>
+#include <filesystem>
 #include <string>
 
 #include "hearthray/cache.hpp"
@@ -168,6 +169,16 @@ TEST_CASE("a bad cache file is rejected and never trusted", "[cache]") {
                           std::vector<std::uint64_t>(sheet.patches.size(), 2000));
   CHECK(c.status == CacheStatus::rejected);
   CHECK_THAT(c.reason, Contains("patches"));
+
+  // A folder where the file should be (the reader sizes its buffer from the file): taken as
+  // no cache, not read.
+  std::filesystem::remove(path);
+  std::filesystem::create_directory(path);
+  c = load_cached_tallies(folder, key, l.scene, l.patches,
+                          std::vector<std::uint64_t>(l.patches.size(), 2000));
+  CHECK(c.status == CacheStatus::missing);
+  CHECK(c.tallies.rows() == 0);
+  std::filesystem::remove(path);
 
   // A folder that cannot be made: reported, not thrown.
   write_text(dir / "a-file", "x");

@@ -47,21 +47,30 @@ void require_size(std::size_t size, std::size_t faces, const std::string& what, 
                    " faces: give one face per view-factor patch, in the same order");
 }
 
-// Union-find over nodes: nodes whose faces see each other exchange heat and share a level.
+// Union-find over nodes: nodes whose faces see each other exchange heat and share a level. A
+// group is anchored when one of its nodes is (see check_temperature_level).
 struct Groups {
   std::vector<std::uint32_t> parent;
-  std::size_t count;  // groups left
-  explicit Groups(std::size_t n) : parent(n), count(n) {
+  std::vector<char> anchored;  // per root
+  std::size_t count;           // groups left
+  std::size_t unanchored;      // groups left without an anchor
+  explicit Groups(const std::vector<char>& anchors)
+      : parent(anchors.size()), anchored(anchors), count(anchors.size()) {
     std::iota(parent.begin(), parent.end(), 0u);
+    unanchored = std::size_t(std::count(anchors.begin(), anchors.end(), char(0)));
   }
   std::uint32_t find(std::uint32_t a) {
     while (parent[a] != a) a = parent[a] = parent[parent[a]];
     return a;
   }
-  void join(std::uint32_t a, std::uint32_t b) {
-    const std::uint32_t from = find(a), to = find(b);
+  // Puts root `from` under root `to` (two different roots).
+  void merge(std::uint32_t from, std::uint32_t to) {
     parent[from] = to;
-    if (from != to) --count;
+    --count;
+    // Two groups without an anchor become one, or one joins an anchored group: one fewer
+    // unanchored group either way.
+    if (!anchored[from] || !anchored[to]) --unanchored;
+    anchored[to] = anchored[from] || anchored[to];
   }
 };
 
@@ -69,30 +78,41 @@ struct Groups {
 // the surroundings. A group of nodes with none of these has a heat balance that holds at any
 // level (or at none): refuse it rather than hand a singular system to the solver.
 void check_temperature_level(const ExchangeProblem& problem, const Setup& s) {
-  Groups groups(s.nodes);
-  const SparseMatrix& F = *s.F;
-  // Once every node is in one group the rest of F can join nothing (an enclosure is usually
-  // joined within its first rows): stopping there leaves the groups, and their roots, as the
-  // whole pass would.
-  for (int i = 0; i < F.outerSize() && groups.count > 1; ++i) {
-    for (SparseMatrix::InnerIterator it(F, i); it; ++it) {
-      if (it.value() > 0) groups.join(s.node_of_face[i], s.node_of_face[it.col()]);
-    }
-  }
-  std::vector<bool> anchored(s.nodes, false);
+  std::vector<char> anchors(s.nodes, 0);
   for (std::size_t k = 0; k < s.nodes; ++k) {
-    if (s.fixed[k] || s.hA[k] > 0 || s.UA[k] > 0) anchored[groups.find(k)] = true;
+    if (s.fixed[k] || s.hA[k] > 0 || s.UA[k] > 0) anchors[k] = 1;
   }
   for (std::size_t i = 0; i < s.faces; ++i) {
-    if (s.to_surroundings[i] > 0) anchored[groups.find(s.node_of_face[i])] = true;
+    if (s.to_surroundings[i] > 0) anchors[s.node_of_face[i]] = 1;
   }
+  Groups groups(anchors);
+  const SparseMatrix& F = *s.F;
+  // Row i joins its node's group with those of the faces it sees: the row's root stays the
+  // root (the others go under it), so it is found once a row, and a run of columns on one
+  // node is looked up once. Once every group has an anchor the rest of F cannot leave one
+  // without, and once every node is in one group it can join nothing (an enclosure is usually
+  // joined within its first rows): either way the answer is what the whole pass would give.
+  for (int i = 0; i < F.outerSize() && groups.count > 1 && groups.unanchored > 0; ++i) {
+    const std::uint32_t root = groups.find(s.node_of_face[std::size_t(i)]);
+    std::uint32_t last = root;  // the node of the previous column (already in root's group)
+    for (SparseMatrix::InnerIterator it(F, i); it; ++it) {
+      const std::uint32_t node = s.node_of_face[std::size_t(it.col())];
+      if (node == last || !(it.value() > 0)) continue;
+      last = node;
+      const std::uint32_t other = groups.find(node);
+      if (other != root) groups.merge(other, root);
+    }
+  }
+  const std::vector<char>& anchored = groups.anchored;
   auto advice = [](const std::string& whom) {
     return "give " + whom +
            " a temperature, or add convection to a fluid, a wall loss to an "
            "outside temperature, or an opening to surroundings with a [surroundings] temperature";
   };
-  for (std::uint32_t root = 0; root < s.nodes; ++root) {
-    if (groups.find(root) != root || anchored[root]) continue;
+  // The group without an anchor that holds the lowest-numbered node is reported.
+  for (std::uint32_t first = 0; first < s.nodes; ++first) {
+    const std::uint32_t root = groups.find(first);
+    if (anchored[root]) continue;
     std::vector<std::string> names;
     for (std::uint32_t k = 0; k < s.nodes; ++k) {
       if (groups.find(k) == root) names.push_back(quoted(problem.nodes[k].name));

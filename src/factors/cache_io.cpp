@@ -6,7 +6,6 @@
 #include <atomic>
 #include <filesystem>
 #include <fstream>
-#include <sstream>
 
 namespace hearthray {
 namespace cache_io {
@@ -43,11 +42,16 @@ std::string read_cache_file(const std::string& path, const char (&magic)[8], std
                             const TallyCacheKey& key, std::size_t header_bytes,
                             const std::string& what, std::string* data, std::uint32_t* flags) {
   {
-    std::ifstream in(path, std::ios::binary);
-    std::ostringstream ss;
-    ss << in.rdbuf();
-    if (!in) return "it could not be read";
-    *data = ss.str();
+    // Read straight into a string of the file's size: through a string stream the bytes were
+    // copied three times, and held twice (a 98,592-patch cache is 1.7 GB).
+    std::error_code error;
+    const std::uintmax_t bytes = std::filesystem::file_size(path, error);  // fails on a folder
+    std::ifstream in(path, std::ios::binary | std::ios::ate);
+    const std::streamoff size = in ? std::streamoff(in.tellg()) : -1;
+    if (error || size < 0 || std::uintmax_t(size) != bytes) return "it could not be read";
+    data->resize(static_cast<std::size_t>(size));
+    in.seekg(0);
+    if (!in.read(data->data(), size)) return "it could not be read";
   }
   if (data->size() < header_bytes) return "it is too short to hold a header";
   if (std::memcmp(data->data(), magic, sizeof magic) != 0) return "it is not a " + what;
