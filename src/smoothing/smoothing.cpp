@@ -309,7 +309,6 @@ ViewFactors smooth_view_factors(const PatchSet& patches, const Tallies& tallies,
     vf.areas.push_back(patch.area);
   }
   vf.rays = tallies.rays;
-  vf.error_ratio = replicate_error_ratio(tallies);
   vf.smoothed = true;
   const smoothing_detail::Measures m = smoothing_detail::finish(p, st.mu, tallies, &vf);
   vf.max_correction_sigma = m.max_correction_sigma;

@@ -76,9 +76,10 @@ struct Measures {
   double max_correction_sigma = 0;
 };
 
-// Writes the result into vf (F, to_surroundings, to_back_faces; other fields untouched):
-// F_ij = S_ij / A_i with S_ij = n_ij / (mu_i + mu_j), S_ii = N_ii / mu_i, on the pattern of the
-// counts. Consumes p.F. Reads vf->error_ratio (replicate_error_ratio of the tallies, or empty).
+// Writes the result into vf (F, to_surroundings, to_back_faces, error_ratio; other fields
+// untouched): F_ij = S_ij / A_i with S_ij = n_ij / (mu_i + mu_j), S_ii = N_ii / mu_i, on the
+// pattern of the counts, and the replicate_error_ratio of the tallies (empty without
+// replicates). Consumes p.F.
 Measures finish(Problem& p, const Eigen::VectorXd& mu, const Tallies& tallies, ViewFactors* vf);
 
 }  // namespace smoothing_detail
