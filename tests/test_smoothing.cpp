@@ -660,6 +660,17 @@ TEST_CASE("smoothing rejects incomplete or inconsistent input", "[smoothing]") {
   Tallies too_many = t;
   too_many.escaped[1] = too_many.rays[1];  // more counted rays than emitted
   CHECK_THROWS_AS(smooth_view_factors(patches, too_many, SmoothingOptions{}, &summary), InputError);
+  CHECK_THROWS_WITH(smooth_view_factors(patches, too_many, SmoothingOptions{}, &summary),
+                    Catch::Contains("counted rays but emitted only"));
+  // Two bad rows (checked in parallel): the first is the one told.
+  Tallies unordered = t;
+  REQUIRE(unordered.hit_offset[5] - unordered.hit_offset[4] >= 2);
+  std::swap(unordered.hit_patch[unordered.hit_offset[4]],
+            unordered.hit_patch[unordered.hit_offset[4] + 1]);
+  unordered.rays[5] = 0;
+  CHECK_THROWS_WITH(
+      smooth_view_factors(patches, unordered, SmoothingOptions{}, &summary),
+      Catch::Contains("receivers of patch 4 'z0'") && Catch::Contains("not in ascending order"));
 }
 
 TEST_CASE("raw factors of a shard and their standard errors", "[smoothing]") {

@@ -2,11 +2,13 @@
 // the multipliers, and the measures of the result (see smoothing_problem.hpp, finish()).
 #include <tbb/blocked_range.h>
 #include <tbb/parallel_for.h>
+#include <tbb/parallel_reduce.h>
 #include <tbb/task_group.h>
 
 #include <algorithm>
 #include <cmath>
 #include <cstring>
+#include <utility>
 #include <vector>
 
 #include "hearthray/statistics.hpp"
@@ -197,39 +199,46 @@ class RowCorrections {
 
 // Row sums and the largest change from the raw factors F_ij = N_ij / N_i, row by row.
 void measure_rows(const Problem& p, const Tallies& t, const ViewFactors& vf, Measures* m) {
-  const std::size_t blocks = p.block.size() - 1;
   const Index* offset = p.F.outerIndexPtr();
   const Index* column = p.F.innerIndexPtr();
   const double* value = p.F.valuePtr();
-  std::vector<double> row_error(blocks, 0.0), correction(blocks, 0.0);
   // Sampler sobol: standard errors from the replicates (the binomial one times the row's ratio,
   // replicate_error_ratio, which finish() has put in vf.error_ratio).
   const std::vector<double>& ratio = vf.error_ratio;
-  for_each_block(p, [&](std::size_t b, std::size_t first, std::size_t last) {
-    double worst_row = 0, worst_correction = 0;
-    for (std::size_t i = first; i < last; ++i) {
-      const RawFactors raw(t.rays[i]);
-      RowCorrections row(t.rays[i], ratio.empty() ? 1.0 : ratio[i], worst_correction);
-      std::uint64_t r = t.hit_offset[i];  // merge walk: both lists ascend
-      double sum = 0;
-      for (Index k = offset[i]; k < offset[i + 1]; ++k) {
-        sum += value[k];
-        const auto col = static_cast<std::uint32_t>(column[k]);
-        while (r < t.hit_offset[i + 1] && t.hit_patch[r] < col) ++r;
-        const bool counted = r < t.hit_offset[i + 1] && t.hit_patch[r] == col;
-        row.note(value[k], counted ? raw(t.hit_count[r]) : 0.0);
-      }
-      sum += vf.to_surroundings[i] + vf.to_back_faces[i];
-      worst_row = std::max(worst_row, std::abs(sum - 1));
-      row.note(vf.to_surroundings[i], raw(t.escaped[i]));
-      row.note(vf.to_back_faces[i], raw(t.back_face[i]));
-      worst_correction = row.worst();
-    }
-    row_error[b] = worst_row;
-    correction[b] = worst_correction;
-  });
-  m->max_row_error = *std::max_element(row_error.begin(), row_error.end());
-  m->max_correction_sigma = *std::max_element(correction.begin(), correction.end());
+  // Both measures are maxima, exact in any grouping (and never NaN: std::max(m, NaN) is m), so
+  // the rows are shared out in small ranges rather than the fixed blocks of the pair passes:
+  // those are balanced on the pairs right of the diagonal, and this pass reads whole rows,
+  // which left one thread measuring the last blocks alone for 0.2 s at 98,592 patches.
+  using Worst = std::pair<double, double>;  // row error, correction
+  const Worst worst = tbb::parallel_reduce(
+      tbb::blocked_range<std::size_t>(0, p.n, 256), Worst{0.0, 0.0},
+      [&](const tbb::blocked_range<std::size_t>& rows, Worst so_far) {
+        double worst_row = so_far.first, worst_correction = so_far.second;
+        for (std::size_t i = rows.begin(); i < rows.end(); ++i) {
+          const RawFactors raw(t.rays[i]);
+          RowCorrections row(t.rays[i], ratio.empty() ? 1.0 : ratio[i], worst_correction);
+          std::uint64_t r = t.hit_offset[i];  // merge walk: both lists ascend
+          double sum = 0;
+          for (Index k = offset[i]; k < offset[i + 1]; ++k) {
+            sum += value[k];
+            const auto col = static_cast<std::uint32_t>(column[k]);
+            while (r < t.hit_offset[i + 1] && t.hit_patch[r] < col) ++r;
+            const bool counted = r < t.hit_offset[i + 1] && t.hit_patch[r] == col;
+            row.note(value[k], counted ? raw(t.hit_count[r]) : 0.0);
+          }
+          sum += vf.to_surroundings[i] + vf.to_back_faces[i];
+          worst_row = std::max(worst_row, std::abs(sum - 1));
+          row.note(vf.to_surroundings[i], raw(t.escaped[i]));
+          row.note(vf.to_back_faces[i], raw(t.back_face[i]));
+          worst_correction = row.worst();
+        }
+        return Worst{worst_row, worst_correction};
+      },
+      [](const Worst& a, const Worst& b) {
+        return Worst{std::max(a.first, b.first), std::max(a.second, b.second)};
+      });
+  m->max_row_error = worst.first;
+  m->max_correction_sigma = worst.second;
 }
 
 }  // namespace
