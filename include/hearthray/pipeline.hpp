@@ -15,6 +15,7 @@
 
 #include <cstdint>
 #include <functional>
+#include <memory>
 #include <optional>
 #include <string>
 #include <vector>
@@ -183,6 +184,9 @@ struct FactorRun {
   std::vector<Warning> warnings;   // mesh, then ray diagnostics, then cache
   std::vector<std::string> notes;  // from the ray diagnostics
   RayTarget target;                // rounds to an error wanted (target.used), else unused
+  // The tracer the rays were traced with (default options), kept for the run's pictures;
+  // null when nothing was traced (a cache hit) or the run was traced with other options.
+  std::shared_ptr<const Tracer> tracer;
 
   bool from_cache() const { return cache == CacheOutcome::hit; }
 };

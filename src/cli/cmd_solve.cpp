@@ -78,7 +78,11 @@ std::vector<std::string> write_solve_pictures(const SolveArgs& args, const Solve
                                               const std::vector<PatchField>& fields,
                                               UnitSystem units, OutputFolder& out) {
   const FactorRun& run = solved.run;
-  const Tracer tracer(run.scene);
+  // The run's own tracer when it traced (the same default options: the same pictures), so
+  // that its acceleration structures are not built twice.
+  std::optional<Tracer> built;
+  if (!run.tracer) built.emplace(run.scene);
+  const Tracer& tracer = run.tracer ? *run.tracer : *built;
   const std::string scene_name = fs::path(solved.file.path).stem().string();
   const bool converged = solved.result.status == ExchangeStatus::converged;
   std::vector<std::string> files;

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <fstream>
 #include <iterator>
+#include <memory>
 #include <stdexcept>
 
 #include "hearthray/cache.hpp"
@@ -86,7 +87,10 @@ void trace_run(const PipelineOptions& options, const Reporter& reporter, FactorR
   vf.tracer = options.tracer;
   vf.progress = reporter.trace();
   reporter.start(PipelineStage::build_tracer);
-  const Tracer tracer(run->scene, vf.tracer);
+  const auto built = std::make_shared<const Tracer>(run->scene, vf.tracer);
+  const Tracer& tracer = *built;
+  const TracerOptions defaults;
+  if (vf.tracer.edges == defaults.edges) run->tracer = built;  // for the pictures
   reporter.start(PipelineStage::trace);
   if (!options.split_tracing) {
     run->tallies = trace_tallies(run->scene, run->patches, tracer, vf, &run->stats);
