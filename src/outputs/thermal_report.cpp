@@ -392,30 +392,32 @@ void write_solve_json(std::ostream& out, const SolveReportInfo& info, const Ther
 
 namespace {
 
+// The largest p (1 - p) of factors p clamped to [0, 1], as a vectorised max reduction (this
+// file is compiled with -fopenmp-simd and -fno-trapping-math, CMakeLists.txt): a max is
+// exact, so the lanes' order does not matter, and a NaN never enters (m < NaN is false).
+[[gnu::target_clones("avx2", "default")]] double largest_term(const double* values,
+                                                              std::size_t count, double term) {
+#pragma omp simd reduction(max : term)
+  for (std::size_t k = 0; k < count; ++k) {
+    const double v = values[k];
+    const double p = v < 0.0 ? 0.0 : (1.0 < v ? 1.0 : v);  // std::clamp(v, 0, 1)
+    const double t = p * (1 - p);
+    term = term < t ? t : term;  // std::max(term, t)
+  }
+  return term;
+}
+
 // The largest standard error of row f's factors and of its fraction to the surroundings, as
 // the largest of vf.standard_error(f, F_fj) (0 for an empty row). That error,
 // sqrt(p (1 - p) / N) times the row's error ratio, is a non-decreasing function of the rounded
 // p (1 - p) (each rounded operation is monotone), so the largest is the one of the largest
 // p (1 - p): one square root a row rather than one an entry, and the same value. NaN terms are
 // skipped by the max as before.
-// The row's entries are taken four at a time into four maxima (a max is exact, so the order
-// does not matter and NaN never enters one: std::max(m, NaN) is m), written as selects that
-// GCC vectorises (this file is compiled with -fno-trapping-math, CMakeLists.txt).
 double largest_standard_error(const ViewFactors& vf, std::size_t f) {
-  const auto term_of = [](double value) {
-    const double p = value < 0.0 ? 0.0 : (1.0 < value ? 1.0 : value);  // std::clamp(v, 0, 1)
-    return p * (1 - p);
-  };
-  const auto larger = [](double m, double t) { return m < t ? t : m; };  // std::max(m, t)
   const double* values = vf.F.valuePtr() + vf.F.outerIndexPtr()[f];
   const std::size_t count = std::size_t(vf.F.row(Eigen::Index(f)).nonZeros());
-  double m[4] = {0, 0, 0, 0};
-  std::size_t k = 0;
-  for (; k + 4 <= count; k += 4)
-    for (int l = 0; l < 4; ++l) m[l] = larger(m[l], term_of(values[k + std::size_t(l)]));
-  for (; k < count; ++k) m[0] = larger(m[0], term_of(values[k]));
-  if (f < vf.to_surroundings.size()) m[0] = larger(m[0], term_of(vf.to_surroundings[f]));
-  const double term = std::max({m[0], m[1], m[2], m[3]});  // largest p (1 - p)
+  double term = largest_term(values, count, 0.0);  // largest p (1 - p)
+  if (f < vf.to_surroundings.size()) term = largest_term(&vf.to_surroundings[f], 1, term);
   const double binomial = std::sqrt(term / static_cast<double>(vf.rays[f]));
   return std::max(0.0, vf.error_ratio.empty() ? binomial : binomial * vf.error_ratio.at(f));
 }
