@@ -57,8 +57,10 @@ std::array<double, 2> invert_cosine_hemisphere(const Vec3& local_direction);
 inline void sincos_2pi(double u, double* s, double* c) {
   // Reduce 2*pi*u to a quadrant and x in [-pi/4, pi/4], then Taylor polynomials of sin x and
   // cos x, truncated where the next term is below 4e-7. Inline: it runs once per ray.
+  // k = floor(q + 0.5) as a truncation, q + 0.5 being positive: the same value, and a loop
+  // over rays calling this is vectorised without SSE4.1's rounding (emitter_sampling.cpp).
   const double q = u * 4.0;
-  const double k = std::floor(q + 0.5);
+  const double k = double(static_cast<std::int32_t>(q + 0.5));
   const double x = (q - k) * (kPi / 2);
   const double x2 = x * x;
   const double sn = x * (1 + x2 * (-1.0 / 6 + x2 * (1.0 / 120 - x2 / 5040)));

@@ -69,26 +69,17 @@ inline double fraction32(std::uint32_t v) {
 
 // The local direction of every point (z along the normal, times `sign`), put in the rays'
 // dir for place_origin to turn into the triangle's frame: sample_cosine_hemisphere's
-// arithmetic on (x[2], x[3]) written without calls, lookups or branches so that the loop is
-// vectorised; every operation is the same, so every bit is. The file is compiled
+// arithmetic on (x[2], x[3]) (the inline sincos_2pi, then the square roots) written without
+// lookups or branches so that the loop is vectorised; every operation is the same, so every
+// bit is. The file is compiled
 // with -fno-math-errno and -fno-trapping-math (CMakeLists.txt): sqrt's errno branch and
 // selects between doubles would otherwise keep the loops here from being vectorised.
 [[gnu::target_clones("avx2", "default")]] void local_directions(
     const EmitterSampler::SobolPoint* points, std::size_t count, float sign, Ray* rays) {
   for (std::size_t i = 0; i < count; ++i) {
     const double u1 = fraction32(points[i].x[2]), u2 = fraction32(points[i].x[3]);
-    // sincos_2pi(u2), with floor(q + 0.5) as a truncation (q + 0.5 > 0).
-    const double q = u2 * 4.0;
-    const double k = double(std::int32_t(q + 0.5));
-    const double x = (q - k) * (kPi / 2);
-    const double x2 = x * x;
-    const double sn = x * (1 + x2 * (-1.0 / 6 + x2 * (1.0 / 120 - x2 / 5040)));
-    const double cs = 1 + x2 * (-0.5 + x2 * (1.0 / 24 + x2 * (-1.0 / 720 + x2 / 40320)));
-    const int quadrant = static_cast<int>(k) & 3;
-    const double s_abs = (quadrant & 1) ? cs : sn;
-    const double c_abs = (quadrant & 1) ? sn : cs;
-    const double sine = (quadrant & 2) ? -s_abs : s_abs;
-    const double cosine = ((quadrant + 1) & 2) ? -c_abs : c_abs;
+    double sine, cosine;
+    sincos_2pi(u2, &sine, &cosine);
     const double r = std::sqrt(static_cast<float>(u1));
     const double z = std::sqrt(static_cast<float>(1.0 - u1));  // = max(0, 1 - u1): u1 < 1
     rays[i].dir[0] = float(r * cosine);
