@@ -302,19 +302,28 @@ void put_literal_block(const unsigned char* in, std::size_t size, bool last, Bit
 
 void put_run_block(const unsigned char* in, std::size_t size, bool last, BitWriter& out,
                    std::vector<std::uint16_t>* tokens) {
-  // Tokens: a literal (0-255), or a copy at distance 1 (its length + 256, 259 to 514).
-  tokens->clear();
+  // Tokens: a literal (0-255), or a copy at distance 1 (its length + 256, 259 to 514), at
+  // most one per byte: written through a pointer into room for all, and counted as they are
+  // made (a plane of short runs makes nearly a token a byte).
+  tokens->resize(size);
+  std::uint16_t* token = tokens->data();
+  std::uint32_t counts[kMaxLiteralLengthCodes] = {};
   for (std::size_t k = 0; k < size;) {
     const std::size_t end = run_end(in, k, size);
-    tokens->push_back(in[k]);
+    const std::uint16_t byte = in[k];
+    *token++ = byte;
+    ++counts[byte];
     std::size_t copies = end - k - 1;
-    for (; copies >= 3; copies -= std::min<std::size_t>(copies, 258))
-      tokens->push_back(std::uint16_t(256 + std::min<std::size_t>(copies, 258)));
-    for (; copies > 0; --copies) tokens->push_back(in[k]);
+    for (; copies >= 3; copies -= std::min<std::size_t>(copies, 258)) {
+      const std::size_t length = std::min<std::size_t>(copies, 258);
+      *token++ = std::uint16_t(256 + length);
+      ++counts[kLengthCodes.of[length].symbol];
+    }
+    counts[byte] += std::uint32_t(copies);  // the rest, fewer than 3, as literals
+    for (; copies > 0; --copies) *token++ = byte;
     k = end;
   }
-  std::uint32_t counts[kMaxLiteralLengthCodes] = {};
-  for (std::uint16_t t : *tokens) ++counts[t < 256 ? t : kLengthCodes.of[t - 256].symbol];
+  tokens->resize(std::size_t(token - tokens->data()));
   counts[kEndOfBlock] = 1;
   int hlit = kMaxLiteralLengthCodes;
   while (hlit > kLiteralLengthCodes && counts[hlit - 1] == 0) --hlit;
