@@ -46,12 +46,12 @@ std::vector<EmitterSampler::TriangleFrame> make_frames(const Scene& scene, const
   return frames;
 }
 
-// The ray from barycentric point `bc` of triangle frame `f` in local direction `d` (z along
-// the normal, flipped by `sign` for a back side), lifted off the surface by the frame's offset.
-inline void place_ray(const EmitterSampler::TriangleFrame& f, const Barycentric& bc, const Vec3& d,
-                      float sign, Ray* ray, float* offset) {
+// The ray's origin at barycentric point `bc` of frame `f`, lifted off the surface, and its
+// direction turned from the local one already in ray->dir (z along the normal, times `sign`).
+inline void place_origin(const EmitterSampler::TriangleFrame& f, const Barycentric& bc, float sign,
+                         Ray* ray, float* offset) {
   const float b1 = float(bc.b1), b2 = float(bc.b2);
-  const float dx = float(d.x), dy = float(d.y), dz = float(d.z) * sign;
+  const float dx = ray->dir[0], dy = ray->dir[1], dz = ray->dir[2];
   for (int c = 0; c < 3; ++c) {
     ray->org[c] = f.v0[c] + b1 * f.e1[c] + b2 * f.e2[c] + sign * f.offset * f.n[c];
     ray->dir[c] = dx * f.t[c] + dy * f.b[c] + dz * f.n[c];
@@ -59,6 +59,16 @@ inline void place_ray(const EmitterSampler::TriangleFrame& f, const Barycentric&
   ray->tnear = 0;
   ray->tfar = 3.0e38f;
   *offset = f.offset;
+}
+
+// The ray from barycentric point `bc` of triangle frame `f` in local direction `d` (z along
+// the normal, flipped by `sign` for a back side), lifted off the surface by the frame's offset.
+inline void place_ray(const EmitterSampler::TriangleFrame& f, const Barycentric& bc, const Vec3& d,
+                      float sign, Ray* ray, float* offset) {
+  ray->dir[0] = float(d.x);
+  ray->dir[1] = float(d.y);
+  ray->dir[2] = float(d.z) * sign;
+  place_origin(f, bc, sign, ray, offset);
 }
 
 // double(v) / 2^32, through a signed conversion (v - 2^31 is exact in int32 and the sum back
@@ -100,21 +110,6 @@ inline double fraction32(std::uint32_t v) {
   }
 }
 
-// The ray's origin at barycentric point `bc` of frame `f`, lifted off the surface, and its
-// direction turned from the local one local_directions left in ray->dir (as place_ray).
-inline void place_origin(const EmitterSampler::TriangleFrame& f, const Barycentric& bc, float sign,
-                         Ray* ray, float* offset) {
-  const float b1 = float(bc.b1), b2 = float(bc.b2);
-  const float dx = ray->dir[0], dy = ray->dir[1], dz = ray->dir[2];
-  for (int c = 0; c < 3; ++c) {
-    ray->org[c] = f.v0[c] + b1 * f.e1[c] + b2 * f.e2[c] + sign * f.offset * f.n[c];
-    ray->dir[c] = dx * f.t[c] + dy * f.b[c] + dz * f.n[c];
-  }
-  ray->tnear = 0;
-  ray->tfar = 3.0e38f;
-  *offset = f.offset;
-}
-
 // The rays of points on a patch of one triangle (frame f, area and 1 / area) whose local
 // directions local_directions left in the rays: EmitterSampler::emit's arithmetic for that
 // case, with the clamps and the triangle map's select written as ternaries the compiler turns
@@ -132,16 +127,8 @@ inline void place_origin(const EmitterSampler::TriangleFrame& f, const Barycentr
     // sample_triangle_uniform(r, u1)
     const bool lower = r < u1;
     const double h1 = 0.5 * r, h2 = 0.5 * u1;
-    const float b1 = float(lower ? h1 : r - h2), b2 = float(lower ? u1 - h1 : h2);
-    Ray& ray = rays[i];
-    const float dx = ray.dir[0], dy = ray.dir[1], dz = ray.dir[2];
-    for (int c = 0; c < 3; ++c) {
-      ray.org[c] = f.v0[c] + b1 * f.e1[c] + b2 * f.e2[c] + sign * f.offset * f.n[c];
-      ray.dir[c] = dx * f.t[c] + dy * f.b[c] + dz * f.n[c];
-    }
-    ray.tnear = 0;
-    ray.tfar = 3.0e38f;
-    offset[i] = f.offset;
+    place_origin(f, Barycentric{lower ? h1 : r - h2, lower ? u1 - h1 : h2}, sign, rays + i,
+                 offset + i);
   }
 }
 

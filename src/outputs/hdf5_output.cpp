@@ -86,40 +86,32 @@ void put(unsigned char* out, std::uint64_t k, T value) {
 // uncertainties are usually quoted to at most two significant digits (GUM, JCGM 100:2008,
 // 7.2.6; recalled). The byte dropped is random and incompressible: it would take one byte per
 // entry, about a tenth of the file.
-float error_to_store(double se) {
-  if (!std::isfinite(se)) return static_cast<float>(se);
+// Written with a select rather than a branch, so that stored_errors' loop is vectorised.
+inline float error_to_store(double se) {
   constexpr int kDropped = 52 - 15;  // of a double's 52 significand bits, 15 kept (+ the hidden 1)
+  constexpr std::uint64_t kExponent = 0x7ff0000000000000ull;
   std::uint64_t bits;
   std::memcpy(&bits, &se, sizeof bits);
-  bits = (bits + (std::uint64_t(1) << (kDropped - 1))) & ~((std::uint64_t(1) << kDropped) - 1);
+  const std::uint64_t rounded =
+      (bits + (std::uint64_t(1) << (kDropped - 1))) & ~((std::uint64_t(1) << kDropped) - 1);
+  bits = (bits & kExponent) == kExponent ? bits : rounded;  // infinities and NaN as they are
   std::memcpy(&se, &bits, sizeof se);
   return static_cast<float>(se);  // exact: 16 significant bits fit in a float's 24
 }
 
 // error_to_store(vf.standard_error(i, f)) of the factors f of a row emitting `rays` > 0 rays,
-// `ratio` its error ratio (1 without one): factor_standard_error, the ratio and the rounding
-// above written as one loop of selects and bit operations that GCC vectorises (this file is
-// compiled with -fno-math-errno and -fno-trapping-math, CMakeLists.txt), instead of three calls
-// with branches per entry. The same operations, so the same bits (tests/test_hdf5_output.cpp);
-// x * 1 is x, so a row without a ratio takes 1.
+// `ratio` its error ratio (1 without one): factor_standard_error and the ratio written as one
+// loop of selects that GCC vectorises (this file is compiled with -fno-math-errno and
+// -fno-trapping-math, CMakeLists.txt), instead of calls with branches per entry. The same
+// operations, so the same bits (tests/python/check_hdf5.py checks every stored error to the
+// bit); x * 1 is x, so a row without a ratio takes 1.
 [[gnu::target_clones("avx2", "default")]] void stored_errors(const double* factors,
                                                              std::size_t count, double rays,
                                                              double ratio, float* out) {
-  constexpr int kDropped = 52 - 15;
-  constexpr std::uint64_t kHalf = std::uint64_t(1) << (kDropped - 1);
-  constexpr std::uint64_t kKept = ~((std::uint64_t(1) << kDropped) - 1);
-  constexpr std::uint64_t kExponent = 0x7ff0000000000000ull;
   for (std::size_t k = 0; k < count; ++k) {
     const double f = factors[k];
     const double p = f < 0.0 ? 0.0 : (1.0 < f ? 1.0 : f);  // std::clamp(f, 0.0, 1.0)
-    const double se = std::sqrt(p * (1 - p) / rays) * ratio;
-    std::uint64_t bits;
-    std::memcpy(&bits, &se, sizeof bits);
-    const std::uint64_t rounded = (bits + kHalf) & kKept;
-    bits = (bits & kExponent) == kExponent ? bits : rounded;  // infinities and NaN kept
-    double kept;
-    std::memcpy(&kept, &bits, sizeof kept);
-    out[k] = static_cast<float>(kept);
+    out[k] = error_to_store(std::sqrt(p * (1 - p) / rays) * ratio);
   }
 }
 
