@@ -67,6 +67,19 @@ File::File(const std::string& path, std::string name) : name_(std::move(name)) {
   file_ = Handle(
       check_id(H5Fcreate(path.c_str(), H5F_ACC_TRUNC, H5P_DEFAULT, H5P_DEFAULT), "create the file"),
       H5Fclose);
+  // The file's descriptor when HDF5 writes it with its POSIX driver (the default), for the
+  // page-cache advice; any other driver is left alone.
+  Handle access(H5Fget_access_plist(file_.get()), H5Pclose);
+  void* handle = nullptr;
+  if (access.get() >= 0 && H5Pget_driver(access.get()) == H5FD_SEC2 &&
+      H5Fget_vfd_handle(file_.get(), access.get(), &handle) >= 0 && handle != nullptr)
+    trim_ = PageCacheTrim(*static_cast<int*>(handle));
+}
+
+void File::wrote_chunk(std::size_t bytes) const {
+  // The chunks' bytes so far are a lower bound of the file's end.
+  chunk_bytes_ += bytes;
+  trim_.written_up_to(chunk_bytes_);
 }
 
 void File::close() {
@@ -270,6 +283,7 @@ void Dataset::write_chunk(const unsigned char* packed, std::size_t size) {
   const hsize_t offset[2] = {next_chunk_ * chunk_rows_, 0};
   file_->check(H5Dwrite_chunk(dataset_.get(), H5P_DEFAULT, 0, offset, size, packed),
                "write a chunk of " + path_);
+  file_->wrote_chunk(size);
   ++next_chunk_;
 }
 

@@ -11,6 +11,8 @@
 #include <string>
 #include <vector>
 
+#include "core/page_cache.hpp"
+
 namespace hearthray::hdf5 {
 
 // An HDF5 identifier closed by its close function when the object goes.
@@ -103,10 +105,16 @@ class File {
   void int8s(const std::string& path, const std::vector<std::int8_t>& values) const;
 
   const std::string& name() const { return name_; }
+  // A dataset's chunk of `bytes` was written (at the file's end, where HDF5 puts new chunks):
+  // the pages of what lies well behind are let go from the page cache (core/page_cache.hpp).
+  void wrote_chunk(std::size_t bytes) const;
 
  private:
   std::string name_;
   Handle file_;
+  // Chunks are written one at a time (Dataset's serial stage), so these need no lock.
+  mutable PageCacheTrim trim_;
+  mutable std::uint64_t chunk_bytes_ = 0;
 };
 
 }  // namespace hearthray::hdf5
