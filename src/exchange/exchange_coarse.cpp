@@ -91,7 +91,9 @@ CoarseSpace::CoarseSpace(const Setup& s, int target, const PassProducts& product
   // At most an eighth of the faces, and few enough that the LU of S_c (2 m^3 / 3 flops, dense
   // and fast) costs about as much as one product with F (memory-bound): measured at 98,592
   // faces, the LU at m = 1017 took 0.05-0.07 s and a product with the 161 M non-zeros of F
-  // about 0.17 CPU-s (from half of F).
+  // about 0.17 CPU-s (from half of F). There the rule gives m = 1370 (LU 0.11 s in a
+  // micro-benchmark of Eigen's PartialPivLU against 0.05 s at 1024; it is done once a solve,
+  // see kRefactor): 22 GMRES iterations rather than 24 at m = 1017.
   const double by_cost = std::cbrt(kFlopsPerNonZero * double(s.F->nonZeros()));
   const std::size_t most =
       std::max<std::size_t>(1, std::min<std::size_t>(n / 8, std::size_t(by_cost)));

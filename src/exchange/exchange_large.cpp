@@ -48,7 +48,7 @@
 // that matrix is factored again only when the a_k move: measured (2026-12-03, bench_pipeline
 // at 98,592 patches, alternating with the previous build, load 3.4-4.6) the exchange stage's
 // CPU 6.6-6.8 s against 8.7-8.8 s, the same 4 Newton steps and 33 GMRES iterations.
-// GMRES is right-preconditioned by a two-level correction on up to 1024 aggregates of faces
+// GMRES is right-preconditioned by a two-level correction on up to 2048 aggregates of faces
 // (exchange_coarse.hpp: the slow modes of S, smooth over the enclosure, solved on a coarse
 // matrix R S P built by one pass over F and factored densely at each step). Measured
 // (2026-12-02, 2 cores shared with other work, load 1.7-3.2; CPU seconds of the exchange
@@ -72,7 +72,11 @@
 // and 33, exchange CPU 4.68-4.73 s rather than 5.86-5.98 s; at 20,050 patches 2 and 23 rather
 // than 3 and 29, 0.71-0.73 s rather than 0.84-0.86 s; bench_exchange: random enclosures 15 ->
 // 13 and 16 -> 14 iterations (a Newton step fewer), box furnace 26 -> 22, the 30:1 tunnel at
-// emissivity 0.8 20 -> 15 (one Newton step rather than two), at 0.02 34 -> 34.
+// emissivity 0.8 20 -> 15 (one Newton step rather than two), at 0.02 34 -> 34. Then up to 2048
+// aggregates rather than 1024, the cost rule of exchange_coarse.cpp deciding on large problems
+// (the coarse matrix being factored once a solve): 1370 at 98,592 patches, 22 GMRES iterations
+// rather than 24 (exchange CPU 4.36-4.51 s rather than 4.54-4.66 s, five alternations in one
+// process on the same factors, load 2.6-3.3); 750 at 20,050 patches as before.
 #include <Eigen/Dense>
 #include <algorithm>
 #include <cmath>
