@@ -454,6 +454,77 @@ TEST_CASE("GMRES on a paired operator gives B x and the residual from its produc
   }
 }
 
+TEST_CASE("GMRES with a zero-sum constraint takes the least residual whose weighted sum is 0",
+          "[exchange]") {
+  namespace ex = exchange_detail;
+  // Reference: after k steps from x = 0 without a restart, x lies in the Krylov space
+  // K_k = span{b, A b, ..., A^(k-1) b}; the least ||b - A x|| over K_k with a^T (b - A x) = 0 is
+  // found here independently, from an orthonormal basis Q of K_k (Householder QR) and the
+  // Lagrange (KKT) system of that least-squares problem, solved densely.
+  Eigen::MatrixXd A;
+  Eigen::VectorXd b, a(120);  // a: positive weights, as the faces' areas
+  std::mt19937_64 rng(11);
+  std::uniform_real_distribution<double> share(0.5, 2.0);
+  for (Eigen::Index i = 0; i < a.size(); ++i) a[i] = share(rng);
+  dominant_system(int(a.size()), &rng, &A, &b);
+  const Eigen::Index n = b.size();
+  const ex::LinearOperator op = [&](const Eigen::VectorXd& x, Eigen::VectorXd* y) { *y = A * x; };
+  const ex::PairedOperator paired = [&](const Eigen::VectorXd& x, Eigen::VectorXd* y,
+                                        Eigen::VectorXd* side) {
+    *y = A * x;
+    if (side != nullptr) *side = 2 * x;
+  };
+  for (int k : {1, 2, 4, 6}) {
+    Eigen::MatrixXd K(n, k);
+    K.col(0) = b;
+    for (int q = 1; q < k; ++q) K.col(q) = A * K.col(q - 1);
+    const Eigen::MatrixXd Q = K.householderQr().householderQ() * Eigen::MatrixXd::Identity(n, k);
+    const Eigen::MatrixXd AQ = A * Q;
+    // [AQ^T AQ, AQ^T a; a^T AQ, 0] [y; mu] = [AQ^T b; a^T b]
+    Eigen::MatrixXd kkt = Eigen::MatrixXd::Zero(k + 1, k + 1);
+    kkt.topLeftCorner(k, k) = AQ.transpose() * AQ;
+    kkt.topRightCorner(k, 1) = AQ.transpose() * a;
+    kkt.bottomLeftCorner(1, k) = (AQ.transpose() * a).transpose();
+    Eigen::VectorXd rhs(k + 1);
+    rhs.head(k) = AQ.transpose() * b;
+    rhs[k] = a.dot(b);
+    const Eigen::VectorXd y = kkt.fullPivLu().solve(rhs);
+    const double least = (b - AQ * y.head(k)).norm() / b.norm();
+    ex::KrylovOptions o;
+    o.tolerance = 1e-14;
+    o.max_iterations = k;
+    o.zero_sum = &a;
+    Eigen::VectorXd x;
+    const auto plain = ex::gmres(op, ex::LinearOperator(), b, o, &x);
+    INFO("k " << k);
+    const Eigen::VectorXd r = b - A * x;
+    CHECK(std::abs(a.dot(r)) <= 1e-13 * a.norm() * b.norm());
+    CHECK(r.norm() / b.norm() == Approx(least).epsilon(1e-9));
+    CHECK(plain.relative_residual == Approx(r.norm() / b.norm()).epsilon(1e-12));
+    // Unconstrained, the least residual over the same space is smaller (or equal).
+    o.zero_sum = nullptr;
+    ex::gmres(op, ex::LinearOperator(), b, o, &x);
+    CHECK((b - A * x).norm() / b.norm() <= least * (1 + 1e-12));
+    CHECK(std::abs(a.dot(b - A * x)) > 1e-10 * a.norm() * b.norm());
+  }
+  // Converged, with restarts and with the paired form (residual and B x from the products):
+  // the stated residual holds and the weighted sum is 0 to round-off.
+  for (int restart : {3, 100}) {
+    ex::KrylovOptions o;
+    o.tolerance = 1e-6;
+    o.restart = restart;
+    o.zero_sum = &a;
+    Eigen::VectorXd x, Bx;
+    const auto summary = ex::gmres(paired, ex::LinearOperator(), b, o, &x, &Bx);
+    INFO("restart " << restart);
+    const Eigen::VectorXd r = b - A * x;
+    CHECK(summary.converged);
+    CHECK(r.norm() <= 1e-6 * b.norm() * (1 + 1e-6));
+    CHECK(std::abs(a.dot(r)) <= 1e-13 * a.norm() * b.norm());
+    CHECK((Bx - 2 * x).norm() <= 1e-14 * x.norm());
+  }
+}
+
 TEST_CASE("the coarse space's pass over F makes products bitwise as multiply does", "[exchange]") {
   const ViewFactors vf = random_enclosure(3000, 60, 0.1, 141);
   const ExchangeProblem p = make_problem(vf, Mix::conduction, 1, 0, 142);

@@ -108,14 +108,43 @@ void apply_preconditioner(const LinearOperator& precondition, const Eigen::Vecto
   }
 }
 
-// The end of a cycle of j > 0 steps: x += M^-1 V y, y minimising the cycle's residual; when the
-// products are kept (Bx given), r -= AZ y and Bx += BZ y, adding the round-off bound of that
-// combination to *drift.
-void close_cycle(const Eigen::MatrixXd& V, const Eigen::MatrixXd& H, const Eigen::VectorXd& g,
-                 Eigen::Index j, const LinearOperator& precondition, const Eigen::MatrixXd& AZ,
+// What a cycle of j steps has made: its Hessenberg matrix H rotated to triangular (T, its top
+// j x j) with the rotated residual g; with weights a (KrylovOptions::zero_sum), c_q = a^T A z_q
+// and d = a^T r at the cycle's start.
+struct Cycle {
+  const Eigen::MatrixXd& H;
+  const Eigen::VectorXd& g;
+  const Eigen::VectorXd* c;  // null: no constraint
+  double d;
+};
+
+// The coefficients y of the cycle's update x += M^-1 V y and the norm of the residual it
+// leaves: the least ||g - H y|| is y0 = T^-1 g_head, residual |g_j|. With the constraint
+// c^T y = d (then a^T r = 0 after the update): y = y0 + e T^-1 v / |v|^2, v = T^-T c,
+// e = d - c^T y0, the residual's norm rising to sqrt(g_j^2 + e^2 / |v|^2) (the least t with
+// v^T t = e added to T y0 - g_head = 0). Left unconstrained if v is 0 or not finite.
+double cycle_solution(const Cycle& cycle, Eigen::Index j, Eigen::VectorXd* y) {
+  const auto T = cycle.H.topLeftCorner(j, j).triangularView<Eigen::Upper>();
+  *y = T.solve(cycle.g.head(j));
+  const double unconstrained = std::abs(cycle.g[j]);
+  if (cycle.c == nullptr) return unconstrained;
+  const Eigen::VectorXd v = T.transpose().solve(cycle.c->head(j));
+  const double v2 = v.squaredNorm();
+  const double e = cycle.d - cycle.c->head(j).dot(*y);
+  if (!(v2 > 0) || !std::isfinite(v2) || !std::isfinite(e)) return unconstrained;
+  *y += (e / v2) * T.solve(v);
+  return std::sqrt(unconstrained * unconstrained + e * e / v2);
+}
+
+// The end of a cycle of j > 0 steps: x += M^-1 V y, y from cycle_solution; when the products
+// are kept (Bx given), r -= AZ y and Bx += BZ y, adding the round-off bound of that combination
+// to *drift.
+void close_cycle(const Eigen::MatrixXd& V, const Cycle& cycle, Eigen::Index j,
+                 const LinearOperator& precondition, const Eigen::MatrixXd& AZ,
                  const Eigen::MatrixXd& BZ, Eigen::VectorXd* x, Eigen::VectorXd* r,
                  Eigen::VectorXd* Bx, double* drift) {
-  const Eigen::VectorXd y = H.topLeftCorner(j, j).triangularView<Eigen::Upper>().solve(g.head(j));
+  Eigen::VectorXd y;
+  cycle_solution(cycle, j, &y);
   const Eigen::VectorXd update = V.leftCols(j) * y;
   Eigen::VectorXd z;
   apply_preconditioner(precondition, update, &z);
@@ -151,7 +180,9 @@ KrylovSummary restarted_gmres(const PairedOperator& A, const LinearOperator& pre
     AZ.resize(n, m);
     BZ.resize(n, m);
   }
-  Eigen::VectorXd cs(m), sn(m), g(m + 1);
+  Eigen::VectorXd cs(m), sn(m), g(m + 1), c(m);
+  const Eigen::VectorXd* weights = options.zero_sum;
+  Cycle cycle{H, g, weights != nullptr ? &c : nullptr, 0.0};
   Eigen::VectorXd r = b, w(n), z(n), side;
   double beta = b_norm;  // ||b - A x|| for the current x (x = 0 at the start)
   // Bound on the round-off in r since it was last measured by a product (none yet: r = b).
@@ -162,6 +193,7 @@ KrylovSummary restarted_gmres(const PairedOperator& A, const LinearOperator& pre
     H.setZero();
     g.setZero();
     g[0] = beta;
+    if (weights != nullptr) cycle.d = weights->dot(r);
     Index j = 0;
     while (j < m && summary.iterations < options.max_iterations) {
       apply_preconditioner(precondition, V.col(j), &z);
@@ -173,17 +205,21 @@ KrylovSummary restarted_gmres(const PairedOperator& A, const LinearOperator& pre
         A(z, &w, nullptr);
       }
       ++summary.iterations;
+      if (weights != nullptr) c[j] = weights->dot(w);
       double h_next = 0;
       if (!arnoldi_column(V, j, &w, &H, &cs, &sn, &g, &h_next)) {
         broke_down = true;
         break;
       }
       ++j;
-      if (!(h_next > 0) || std::abs(g[j]) <= target) break;
+      // The residual the cycle would leave if it ended here.
+      Eigen::VectorXd y;
+      const double left = weights != nullptr ? cycle_solution(cycle, j, &y) : std::abs(g[j]);
+      if (!(h_next > 0) || left <= target) break;
       V.col(j) = w / h_next;
     }
     const bool combined = Bx != nullptr && j > 0;  // r and Bx from this cycle's products
-    if (j > 0) close_cycle(V, H, g, j, precondition, AZ, BZ, x, &r, Bx, &drift);
+    if (j > 0) close_cycle(V, cycle, j, precondition, AZ, BZ, x, &r, Bx, &drift);
     const double previous = beta;
     if (combined) beta = r.norm();
     const bool settled = combined && beta + drift <= target;

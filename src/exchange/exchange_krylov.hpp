@@ -29,6 +29,12 @@ struct KrylovOptions {
   double tolerance = 1e-10;  // stop when ||b - A x||_2 <= tolerance ||b||_2
   int max_iterations = 1000;
   int restart = 100;  // GMRES(m): Krylov vectors kept before a restart
+  // Weights a (null: none): each cycle then takes, of the x it can reach, the one of least
+  // residual r = b - A x among those with a^T r = 0, rather than the least residual alone
+  // (a linear constraint on the cycle's small least-squares problem, no further product); the
+  // residual norm it watches is that x's. For a sum of the residual that must vanish far more
+  // tightly than its norm (the exchange's net power of the radiosity residuals).
+  const Eigen::VectorXd* zero_sum = nullptr;
 };
 
 struct KrylovSummary {
