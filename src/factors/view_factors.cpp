@@ -4,6 +4,7 @@
 #include <tbb/info.h>
 #include <tbb/parallel_for.h>
 #include <tbb/task_arena.h>
+#include <tbb/task_group.h>
 
 #include <algorithm>
 #include <atomic>
@@ -441,24 +442,40 @@ Tallies trace_tallies(const Scene& scene, const PatchSet& patches, const Tracer&
   Tallies tallies;
   reserve_entries(options, begin, end, lookup.patch_count(), &tallies);
   RowMerger row(lookup.patch_count(), sobol);
-  std::vector<HitTally> results;  // per chunk of the window; reused window after window
+  // The chunks' tallies of two windows, reused window after window: while one window is
+  // traced, the one before it is merged into the tallies beside it (one thread; the merges
+  // still run one after another, in window order, so the tallies are the same in any thread
+  // order), instead of every thread but one waiting for the merge.
+  std::vector<HitTally> results[2];
+  const std::vector<HitTally>* to_merge = nullptr;  // the window traced last, not yet merged
+  std::size_t merge_first = 0, merge_last = 0;      // and its chunks
+  auto merge = [&] {
+    if (to_merge) merge_rows(options, chunks, merge_first, merge_last, *to_merge, row, &tallies);
+  };
   for (std::size_t first = 0; first < chunks.size();) {
     const std::size_t last = window_end(chunks, first);
-    if (results.size() < last - first) results.resize(last - first);
+    std::vector<HitTally>& traced = results[to_merge == &results[0] ? 1 : 0];
+    if (traced.size() < last - first) traced.resize(last - first);
     arena.execute([&] {
+      tbb::task_group merging;
+      merging.run(merge);
       tbb::parallel_for(tbb::blocked_range<std::size_t>(first, last, 1),
                         [&](const tbb::blocked_range<std::size_t>& range) {
                           for (std::size_t c = range.begin(); c != range.end(); ++c) {
                             trace_chunk(chunks[c], emitters, sobol, tracer, scratch.local(),
-                                        &results[c - first]);
+                                        &traced[c - first]);
                             progress.add(chunks[c].last - chunks[c].first);
                           }
                         });
+      merging.wait();
     });
-    merge_rows(options, chunks, first, last, results, row, &tallies);
+    to_merge = &traced;
+    merge_first = first;
+    merge_last = last;
     first = last;
   }
-  results = std::vector<HitTally>{};
+  merge();
+  results[0] = results[1] = std::vector<HitTally>{};
   const double seconds = progress.seconds();
   finish_tallies(begin, lookup, scratch, &tallies);
 
