@@ -359,6 +359,14 @@ TEST_CASE("bad exchange problems are refused with a message naming what to fix",
     p.nodes[1].condition.convection = Convection{0, 300};
     CHECK_THROWS_WITH(solve_exchange(p, o), Catch::Contains("nothing fixes"));
   }
+  SECTION("a group seen only from the row of an anchored face is joined to it") {
+    // Rows 1 and 2 see only each other and row 0 (fixed) sees face 1: not reciprocal, but the
+    // level check joins the faces of every row, so faces 1 and 2 share face 0's anchor (what
+    // the solve then makes of such factors is not the point here).
+    const ViewFactors seen = exact_factors({{0, 1, 0}, {0, 0, 1}, {0, 1, 0}}, {1.0, 1.0, 1.0});
+    p = one_node_per_face(seen, {0.5, 0.5, 0.5}, {fixed(300), adiabatic(), adiabatic()});
+    CHECK_NOTHROW(solve_exchange(p, o));
+  }
   SECTION("a floating group beside an anchored one") {
     const ViewFactors two = exact_factors({{0, 1, 0, 0}, {1, 0, 0, 0}, {0, 0, 0, 1}, {0, 0, 1, 0}},
                                           {1.0, 1.0, 1.0, 1.0});
