@@ -50,7 +50,8 @@
 // CPU 6.6-6.8 s against 8.7-8.8 s, the same 4 Newton steps and 33 GMRES iterations.
 // GMRES is right-preconditioned by a two-level correction on up to 2048 aggregates of faces
 // (exchange_coarse.hpp: the slow modes of S, smooth over the enclosure, solved on a coarse
-// matrix R S P built by one pass over F and factored densely at each step). Measured
+// matrix R S P built by one pass over F and factored densely, again only when the nodes'
+// coefficients move: kRefactor in exchange_coarse.cpp). Measured
 // (2026-12-02, 2 cores shared with other work, load 1.7-3.2; CPU seconds of the exchange
 // stage, both threads), without -> with it: bench_pipeline's furnace at 98,592 patches 4
 // Newton steps and 58 GMRES iterations, 11.4-11.9 s -> 4 and 33, 8.6 s; at 20,050 patches 3 and
